@@ -1,0 +1,1 @@
+"""One module per command, each with ``run(args) -> int``; imported lazily by the CLI."""
