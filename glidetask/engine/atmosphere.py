@@ -1,0 +1,142 @@
+"""The ISO 2533 standard atmosphere: density ratio and IAS <-> TAS.
+
+Glide performance depends on air density: a polar measured at sea level holds at
+altitude with every speed and sink rate multiplied by ``1/sqrt(sigma)``
+(shared/CONTRACT.md section 3). This module gives ``sigma`` for the troposphere and
+the isothermal layer above it (up to 20 km), with an optional ISA temperature deviation.
+
+All functions take scalars or numpy arrays and broadcast; a scalar in gives a float out.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+# ISO 2533:1975 sea-level constants and the troposphere's lapse rate.
+T0_K = 288.15  # sea-level temperature [K]
+P0_PA = 101325.0  # sea-level pressure [Pa]
+RHO0_KGM3 = 1.225  # sea-level density [kg/m^3]
+G0_MS2 = 9.80665  # standard gravity [m/s^2]
+R_AIR = 287.05287  # specific gas constant of dry air [J/(kg K)]
+LAPSE_KM = 0.0065  # temperature lapse rate in the troposphere [K/m]
+EARTH_RADIUS_M = 6356766.0  # nominal Earth radius for geopotential altitude [m]
+TROPOPAUSE_M = 11000.0  # geopotential altitude of the tropopause [m]
+LOWEST_M = -2000.0  # lowest altitude the standard tabulates [m]
+HIGHEST_M = 20000.0  # top of the isothermal layer modelled here [m]
+
+_EXPONENT = G0_MS2 / (R_AIR * LAPSE_KM)  # 5.25588...
+_T11_K = T0_K - LAPSE_KM * TROPOPAUSE_M  # 216.65 K
+_P11_PA = P0_PA * (_T11_K / T0_K) ** _EXPONENT  # 22632 Pa
+
+
+def _scalar_or_array(value):
+    value = np.asarray(value, dtype=float)
+    return float(value) if value.ndim == 0 else value
+
+
+def geopotential_altitude(altitude_m):
+    """Geopotential altitude for a geometric altitude [m]: ``H = r h / (r + h)``.
+
+    ``r = 6 356 766 m`` as in ISO 2533; the difference is 1.4 m at 3000 m.
+    """
+    h = np.asarray(altitude_m, dtype=float)
+    return _scalar_or_array(EARTH_RADIUS_M * h / (EARTH_RADIUS_M + h))
+
+
+def isa_temperature(altitude_m):
+    """Standard temperature at an altitude [K].
+
+    Parameters
+    ----------
+    altitude_m : float or array_like
+        Geometric altitude above mean sea level [m].
+
+    Returns
+    -------
+    float or ndarray
+        ISA temperature [K]; NaN outside [-2000, 20000] m (geopotential).
+    """
+    h = np.asarray(geopotential_altitude(altitude_m))
+    temperature = np.where(h < TROPOPAUSE_M, T0_K - LAPSE_KM * h, _T11_K)
+    temperature = np.where((h >= LOWEST_M) & (h <= HIGHEST_M), temperature, np.nan)
+    return _scalar_or_array(temperature)
+
+
+def isa_pressure(altitude_m):
+    """Standard pressure at an altitude [Pa].
+
+    Notes
+    -----
+    With ``H`` the geopotential altitude, troposphere: ``p = p0 (T/T0)^(g0/(R L))``;
+    above 11 km (isothermal): ``p = p11 exp(-g0 (H - 11000)/(R T11))`` [1]_.
+
+    References
+    ----------
+    .. [1] ISO 2533:1975, Standard Atmosphere (also ICAO Doc 7488/3).
+    """
+    h = np.asarray(geopotential_altitude(altitude_m))
+    with np.errstate(invalid="ignore"):
+        troposphere = P0_PA * ((T0_K - LAPSE_KM * h) / T0_K) ** _EXPONENT
+        stratosphere = _P11_PA * np.exp(-G0_MS2 * (h - TROPOPAUSE_M) / (R_AIR * _T11_K))
+    pressure = np.where(h < TROPOPAUSE_M, troposphere, stratosphere)
+    pressure = np.where((h >= LOWEST_M) & (h <= HIGHEST_M), pressure, np.nan)
+    return _scalar_or_array(pressure)
+
+
+def air_density(altitude_m, isa_deviation_c=0.0):
+    """Air density at an altitude with an ISA temperature deviation [kg/m^3].
+
+    Parameters
+    ----------
+    altitude_m : float or array_like
+        Geometric altitude above mean sea level [m], taken as the pressure altitude
+        (the day's pressure is assumed standard: the difference is inside the
+        planning margins).
+    isa_deviation_c : float or array_like, default 0
+        Temperature above the standard at that pressure [degC = K].
+
+    Returns
+    -------
+    float or ndarray
+        Density [kg/m^3]; NaN outside [-2000, 20000] m or where the temperature
+        would not be above absolute zero.
+
+    Notes
+    -----
+    Ideal gas: ``rho = p / (R (T_isa + dT))`` with ``p`` the standard pressure at that
+    pressure altitude, so a warm day lowers the density at the same altitude [1]_.
+
+    References
+    ----------
+    .. [1] ISO 2533:1975, Standard Atmosphere.
+    """
+    temperature = np.asarray(isa_temperature(altitude_m)) + np.asarray(isa_deviation_c, dtype=float)
+    temperature = np.where(temperature > 0.0, temperature, np.nan)
+    return _scalar_or_array(np.asarray(isa_pressure(altitude_m)) / (R_AIR * temperature))
+
+
+def density_ratio(altitude_m, isa_deviation_c=0.0):
+    """``sigma = rho / rho0`` at an altitude and ISA deviation [-].
+
+    See :func:`air_density`; ``rho0 = 1.225 kg/m^3`` (ISO 2533 sea level).
+    """
+    return _scalar_or_array(np.asarray(air_density(altitude_m, isa_deviation_c)) / RHO0_KGM3)
+
+
+def tas_from_ias(ias_ms, altitude_m, isa_deviation_c=0.0):
+    """True airspeed for an indicated airspeed [m/s].
+
+    Notes
+    -----
+    ``TAS = IAS / sqrt(sigma)``: IAS is taken as equivalent airspeed (instrument,
+    position and compressibility errors neglected; compressibility is well under 1 %
+    below 300 km/h at glider heights).
+    """
+    sigma = np.asarray(density_ratio(altitude_m, isa_deviation_c))
+    return _scalar_or_array(np.asarray(ias_ms, dtype=float) / np.sqrt(sigma))
+
+
+def ias_from_tas(tas_ms, altitude_m, isa_deviation_c=0.0):
+    """Indicated airspeed for a true airspeed [m/s]: ``IAS = TAS sqrt(sigma)``."""
+    sigma = np.asarray(density_ratio(altitude_m, isa_deviation_c))
+    return _scalar_or_array(np.asarray(tas_ms, dtype=float) * np.sqrt(sigma))
