@@ -69,20 +69,29 @@ def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1
     mid = 0.5 * (lo + hi)
     x = mid if guess is None else np.broadcast_to(np.asarray(guess, dtype=float), shape).ravel()
     x = np.where((x > lo) & (x < hi), x, mid)
-    active = np.flatnonzero(lo < hi)
+    # The working set: elements not yet settled, compacted when it has shrunk by half.
+    index = np.flatnonzero(lo < hi)
+    xa, la, ha = x[index], lo[index], hi[index]
+    pa = [p[index] for p in params]
     for _ in range(iterations):
-        if active.size == 0:
+        if index.size == 0:
             break
-        xa, la, ha = x[active], lo[active], hi[active]
-        f, dfdx = func(xa, *(p[active] for p in params))
+        f, dfdx = func(xa, *pa)
         la = np.where(f <= 0.0, xa, la)
         ha = np.where(f >= 0.0, xa, ha)
         with np.errstate(divide="ignore", invalid="ignore"):
             newton = xa - f / dfdx
         x_new = np.where((newton >= la) & (newton <= ha), newton, 0.5 * (la + ha))
         settled = (np.abs(x_new - xa) <= rtol * (1.0 + np.abs(xa))) | np.isnan(x_new)
-        x[active], lo[active], hi[active] = x_new, la, ha
-        active = active[~settled]
+        xa = x_new
+        if settled.all():
+            break
+        if 2 * np.count_nonzero(~settled) < index.size:
+            x[index] = xa
+            keep = ~settled
+            index, xa, la, ha = index[keep], xa[keep], la[keep], ha[keep]
+            pa = [p[keep] for p in pa]
+    x[index] = xa
     return x.reshape(shape)
 
 

@@ -1,0 +1,212 @@
+"""Circling in a thermal: turn physics, a thermal updraft profile, the climb achieved.
+
+In a coordinated turn at bank ``phi`` the wing carries ``n = 1/cos(phi)`` times the
+weight, so the glider flies ``sqrt(n)`` faster and sinks ``n^1.5`` times faster than
+wings level at the same lift coefficient, on a circle of radius ``V^2/(g tan(phi))``.
+The thermal is a Gaussian core; the achieved climb is the best over bank angle and
+airspeed of the updraft at the circle's radius minus the circling sink
+(shared/CONTRACT.md section 3).
+
+References
+----------
+.. [1] F. Thomas, Fundamentals of Sailplane Design, College Park Press, 1999: the
+   circling polar and the climb in model thermals (from memory).
+.. [2] H. Reichmann, Cross-Country Soaring, Thomson Publications, 1978: circling
+   flight, bank angle and thermal core width (from memory).
+.. [3] K. H. Horstmann, "Neue Modellaufwindverteilungen und ihr Einfluss auf die
+   Auslegung von Segelflugzeugen", OSTIV Publication XIV, 1976: radial updraft
+   profiles that fall off smoothly from the core (from memory).
+.. [4] M. J. Allen, "Updraft Model for Development of Autonomous Soaring Uninhabited
+   Air Vehicles", AIAA 2006-1510, NASA Dryden, 2006: a bell-shaped radial profile
+   (from memory; that model itself is not implemented here).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from glidetask.engine.polar import Polar
+
+G0_MS2 = 9.80665  # standard gravity [m/s^2]
+BANK_RANGE_DEG = (15.0, 60.0)  # banks searched for the best climb [deg]
+CIRCLING_SPEED_SPAN = 1.6  # wings-level speeds searched: min_speed to this multiple of it
+
+
+def _scalar_or_array(value):
+    value = np.asarray(value, dtype=float)
+    return float(value) if value.ndim == 0 else value
+
+
+def load_factor(bank_deg):
+    """Load factor of a coordinated level turn ``n = 1/cos(phi)`` [-]."""
+    return _scalar_or_array(1.0 / np.cos(np.radians(np.asarray(bank_deg, dtype=float))))
+
+
+def circling_speed(speed_ms, bank_deg):
+    """Airspeed in the turn for a wings-level airspeed at the same lift coefficient [m/s].
+
+    ``V_turn = v sqrt(n)``: the lift must grow by ``n`` at the same lift coefficient.
+    """
+    return _scalar_or_array(np.asarray(speed_ms, dtype=float) * np.sqrt(load_factor(bank_deg)))
+
+
+def circling_sink(polar: Polar, speed_ms, bank_deg):
+    """Sink rate in a coordinated turn [m/s].
+
+    Parameters
+    ----------
+    polar : Polar
+        The wings-level polar.
+    speed_ms : float or array_like
+        Wings-level airspeed whose lift coefficient the turn keeps [m/s TAS].
+    bank_deg : float or array_like
+        Bank angle [deg].
+
+    Notes
+    -----
+    At the same lift coefficient, speed grows by ``sqrt(n)`` and the power needed by
+    ``n^1.5``: ``sink_turn = sink(v) n^1.5`` [1]_ (module references).
+    """
+    n = np.asarray(load_factor(bank_deg))
+    return _scalar_or_array(np.asarray(polar.sink(speed_ms)) * n**1.5)
+
+
+def turn_radius(speed_ms, bank_deg):
+    """Radius of a coordinated level turn ``r = V^2 / (g tan(phi))`` [m].
+
+    Parameters
+    ----------
+    speed_ms : float or array_like
+        Airspeed in the turn [m/s TAS].
+    bank_deg : float or array_like
+        Bank angle [deg]; ``r`` is inf at 0.
+    """
+    v = np.asarray(speed_ms, dtype=float)
+    with np.errstate(divide="ignore"):
+        return _scalar_or_array(v * v / (G0_MS2 * np.tan(np.radians(np.asarray(bank_deg, dtype=float)))))
+
+
+def updraft(r_m, core_ms, radius_m=150.0):
+    """Updraft at a distance from the thermal's centre [m/s], Gaussian core.
+
+    Parameters
+    ----------
+    r_m : float or array_like
+        Distance from the centre [m].
+    core_ms : float or array_like
+        Updraft at the centre [m/s].
+    radius_m : float or array_like, default 150
+        e-folding radius: the updraft is ``core/e`` (37 %) there [m].
+
+    Returns
+    -------
+    float or ndarray
+        ``w(r) = W0 exp(-(r/R)^2)`` [m/s].
+
+    Notes
+    -----
+    An idealised, axially symmetric thermal with no downdraft ring and no change with
+    height. The bell shape follows the smooth radial fall-off of the soaring
+    literature's model thermals ([3]_, [4]_ in the module references); the Gaussian
+    form itself is our idealisation, not a fit to either model.
+    """
+    r = np.asarray(r_m, dtype=float) / np.asarray(radius_m, dtype=float)
+    return _scalar_or_array(np.asarray(core_ms, dtype=float) * np.exp(-r * r))
+
+
+@dataclass(frozen=True)
+class ClimbSolution:
+    """The best circling climb in a thermal.
+
+    Attributes
+    ----------
+    climb_ms : float or ndarray
+        Achieved climb rate [m/s]; negative where the thermal is too weak to climb in.
+    bank_deg : float or ndarray
+        Bank angle giving it [deg].
+    airspeed_ms : float or ndarray
+        Airspeed in the turn [m/s TAS].
+    turn_radius_m : float or ndarray
+        Radius of the circle [m].
+    wings_level_speed_ms : float or ndarray
+        The wings-level airspeed at the same lift coefficient [m/s TAS].
+    """
+
+    climb_ms: float
+    bank_deg: float
+    airspeed_ms: float
+    turn_radius_m: float
+    wings_level_speed_ms: float
+
+
+def _climb_grid(a, b, c, core, radius, bank, speed):
+    """Climb rate on grids of bank [deg] and wings-level speed [m/s] (trailing axes)."""
+    cos_bank = np.cos(np.radians(bank))
+    n = 1.0 / cos_bank
+    sink = ((a * speed + b) * speed + c) * n * np.sqrt(n)
+    # r = V^2/(g tan) with V^2 = v^2 n, and n / tan = 1 / sin.
+    r = speed * speed / (G0_MS2 * np.sin(np.radians(bank)))
+    return core * np.exp(-(r / radius) ** 2) - sink
+
+
+def achieved_climb(polar: Polar, core_ms, radius_m=150.0, *, rounds: int = 3) -> ClimbSolution:
+    """Best climb rate in a Gaussian thermal over bank angle and airspeed.
+
+    Parameters
+    ----------
+    polar : Polar
+        The polar at this mass, bugs and density (fields may be arrays).
+    core_ms : float or array_like
+        Thermal core updraft [m/s].
+    radius_m : float or array_like, default 150
+        Thermal e-folding radius [m] (see :func:`updraft`).
+    rounds : int, default 3
+        Refinements after the coarse grid, each narrowing the search three-fold.
+
+    Returns
+    -------
+    ClimbSolution
+        Broadcast over the polar's fields, ``core_ms`` and ``radius_m``.
+
+    Notes
+    -----
+    The climb ``w(r) - sink(v) n^1.5`` with ``r = v^2 n/(g tan(phi))`` is maximised over
+    banks of 15-60 degrees and wings-level speeds from ``min_speed`` (so the margin
+    over the stall is kept in the turn) to 1.6 times that (within vne): first on a
+    coarse grid, then on finer grids around the best point. The circle is assumed
+    centred on the thermal.
+    """
+    shape = np.broadcast_shapes(polar.shape, np.shape(core_ms), np.shape(radius_m))
+    expand = [np.broadcast_to(np.asarray(x, dtype=float), shape)[..., None, None] for x in (
+        polar.a, polar.b, polar.c, core_ms, radius_m, polar.min_speed_ms, polar.vne_ms)]
+    a, b, c, core, radius, v_min, v_max = expand
+    v_max = np.minimum(v_max, CIRCLING_SPEED_SPAN * v_min)
+    bank_lo, bank_hi = np.full_like(v_min, BANK_RANGE_DEG[0]), np.full_like(v_min, BANK_RANGE_DEG[1])
+    speed_lo, speed_hi = v_min, v_max
+    bank_steps, speed_steps = 13, 11
+    for _ in range(rounds + 1):
+        bank = bank_lo + (bank_hi - bank_lo) * np.linspace(0.0, 1.0, bank_steps)[:, None]
+        speed = speed_lo + (speed_hi - speed_lo) * np.linspace(0.0, 1.0, speed_steps)[None, :]
+        climb = _climb_grid(a, b, c, core, radius, bank, speed)
+        flat = climb.reshape(*shape, -1).argmax(axis=-1)
+        i, j = np.unravel_index(flat, (bank_steps, speed_steps))
+        best_bank = np.take_along_axis(bank[..., :, 0], i[..., None], axis=-1)[..., None]
+        best_speed = np.take_along_axis(speed[..., 0, :], j[..., None], axis=-1)[..., None]
+        bank_step = (bank_hi - bank_lo) / (bank_steps - 1)
+        speed_step = (speed_hi - speed_lo) / (speed_steps - 1)
+        bank_lo = np.maximum(best_bank - bank_step, BANK_RANGE_DEG[0])
+        bank_hi = np.minimum(best_bank + bank_step, BANK_RANGE_DEG[1])
+        speed_lo, speed_hi = np.maximum(best_speed - speed_step, v_min), np.minimum(best_speed + speed_step, v_max)
+        bank_steps = speed_steps = 7
+    best = _climb_grid(a, b, c, core, radius, best_bank, best_speed)[..., 0, 0]
+    bank_deg, wings_level = best_bank[..., 0, 0], best_speed[..., 0, 0]
+    in_turn = np.asarray(circling_speed(wings_level, bank_deg))
+    return ClimbSolution(
+        climb_ms=_scalar_or_array(best),
+        bank_deg=_scalar_or_array(bank_deg),
+        airspeed_ms=_scalar_or_array(in_turn),
+        turn_radius_m=_scalar_or_array(turn_radius(in_turn, bank_deg)),
+        wings_level_speed_ms=_scalar_or_array(wings_level),
+    )
