@@ -1,0 +1,364 @@
+"""The glidetask terminal UI: the app, its bindings and the factory the console script
+and the tests share.
+
+The app holds the session (the scenario under edit, what is unsaved, what the pilot
+typed that does not make sense yet) and mirrors it into reactives the views watch. Views
+post :mod:`glidetask.tui.messages` up; the app applies them and plans again in a worker
+thread, keeping the last good plan when an input is refused.
+"""
+
+from __future__ import annotations
+
+import importlib
+from pathlib import Path
+
+from textual import on, work
+from textual.app import App, SystemCommand
+from textual.binding import Binding
+from textual.reactive import var
+from textual.worker import get_current_worker
+
+from glidetask import units as unit_systems
+from glidetask.errors import InputError, Problem
+from glidetask.tui import messages
+from glidetask.tui.session import EditSession
+from glidetask.tui.theme import GLIDETASK_THEME
+
+# view name -> (module in glidetask.tui.screens, class, title shown on the view bar)
+VIEWS: dict[str, tuple[str, str, str]] = {
+    "task": ("task_view", "TaskView", "Task"),
+    "glider": ("glider_view", "GliderView", "Glider"),
+    "day": ("day_view", "DayView", "Day"),
+    "glide": ("glide_view", "GlideView", "Final glide"),
+    "safety": ("safety_view", "SafetyView", "Safety"),
+    "compare": ("compare_view", "CompareView", "Compare"),
+    "odds": ("odds_view", "OddsView", "Odds"),
+}
+
+
+def _view_factory(name: str):
+    module_name, class_name, _ = VIEWS[name]
+
+    def build():  # imported on first visit: the first screen only pays for its own view
+        module = importlib.import_module(f"glidetask.tui.screens.{module_name}")
+        return getattr(module, class_name)()
+
+    return build
+
+
+class GlideTaskApp(App[int]):
+    """Plan a cross-country task: legs, glider, day, final glide, safety."""
+
+    CSS_PATH = "app.tcss"
+    TITLE = "glidetask"
+    MODES = {name: _view_factory(name) for name in VIEWS}
+    DEFAULT_MODE = "task"
+    BINDINGS = [
+        *(Binding(str(index), f"view('{name}')", title, show=False)
+          for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1)),
+        Binding("u", "toggle_units", "Units"),
+        Binding("ctrl+o", "open", "Open"),
+        Binding("ctrl+s", "save", "Save"),
+        Binding("ctrl+e", "export", "Export"),
+        Binding("f1", "show_cautions", "Cautions"),
+        Binding("ctrl+q", "quit", "Quit", priority=True),
+    ]
+
+    scenario = var(None, always_update=True)
+    plan = var(None, always_update=True)
+    units = var(unit_systems.METRIC, always_update=True)
+    problems: var[tuple[Problem, ...]] = var((), always_update=True)
+    invalid_fields: var[frozenset[str]] = var(frozenset(), always_update=True)
+    dirty = var(False)
+    busy = var(False)
+    notice = var("")
+    task_path: var[Path | None] = var(None)
+
+    def __init__(self, task_path: str | Path | None = None, units: str = "metric", *,
+                 show_cautions: bool | None = None, compute_on_start: bool = True):
+        super().__init__()
+        self.register_theme(GLIDETASK_THEME)
+        self.theme = GLIDETASK_THEME.name
+        self._initial_path = Path(task_path) if task_path else None
+        self._show_cautions = show_cautions
+        self._compute_on_start = compute_on_start
+        self.session: EditSession | None = None
+        self.units = unit_systems.by_name(units)
+        self._generation = 0
+        self.last_compute_s: float | None = None
+
+    # ------------------------------------------------------------ start and views
+
+    def on_mount(self) -> None:
+        from glidetask.tui import config
+
+        show = self._show_cautions
+        if show is None:
+            show = not config.cautions_acknowledged()
+        if show:
+            self.action_show_cautions(first_start=True)
+        if self._compute_on_start and self._initial_path is not None:
+            self.notice = f"opening {self._initial_path.name} …"
+            self._open_path(self._initial_path)
+
+    def action_view(self, view: str) -> None:
+        if view in VIEWS and self.current_mode != view:
+            self.switch_mode(view)
+
+    @on(messages.ViewRequested)
+    def _view_requested(self, message: messages.ViewRequested) -> None:
+        self.action_view(message.view)
+
+    def get_system_commands(self, screen):
+        yield from super().get_system_commands(screen)
+        for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1):
+            yield SystemCommand(f"View: {title}", f"Show the {title.lower()} view (key {index})",
+                                lambda name=name: self.action_view(name))
+        yield SystemCommand("Units: switch metric / aviation", "km, m, km/h  or  NM, ft, kt (key u)",
+                            self.action_toggle_units)
+        yield SystemCommand("Task: open a task file", "Open a task (ctrl+o)", self.action_open)
+        yield SystemCommand("Task: save", "Save the task file (ctrl+s)", self.action_save)
+        yield SystemCommand("Task: save as…", "Save the task under a new name", self.action_save_as)
+        yield SystemCommand("Export: GPX route, briefing or plan JSON", "ctrl+e", self.action_export)
+        yield SystemCommand("Cautions: read them in full", "f1", self.action_show_cautions)
+
+    def action_show_cautions(self, first_start: bool = False) -> None:
+        from glidetask.tui.screens.cautions_modal import CautionsModal
+
+        self.push_screen(CautionsModal(first_start=first_start))
+
+    def action_toggle_units(self) -> None:
+        other = "aviation" if self.units.name == "metric" else "metric"
+        self.units = unit_systems.by_name(other)
+        if self.session is not None:
+            self.session.units = self.units
+        self.notice = f"units: {other}"
+
+    # ------------------------------------------------------------ edits
+
+    @on(messages.FieldEdited)
+    def _field_edited(self, message: messages.FieldEdited) -> None:
+        if self.session is None:
+            return
+        accepted = self.session.edit_field(message.field_id, message.text)
+        self._after_edit(accepted, message.field_id.split("-", 1)[-1])
+
+    @on(messages.ScenarioEdit)
+    def _scenario_edit(self, message: messages.ScenarioEdit) -> None:
+        if self.session is None:
+            return
+        accepted = self.session.edit(message.change)
+        self._after_edit(accepted, message.what, message.field_id)
+
+    def _after_edit(self, accepted: bool, what: str, field_id: str | None = None) -> None:
+        session = self.session
+        self._publish_problems(extra_field=None if accepted else field_id)
+        self.dirty = session.dirty
+        if accepted:
+            self.scenario = session.scenario
+            self.notice = f"{what} changed: planning …"
+            self.request_plan()
+
+    def _publish_problems(self, extra_field: str | None = None) -> None:
+        from glidetask.tui.edits import field_for_where
+
+        problems = tuple(self.session.problems) if self.session else ()
+        fields = set(self.session.invalid_fields) if self.session else set()
+        fields.update(f for f in (field_for_where(p.where) for p in problems) if f)
+        if extra_field:
+            fields.add(extra_field)
+        self.problems = problems
+        self.invalid_fields = frozenset(fields)
+
+    def request_plan(self) -> None:
+        if self.session is None:
+            return
+        self._generation += 1
+        self.busy = True
+        self.plan_in_background(self.session.scenario, self._generation)
+
+    # ------------------------------------------------------------ workers
+
+    @work(thread=True, exclusive=True, group="plan")
+    def open_and_plan(self, path: Path, generation: int) -> None:
+        from glidetask.tui import recompute
+
+        worker = get_current_worker()
+        try:
+            scenario = recompute.load_task(path)
+        except InputError as error:
+            self.call_from_thread(self._open_failed, path, list(error.problems))
+            return
+        except Exception as error:  # an unreadable file is a message, never a crash
+            self.call_from_thread(self._open_failed, path,
+                                  [Problem(str(path), "file", f"{type(error).__name__}: {error}")])
+            return
+        if worker.is_cancelled:
+            return
+        self.call_from_thread(self._opened, path, scenario)
+        self._plan_now(scenario, generation, worker)
+
+    @work(thread=True, exclusive=True, group="plan")
+    def plan_in_background(self, scenario, generation: int) -> None:
+        self._plan_now(scenario, generation, get_current_worker())
+
+    def _plan_now(self, scenario, generation: int, worker) -> None:
+        from glidetask.tui import recompute
+
+        try:
+            outcome = recompute.compute_plan(scenario)
+        except InputError as error:
+            problems = list(error.problems)
+        except Exception as error:  # the engine failing is shown, the last good plan kept
+            problems = [Problem("plan", "engine", f"{type(error).__name__}: {error}")]
+        else:
+            if not worker.is_cancelled:
+                self.call_from_thread(self._planned, generation, outcome)
+            return
+        if not worker.is_cancelled:
+            self.call_from_thread(self._plan_failed, generation, problems)
+
+    def _opened(self, path: Path, scenario) -> None:
+        if self.session is None:
+            self.session = EditSession(scenario, self.units, path)
+        else:
+            self.session.replace_all(scenario, path)
+            self.plan = None
+        self.task_path = path
+        self.dirty = False
+        self._publish_problems()
+        self.scenario = scenario
+        self.notice = f"opened {path.name}: planning …"
+
+    def _open_failed(self, path: Path, problems: list[Problem]) -> None:
+        self.busy = False
+        self.problems = tuple(problems)
+        self.notice = f"could not open {path}"
+
+    def _planned(self, generation: int, outcome) -> None:
+        if generation != self._generation:
+            return  # a newer edit is being planned
+        self.busy = False
+        self.last_compute_s = outcome.elapsed_s
+        self.plan = outcome.plan
+        self._publish_problems()
+        self.notice = f"plan updated ({outcome.elapsed_s * 1000:.0f} ms)"
+
+    def _plan_failed(self, generation: int, problems: list[Problem]) -> None:
+        if generation != self._generation:
+            return
+        self.busy = False
+        self.problems = tuple(self.session.problems if self.session else ()) + tuple(problems)
+        from glidetask.tui.edits import field_for_where
+
+        self.invalid_fields = frozenset(self.invalid_fields | {f for f in (field_for_where(p.where) for p in problems) if f})
+        self.notice = "the plan could not be updated: showing the last good plan"
+
+    # ------------------------------------------------------------ files
+
+    def action_open(self) -> None:
+        from glidetask.tui.screens.path_modal import PathModal
+
+        start = str(self.task_path.parent) + "/" if self.task_path else ""
+        self.push_screen(PathModal("Open a task file", start, action="Open"), self._open_chosen)
+
+    def _open_chosen(self, path: str | None) -> None:
+        if not path:
+            return
+        if self.dirty:
+            from glidetask.tui.screens.confirm_modal import ConfirmModal
+
+            self.push_screen(ConfirmModal("The task has unsaved changes. Open another and lose them?",
+                                          yes="Open and discard", no="Keep editing"),
+                             lambda yes: yes and self._open_path(Path(path)))
+        else:
+            self._open_path(Path(path))
+
+    def _open_path(self, path: Path) -> None:
+        self.busy = True
+        self.notice = f"opening {path.name} …"
+        self._generation += 1
+        self.open_and_plan(path.expanduser(), self._generation)
+
+    def action_save(self) -> None:
+        if self.session is None:
+            return
+        if self.session.path is None:
+            self.action_save_as()
+        else:
+            self._save_to(self.session.path)
+
+    def action_save_as(self) -> None:
+        from glidetask.tui.screens.path_modal import PathModal
+
+        if self.session is None:
+            return
+        start = str(self.session.path or "task.toml")
+        self.push_screen(PathModal("Save the task as", start, action="Save"),
+                         lambda path: path and self._save_to(Path(path).expanduser()))
+
+    def _save_to(self, path: Path) -> bool:
+        from glidetask.tui import recompute
+
+        try:
+            recompute.save_task(path, self.session.scenario)
+        except (InputError, OSError, ValueError) as error:
+            problems = getattr(error, "problems", None) or [Problem(str(path), "save", str(error))]
+            self.problems = tuple(problems)
+            self.notice = f"not saved: {problems[0].what}"
+            return False
+        self.session.saved(path)
+        self.task_path = path
+        self.dirty = False
+        self.notice = f"saved {path}"
+        return True
+
+    def action_export(self) -> None:
+        from glidetask.tui.screens.export_modal import ExportModal
+
+        if self.session is None or self.plan is None:
+            self.notice = "nothing to export yet: the plan is not ready"
+            return
+        self.push_screen(ExportModal(self.session.path))
+
+    # ------------------------------------------------------------ quitting
+
+    async def action_quit(self) -> None:
+        if not self.dirty:
+            self.exit(0)
+            return
+        from glidetask.tui.screens.confirm_modal import QuitModal
+
+        self.push_screen(QuitModal(), self._quit_chosen)
+
+    def _quit_chosen(self, choice: str | None) -> None:
+        if choice == "discard":
+            self.exit(0)
+        elif choice == "save" and self.session.path is not None:
+            if self._save_to(self.session.path):
+                self.exit(0)
+        elif choice == "save":
+            from glidetask.tui.screens.path_modal import PathModal
+
+            self.push_screen(PathModal("Save the task as", "task.toml", action="Save"),
+                             lambda path: path and self._save_to(Path(path).expanduser()) and self.exit(0))
+
+
+def make_app(task_path: str | Path | None = None, units: str = "metric", *,
+             show_cautions: bool | None = None, compute_on_start: bool = True) -> GlideTaskApp:
+    """The app for a task file (the bundled demo if None), in ``units`` ("metric" or "aviation").
+
+    ``show_cautions`` forces the full caution notice on (True) or off (False); by default it
+    shows until the user has acknowledged the current wording once.
+    """
+    from glidetask import paths
+
+    return GlideTaskApp(task_path or paths.demo_task(), units, show_cautions=show_cautions,
+                        compute_on_start=compute_on_start)
+
+
+def run_app(task_path: str | Path | None = None, units: str = "metric") -> int:
+    """Run the UI; the exit status: 0 after ctrl+q, non-zero after an internal fault."""
+    app = make_app(task_path, units)
+    app.run()
+    return app.return_code or 0

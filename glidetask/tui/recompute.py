@@ -1,0 +1,44 @@
+"""The work the app hands to its worker thread: opening a task and planning it.
+
+Plain functions (no Textual) so that tests and the benchmark call exactly what the UI runs.
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from glidetask.engine.scenario import Scenario
+
+
+@dataclass(frozen=True)
+class Outcome:
+    """A plan and how long the engine took to make it [s]."""
+
+    plan: Any
+    elapsed_s: float
+
+
+def load_task(path: str | Path) -> Scenario:
+    """The scenario of a task file (InputError with every problem if it is bad)."""
+    from glidetask.formats.task_file import load_scenario
+
+    return load_scenario(Path(path))
+
+
+def compute_plan(scenario: Scenario) -> Outcome:
+    """Plan the task of ``scenario`` (engine.planner.plan), timed."""
+    from glidetask.engine.planner import plan
+
+    started = time.perf_counter()
+    result = plan(scenario)
+    return Outcome(result, time.perf_counter() - started)
+
+
+def save_task(path: str | Path, scenario: Scenario) -> None:
+    """Write the task file atomically (formats.task_file.save_task)."""
+    from glidetask.formats.task_file import save_task as write
+
+    write(Path(path), scenario)

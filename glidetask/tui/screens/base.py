@@ -1,0 +1,74 @@
+"""What every view shares: the view bar, the status line, the compact caution, the keys.
+
+A view subclasses :class:`ViewScreen`, names itself in ``VIEW`` and yields its own
+widgets from :meth:`compose_body`. It reacts to the app's state through
+:meth:`show_scenario`, :meth:`show_plan` and :meth:`show_units` (called once at mount
+and whenever the app's reactives change) and highlights the fields the app reports as
+invalid.
+"""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Container
+from textual.screen import Screen
+from textual.widgets import Footer, Input
+
+from glidetask.tui.widgets.caution_bar import CautionBar
+from glidetask.tui.widgets.status_line import StatusLine
+from glidetask.tui.widgets.view_bar import ViewBar
+
+
+class ViewScreen(Screen):
+    """A view of the plan; subclasses fill the body."""
+
+    VIEW = "task"
+    BINDINGS = [("escape", "leave_field", "Leave field")]
+
+    def compose(self) -> ComposeResult:
+        yield ViewBar(self.VIEW, id="view-bar")
+        with Container(id="view-body"):
+            yield from self.compose_body()
+        yield StatusLine(id="status-line")
+        yield CautionBar(id="caution-bar")
+        yield Footer()
+
+    def compose_body(self) -> ComposeResult:
+        yield from ()
+
+    def on_mount(self) -> None:
+        self.watch(self.app, "scenario", self._scenario_changed)
+        self.watch(self.app, "plan", self._plan_changed)
+        self.watch(self.app, "units", self._units_changed, init=False)
+        self.watch(self.app, "invalid_fields", self._highlight_fields)
+
+    def _scenario_changed(self, scenario) -> None:
+        if scenario is not None:
+            self.show_scenario(scenario)
+
+    def _plan_changed(self, plan) -> None:
+        self.show_plan(plan)
+
+    def _units_changed(self, _units) -> None:
+        self.show_units()
+
+    def _highlight_fields(self, invalid: frozenset[str]) -> None:
+        for widget in self.query(".field-input"):
+            widget.set_class(widget.id in invalid, "-invalid")
+
+    # hooks for the views
+    def show_scenario(self, scenario) -> None:
+        """The scenario changed (opened or edited)."""
+
+    def show_plan(self, plan) -> None:
+        """A new plan arrived (None while the first one is computed)."""
+
+    def show_units(self) -> None:
+        """The unit system changed: redraw figures and the inputs' texts."""
+        if self.app.scenario is not None:
+            self.show_scenario(self.app.scenario)
+        self.show_plan(self.app.plan)
+
+    def action_leave_field(self) -> None:
+        if isinstance(self.focused, Input):
+            self.set_focus(None)

@@ -1,0 +1,42 @@
+"""The cautions in full: on first start (until acknowledged) and on f1."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, Static
+
+from glidetask import cautions
+
+
+class CautionsModal(ModalScreen[bool]):
+    """Every caution, with a button that records the pilot has read them."""
+
+    BINDINGS = [("enter", "acknowledge", "I have read this"), ("escape", "acknowledge", "Close")]
+
+    def __init__(self, first_start: bool = False):
+        super().__init__(id="cautions-modal")
+        self.first_start = first_start
+
+    def compose(self) -> ComposeResult:
+        lines = [f"• {text}" for text in (*cautions.GENERAL, *cautions.TERRAIN, *cautions.LANDABLES)]
+        heading = "Before you plan" if self.first_start else "Cautions"
+        with Vertical(id="cautions-panel"):
+            yield Static(heading, id="cautions-heading", markup=False)
+            with VerticalScroll(id="cautions-text"):
+                yield Static("\n\n".join(lines), markup=False)
+            yield Button("I have read this", id="cautions-ok", variant="warning")
+
+    def on_mount(self) -> None:
+        self.query_one("#cautions-ok", Button).focus()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        event.stop()
+        self.action_acknowledge()
+
+    def action_acknowledge(self) -> None:
+        from glidetask.tui import config
+
+        config.acknowledge_cautions()
+        self.dismiss(True)

@@ -1,0 +1,48 @@
+"""The bar at the top: the views with their keys, the task's name, unsaved mark and units."""
+
+from __future__ import annotations
+
+from textual.app import ComposeResult
+from textual.containers import Horizontal
+from textual.widgets import Label
+
+from glidetask.tui import messages
+
+
+class ViewTab(Label):
+    """One view's name with its key; a click shows the view."""
+
+    def __init__(self, view: str, text: str, active: bool):
+        super().__init__(text, classes="view-tab -active" if active else "view-tab", markup=False)
+        self.view = view
+
+    def on_click(self) -> None:
+        self.post_message(messages.ViewRequested(self.view))
+
+
+class ViewBar(Horizontal):
+    """Views, task name, unsaved mark, units and whether a plan is being computed."""
+
+    def __init__(self, active_view: str, **kwargs):
+        super().__init__(**kwargs)
+        self.active_view = active_view
+
+    def compose(self) -> ComposeResult:
+        from glidetask.tui.app import VIEWS
+
+        for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1):
+            yield ViewTab(name, f" {index} {title} ", name == self.active_view)
+        yield Label("", id="view-bar-task", markup=False)
+
+    def on_mount(self) -> None:
+        for name in ("scenario", "dirty", "units", "busy", "task_path"):
+            self.watch(self.app, name, self._refresh_label, init=False)
+        self._refresh_label()
+
+    def _refresh_label(self, _value=None) -> None:
+        app = self.app
+        scenario = getattr(app, "scenario", None)
+        name = scenario.task.name if scenario is not None else "no task"
+        mark = " ●" if getattr(app, "dirty", False) else ""
+        busy = " ⟳" if getattr(app, "busy", False) else ""
+        self.query_one("#view-bar-task", Label).update(f"{name}{mark}{busy}  {app.units.name} ")
