@@ -1,0 +1,370 @@
+"""Turnpoint files: GeoJSON (RFC 7946) and CSV (shared/CONTRACT.md 2.2).
+
+GeoJSON: a FeatureCollection of Point features with coordinates ``[lon, lat]`` or
+``[lon, lat, elevation_m]`` and the properties ``name`` (required, unique), ``code``
+(optional, unique), ``elevation_m`` (required unless the third coordinate gives it),
+``landable`` (default false), ``kind`` (``airfield``, ``field``, ``waypoint``; default
+``waypoint``), ``runway_heading_deg``, ``runway_length_m``, ``note``. Problems name the
+feature as ``feature N`` (N counts from 1) with its name.
+
+CSV: UTF-8 with a header row naming the columns ``name, code, lat, lon, elevation_m,
+landable, kind, note`` (only name, lat, lon and elevation_m are required; the runway
+columns ``runway_heading_deg`` and ``runway_length_m`` may be added). Lines starting with
+``#`` before the header are comments. Problems name the line as ``line N``.
+
+Every problem in a file is reported, not only the first.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+from pathlib import Path
+
+from glidetask.engine.task import TURNPOINT_KINDS, Turnpoint
+from glidetask.errors import InputError, ProblemCollector
+from glidetask.formats.atomic import write_atomic
+
+GEOJSON_SUFFIXES = (".geojson", ".json")
+CSV_SUFFIXES = (".csv",)
+CSV_COLUMNS = ("name", "code", "lat", "lon", "elevation_m", "landable", "kind", "note")
+CSV_EXTRA_COLUMNS = ("runway_heading_deg", "runway_length_m")
+CSV_REQUIRED = ("name", "lat", "lon", "elevation_m")
+ELEVATION_RANGE_M = (-500.0, 9000.0)  # below the lowest dry land to above the highest summit
+
+
+def turnpoint_format(path: str | os.PathLike) -> str | None:
+    """``"geojson"``, ``"csv"`` or None, from the file name's suffix."""
+    suffix = Path(path).suffix.lower()
+    if suffix in GEOJSON_SUFFIXES:
+        return "geojson"
+    if suffix in CSV_SUFFIXES:
+        return "csv"
+    return None
+
+
+def read_turnpoints(path: str | os.PathLike) -> tuple[Turnpoint, ...]:
+    """Read and validate a turnpoint file (.geojson/.json or .csv).
+
+    Raises
+    ------
+    InputError
+        With every problem found (unreadable file, malformed content, missing or
+        wrong-typed fields, values out of range, duplicate names or codes).
+    """
+    name = str(path)
+    kind = turnpoint_format(path)
+    if kind is None:
+        raise InputError.one(name, "file", "a turnpoint file must end in .geojson, .json or .csv")
+    try:
+        text = Path(path).read_text(encoding="utf-8-sig")
+    except FileNotFoundError:
+        raise InputError.one(name, "file", "no such file") from None
+    except UnicodeDecodeError as error:
+        raise InputError.one(name, "file", f"not UTF-8 text ({error.reason} at byte {error.start})") from None
+    except OSError as error:
+        raise InputError.one(name, "file", f"cannot read: {error.strerror or error}") from None
+    if kind == "geojson":
+        return parse_geojson(text, name)
+    return parse_csv(text, name)
+
+
+# ---------------------------------------------------------------- field checks
+
+
+class _Fields:
+    """Checks one record's values, reporting problems under ``where``."""
+
+    __slots__ = ("problems", "where")
+
+    def __init__(self, problems: ProblemCollector, where: str):
+        self.problems = problems
+        self.where = where
+
+    def fail(self, what: str) -> None:
+        self.problems.add(self.where, what)
+
+    def number(self, key: str, value, *, low: float | None = None, high: float | None = None,
+               positive: bool = False) -> float | None:
+        if isinstance(value, str):
+            try:
+                value = float(value.strip())
+            except ValueError:
+                self.fail(f"{key} must be a number, got {value!r}")
+                return None
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            self.fail(f"{key} must be a number, got {json.dumps(value)}")
+            return None
+        value = float(value)
+        if not math.isfinite(value):
+            self.fail(f"{key} must be a finite number, got {value!r}")
+            return None
+        if positive and value <= 0.0:
+            self.fail(f"{key} must be greater than 0, got {value:g}")
+            return None
+        if (low is not None and value < low) or (high is not None and value > high):
+            self.fail(f"{key} must be in [{low:g}, {high:g}], got {value:g}")
+            return None
+        return value
+
+    def text(self, key: str, value, *, required: bool = False) -> str | None:
+        if value is None or (isinstance(value, str) and not value.strip()):
+            if required:
+                self.fail(f"{key} is required")
+            return None
+        if not isinstance(value, str):
+            self.fail(f"{key} must be text, got {json.dumps(value)}")
+            return None
+        return value.strip()
+
+    def boolean(self, key: str, value) -> bool | None:
+        if value is None:
+            return False
+        if isinstance(value, bool):
+            return value
+        if isinstance(value, str) and value.strip().lower() in ("true", "false", ""):
+            return value.strip().lower() == "true"
+        self.fail(f"{key} must be true or false, got {json.dumps(value)}")
+        return None
+
+    def kind(self, value) -> str | None:
+        if value is None or value == "":
+            return "waypoint"
+        if isinstance(value, str) and value.strip().lower() in TURNPOINT_KINDS:
+            return value.strip().lower()
+        self.fail(f"kind must be one of {', '.join(TURNPOINT_KINDS)}, got {json.dumps(value)}")
+        return None
+
+
+def _turnpoint(fields: _Fields, name, code, lat, lon, elevation, landable, kind, heading, length, note):
+    """A Turnpoint from raw values, or None after reporting what is wrong with them."""
+    name = fields.text("name", name, required=True)
+    code = fields.text("code", code)
+    lat = None if lat is None else fields.number("lat", lat, low=-90.0, high=90.0)
+    lon = None if lon is None else fields.number("lon", lon, low=-360.0, high=360.0)
+    elevation = None if elevation is None else fields.number("elevation_m", elevation, low=ELEVATION_RANGE_M[0],
+                                                             high=ELEVATION_RANGE_M[1])
+    landable = fields.boolean("landable", landable)
+    kind = fields.kind(kind)
+    heading = None if heading in (None, "") else fields.number("runway_heading_deg", heading, low=0.0, high=360.0)
+    length = None if length in (None, "") else fields.number("runway_length_m", length, positive=True)
+    note = fields.text("note", note) or ""
+    if None in (name, lat, lon, elevation, landable, kind):
+        return None
+    return Turnpoint(name, code, lat, ((lon + 180.0) % 360.0) - 180.0, elevation, landable, kind,
+                     heading, length, note)
+
+
+def _check_unique(problems: ProblemCollector, points: list[tuple[str, Turnpoint]]) -> None:
+    """Report repeated names and codes, naming where each was first seen."""
+    for attribute in ("name", "code"):
+        first_seen: dict[str, str] = {}
+        for where, point in points:
+            value = getattr(point, attribute)
+            if value is None:
+                continue
+            if value in first_seen:
+                problems.add(where, f"{attribute} {value!r} is used again (first at {first_seen[value]})")
+            else:
+                first_seen[value] = where
+
+
+# ---------------------------------------------------------------- GeoJSON
+
+
+def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
+    """Turnpoints from GeoJSON text (see the module docstring); InputError with every problem."""
+    problems = ProblemCollector(file)
+    try:
+        document = json.loads(text)
+    except json.JSONDecodeError as error:
+        raise InputError.one(file, f"line {error.lineno}", f"not valid JSON: {error.msg}") from None
+    if not isinstance(document, dict) or document.get("type") != "FeatureCollection":
+        raise InputError.one(file, "top level", "expected a GeoJSON FeatureCollection")
+    features = document.get("features")
+    if not isinstance(features, list):
+        raise InputError.one(file, "features", "expected a list of features")
+    points: list[tuple[str, Turnpoint]] = []
+    for number, feature in enumerate(features, start=1):
+        where = f"feature {number}"
+        if not isinstance(feature, dict) or feature.get("type") != "Feature":
+            problems.add(where, "expected a GeoJSON Feature object")
+            continue
+        properties = feature.get("properties")
+        if not isinstance(properties, dict):
+            problems.add(where, "expected a properties object with at least a name")
+            continue
+        name = properties.get("name")
+        if isinstance(name, str) and name.strip():
+            where = f"{where} ({name.strip()})"
+        fields = _Fields(problems, where)
+        geometry = feature.get("geometry")
+        coordinates = geometry.get("coordinates") if isinstance(geometry, dict) else None
+        if not isinstance(geometry, dict) or geometry.get("type") != "Point":
+            fields.fail("geometry must be a Point")
+            coordinates = None
+        elif not isinstance(coordinates, list) or len(coordinates) not in (2, 3):
+            fields.fail("Point coordinates must be [lon, lat] or [lon, lat, elevation_m]")
+            coordinates = None
+        lon, lat = (coordinates[0], coordinates[1]) if coordinates else (None, None)
+        elevation = properties.get("elevation_m")
+        if coordinates and len(coordinates) == 3:
+            third = fields.number("third coordinate", coordinates[2])
+            if elevation is None:
+                elevation = third
+            elif third is not None and isinstance(elevation, (int, float)) and abs(third - elevation) > 0.5:
+                fields.fail(f"elevation_m {elevation:g} disagrees with the third coordinate {third:g}")
+        elif elevation is None and coordinates:
+            fields.fail("elevation_m is required (a property or the third coordinate)")
+        point = _turnpoint(fields, name, properties.get("code"), lat, lon, elevation,
+                           properties.get("landable"), properties.get("kind"),
+                           properties.get("runway_heading_deg"), properties.get("runway_length_m"),
+                           properties.get("note"))
+        if point is not None:
+            points.append((where, point))
+    if not features:
+        problems.add("features", "the file has no turnpoints")
+    _check_unique(problems, points)
+    problems.raise_if_any()
+    return tuple(point for _, point in points)
+
+
+# ---------------------------------------------------------------- CSV
+
+
+def parse_csv(text: str, file: str = "<csv>") -> tuple[Turnpoint, ...]:
+    """Turnpoints from CSV text (see the module docstring); InputError with every problem."""
+    problems = ProblemCollector(file)
+    lines = text.splitlines(keepends=True)
+    skipped = 0
+    while skipped < len(lines) and (not lines[skipped].strip() or lines[skipped].lstrip().startswith("#")):
+        skipped += 1
+    reader = csv.reader(io.StringIO("".join(lines[skipped:])))
+    header = next(reader, None)
+    if header is None:
+        raise InputError.one(file, "line 1", f"no header row; expected {','.join(CSV_COLUMNS)}")
+    header = [column.strip().lower() for column in header]
+    header_where = f"line {skipped + 1}"
+    known = CSV_COLUMNS + CSV_EXTRA_COLUMNS
+    for column in header:
+        if column not in known:
+            problems.add(header_where, f"unknown column {column!r}; expected {', '.join(known)}")
+    missing = [column for column in CSV_REQUIRED if column not in header]
+    if missing:
+        problems.add(header_where, f"missing required column(s): {', '.join(missing)}")
+    if len(set(header)) != len(header):
+        problems.add(header_where, "a column is named twice")
+    problems.raise_if_any()
+    index = {column: i for i, column in enumerate(header)}
+    width = len(header)
+    points: list[tuple[str, Turnpoint]] = []
+    lines_read = reader.line_num
+    for row in reader:
+        where = f"line {skipped + lines_read + 1}"  # the line the record starts on
+        lines_read = reader.line_num
+        if not row or all(not cell.strip() for cell in row) or row[0].lstrip().startswith("#"):
+            continue
+        fields = _Fields(problems, where)
+        if len(row) != width:
+            fields.fail(f"expected {width} fields as in the header, got {len(row)}")
+            continue
+
+        def cell(column, row=row):
+            i = index.get(column)
+            return None if i is None else row[i]
+
+        for required in CSV_REQUIRED[1:]:
+            if not (cell(required) or "").strip():
+                fields.fail(f"{required} is required")
+        point = _turnpoint(fields, cell("name"), cell("code"), cell("lat") or None, cell("lon") or None,
+                           cell("elevation_m") or None, cell("landable"), (cell("kind") or "").strip() or None,
+                           cell("runway_heading_deg"), cell("runway_length_m"), cell("note"))
+        if point is not None:
+            points.append((where, point))
+    if not points and not problems:
+        problems.add(f"line {skipped + 2}", "the file has no turnpoints")
+    _check_unique(problems, points)
+    problems.raise_if_any()
+    return tuple(point for _, point in points)
+
+
+# ---------------------------------------------------------------- writing
+
+
+def _clean_number(value: float | None, digits: int):
+    """``value`` rounded to ``digits`` decimals, written as an integer when it is one."""
+    if value is None:
+        return None
+    rounded = round(float(value), digits)
+    return int(rounded) if rounded.is_integer() else rounded
+
+
+def to_geojson(turnpoints, note: str | None = None) -> str:
+    """GeoJSON text for the turnpoints (positions to 1e-6 deg, about 0.1 m)."""
+    features = []
+    for point in turnpoints:
+        properties = {"name": point.name}
+        if point.code:
+            properties["code"] = point.code
+        properties["elevation_m"] = _clean_number(point.elevation_m, 1)
+        properties["landable"] = bool(point.landable)
+        properties["kind"] = point.kind
+        if point.runway_heading_deg is not None:
+            properties["runway_heading_deg"] = _clean_number(point.runway_heading_deg, 1)
+        if point.runway_length_m is not None:
+            properties["runway_length_m"] = _clean_number(point.runway_length_m, 1)
+        if point.note:
+            properties["note"] = point.note
+        features.append({"type": "Feature",
+                         "geometry": {"type": "Point", "coordinates": [round(point.lon, 6), round(point.lat, 6)]},
+                         "properties": properties})
+    # One feature per line: readable, and a diff shows which point changed.
+    lines = ['{"type": "FeatureCollection",']
+    if note:
+        lines.append(f' "note": {json.dumps(note, ensure_ascii=False)},')  # a foreign member (RFC 7946 6.1)
+    lines.append(' "features": [')
+    lines += ["  " + json.dumps(feature, ensure_ascii=False) + "," for feature in features]
+    if features:
+        lines[-1] = lines[-1][:-1]
+    lines.append("]}")
+    return "\n".join(lines) + "\n"
+
+
+def to_csv(turnpoints, note: str | None = None) -> str:
+    """CSV text for the turnpoints, with a ``#`` comment line first if ``note`` is given."""
+    turnpoints = list(turnpoints)
+    columns = list(CSV_COLUMNS)
+    if any(p.runway_heading_deg is not None or p.runway_length_m is not None for p in turnpoints):
+        columns += CSV_EXTRA_COLUMNS
+    buffer = io.StringIO()
+    if note:
+        for line in note.splitlines():
+            buffer.write(f"# {line}\n")
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(columns)
+
+    def text(value, digits):
+        return "" if value is None else f"{_clean_number(value, digits)}"
+
+    for p in turnpoints:
+        row = [p.name, p.code or "", f"{p.lat:.6f}", f"{p.lon:.6f}", text(p.elevation_m, 1),
+               "true" if p.landable else "false", p.kind, p.note]
+        if len(columns) > len(CSV_COLUMNS):
+            row += [text(p.runway_heading_deg, 1), text(p.runway_length_m, 1)]
+        writer.writerow(row)
+    return buffer.getvalue()
+
+
+def write_turnpoints(path: str | os.PathLike, turnpoints, note: str | None = None) -> None:
+    """Write turnpoints as GeoJSON (.geojson/.json) or CSV (.csv), atomically.
+
+    ``note`` (optional) goes into the file as a comment: a top-level ``note`` member in
+    GeoJSON, ``#`` lines before the header in CSV.
+    """
+    kind = turnpoint_format(path)
+    if kind is None:
+        raise ValueError(f"cannot tell the turnpoint format of {path}: use .geojson, .json or .csv")
+    write_atomic(path, to_geojson(turnpoints, note) if kind == "geojson" else to_csv(turnpoints, note))
