@@ -1,0 +1,304 @@
+"""Reading and validating polar files (TOML, shared/CONTRACT.md 2.1).
+
+Every problem found is collected with its place (a key path such as
+``[glider] wing_area_m2`` or ``[polar] points[3]``, counting points from 1, or a line
+for TOML syntax errors) so that a pilot can fix the whole file in one go.
+
+Public helpers:
+
+* :func:`load_polar_spec` - read a file, raise :class:`~glidetask.errors.InputError`
+  with every problem;
+* :func:`read_polar_spec` - the same, returning ``(spec or None, problems)``;
+* :func:`polar_problems` - validate an already parsed TOML document;
+* :func:`loading_problems` - check a pilot/ballast loading against a polar's limits.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from glidetask.engine.polar import PolarSpec, fit_quadratic
+from glidetask.errors import InputError, Problem
+
+KMH = 1000.0 / 3600.0  # m/s per km/h
+DEFAULT_PILOT_ALLOWANCE_KG = 90.0  # empty mass defaults to reference mass minus this
+
+GLIDER_KEYS = ("label", "wing_area_m2", "reference_mass_kg", "empty_mass_kg", "max_ballast_kg",
+               "max_mass_kg", "vne_kmh", "min_speed_kmh")
+POLAR_KEYS = ("points",)
+
+
+def _is_number(value: Any) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+class _Checker:
+    """Reads typed values from the document, noting a problem for each bad one."""
+
+    def __init__(self, file: str):
+        self.file = file
+        self.problems: list[Problem] = []
+
+    def add(self, where: str, what: str) -> None:
+        self.problems.append(Problem(self.file, where, what))
+
+    def table(self, document: dict, name: str) -> dict | None:
+        value = document.get(name)
+        if value is None:
+            self.add(f"[{name}]", "missing table")
+            return None
+        if not isinstance(value, dict):
+            self.add(f"[{name}]", f"must be a table, got {type(value).__name__}")
+            return None
+        return value
+
+    def unknown_keys(self, table: dict, name: str, known: tuple[str, ...]) -> None:
+        for key in table:
+            if key not in known:
+                self.add(f"[{name}] {key}", f"unknown key (expected one of: {', '.join(known)})")
+
+    def number(self, table: dict, section: str, key: str, *, required: bool = True,
+               positive: bool = False, minimum: float | None = None) -> float | None:
+        where = f"[{section}] {key}"
+        if key not in table:
+            if required:
+                self.add(where, "missing key")
+            return None
+        value = table[key]
+        if not _is_number(value):
+            self.add(where, f"must be a number, got {value!r}")
+            return None
+        value = float(value)
+        if not math.isfinite(value):
+            self.add(where, f"must be a finite number, got {value!r}")
+            return None
+        if positive and value <= 0.0:
+            self.add(where, f"must be greater than 0, got {value:g}")
+            return None
+        if minimum is not None and value < minimum:
+            self.add(where, f"must be at least {minimum:g}, got {value:g}")
+            return None
+        return value
+
+
+def _points(checker: _Checker, polar: dict, min_kmh: float | None, vne_kmh: float | None):
+    """The ``[polar] points`` as (speed km/h, sink m/s) pairs, each one checked."""
+    where = "[polar] points"
+    if "points" not in polar:
+        checker.add(where, "missing key")
+        return None
+    raw = polar["points"]
+    if not isinstance(raw, list):
+        checker.add(where, f"must be a list of [IAS km/h, sink m/s] pairs, got {raw!r}")
+        return None
+    if len(raw) < 3:
+        checker.add(where, f"needs at least 3 points, got {len(raw)}")
+    points, ok = [], True
+    for number, point in enumerate(raw, start=1):
+        here = f"{where}[{number}]"
+        if not (isinstance(point, list) and len(point) == 2 and all(_is_number(x) for x in point)):
+            checker.add(here, f"must be a pair [IAS km/h, sink m/s] of numbers, got {point!r}")
+            ok = False
+            continue
+        speed, sink = float(point[0]), float(point[1])
+        if not (math.isfinite(speed) and math.isfinite(sink)):
+            checker.add(here, f"must be finite numbers, got {point!r}")
+            ok = False
+            continue
+        if sink <= 0.0:
+            checker.add(here, f"sink rate must be positive (m/s downward), got {sink:g}")
+            ok = False
+        if min_kmh is not None and vne_kmh is not None and not min_kmh <= speed <= vne_kmh:
+            checker.add(here, f"speed {speed:g} km/h is outside min_speed_kmh..vne_kmh "
+                              f"({min_kmh:g}..{vne_kmh:g})")
+            ok = False
+        points.append((speed, sink))
+    if len({speed for speed, _ in points}) < 3 and len(raw) >= 3 and ok:
+        checker.add(where, "needs at least 3 points at different speeds")
+        ok = False
+    return points if ok and len(points) >= 3 else None
+
+
+def _fit_problems(checker: _Checker, points, min_kmh: float, vne_kmh: float) -> None:
+    """An impossible fitted polar: curving the wrong way, or no sink somewhere in range."""
+    a, b, c, _ = fit_quadratic([s * KMH for s, _ in points], [w for _, w in points])
+    where = "[polar] points"
+    if a <= 0.0:
+        checker.add(where, f"the fitted polar sink = a*v^2 + b*v + c has a = {a:.3g} <= 0 "
+                           "(sink must grow at high speed); check the points")
+        return
+    lo, hi = min_kmh * KMH, vne_kmh * KMH
+    vertex = min(max(-b / (2.0 * a), lo), hi)
+    least = (a * vertex + b) * vertex + c
+    if least <= 0.0:
+        checker.add(where, f"the fitted polar's minimum sink is {least:.3g} m/s at "
+                           f"{vertex / KMH:.0f} km/h; it must be positive")
+
+
+def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Problem]]:
+    """Validate a parsed polar document (contract 2.1).
+
+    Parameters
+    ----------
+    document : dict
+        The TOML document as :mod:`tomllib` parses it.
+    file : str
+        The file name to put in each problem.
+
+    Returns
+    -------
+    spec : PolarSpec or None
+        The polar in SI units, or None if there was any problem.
+    problems : list of Problem
+        Every problem found (empty if ``spec`` is not None).
+    """
+    checker = _Checker(str(file))
+    for key in document:
+        if key not in ("glider", "polar"):
+            checker.add(key, "unknown table or key (expected [glider] and [polar])")
+    glider = checker.table(document, "glider")
+    polar = checker.table(document, "polar")
+    values: dict[str, Any] = {}
+    if glider is not None:
+        checker.unknown_keys(glider, "glider", GLIDER_KEYS)
+        label = glider.get("label", Path(file).stem)
+        if not isinstance(label, str):
+            checker.add("[glider] label", f"must be text, got {label!r}")
+        values["label"] = str(label)
+        for key in ("wing_area_m2", "reference_mass_kg", "vne_kmh", "min_speed_kmh"):
+            values[key] = checker.number(glider, "glider", key, positive=True)
+        values["empty_mass_kg"] = checker.number(glider, "glider", "empty_mass_kg", required=False, positive=True)
+        values["max_ballast_kg"] = checker.number(glider, "glider", "max_ballast_kg", required=False, minimum=0.0)
+        values["max_mass_kg"] = checker.number(glider, "glider", "max_mass_kg", required=False, positive=True)
+        _limit_problems(checker, glider, values)
+    min_kmh, vne_kmh = values.get("min_speed_kmh"), values.get("vne_kmh")
+    if min_kmh is not None and vne_kmh is not None and min_kmh >= vne_kmh:
+        min_kmh = vne_kmh = None  # already reported; the points cannot be range-checked
+    points = None
+    if polar is not None:
+        checker.unknown_keys(polar, "polar", POLAR_KEYS)
+        points = _points(checker, polar, min_kmh, vne_kmh)
+        if points is not None and min_kmh is not None:
+            _fit_problems(checker, points, min_kmh, vne_kmh)
+    if checker.problems or glider is None or points is None:
+        return None, checker.problems
+    return PolarSpec(
+        label=values["label"],
+        wing_area_m2=values["wing_area_m2"],
+        reference_mass_kg=values["reference_mass_kg"],
+        empty_mass_kg=values["empty_mass_kg"],
+        max_ballast_kg=values["max_ballast_kg"],
+        max_mass_kg=values["max_mass_kg"],
+        vne_ias_ms=vne_kmh * KMH,
+        min_speed_ias_ms=min_kmh * KMH,
+        points=tuple((speed * KMH, sink) for speed, sink in points),
+    ), []
+
+
+def _limit_problems(checker: _Checker, glider: dict, values: dict[str, Any]) -> None:
+    """Defaults and cross-checks of the masses and speed limits (fills ``values``)."""
+    reference = values["reference_mass_kg"]
+    if "empty_mass_kg" not in glider and reference is not None:
+        values["empty_mass_kg"] = reference - DEFAULT_PILOT_ALLOWANCE_KG
+        if values["empty_mass_kg"] <= 0.0:
+            checker.add("[glider] empty_mass_kg", f"missing, and the default (reference_mass_kg - "
+                                                  f"{DEFAULT_PILOT_ALLOWANCE_KG:g}) is not positive")
+    if "max_ballast_kg" not in glider:
+        values["max_ballast_kg"] = 0.0
+    empty, max_mass = values["empty_mass_kg"], values["max_mass_kg"]
+    if empty is not None and reference is not None and empty > reference:
+        checker.add("[glider] empty_mass_kg", f"empty mass {empty:g} kg is above reference_mass_kg {reference:g} kg")
+    if empty is not None and max_mass is not None and max_mass <= empty:
+        checker.add("[glider] max_mass_kg", f"maximum mass {max_mass:g} kg is not above empty_mass_kg {empty:g} kg")
+    low, high = values["min_speed_kmh"], values["vne_kmh"]
+    if low is not None and high is not None and low >= high:
+        checker.add("[glider] min_speed_kmh", f"must be below vne_kmh ({high:g}), got {low:g}")
+
+
+_TOML_PLACE = re.compile(r"\s*\(at line (\d+), column (\d+)\)\s*$")
+
+
+def _parse(path: Path, file: str) -> tuple[dict | None, list[Problem]]:
+    try:
+        text = path.read_bytes().decode("utf-8")
+    except OSError as error:
+        return None, [Problem(file, "file", f"cannot read it: {error.strerror or error}")]
+    except UnicodeDecodeError:
+        return None, [Problem(file, "file", "is not UTF-8 text")]
+    try:
+        return tomllib.loads(text), []
+    except tomllib.TOMLDecodeError as error:
+        message = str(error)
+        place = _TOML_PLACE.search(message)
+        if place:
+            where = f"line {place.group(1)}"
+            what = f"TOML syntax error: {message[:place.start()]} (column {place.group(2)})"
+        else:
+            where, what = "file", f"TOML syntax error: {message}"
+        return None, [Problem(file, where, what)]
+
+
+def read_polar_spec(path: str | Path) -> tuple[PolarSpec | None, list[Problem]]:
+    """Read and validate a polar file; ``(spec, [])`` or ``(None, problems)``."""
+    file = str(path)
+    document, problems = _parse(Path(path), file)
+    if document is None:
+        return None, problems
+    return polar_problems(document, file)
+
+
+def load_polar_spec(path: str | Path) -> PolarSpec:
+    """Read a polar file (contract 2.1) into a :class:`PolarSpec` in SI units.
+
+    Raises
+    ------
+    InputError
+        With every problem found, each as ``FILE: WHERE: WHAT``.
+    """
+    spec, problems = read_polar_spec(path)
+    if problems:
+        raise InputError(problems)
+    return spec
+
+
+def loading_problems(spec: PolarSpec, pilot_kg: float, ballast_kg: float, *, file: str,
+                     pilot_where: str, ballast_where: str) -> list[Problem]:
+    """Problems with a flight's loading against the polar's limits.
+
+    Parameters
+    ----------
+    spec : PolarSpec
+        The polar, with its empty mass, ballast and mass limits.
+    pilot_kg, ballast_kg : float
+        Pilot with parachute, and water ballast [kg].
+    file, pilot_where, ballast_where : str
+        Where to report: e.g. ``"command line"``, ``"--pilot-kg"``, ``"--ballast-kg"``,
+        or a task file and ``"[glider] pilot_kg"``.
+
+    Returns
+    -------
+    list of Problem
+        Non-finite or negative values, ballast above ``max_ballast_kg``, flying mass
+        above ``max_mass_kg``; empty if the loading is within the limits.
+    """
+    problems = []
+    for value, where, name in ((pilot_kg, pilot_where, "pilot mass"), (ballast_kg, ballast_where, "ballast")):
+        if not (isinstance(value, (int, float)) and math.isfinite(value)) or value < 0.0:
+            problems.append(Problem(file, where, f"{name} must be a finite number >= 0, got {value!r}"))
+    if problems:
+        return problems
+    if pilot_kg <= 0.0:
+        problems.append(Problem(file, pilot_where, f"pilot mass must be greater than 0, got {pilot_kg:g}"))
+    if ballast_kg > spec.max_ballast_kg:
+        problems.append(Problem(file, ballast_where, f"ballast {ballast_kg:g} kg is above the polar's "
+                                                     f"max_ballast_kg {spec.max_ballast_kg:g} kg"))
+    mass = spec.empty_mass_kg + pilot_kg + ballast_kg
+    if spec.max_mass_kg is not None and mass > spec.max_mass_kg:
+        problems.append(Problem(file, ballast_where if ballast_kg > 0.0 else pilot_where,
+                                f"flying mass {mass:g} kg (empty {spec.empty_mass_kg:g} + pilot {pilot_kg:g} + "
+                                f"ballast {ballast_kg:g}) is above the polar's max_mass_kg {spec.max_mass_kg:g} kg"))
+    return problems
