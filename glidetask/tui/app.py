@@ -75,8 +75,9 @@ class GlideTaskApp(App[int]):
     task_path: var[Path | None] = var(None)
 
     def __init__(self, task_path: str | Path | None = None, units: str = "metric", *,
-                 show_cautions: bool | None = None, compute_on_start: bool = True):
+                 show_cautions: bool | None = None, compute_on_start: bool = True, scenario=None):
         super().__init__()
+        self._initial_scenario = scenario
         self.register_theme(GLIDETASK_THEME)
         self.theme = GLIDETASK_THEME.name
         self._initial_path = Path(task_path) if task_path else None
@@ -97,8 +98,11 @@ class GlideTaskApp(App[int]):
             show = not config.cautions_acknowledged()
         if show:
             self.action_show_cautions(first_start=True)
-        if self._compute_on_start and self._initial_path is not None:
-            self.notice = f"opening {self._initial_path.name} …"
+        if self._initial_scenario is not None:
+            self._opened(self._initial_path, self._initial_scenario)
+            if self._compute_on_start:
+                self.request_plan()
+        elif self._compute_on_start and self._initial_path is not None:
             self._open_path(self._initial_path)
 
     def action_view(self, view: str) -> None:
@@ -218,7 +222,7 @@ class GlideTaskApp(App[int]):
         if not worker.is_cancelled:
             self.call_from_thread(self._plan_failed, generation, problems)
 
-    def _opened(self, path: Path, scenario) -> None:
+    def _opened(self, path: Path | None, scenario) -> None:
         if self.session is None:
             self.session = EditSession(scenario, self.units, path)
         else:
@@ -228,7 +232,7 @@ class GlideTaskApp(App[int]):
         self.dirty = False
         self._publish_problems()
         self.scenario = scenario
-        self.notice = f"opened {path.name}: planning …"
+        self.notice = f"opened {path.name if path else scenario.task.name}: planning …"
 
     def _open_failed(self, path: Path, problems: list[Problem]) -> None:
         self.busy = False
@@ -240,7 +244,7 @@ class GlideTaskApp(App[int]):
             return  # a newer edit is being planned
         self.busy = False
         self.last_compute_s = outcome.elapsed_s
-        self.plan = outcome.plan
+        self.plan = outcome
         self._publish_problems()
         self.notice = f"plan updated ({outcome.elapsed_s * 1000:.0f} ms)"
 
@@ -345,16 +349,19 @@ class GlideTaskApp(App[int]):
 
 
 def make_app(task_path: str | Path | None = None, units: str = "metric", *,
-             show_cautions: bool | None = None, compute_on_start: bool = True) -> GlideTaskApp:
+             show_cautions: bool | None = None, compute_on_start: bool = True, scenario=None) -> GlideTaskApp:
     """The app for a task file (the bundled demo if None), in ``units`` ("metric" or "aviation").
 
     ``show_cautions`` forces the full caution notice on (True) or off (False); by default it
-    shows until the user has acknowledged the current wording once.
+    shows until the user has acknowledged the current wording once. ``scenario`` starts
+    from a scenario already built (tests), with ``task_path`` as its file if given.
     """
     from glidetask import paths
 
-    return GlideTaskApp(task_path or paths.demo_task(), units, show_cautions=show_cautions,
-                        compute_on_start=compute_on_start)
+    if scenario is None and task_path is None:
+        task_path = paths.demo_task()
+    return GlideTaskApp(task_path, units, show_cautions=show_cautions,
+                        compute_on_start=compute_on_start, scenario=scenario)
 
 
 def run_app(task_path: str | Path | None = None, units: str = "metric") -> int:

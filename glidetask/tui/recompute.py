@@ -15,9 +15,12 @@ from glidetask.engine.scenario import Scenario
 
 @dataclass(frozen=True)
 class Outcome:
-    """A plan and how long the engine took to make it [s]."""
+    """A plan, its contract form (shared/CONTRACT.md 5.3: the names and units every view
+    reads) and how long the engine took to make both [s]."""
 
+    scenario: Scenario
     plan: Any
+    summary: dict
     elapsed_s: float
 
 
@@ -29,12 +32,14 @@ def load_task(path: str | Path) -> Scenario:
 
 
 def compute_plan(scenario: Scenario) -> Outcome:
-    """Plan the task of ``scenario`` (engine.planner.plan), timed."""
+    """Plan the task of ``scenario`` (engine.planner.plan) and put it in the contract's terms, timed."""
     from glidetask.engine.planner import plan
+    from glidetask.formats.plan_json import plan_to_dict
 
     started = time.perf_counter()
     result = plan(scenario)
-    return Outcome(result, time.perf_counter() - started)
+    summary = plan_to_dict(result)
+    return Outcome(scenario, result, summary, time.perf_counter() - started)
 
 
 def save_task(path: str | Path, scenario: Scenario) -> None:

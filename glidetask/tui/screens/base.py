@@ -53,8 +53,12 @@ class ViewScreen(Screen):
         self.show_units()
 
     def _highlight_fields(self, invalid: frozenset[str]) -> None:
-        for widget in self.query(".field-input"):
-            widget.set_class(widget.id in invalid, "-invalid")
+        for widget in self.query(".-invalid"):
+            if widget.id not in invalid and widget.id != "view-altitude":
+                widget.remove_class("-invalid")
+        for field_id in invalid:
+            for widget in self.query(f"#{field_id}"):
+                widget.add_class("-invalid")
 
     # hooks for the views
     def show_scenario(self, scenario) -> None:

@@ -1,13 +1,138 @@
-"""The Task view (being built)."""
+"""The Task view: the legs of the plan, its totals, the task's points and a sketch."""
 
 from __future__ import annotations
 
+from functools import partial
+
+from textual import on
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical
+
+from glidetask.tui import messages, task_edits
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.legs_table import LegsTable
+from glidetask.tui.widgets.plan_totals import PlanTotals
+from glidetask.tui.widgets.points_table import PointsTable, role
+from glidetask.tui.widgets.task_sketch import TaskSketch
+
+
+def point_along(lats, lons, distance_m: float) -> tuple[float, float] | None:
+    """The point ``distance_m`` along a polyline of geodesics (None if beyond its end)."""
+    from glidetask.engine import geodesy
+
+    remaining = float(distance_m)
+    for i in range(len(lats) - 1):
+        azimuth, _, length = geodesy.inverse(lats[i], lons[i], lats[i + 1], lons[i + 1])
+        if remaining <= float(length):
+            lat, lon = geodesy.destination(lats[i], lons[i], azimuth, remaining)
+            return float(lat), float(lon)
+        remaining -= float(length)
+    return None
 
 
 class TaskView(ViewScreen):
+    """Legs, totals, points (editable) and the sketch."""
+
     VIEW = "task"
 
-    def compose_body(self):
-        yield NeedsNotice("Task: coming soon")
+    def compose_body(self) -> ComposeResult:
+        yield LegsTable(id="legs-table", classes="panel")
+        yield PlanTotals(id="plan-totals", classes="panel")
+        with Horizontal(id="task-bottom"):
+            yield PointsTable(id="points-table", classes="panel")
+            with Vertical(id="sketch-panel", classes="panel"):
+                yield TaskSketch(id="task-sketch")
+
+    def on_mount(self) -> None:
+        self.query_one("#legs-table").border_title = "Legs"
+        self.query_one("#plan-totals").border_title = "Plan"
+        self.query_one("#points-table").border_title = "Task points"
+        self.query_one("#points-table").border_subtitle = "a add · r replace · x remove · ⇧↑↓ move · z zone"
+        self.query_one("#sketch-panel").border_title = "Sketch"
+        super().on_mount()
+        self.query_one(LegsTable).show(None, self.app.units)
+
+    # ------------------------------------------------------------ showing
+
+    def show_scenario(self, scenario) -> None:
+        self.query_one(PointsTable).show(scenario.task, self.app.units)
+        self.query_one("#points-table").border_title = f"Task points · {scenario.task.name} ({scenario.task.kind})"
+        self._draw_sketch()
+
+    def show_plan(self, outcome) -> None:
+        units = self.app.units
+        summary = outcome.summary if outcome is not None else None
+        scenario = self.app.scenario
+        codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
+        self.query_one(LegsTable).show(summary, units, codes)
+        stale = bool(self.app.invalid_fields) or (outcome is not None and outcome.scenario is not self.app.scenario)
+        self.query_one(PlanTotals).show(summary, units, stale=stale)
+        self._draw_sketch()
+
+    def _draw_sketch(self) -> None:
+        from glidetask.tui.sketch_geometry import build_sketch
+
+        scenario, outcome = self.app.scenario, self.app.plan
+        if scenario is None:
+            return
+        path, final_at = None, None
+        if outcome is not None and outcome.scenario.task is scenario.task:
+            plan_path = getattr(outcome.plan, "path", None)
+            if plan_path is not None:
+                path = (plan_path.lats, plan_path.lons)
+                from_km = (outcome.summary.get("final_glide") or {}).get("from_km")
+                if from_km is not None:
+                    final_at = point_along(plan_path.lats, plan_path.lons, from_km * 1000.0)
+        landables = [t for t in scenario.turnpoints if t.landable]
+        try:
+            sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at)
+        except Exception as error:  # a drawing problem never takes the view down
+            self.app.notice = f"sketch: {error}"
+            return
+        self.query_one(TaskSketch).show(sketch, self.app.units)
+
+    # ------------------------------------------------------------ editing
+
+    @on(PointsTable.EditRequested)
+    def _edit_requested(self, message: PointsTable.EditRequested) -> None:
+        message.stop()
+        scenario = self.app.scenario
+        if scenario is None:
+            return
+        index, count = message.index, len(scenario.task.points)
+        action = message.action
+        if action in ("add", "replace"):
+            from glidetask.tui.screens.turnpoint_picker import TurnpointPicker
+
+            title = "Add a turn point after " + role(index, count) if action == "add" else f"Replace {role(index, count)}"
+            self.app.push_screen(TurnpointPicker(scenario.turnpoints, self.app.units, title),
+                                 partial(self._picked, action, index))
+        elif action == "remove":
+            self._post(partial(task_edits.remove_point, index=index), f"{role(index, count)} removed")
+        elif action in ("up", "down"):
+            step = -1 if action == "up" else 1
+            self._post(partial(task_edits.move_point, index=index, step=step), "point moved")
+            self.query_one(PointsTable).move_cursor(row=min(max(index + step, 0), count - 1))
+        elif action == "zone":
+            from glidetask.tui.screens.zone_modal import ZoneModal, allowed_kinds
+
+            point = scenario.task.points[index]
+            kinds = allowed_kinds(scenario.task.kind, index, count)
+            self.app.push_screen(ZoneModal(point.zone, kinds, self.app.units, f"Zone of {role(index, count)}: {point.name}"),
+                                 partial(self._zone_chosen, index))
+
+    def _picked(self, action: str, index: int, turnpoint) -> None:
+        if turnpoint is None:
+            return
+        if action == "add":
+            self._post(lambda s: task_edits.insert_point(s, index + 1, turnpoint), f"{turnpoint.name} added")
+            self.query_one(PointsTable).move_cursor(row=index + 1)
+        else:
+            self._post(lambda s: task_edits.replace_turnpoint(s, index, turnpoint), f"{turnpoint.name} placed")
+
+    def _zone_chosen(self, index: int, zone) -> None:
+        if zone is not None:
+            self._post(lambda s: task_edits.set_zone(s, index, zone), "zone")
+
+    def _post(self, change, what: str) -> None:
+        self.post_message(messages.ScenarioEdit(lambda s: change(s), what, field_id="points-table"))

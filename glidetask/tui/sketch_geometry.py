@@ -1,0 +1,80 @@
+"""The task in a local flat frame for the sketch: an azimuthal-equidistant projection
+centred on the task (pyproj ``+proj=aeqd``), so distances from the centre are true and
+shapes near it are undistorted at task scale.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+
+@dataclass
+class Sketch:
+    """Everything the sketch draws, in metres east (x) and north (y) of the centre."""
+
+    centre_lat: float
+    centre_lon: float
+    zones: list[tuple[np.ndarray, np.ndarray]] = field(default_factory=list)  # outlines
+    path: tuple[np.ndarray, np.ndarray] | None = None  # the planned (or nominal) path
+    points: list[tuple[float, float, str]] = field(default_factory=list)  # task points: x, y, label
+    landables: list[tuple[float, float]] = field(default_factory=list)
+    final_glide: tuple[float, float] | None = None  # where the final glide starts
+
+    def extent(self) -> tuple[float, float, float, float]:
+        """``(xmin, xmax, ymin, ymax)`` of the task points, zones and path [m]."""
+        xs = [x for x, _, _ in self.points] + [float(np.min(z[0])) for z in self.zones] + [float(np.max(z[0])) for z in self.zones]
+        ys = [y for _, y, _ in self.points] + [float(np.min(z[1])) for z in self.zones] + [float(np.max(z[1])) for z in self.zones]
+        if not xs:
+            return -1000.0, 1000.0, -1000.0, 1000.0
+        return min(xs), max(xs), min(ys), max(ys)
+
+
+def local_projection(centre_lat: float, centre_lon: float):
+    """A transformer from (lon, lat) [deg] to azimuthal-equidistant (x, y) [m] about the centre."""
+    from pyproj import Transformer
+
+    return Transformer.from_crs(
+        "EPSG:4326",
+        f"+proj=aeqd +lat_0={centre_lat:.8f} +lon_0={centre_lon:.8f} +datum=WGS84 +units=m",
+        always_xy=True,
+    )
+
+
+def task_centre(lats, lons) -> tuple[float, float]:
+    """The middle of the task's bounding box (longitudes unwrapped around the first point)."""
+    lats = np.asarray(lats, dtype=float)
+    lons = np.asarray(lons, dtype=float)
+    unwrapped = lons[0] + (lons - lons[0] + 180.0) % 360.0 - 180.0
+    centre_lon = 0.5 * (unwrapped.min() + unwrapped.max())
+    return 0.5 * (lats.min() + lats.max()), ((centre_lon + 180.0) % 360.0) - 180.0
+
+
+def build_sketch(task, *, path=None, landables=(), final_glide_at=None) -> Sketch:
+    """Project the task's zones, its path (``(lats, lons)``, default centre to centre), the
+    landables (Turnpoints) and the final-glide start (``(lat, lon)``) into the local frame."""
+    from glidetask.engine.zones import boundary
+
+    centre_lat, centre_lon = task_centre(task.lats, task.lons)
+    to_local = local_projection(centre_lat, centre_lon)
+    sketch = Sketch(centre_lat, centre_lon)
+    for point, axis in zip(task.points, task.axes_deg):
+        for lats, lons in boundary(point.zone, point.lat, point.lon, axis, points_per_circle=48):
+            sketch.zones.append(to_local.transform(np.asarray(lons), np.asarray(lats)))
+    path_lats, path_lons = path if path is not None else (task.lats, task.lons)
+    sketch.path = to_local.transform(np.asarray(path_lons, dtype=float), np.asarray(path_lats, dtype=float))
+    last = len(task.points) - 1
+    for index, point in enumerate(task.points):
+        x, y = to_local.transform(point.lon, point.lat)
+        label = "S" if index == 0 else "F" if index == last else str(index)
+        if index == last and point.turnpoint == task.points[0].turnpoint:
+            continue  # a finish at the start point: one mark, labelled S
+        sketch.points.append((float(x), float(y), label))
+    for turnpoint in landables:
+        x, y = to_local.transform(turnpoint.lon, turnpoint.lat)
+        sketch.landables.append((float(x), float(y)))
+    if final_glide_at is not None:
+        x, y = to_local.transform(final_glide_at[1], final_glide_at[0])
+        sketch.final_glide = (float(x), float(y))
+    return sketch

@@ -1,0 +1,55 @@
+"""The task's points, in order, with their zones: the place to edit the task."""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.binding import Binding
+from textual.message import Message
+from textual.widgets import DataTable
+
+from glidetask.tui import display
+from glidetask.units import UnitSystem
+
+
+def role(index: int, count: int) -> str:
+    return "Start" if index == 0 else "Finish" if index == count - 1 else f"Turn {index}"
+
+
+class PointsTable(DataTable):
+    """Task points; keys ask the view to add, replace, remove, move points or edit a zone."""
+
+    BINDINGS = [
+        Binding("a", "ask('add')", "Add point"),
+        Binding("r", "ask('replace')", "Replace"),
+        Binding("x,delete", "ask('remove')", "Remove"),
+        Binding("shift+up", "ask('up')", "Move up"),
+        Binding("shift+down", "ask('down')", "Move down"),
+        Binding("z", "ask('zone')", "Zone"),
+    ]
+
+    class EditRequested(Message):
+        """The pilot asked for ``action`` on the point at ``index``."""
+
+        def __init__(self, action: str, index: int):
+            super().__init__()
+            self.action, self.index = action, index
+
+    def __init__(self, **kwargs):
+        super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
+
+    def show(self, task, units: UnitSystem) -> None:
+        row = self.cursor_row
+        self.clear(columns=True)
+        for key, label in (("role", "Point"), ("name", "Turnpoint"), ("zone", "Zone"), ("elevation", f"Elev {units.height_label}")):
+            self.add_column(label, key=key)
+        count = len(task.points)
+        for index, point in enumerate(task.points):
+            turnpoint = point.turnpoint
+            name = turnpoint.name + (f" ({turnpoint.code})" if turnpoint.code else "")
+            self.add_row(role(index, count), name, display.zone_text(point.zone, units),
+                         Text(display.height(units, turnpoint.elevation_m), justify="right"), key=f"point-{index}")
+        if count:
+            self.move_cursor(row=min(max(row, 0), count - 1), animate=False)
+
+    def action_ask(self, action: str) -> None:
+        self.post_message(self.EditRequested(action, self.cursor_row))
