@@ -123,14 +123,17 @@ def _points(checker: _Checker, polar: dict, min_kmh: float | None, vne_kmh: floa
     return points if ok and len(points) >= 3 else None
 
 
-def _fit_problems(checker: _Checker, points, min_kmh: float, vne_kmh: float) -> None:
-    """An impossible fitted polar: curving the wrong way, or no sink somewhere in range."""
+def _fit_problems(checker: _Checker, points, min_kmh: float | None, vne_kmh: float | None) -> None:
+    """An impossible fitted polar: curving the wrong way, or no sink somewhere in range
+    (the valid speed range, or the points' own range if the limits are unusable)."""
     a, b, c, _ = fit_quadratic([s * KMH for s, _ in points], [w for _, w in points])
     where = "[polar] points"
     if a <= 0.0:
         checker.add(where, f"the fitted polar sink = a*v^2 + b*v + c has a = {a:.3g} <= 0 "
                            "(sink must grow at high speed); check the points")
         return
+    if min_kmh is None or vne_kmh is None:
+        min_kmh, vne_kmh = min(s for s, _ in points), max(s for s, _ in points)
     lo, hi = min_kmh * KMH, vne_kmh * KMH
     vertex = min(max(-b / (2.0 * a), lo), hi)
     least = (a * vertex + b) * vertex + c
@@ -182,7 +185,7 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
     if polar is not None:
         checker.unknown_keys(polar, "polar", POLAR_KEYS)
         points = _points(checker, polar, min_kmh, vne_kmh)
-        if points is not None and min_kmh is not None:
+        if points is not None:
             _fit_problems(checker, points, min_kmh, vne_kmh)
     if checker.problems or glider is None or points is None:
         return None, checker.problems
