@@ -35,6 +35,7 @@ from glidetask.engine import geodesy
 
 #: Largest sample spacing along a path [m] (shared issue: at most 250 m).
 PATH_SPACING_M = 250.0
+_NEGLIGIBLE_WEIGHT = 1e-9
 _FOOT_M = 0.3048
 _FEET_UNITS = {"ft", "foot", "feet", "us-ft", "us survey foot", "international foot"}
 
@@ -147,7 +148,9 @@ class Terrain:
         unknown = np.zeros(total.shape, dtype=bool)
         for weight, value in zip(weights, corners):
             missing = np.isnan(value)
-            unknown |= missing & (weight != 0.0)
+            # A cell without data counts unless its weight is round-off from a query that
+            # sits on a neighbouring centre.
+            unknown |= missing & (np.abs(weight) > _NEGLIGIBLE_WEIGHT)
             total += weight * np.where(missing, 0.0, value)
         result = np.where(inside & ~unknown, total, np.nan)
         return float(result) if result.ndim == 0 else result
