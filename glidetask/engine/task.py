@@ -15,8 +15,9 @@ start zone, through a point of each zone in turn, to a point of the finish zone.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
-from functools import cached_property
+import math
+from dataclasses import dataclass
+from functools import cached_property, lru_cache
 
 import numpy as np
 
@@ -267,3 +268,366 @@ def path_through(task: Task, lats, lons) -> TaskPath:
 def nominal_path(task: Task) -> TaskPath:
     """The path through the zone centres."""
     return path_through(task, task.lats, task.lons)
+
+
+# ---------------------------------------------------------------- the shortest and longest paths
+#
+# The search works on each zone's boundary, described as loops of polar pieces about the
+# zone's point (zones.boundary_loops). A shortest path touches each zone either on its
+# boundary or, where it passes straight through, at a point it shares with a neighbouring
+# zone; so the candidates of a zone are points on its own boundary plus the neighbours'
+# candidates that lie inside it. A dynamic programme over the chain of zones picks the
+# best candidate of every zone jointly (no zone is optimised alone, so overlapping zones
+# and keyholes cannot trap it); the search then repeats on ever narrower windows of the
+# boundary around the chosen points until the spacing is below a metre. The first, coarse
+# round measures on a sphere (numpy only), every later round on the ellipsoid (geodesic
+# inverse), so the result is a WGS84 geodesic optimum.
+
+_SPHERE_RADIUS_M = 6_371_008.8  # mean Earth radius, for the coarse round only
+_COARSE_CLOSED = 64  # samples per closed boundary loop in the coarse round
+_COARSE_OPEN = 33  # samples per line
+_WINDOW = 12  # samples per refined window
+_WINDOW_HALF = 1.5  # half-width of the next window, in spacings of the previous one
+_FINE_M = 4.0  # refine every window to below this spacing [m] (see optimized_path Notes)
+_INSIDE_M = 1e-3  # a neighbour's candidate counts as inside a zone within this [m]
+_OFFSETS = np.linspace(-1.0, 1.0, _WINDOW)
+
+
+@dataclass
+class _Window:
+    """Search state of one task point: its boundary loops and the current window on them."""
+
+    lat: float
+    lon: float
+    zone: Zone
+    axis_deg: float
+    loops: tuple
+    loop: int = -1  # the loop the window is on (-1: the coarse round samples every loop)
+    centre_s: float = 0.0  # window centre on that loop [m along the boundary]
+    spacing_m: float = math.inf
+
+    def samples(self) -> tuple[np.ndarray, np.ndarray]:
+        """(loop index, boundary parameter) of this round's own candidates."""
+        if self.loop < 0:
+            loops, params, spacings = [], [], []
+            for index, loop in enumerate(self.loops):
+                count = _COARSE_CLOSED if loop.closed else _COARSE_OPEN
+                s = np.linspace(0.0, loop.length_m, count, endpoint=not loop.closed)
+                s = np.unique(np.concatenate([s, loop.corners_m[:-1] if loop.closed else loop.corners_m]))
+                loops.append(np.full(s.shape, index))
+                params.append(s)
+                spacings.append(loop.length_m / (count if loop.closed else count - 1))
+            self.spacing_m = max(spacings)
+            return np.concatenate(loops), np.concatenate(params)
+        loop = self.loops[self.loop]
+        # Shrink the window round by round; below the fine spacing keep its size, so a
+        # converged zone can still follow neighbours that are converging.
+        fine = self.spacing_m <= _FINE_M
+        half = (0.5 * (_WINDOW - 1) if fine else _WINDOW_HALF) * self.spacing_m
+        s = self.centre_s + half * _OFFSETS
+        corners = loop.corners_m
+        if loop.closed:
+            total = corners[-1]
+            offset = (corners[:-1] - self.centre_s + total / 2.0) % total - total / 2.0
+            near = np.abs(offset) <= half
+            if near.any():  # corners are where sector and line optima often sit: sample them exactly
+                s = np.concatenate([s, self.centre_s + offset[near]])
+        else:
+            near = np.abs(corners - self.centre_s) <= half
+            if near.any():
+                s = np.concatenate([s, corners[near]])
+        self.spacing_m = 2.0 * half / (_WINDOW - 1)
+        return np.full(s.shape, self.loop), s
+
+
+@dataclass
+class _Candidates:
+    """One round's candidate points of one zone; ``loop`` -1 marks a neighbour's point."""
+
+    lats: np.ndarray
+    lons: np.ndarray
+    loop: np.ndarray
+    s: np.ndarray
+
+
+def _own_candidates(windows: list[_Window]) -> list[_Candidates]:
+    """Every window's boundary samples as points, in one vectorised direct-geodesic call."""
+    parts, centre_lat, centre_lon, azimuths, radii = [], [], [], [], []
+    for window in windows:
+        loop_index, s = window.samples()
+        azimuth, r = np.empty(s.shape), np.empty(s.shape)
+        for index in np.unique(loop_index):
+            mask = loop_index == index
+            azimuth[mask], r[mask] = window.loops[index].polar(s[mask])
+        parts.append((loop_index, s))
+        centre_lat.append(np.full(s.shape, window.lat))
+        centre_lon.append(np.full(s.shape, window.lon))
+        azimuths.append(azimuth)
+        radii.append(r)
+    lats, lons = geodesy.destination(np.concatenate(centre_lat), np.concatenate(centre_lon),
+                                     np.concatenate(azimuths), np.concatenate(radii))
+    out, at = [], 0
+    for loop_index, s in parts:
+        out.append(_Candidates(lats[at:at + len(s)], lons[at:at + len(s)], loop_index, s))
+        at += len(s)
+    return out
+
+
+def _with_neighbours(windows, own: list[_Candidates], overlapping: list[bool]) -> list[_Candidates]:
+    """Add to each zone the neighbours' candidates that lie inside it (where zones overlap)."""
+    from glidetask.engine.zones import contains
+
+    out = list(own)
+    for i, window in enumerate(windows):
+        extra = [own[j] for j in (i - 1, i + 1) if 0 <= j < len(windows) and overlapping[min(i, j)]]
+        if not extra:
+            continue
+        lats = np.concatenate([c.lats for c in extra])
+        lons = np.concatenate([c.lons for c in extra])
+        inside = np.atleast_1d(contains(window.zone, window.lat, window.lon, lats, lons, window.axis_deg,
+                                        tolerance_m=_INSIDE_M))
+        count = int(inside.sum())
+        if count:
+            mine = own[i]
+            out[i] = _Candidates(np.concatenate([mine.lats, lats[inside]]), np.concatenate([mine.lons, lons[inside]]),
+                                 np.concatenate([mine.loop, np.full(count, -1)]), np.concatenate([mine.s, np.zeros(count)]))
+    return out
+
+
+def _sphere_distance(lat1, lon1, lat2, lon2):
+    """Great-circle distance [m] on the mean sphere (haversine), broadcasting."""
+    p1, p2 = np.radians(lat1), np.radians(lat2)
+    h = np.sin((p2 - p1) / 2) ** 2 + np.cos(p1) * np.cos(p2) * np.sin(np.radians(lon2 - lon1) / 2) ** 2
+    return 2.0 * _SPHERE_RADIUS_M * np.arcsin(np.sqrt(np.clip(h, 0.0, 1.0)))
+
+
+def _leg_costs(candidates: list[_Candidates], exact: bool) -> list[np.ndarray]:
+    """Distance matrices [m] from every candidate of a zone (rows) to every candidate of the
+    next (columns), for all legs in one vectorised call."""
+    if not exact:
+        return [_sphere_distance(a.lats[:, None], a.lons[:, None], b.lats[None, :], b.lons[None, :])
+                for a, b in zip(candidates[:-1], candidates[1:])]
+    pieces = [[], [], [], []]
+    shapes = []
+    for a, b in zip(candidates[:-1], candidates[1:]):
+        shapes.append((len(a.lats), len(b.lats)))
+        pieces[0].append(np.repeat(a.lats, len(b.lats)))
+        pieces[1].append(np.repeat(a.lons, len(b.lats)))
+        pieces[2].append(np.tile(b.lats, len(a.lats)))
+        pieces[3].append(np.tile(b.lons, len(a.lats)))
+    flat = np.atleast_1d(geodesy.distance(*(np.concatenate(p) for p in pieces)))
+    out, at = [], 0
+    for rows, columns in shapes:
+        out.append(flat[at:at + rows * columns].reshape(rows, columns))
+        at += rows * columns
+    return out
+
+
+def _chain_search(costs: list[np.ndarray], maximize: bool) -> list[int]:
+    """The candidate of every zone giving the shortest path (``maximize=False``), or the
+    longest path through the middle zones with the shortest connection to the start and
+    finish zones (``maximize=True``): a dynamic programme along the chain of zones."""
+    if not maximize:
+        value = np.zeros(costs[0].shape[0])
+        back = []
+        for cost in costs:
+            total = value[:, None] + cost
+            back.append(np.argmin(total, axis=0))
+            value = total[back[-1], np.arange(total.shape[1])]
+        choice = [int(np.argmin(value))]
+        for pointer in reversed(back):
+            choice.append(int(pointer[choice[-1]]))
+        return choice[::-1]
+    # The start and finish points only ever shorten the path: eliminate them first as
+    # "shortest connection" costs on their neighbours, then maximise over the middle.
+    start_pick = np.argmin(costs[0], axis=0)
+    finish_pick = np.argmin(costs[-1], axis=1)
+    value = costs[0][start_pick, np.arange(costs[0].shape[1])]
+    back = []
+    for cost in costs[1:-1]:
+        total = value[:, None] + cost
+        back.append(np.argmax(total, axis=0))
+        value = total[back[-1], np.arange(total.shape[1])]
+    value = value + costs[-1][np.arange(costs[-1].shape[0]), finish_pick]
+    last_middle = int(np.argmax(value))
+    choice = [int(finish_pick[last_middle]), last_middle]
+    for pointer in reversed(back):
+        choice.append(int(pointer[choice[-1]]))
+    choice.append(int(start_pick[choice[-1]]))
+    return choice[::-1]
+
+
+def _search(task: Task, maximize: bool) -> tuple[np.ndarray, np.ndarray]:
+    """Path points (lats, lons) of the shortest path, or of the longest through the area zones."""
+    from glidetask.engine.zones import boundary_loops
+
+    windows = [_Window(p.lat, p.lon, p.zone, axis, boundary_loops(p.zone, axis))
+               for p, axis in zip(task.points, task.axes_deg)]
+    gaps = np.atleast_1d(geodesy.distance(task.lats[:-1], task.lons[:-1], task.lats[1:], task.lons[1:]))
+    reach = np.array([p.zone.reach_m for p in task.points])
+    overlapping = list(gaps <= reach[:-1] + reach[1:] + 1.0)
+    exact = False
+    while True:
+        own = _own_candidates(windows)
+        candidates = own if maximize else _with_neighbours(windows, own, overlapping)
+        choice = _chain_search(_leg_costs(candidates, exact), maximize)
+        picked = [c for c in zip(candidates, choice)]
+        if exact and all(w.spacing_m <= _FINE_M for w in windows):
+            return (np.array([c.lats[k] for c, k in picked]), np.array([c.lons[k] for c, k in picked]))
+        for window, (c, k) in zip(windows, picked):
+            if c.loop[k] < 0:  # a neighbour's point: centre the window on our own nearest sample
+                mine = np.flatnonzero(c.loop >= 0)
+                k = mine[np.argmin(_sphere_distance(c.lats[mine], c.lons[mine], c.lats[k], c.lons[k]))]
+            window.loop, window.centre_s = int(c.loop[k]), float(c.s[k])
+        exact = True
+
+
+@lru_cache(maxsize=128)
+def optimized_path(task: Task) -> TaskPath:
+    """The shortest path that touches every zone of the task in order.
+
+    Parameters
+    ----------
+    task : Task
+
+    Returns
+    -------
+    TaskPath
+        One point per task point: where the shortest path touches that zone.
+
+    Notes
+    -----
+    A start or finish line counts anywhere along its length, a start or finish cylinder
+    from its edge, every other zone anywhere on or inside it (the Sporting Code's
+    observation zones; see the module docstring). The search is a dynamic programme over
+    candidate points on the zone boundaries, refined on narrowing windows until the
+    candidates are under 1 m apart; the result is within centimetres of the geodesic
+    optimum on WGS84 (tests compare it with an independent brute-force search). Results
+    are cached per task (tasks are immutable).
+    """
+    lats, lons = _search(task, maximize=False)
+    return path_through(task, lats, lons)
+
+
+@lru_cache(maxsize=128)
+def _longest_path(task: Task) -> TaskPath:
+    if not any(p.zone.is_area for p in task.points):
+        return optimized_path(task)
+    lats, lons = _search(task, maximize=True)
+    return path_through(task, lats, lons)
+
+
+def area_distance_range(task: Task) -> tuple[float, float]:
+    """Shortest and longest distance of an assigned-area task [m].
+
+    Returns
+    -------
+    (min_m, max_m) : tuple of float
+        ``min_m`` is the optimized distance (:func:`optimized_path`). ``max_m`` is the
+        longest path through the area zones, each touched anywhere on or inside it, with the
+        shortest possible connection from the start zone and to the finish zone (a pilot
+        does not fly extra in the start or finish zone). For a task without area zones
+        both are the optimized distance.
+    """
+    return optimized_path(task).total_m, _longest_path(task).total_m
+
+
+# ---------------------------------------------------------------- area-task targets
+
+
+@dataclass(frozen=True, eq=False)
+class _TargetCurve:
+    """Each zone's target moving from the shortest path's point (t = 0) to the longest
+    path's point (t = 1), in the zone's own coordinates so it never leaves the zone:
+    along a line, or in azimuth and distance about the zone's point (clockwise within an
+    area sector; the shorter way round otherwise)."""
+
+    centre_lats: np.ndarray
+    centre_lons: np.ndarray
+    azimuth0: np.ndarray  # deg, at t = 0
+    turn: np.ndarray  # deg turned by t = 1
+    r0: np.ndarray
+    r1: np.ndarray
+
+    def points(self, t):
+        """Target points for every t (rows) and task point (columns) [deg]."""
+        t = np.atleast_1d(np.asarray(t, dtype=float))[:, None]
+        azimuth = self.azimuth0 + t * self.turn
+        r = self.r0 + t * (self.r1 - self.r0)
+        # a signed distance (a point on a line) flips the azimuth instead
+        azimuth = np.where(r < 0.0, azimuth + 180.0, azimuth)
+        shape = np.broadcast(azimuth, self.centre_lats).shape
+        return geodesy.destination(np.broadcast_to(self.centre_lats, shape), np.broadcast_to(self.centre_lons, shape),
+                                   azimuth, np.abs(r))
+
+    def lengths(self, t) -> np.ndarray:
+        lats, lons = self.points(t)
+        legs = geodesy.distance(lats[:, :-1], lons[:, :-1], lats[:, 1:], lons[:, 1:])
+        return np.sum(np.atleast_2d(legs), axis=1)
+
+
+@lru_cache(maxsize=128)
+def _target_curve(task: Task) -> _TargetCurve:
+    from glidetask.engine.zones import polar_coordinates
+
+    low, high = optimized_path(task), _longest_path(task)
+    az0, r0 = (np.atleast_1d(v) for v in polar_coordinates(task.lats, task.lons, low.lats, low.lons))
+    az1, r1 = (np.atleast_1d(v) for v in polar_coordinates(task.lats, task.lons, high.lats, high.lons))
+    turn = (az1 - az0 + 180.0) % 360.0 - 180.0
+    for i, point in enumerate(task.points):
+        zone, axis = point.zone, task.axes_deg[i]
+        if zone.kind == "area_sector":  # stay within the radials: turn clockwise from radial_from
+            turn[i] = (az1[i] - zone.radial_from_deg) % 360.0 - (az0[i] - zone.radial_from_deg) % 360.0
+        elif zone.kind == "line":  # signed distance along the line, right of the axis positive
+            right = axis + 90.0
+            r0[i] *= 1.0 if abs((az0[i] - right + 180.0) % 360.0 - 180.0) < 90.0 else -1.0
+            r1[i] *= 1.0 if abs((az1[i] - right + 180.0) % 360.0 - 180.0) < 90.0 else -1.0
+            az0[i], turn[i] = right, 0.0
+    return _TargetCurve(task.lats, task.lons, az0, turn, r0, r1)
+
+
+def area_targets(task: Task, depth: float) -> tuple[np.ndarray, np.ndarray]:
+    """Target points of an area task for a depth between its shortest and longest path.
+
+    Parameters
+    ----------
+    task : Task
+    depth : float
+        0 gives the points of the shortest path, 1 those of the longest path
+        (:func:`area_distance_range`); in between, the path through the targets is
+        ``min_m + depth * (max_m - min_m)`` long (to within a few metres), so the length
+        grows steadily with the depth and a planner can bisect on it to meet the minimum time.
+
+    Returns
+    -------
+    lats, lons : ndarray
+        One point per task point [deg] (start and finish points included); give them
+        to :func:`path_through` for the legs.
+
+    Notes
+    -----
+    Every target moves from its shortest-path point to its longest-path point in its
+    zone's own coordinates (azimuth and distance about the zone's point, clockwise inside
+    an area sector; along the line for a start or finish line), all by the same fraction
+    t, so it stays inside its zone. The fraction t that gives the wanted length is found
+    by nested grid search on the (vectorised) path length.
+    """
+    if not 0.0 <= depth <= 1.0:
+        raise ValueError(f"depth must be in [0, 1], got {depth!r}")
+    low, high = optimized_path(task), _longest_path(task)
+    if depth == 0.0 or high.total_m - low.total_m < 1e-3:
+        return low.lats.copy(), low.lons.copy()
+    if depth == 1.0:
+        return high.lats.copy(), high.lons.copy()
+    curve = _target_curve(task)
+    wanted = low.total_m + depth * (high.total_m - low.total_m)
+    t_low, t_high = 0.0, 1.0
+    for _ in range(4):
+        ts = np.linspace(t_low, t_high, 17)
+        reached = np.maximum.accumulate(curve.lengths(ts))  # first t with the length reached
+        k = int(np.clip(np.searchsorted(reached, wanted), 1, len(ts) - 1))
+        t_low, t_high = ts[k - 1], ts[k]
+        length_low, length_high = reached[k - 1], reached[k]
+    fraction = 0.0 if length_high <= length_low else (wanted - length_low) / (length_high - length_low)
+    lats, lons = curve.points(t_low + np.clip(fraction, 0.0, 1.0) * (t_high - t_low))
+    return lats[0], lons[0]

@@ -36,6 +36,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -282,29 +283,33 @@ class Loop:
     pieces: tuple[Piece, ...]
     closed: bool
 
+    @cached_property
+    def _table(self) -> tuple[np.ndarray, ...]:
+        """Per piece: start azimuth, end azimuth, start r, end r; and the corner parameters."""
+        table = np.array([(p.azimuth0_deg, p.azimuth1_deg, p.r0_m, p.r1_m) for p in self.pieces], dtype=float)
+        ends = np.concatenate([[0.0], np.cumsum([p.length_m for p in self.pieces])])
+        return table[:, 0], table[:, 1], table[:, 2], table[:, 3], ends
+
     @property
     def length_m(self) -> float:
-        return sum(p.length_m for p in self.pieces)
+        return float(self._table[4][-1])
 
     @property
     def corners_m(self) -> np.ndarray:
         """Boundary parameter [m] of every piece end (corners), including both loop ends."""
-        return np.concatenate([[0.0], np.cumsum([p.length_m for p in self.pieces])])
+        return self._table[4]
 
     def polar(self, s_m):
-        """Azimuth [deg] and distance [m] from the zone's point at boundary parameter ``s_m``."""
+        """Azimuth [deg] and distance [m] from the zone's point at boundary parameter ``s_m``
+        (the distance along the boundary from the loop's first point [m])."""
+        az0, az1, r0, r1, ends = self._table
+        total = ends[-1]
         s = np.asarray(s_m, dtype=float)
-        total = self.length_m
         s = np.mod(s, total) if self.closed else np.clip(s, 0.0, total)
-        ends = self.corners_m
         index = np.clip(np.searchsorted(ends, s, side="right") - 1, 0, len(self.pieces) - 1)
-        az0 = np.array([p.azimuth0_deg for p in self.pieces])[index]
-        az1 = np.array([p.azimuth1_deg for p in self.pieces])[index]
-        r0 = np.array([p.r0_m for p in self.pieces])[index]
-        r1 = np.array([p.r1_m for p in self.pieces])[index]
-        span = np.diff(ends)[index]
+        span = ends[index + 1] - ends[index]
         u = np.where(span > 0.0, (s - ends[index]) / np.where(span > 0.0, span, 1.0), 0.0)
-        return az0 + u * (az1 - az0), r0 + u * (r1 - r0)
+        return az0[index] + u * (az1[index] - az0[index]), r0[index] + u * (r1[index] - r0[index])
 
 
 def _sector_loop(axis_deg: float, half_deg: float, radius_m: float) -> Loop:
