@@ -52,3 +52,70 @@ def glider_card(setup: GliderSetup, altitude_m: float, isa_deviation_c: float,
     cruise = np.asarray(cruise_in_wind(current, settings, 0.0, 0.0).cruise_speed_ms, dtype=float)
     ratio = speeds / np.asarray(current.sink(speeds), dtype=float)
     return GliderCard(reference, current, float(altitude_m), settings, speeds, cruise, ratio)
+
+
+@dataclass(frozen=True)
+class GlideQuestion:
+    """A final glide to check: from where, how high, at which setting, to which goal."""
+
+    distance_m: float
+    course_deg: float
+    height_m: float
+    mc_ms: float
+    wind: object  # engine.scenario.Wind
+    arrival_elevation_m: float
+    margin_m: float
+    start: tuple[float, float] | None = None  # (lat, lon) when the glide starts at a known place
+    goal: tuple[float, float] | None = None
+
+
+@dataclass(frozen=True)
+class GlideAnswer:
+    question: GlideQuestion
+    glide: object  # engine.finalglide.FinalGlide
+    altitude_m: float  # where the polar's density is taken [m MSL]
+    terrain: object | None = None  # engine.terrain.FinalGlideTerrain
+    terrain_note: str = ""
+
+
+def glide_altitude_m(question: GlideQuestion) -> float:
+    """The middle of the start height and the planned arrival height (contract section 3)."""
+    return 0.5 * (question.height_m + question.arrival_elevation_m + question.margin_m)
+
+
+def answer_glide(scenario: Scenario, question: GlideQuestion, *, with_terrain: bool = True) -> GlideAnswer:
+    """The engine's final glide for the question, and its terrain check when a model is loaded."""
+    from glidetask.engine.finalglide import final_glide
+    from glidetask.engine.polar import polar_for
+
+    altitude = glide_altitude_m(question)
+    polar = polar_for(scenario.glider, altitude, scenario.day.isa_deviation_c)
+    glide = final_glide(polar, question.distance_m, question.height_m, course_deg=question.course_deg,
+                        wind=question.wind, mc_ms=question.mc_ms,
+                        arrival_elevation_m=question.arrival_elevation_m, margin_m=question.margin_m,
+                        airmass_ms=scenario.day.glide_airmass_ms)
+    terrain, note = None, ""
+    if with_terrain and scenario.terrain_file and question.start and question.goal and question.distance_m > 0:
+        terrain, note = _terrain_check(scenario, question, glide)
+    elif scenario.terrain_file is None:
+        note = "no terrain model in this task ([terrain] file)"
+    elif not (question.start and question.goal):
+        note = "terrain profile: choose a start and a goal turnpoint"
+    return GlideAnswer(question, glide, altitude, terrain, note)
+
+
+def _terrain_check(scenario: Scenario, question: GlideQuestion, glide):
+    from glidetask.engine.terrain import final_glide_over_terrain, load_terrain
+
+    per_metre = float(glide.height_used_m) / question.distance_m
+    if not np.isfinite(per_metre):
+        return None, "terrain profile: the goal is out of reach against this wind"
+    try:
+        model = load_terrain(scenario.terrain_file)
+        check = final_glide_over_terrain(
+            model, [question.start[0], question.goal[0]], [question.start[1], question.goal[1]], per_metre,
+            question.arrival_elevation_m + question.margin_m, scenario.safety.terrain_clearance_m,
+            start_height_m=question.height_m, landmarks=scenario.turnpoints)
+    except (OSError, ValueError) as error:
+        return None, f"terrain: {error}"
+    return check, ""

@@ -1,13 +1,89 @@
-"""The Day view (being built)."""
+"""The Day view: wind, working band, times, margins, and the lift through the day."""
 
 from __future__ import annotations
 
+from textual.app import ComposeResult
+from textual.containers import Vertical, VerticalScroll
+
+from glidetask.tui import edits
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.day_plot import DayPlot
+from glidetask.tui.widgets.form_field import FormField
+from glidetask.tui.widgets.profile_editor import ProfileEditor
+
+# (panel id, title, ((field id, label, unit kind, placeholder), ...))
+PANELS = (
+    ("day-air", "Air", (
+        ("day-wind", "Wind from/speed", "speed", "270/20"),
+        ("day-band_top_m", "Band top", "height", ""),
+        ("day-band_bottom_m", "Band bottom", "height", ""),
+        ("day-start_height_m", "Start height", "height", "band top"),
+        ("day-glide_airmass_ms", "Air in glides (+up)", "vertical", "0"),
+        ("day-isa_deviation_c", "ISA deviation", "celsius", "0"),
+    )),
+    ("day-times", "Times", (
+        ("day-start_time", "Start", "clock", "HH:MM"),
+        ("day-lift_ends", "Lift ends", "clock", "HH:MM"),
+    )),
+    ("day-margins", "MacCready and margins", (
+        ("day-mc_ms", "MacCready (fixed)", "vertical", "= climb"),
+        ("safety-arrival_margin_m", "Arrival margin", "height", ""),
+        ("safety-terrain_clearance_m", "Terrain clearance", "height", ""),
+        ("safety-final_glide_mc_ms", "Final-glide MC", "vertical", "= cruise"),
+    )),
+)
+
+
+def unit_label(kind: str, units) -> str:
+    return {"speed": units.speed_label, "height": units.height_label, "vertical": units.vertical_label,
+            "celsius": "°C", "clock": "local"}.get(kind, "")
 
 
 class DayView(ViewScreen):
+    """Edit the forecast day; the legs and the final glide follow."""
+
     VIEW = "day"
 
-    def compose_body(self):
-        yield NeedsNotice("Day: coming soon")
+    def compose_body(self) -> ComposeResult:
+        with VerticalScroll(id="day-left"):
+            for panel_id, _, fields in PANELS:
+                with Vertical(id=panel_id, classes="panel day-panel"):
+                    for field_id, label, kind, placeholder in fields:
+                        yield FormField(field_id, label, unit_label(kind, self.app.units), placeholder=placeholder)
+        with Vertical(id="day-right"):
+            yield ProfileEditor(id="profile-editor", classes="panel")
+            yield DayPlot(id="day-plot", classes="panel")
+
+    def on_mount(self) -> None:
+        for panel_id, title, _ in PANELS:
+            self.query_one(f"#{panel_id}").border_title = title
+        self.query_one("#profile-editor").border_title = "Lift through the day"
+        self.query_one("#day-plot").border_title = "The day"
+        super().on_mount()
+
+    def show_scenario(self, scenario, *, force: bool = False) -> None:
+        units = self.app.units
+        for _, _, fields in PANELS:
+            for field_id, _, kind, _ in fields:
+                self.query_one(f"#{field_id}").parent.show(edits.field_text(scenario, field_id, units),
+                                                           unit_label(kind, units), force=force)
+        self.query_one(ProfileEditor).show(scenario.day, units)
+        self._draw_plot()
+
+    def show_plan(self, outcome) -> None:
+        self._draw_plot()
+
+    def show_units(self) -> None:
+        if self.app.scenario is not None:
+            self.show_scenario(self.app.scenario, force=True)
+
+    def _draw_plot(self) -> None:
+        scenario, outcome = self.app.scenario, self.app.plan
+        if scenario is None:
+            return
+        finish_s = None
+        if outcome is not None and outcome.summary.get("finish_time"):
+            from glidetask.units import parse_clock
+
+            finish_s = parse_clock(outcome.summary["finish_time"])
+        self.query_one(DayPlot).show(scenario.day, self.app.units, finish_s)

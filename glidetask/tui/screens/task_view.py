@@ -22,7 +22,7 @@ def point_along(lats, lons, distance_m: float) -> tuple[float, float] | None:
 
     remaining = float(distance_m)
     for i in range(len(lats) - 1):
-        azimuth, _, length = geodesy.inverse(lats[i], lons[i], lats[i + 1], lons[i + 1])
+        length, azimuth, _ = geodesy.inverse(lats[i], lons[i], lats[i + 1], lons[i + 1])
         if remaining <= float(length):
             lat, lon = geodesy.destination(lats[i], lons[i], azimuth, remaining)
             return float(lat), float(lon)

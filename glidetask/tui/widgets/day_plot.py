@@ -1,0 +1,35 @@
+"""The lift through the day drawn: the profile, the start, the end of lift, the finish."""
+
+from __future__ import annotations
+
+import numpy as np
+from textual_plotext import PlotextPlot
+
+from glidetask.units import UnitSystem
+
+
+class DayPlot(PlotextPlot):
+    """Achieved climb (or thermal strength) against the clock, with the day's marks."""
+
+    def show(self, day, units: UnitSystem, finish_s: float | None = None) -> None:
+        plt = self.plt
+        plt.clear_data()
+        plt.clear_figure()
+        profile = day.climb if day.climb is not None else day.thermal_strength
+        if profile is None:
+            self.refresh()
+            return
+        first = min(profile.times_s[0], day.start_time_s) - 1800.0
+        last = max(profile.times_s[-1], day.lift_ends_s) + 1800.0
+        times = np.linspace(first, last, 200)
+        values = units.vertical(np.asarray(day.lift_profile_at(times), dtype=float))
+        label = "achieved climb" if day.climb is not None else "thermal strength"
+        plt.plot(times / 3600.0, values, label=label, color="cyan", marker="braille")
+        plt.vline(day.start_time_s / 3600.0, "green")
+        plt.vline(day.lift_ends_s / 3600.0, "red")
+        if finish_s is not None:
+            plt.vline(finish_s / 3600.0, "orange")
+        plt.xlabel("hour (local)  green start · red lift ends · orange planned finish")
+        plt.ylabel(units.vertical_label)
+        plt.ylim(0, max(float(np.nanmax(values)) * 1.15, 0.5))
+        self.refresh()

@@ -1,0 +1,63 @@
+"""The answer to a final-glide question: above or below the glide, and the figures."""
+
+from __future__ import annotations
+
+from rich.console import Group
+from rich.table import Table
+from rich.text import Text
+from textual.widgets import Static
+
+from glidetask.tui import display
+from glidetask.units import UnitSystem
+
+
+def verdict_text(margin_m: float, units: UnitSystem) -> Text:
+    if margin_m != margin_m:  # NaN
+        return Text(" OUT OF REACH against this wind ", style="bold reverse #e06c5a")
+    if margin_m >= 0:
+        return Text(f" ON GLIDE · {units.fmt_height(margin_m)} above the required height ",
+                    style="bold reverse #8cc66d")
+    return Text(f" BELOW GLIDE · {units.fmt_height(-margin_m)} short ", style="bold reverse #e06c5a")
+
+
+class GlideVerdict(Static):
+    """Verdict line, then the final-glide figures (contract 5.2 meanings)."""
+
+    def show(self, answer, units: UnitSystem) -> None:
+        glide = answer.glide
+        u = units
+        grid = Table.grid(padding=(0, 2))
+        grid.add_column(style="dim")
+        grid.add_column(justify="right")
+        rows = (
+            ("Required height", display.with_unit(display.height(u, glide.required_height_m), u.height_label)),
+            ("Margin", display.with_unit(display.height(u, glide.margin_m), u.height_label)),
+            ("Speed to fly (TAS)", display.with_unit(display.speed(u, glide.speed_to_fly_ms), u.speed_label)),
+            ("Ground speed", display.with_unit(display.speed(u, glide.ground_speed_ms), u.speed_label)),
+            ("Heading", display.degrees(glide.heading_deg) + "°"),
+            ("Time", display.duration(glide.time_s)),
+            ("L/D required", display.ratio(glide.ld_required, 1)),
+            ("L/D achievable", display.ratio(glide.ld_achievable, 1)),
+            ("MacCready to arrive", display.with_unit(display.vertical(u, glide.mc_to_arrive_ms), u.vertical_label)
+             if glide.mc_to_arrive_ms == glide.mc_to_arrive_ms else "not even at 0"),
+            ("Polar density at", display.with_unit(display.height(u, answer.altitude_m), u.height_label)),
+        )
+        for label, value in rows:
+            grid.add_row(label, value)
+        parts = [verdict_text(float(glide.margin_m), units), Text(""), grid]
+        terrain = answer.terrain
+        if terrain is not None:
+            parts.append(Text(""))
+            style = "bold #8cc66d" if terrain.ok else "bold #e06c5a"
+            parts.append(Text(f"Terrain: least clearance {display.with_unit(display.height(u, terrain.min_clearance_m), u.height_label)}"
+                              f" at {display.with_unit(display.distance(u, terrain.at_m), u.distance_label)}", style=style))
+            if terrain.raised_by_m > 0 and terrain.obstacle is not None:
+                near = f" near {terrain.obstacle.near}" if terrain.obstacle.near else ""
+                parts.append(Text(f"Terrain raises the required height by {u.fmt_height(terrain.raised_by_m)}"
+                                  f" (obstacle at {u.fmt_distance(terrain.obstacle.at_m)}{near})", style="#e0b15a"))
+            if terrain.covered_share < 1.0:
+                parts.append(Text(f"Terrain model covers {terrain.covered_share:.0%} of the glide", style="#e0b15a"))
+        elif answer.terrain_note:
+            parts.append(Text(""))
+            parts.append(Text(answer.terrain_note, style="dim"))
+        self.update(Group(*parts))
