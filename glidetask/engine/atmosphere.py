@@ -118,9 +118,12 @@ def air_density(altitude_m, isa_deviation_c=0.0):
 def density_ratio(altitude_m, isa_deviation_c=0.0):
     """``sigma = rho / rho0`` at an altitude and ISA deviation [-].
 
-    See :func:`air_density`; ``rho0 = 1.225 kg/m^3`` (ISO 2533 sea level).
+    See :func:`air_density`; ``rho0 = 1.225 kg/m^3`` (ISO 2533 sea level). Computed as
+    ``(p/p0) (T0/T)`` so that it is exactly 1 at sea level in the standard atmosphere.
     """
-    return _scalar_or_array(np.asarray(air_density(altitude_m, isa_deviation_c)) / RHO0_KGM3)
+    temperature = np.asarray(isa_temperature(altitude_m)) + np.asarray(isa_deviation_c, dtype=float)
+    temperature = np.where(temperature > 0.0, temperature, np.nan)
+    return _scalar_or_array(np.asarray(isa_pressure(altitude_m)) / P0_PA * (T0_K / temperature))
 
 
 def tas_from_ias(ias_ms, altitude_m, isa_deviation_c=0.0):

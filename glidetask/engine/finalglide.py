@@ -136,6 +136,8 @@ class FinalGlide:
         Present height minus the required height [m]; negative = below the glide.
     height_used_m : float or ndarray
         Height the glide itself uses [m].
+    height_per_metre : float or ndarray
+        Height used per metre over the ground at the speed to fly [m/m].
     speed_to_fly_ms : float or ndarray
         Speed to fly [m/s TAS].
     ground_speed_ms : float or ndarray
@@ -159,6 +161,7 @@ class FinalGlide:
     required_height_m: float
     margin_m: float
     height_used_m: float
+    height_per_metre: float
     speed_to_fly_ms: float
     ground_speed_ms: float
     heading_deg: float
@@ -230,6 +233,7 @@ def final_glide(polar: Polar, distance_m, height_m, *, course_deg=0.0, wind: Win
         required_height_m=out(required),
         margin_m=out(height - required),
         height_used_m=out(used),
+        height_per_metre=out(glide.height_per_metre),
         speed_to_fly_ms=out(glide.airspeed_ms),
         ground_speed_ms=out(glide.ground_speed_ms),
         heading_deg=out(heading),
