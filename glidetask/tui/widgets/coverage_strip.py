@@ -1,0 +1,50 @@
+"""The task as one line: where a landable is within reach, and the gaps where none is."""
+
+from __future__ import annotations
+
+from rich.text import Text
+from textual.widget import Widget
+
+from glidetask.tui.contract import si
+
+
+class CoverageStrip(Widget):
+    """``████░░░██`` along the task distance: full = a landable in reach, light = a gap."""
+
+    DEFAULT_CSS = "CoverageStrip { height: 2; }"
+
+    def __init__(self, **kwargs):
+        super().__init__(**kwargs)
+        self.total_m: float | None = None
+        self.gaps: list[tuple[float, float]] = []
+        self.legs_m: list[float] = []
+
+    def show(self, summary: dict | None) -> None:
+        if summary is None or not summary.get("landables"):
+            self.total_m = None
+        else:
+            self.legs_m = [si(leg, "distance_km") or 0.0 for leg in summary["legs"]]
+            self.total_m = sum(self.legs_m)
+            self.gaps = [(si(g, "from_km"), si(g, "to_km")) for g in summary["landables"].get("gaps", [])]
+        self.refresh()
+
+    def render(self) -> Text:
+        width = self.content_size.width
+        if not self.total_m or width < 4:
+            return Text("")
+        cells = []
+        for column in range(width):
+            middle = (column + 0.5) / width * self.total_m
+            gap = any(a <= middle <= b for a, b in self.gaps)
+            cells.append(("░", "bold #e06c5a") if gap else ("█", "#8cc66d"))
+        strip = Text(no_wrap=True)
+        for char, style in cells:
+            strip.append(char, style)
+        marks = [" "] * width
+        position = 0.0
+        for index, length in enumerate(self.legs_m[:-1], start=1):
+            position += length
+            column = min(int(position / self.total_m * width), width - 1)
+            marks[column] = str(index % 10)
+        marks[0], marks[-1] = "S", "F"
+        return strip + Text("\n" + "".join(marks), style="dim")
