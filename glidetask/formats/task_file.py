@@ -1,0 +1,656 @@
+"""Task files: the TOML of shared/CONTRACT.md 2.3, read into a Scenario and written back.
+
+A task file names a turnpoint file and a polar file (paths relative to the task file),
+lists the task points with their zones, and describes the glider's loading, the forecast
+day, the safety margins and optionally a terrain model. :func:`load_scenario` validates
+all of it and reports every problem at once, each with its key path:
+``[[task.points]] 3 zone`` (points counted from 1), ``[day] climb_ms[2]`` (pairs counted
+from 1), ``[glider] polar``. Problems inside the turnpoint or polar file carry that file's
+name. :func:`save_task` writes a scenario back (atomically), keeping the referenced files
+relative to the new task file.
+
+Zone keys, sizes in km (contract 2.3):
+
+* start and finish: ``line`` (``length_km``) or ``cylinder`` (``radius_km``);
+* racing turns: ``cylinder`` (``radius_km``), ``sector`` (``radius_km``, ``angle_deg``
+  default 90), ``keyhole`` (``radius_km`` default 10, ``angle_deg`` default 90,
+  ``cylinder_radius_km`` default 0.5);
+* area turns: ``cylinder`` (``radius_km``) or ``sector`` (``radius_km``,
+  ``inner_radius_km`` default 0, ``radial_from_deg``, ``radial_to_deg``).
+
+Extension beyond the contract: ``[day] thermal_radius_m`` (default 150), the radius of the
+thermal core used with ``thermal_strength_ms``.
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+import math
+import os
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
+from glidetask.engine.zones import Zone
+from glidetask.errors import InputError, Problem, ProblemCollector
+from glidetask.formats.atomic import write_atomic
+from glidetask.units import KMH, format_clock, parse_clock
+
+TABLES = ("task", "glider", "day", "safety", "terrain")
+TASK_KEYS = ("name", "kind", "turnpoints", "min_time_min", "points")
+GLIDER_KEYS = ("polar", "pilot_kg", "ballast_kg", "bugs_percent")
+DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind", "climb_ms",
+            "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m")
+SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
+TERRAIN_KEYS = ("file",)
+DEFAULT_PILOT_KG = 90.0
+DEFAULT_THERMAL_RADIUS_M = 150.0
+
+# Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
+_START_FINISH = {"line": {"length_km": None}, "cylinder": {"radius_km": None}}
+_RACING_TURNS = {
+    "cylinder": {"radius_km": None},
+    "sector": {"radius_km": None, "angle_deg": 90.0},
+    "keyhole": {"radius_km": 10.0, "angle_deg": 90.0, "cylinder_radius_km": 0.5},
+}
+_AREA_TURNS = {
+    "cylinder": {"radius_km": None},
+    "sector": {"radius_km": None, "inner_radius_km": 0.0, "radial_from_deg": None, "radial_to_deg": None},
+}
+_ZONE_SIZE_KEYS = ("length_km", "radius_km", "angle_deg", "cylinder_radius_km", "inner_radius_km",
+                   "radial_from_deg", "radial_to_deg")
+
+
+def _is_number(value: Any) -> bool:
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+class _Reader:
+    """Typed access to the TOML values, collecting a problem for each bad one."""
+
+    def __init__(self, file: str):
+        self.problems = ProblemCollector(file)
+
+    def add(self, where: str, what: str) -> None:
+        self.problems.add(where, what)
+
+    def table(self, document: dict, name: str, *, required: bool) -> dict | None:
+        value = document.get(name)
+        if value is None:
+            if required:
+                self.add(f"[{name}]", "missing table")
+            return None
+        if not isinstance(value, dict):
+            self.add(f"[{name}]", f"must be a table, got {type(value).__name__}")
+            return None
+        return value
+
+    def unknown(self, table: dict, where: str, known: tuple[str, ...]) -> None:
+        for key in table:
+            if key not in known:
+                self.add(f"{where} {key}", f"unknown key (expected one of: {', '.join(known)})")
+
+    def number(self, table: dict, where: str, key: str, *, required: bool = False, default=None,
+               low: float | None = None, high: float | None = None, positive: bool = False):
+        here = f"{where} {key}"
+        if key not in table:
+            if required:
+                self.add(here, "missing key")
+            return default
+        value = table[key]
+        if not _is_number(value) or not math.isfinite(value):
+            self.add(here, f"must be a finite number, got {_show(value)}")
+            return None
+        value = float(value)
+        if positive and value <= 0.0:
+            self.add(here, f"must be greater than 0, got {value:g}")
+            return None
+        if (low is not None and value < low) or (high is not None and value > high):
+            self.add(here, f"must be in [{low:g}, {high:g}], got {value:g}")
+            return None
+        return value
+
+    def text(self, table: dict, where: str, key: str, *, required: bool = False, default=None):
+        here = f"{where} {key}"
+        if key not in table:
+            if required:
+                self.add(here, "missing key")
+            return default
+        value = table[key]
+        if not isinstance(value, str) or not value.strip():
+            self.add(here, f"must be non-empty text, got {_show(value)}")
+            return None
+        return value.strip()
+
+    def clock(self, table: dict, where: str, key: str, *, required: bool = False):
+        value = self.text(table, where, key, required=required)
+        if value is None:
+            return None
+        try:
+            return parse_clock(value)
+        except ValueError:
+            self.add(f"{where} {key}", f"expected a local time as HH:MM, got {value!r}")
+            return None
+
+
+def _show(value: Any) -> str:
+    if isinstance(value, str):
+        return repr(value)
+    if isinstance(value, dict):
+        return "a table"
+    if isinstance(value, list):
+        return "a list"
+    return json.dumps(value) if isinstance(value, (bool, int, float)) else repr(value)
+
+
+def _resolve(base: Path, value: str) -> Path:
+    """A path from a task file, relative to the task file's folder (as the user can open it)."""
+    path = Path(os.path.expanduser(value))
+    return path if path.is_absolute() else Path(os.path.normpath(base / path))
+
+
+# ---------------------------------------------------------------- [task]
+
+
+def _lookup(turnpoints: tuple[Turnpoint, ...]):
+    """Resolve a name or code: exact name, then exact code, then either ignoring case."""
+    by_name = {p.name: p for p in turnpoints}
+    by_code = {p.code: p for p in turnpoints if p.code}
+    folded: dict[str, list[Turnpoint]] = {}
+    for p in turnpoints:
+        for key in {p.name.casefold(), (p.code or "").casefold()} - {""}:
+            folded.setdefault(key, []).append(p)
+
+    def find(text: str) -> tuple[Turnpoint | None, str | None]:
+        if text in by_name:
+            return by_name[text], None
+        if text in by_code:
+            return by_code[text], None
+        matches = {id(p): p for p in folded.get(text.casefold(), [])}
+        if len(matches) == 1:
+            return next(iter(matches.values())), None
+        if len(matches) > 1:
+            return None, f"{text!r} matches more than one turnpoint (names and codes ignoring case)"
+        close = difflib.get_close_matches(text, list(by_name) + list(by_code), n=3, cutoff=0.75)
+        hint = f"; did you mean {' or '.join(repr(c) for c in close)}?" if close else ""
+        return None, f"no turnpoint named or coded {text!r} in the turnpoint file{hint}"
+
+    return find
+
+
+def _zone(reader: _Reader, entry: dict, where: str, task_kind: str, role: str) -> Zone | None:
+    """The zone of one ``[[task.points]]`` entry, or None after reporting its problems."""
+    name = entry.get("zone")
+    if not isinstance(name, str):
+        reader.add(f"{where} zone", "missing key" if name is None else f"must be text, got {_show(name)}")
+        return None
+    name = name.strip().lower()
+    if name.startswith("area_"):
+        if task_kind != "area":
+            reader.add(f"{where} zone", f"{name!r} is an area zone; it belongs in an area task (kind = \"area\")")
+            return None
+        name = name[len("area_"):]
+    table = _START_FINISH if role != "turn" else _AREA_TURNS if task_kind == "area" else _RACING_TURNS
+    if name not in table:
+        every = set(_START_FINISH) | set(_RACING_TURNS) | set(_AREA_TURNS)
+        if name in every:
+            place = "a turn" if role == "turn" else f"the {role}"
+            what = f"a {name} cannot be {place} of a {task_kind} task; use {' or '.join(table)}"
+        else:
+            what = f"unknown zone {name!r}; use {' or '.join(table)}"
+        reader.add(f"{where} zone", what)
+        return None
+    keys = table[name]
+    for key in entry:
+        if key in _ZONE_SIZE_KEYS and key not in keys:
+            reader.add(f"{where} {key}", f"does not apply to a {name} zone here (its keys: {', '.join(keys)})")
+    values = {}
+    for key, default in keys.items():
+        if key.endswith("_deg") and key.startswith("radial"):
+            values[key] = reader.number(entry, where, key, required=default is None, default=default,
+                                        low=0.0, high=360.0)
+        elif key == "angle_deg":
+            values[key] = reader.number(entry, where, key, default=default, positive=True, high=360.0)
+        elif key == "inner_radius_km":
+            values[key] = reader.number(entry, where, key, default=default, low=0.0, high=math.inf)
+        else:
+            values[key] = reader.number(entry, where, key, required=default is None, default=default, positive=True)
+    if any(v is None for v in values.values()):
+        return None
+    if name == "line":
+        return Zone.line(values["length_km"] * 1000.0)
+    if name == "cylinder":
+        radius = values["radius_km"] * 1000.0
+        return Zone.area_cylinder(radius) if role == "turn" and task_kind == "area" else Zone.cylinder(radius)
+    if name == "keyhole":
+        return Zone.keyhole(values["radius_km"] * 1000.0, values["angle_deg"], values["cylinder_radius_km"] * 1000.0)
+    if task_kind != "area":
+        return Zone.sector(values["radius_km"] * 1000.0, values["angle_deg"])
+    if values["inner_radius_km"] >= values["radius_km"]:
+        reader.add(f"{where} inner_radius_km", f"must be below radius_km ({values['radius_km']:g}), "
+                                               f"got {values['inner_radius_km']:g}")
+        return None
+    return Zone.area_sector(values["radius_km"] * 1000.0, values["radial_from_deg"], values["radial_to_deg"],
+                            values["inner_radius_km"] * 1000.0)
+
+
+def _task(reader: _Reader, table: dict, base: Path, default_name: str):
+    """``(Task or None, turnpoints, turnpoint file path or None)`` from the [task] table."""
+    reader.unknown(table, "[task]", TASK_KEYS)
+    name = reader.text(table, "[task]", "name", default=default_name)
+    kind = reader.text(table, "[task]", "kind", default="racing")
+    if kind is not None and kind not in ("racing", "area"):
+        reader.add("[task] kind", f"unknown task kind {kind!r}; expected \"racing\" or \"area\"")
+        kind = None
+    minutes = reader.number(table, "[task]", "min_time_min", positive=True)
+    if kind == "racing" and "min_time_min" in table:
+        reader.add("[task] min_time_min", "a minimum time belongs to area tasks (kind = \"area\") only")
+    if kind == "area" and "min_time_min" not in table:
+        reader.add("[task] min_time_min", "missing key: an area task needs its minimum time in minutes")
+    turnpoints: tuple[Turnpoint, ...] = ()
+    turnpoint_file = None
+    file_value = reader.text(table, "[task]", "turnpoints", required=True)
+    if file_value is not None:
+        turnpoint_file = _resolve(base, file_value)
+        if not turnpoint_file.is_file():
+            reader.add("[task] turnpoints", f"no such file: {turnpoint_file}")
+        else:
+            from glidetask.formats.turnpoints import read_turnpoints
+
+            try:
+                turnpoints = read_turnpoints(turnpoint_file)
+            except InputError as error:
+                reader.problems.extend(error.problems)
+    entries = table.get("points")
+    if entries is None:
+        reader.add("[[task.points]]", "missing: list the task points, first = start, last = finish")
+        return None, turnpoints, turnpoint_file
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        reader.add("[[task.points]]", "must be an array of tables ([[task.points]] entries)")
+        return None, turnpoints, turnpoint_file
+    find = _lookup(turnpoints) if turnpoints else None
+    points, ok = [], kind is not None
+    for number, entry in enumerate(entries, start=1):
+        where = f"[[task.points]] {number}"
+        reader.unknown(entry, where, ("at", "zone") + _ZONE_SIZE_KEYS)
+        role = "start" if number == 1 else "finish" if number == len(entries) else "turn"
+        at = reader.text(entry, where, "at", required=True)
+        point = None
+        if at is not None and find is not None:
+            point, error = find(at)
+            if error:
+                reader.add(f"{where} at", error)
+        zone = _zone(reader, entry, where, kind, role) if kind is not None else None
+        if point is None or zone is None:
+            ok = False
+            continue
+        points.append(TaskPoint(point, zone))
+    if kind is not None:
+        least = 3 if kind == "area" else 2
+        if len(entries) < least:
+            reader.add("[[task.points]]", f"a {kind} task needs at least {least} points (start, "
+                                          f"{'turns, ' if kind == 'area' else ''}finish), got {len(entries)}")
+            ok = False
+    if not ok or reader.problems or name is None:
+        return None, turnpoints, turnpoint_file
+    min_time_s = minutes * 60.0 if kind == "area" and minutes is not None else None
+    for index, message in task_problems(kind, [p.zone.kind for p in points], min_time_s):
+        reader.add("[task]" if index is None else f"[[task.points]] {index + 1} zone", message)
+    if reader.problems:
+        return None, turnpoints, turnpoint_file
+    return Task(name, kind, tuple(points), min_time_s), turnpoints, turnpoint_file
+
+
+# ---------------------------------------------------------------- [glider], [day], [safety], [terrain]
+
+
+def _glider(reader: _Reader, table: dict, base: Path) -> GliderSetup | None:
+    from glidetask.formats.polar_file import loading_problems, read_polar_spec
+
+    reader.unknown(table, "[glider]", GLIDER_KEYS)
+    pilot = reader.number(table, "[glider]", "pilot_kg", default=DEFAULT_PILOT_KG, positive=True)
+    ballast = reader.number(table, "[glider]", "ballast_kg", default=0.0, low=0.0, high=math.inf)
+    bugs = reader.number(table, "[glider]", "bugs_percent", default=0.0, low=0.0, high=100.0)
+    value = reader.text(table, "[glider]", "polar", required=True)
+    if value is None:
+        return None
+    polar_file = _resolve(base, value)
+    if not polar_file.is_file():
+        reader.add("[glider] polar", f"no such file: {polar_file}")
+        return None
+    spec, problems = read_polar_spec(polar_file)
+    reader.problems.extend(problems)
+    if spec is None or None in (pilot, ballast, bugs):
+        return None
+    loading = loading_problems(spec, pilot, ballast, file=reader.problems.file,
+                               pilot_where="[glider] pilot_kg", ballast_where="[glider] ballast_kg")
+    reader.problems.extend(loading)
+    if loading:
+        return None
+    return GliderSetup(spec, pilot, ballast, bugs, polar_file=str(polar_file.resolve()))
+
+
+def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
+    where = f"[day] {key}"
+    raw = table[key]
+    if not isinstance(raw, list) or not raw:
+        reader.add(where, f"must be a list of [\"HH:MM\", value] pairs, got {_show(raw)}")
+        return None
+    times, values, ok = [], [], True
+    for number, pair in enumerate(raw, start=1):
+        here = f"{where}[{number}]"
+        if not (isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str) and _is_number(pair[1])):
+            reader.add(here, f"must be a pair [\"HH:MM\", m/s], got {_show(pair)}")
+            ok = False
+            continue
+        try:
+            time_s = parse_clock(pair[0])
+        except ValueError:
+            reader.add(here, f"expected a local time as HH:MM, got {pair[0]!r}")
+            ok = False
+            continue
+        value = float(pair[1])
+        if not math.isfinite(value) or not 0.0 <= value <= 15.0:
+            reader.add(here, f"the value must be in [0, 15] m/s, got {pair[1]!r}")
+            ok = False
+        if times and time_s <= times[-1]:
+            reader.add(here, f"times must increase: {pair[0]} is not after {format_clock(times[-1])}")
+            ok = False
+        times.append(time_s)
+        values.append(value)
+    return Profile(tuple(times), tuple(values)) if ok else None
+
+
+def _wind(reader: _Reader, table: dict) -> Wind | None:
+    raw = table.get("wind")
+    if raw is None:
+        return Wind()
+    if not isinstance(raw, dict):
+        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }}, got {_show(raw)}")
+        return None
+    reader.unknown(raw, "[day] wind", ("from_deg", "speed_kmh"))
+    direction = reader.number(raw, "[day] wind", "from_deg", required=True, low=0.0, high=360.0)
+    speed = reader.number(raw, "[day] wind", "speed_kmh", required=True, low=0.0, high=200.0)
+    if direction is None or speed is None:
+        return None
+    return Wind(direction % 360.0, speed * KMH)
+
+
+def _day(reader: _Reader, table: dict) -> Day | None:
+    reader.unknown(table, "[day]", DAY_KEYS)
+    start = reader.clock(table, "[day]", "start_time", required=True)
+    lift_ends = reader.clock(table, "[day]", "lift_ends", required=True)
+    top = reader.number(table, "[day]", "band_top_m", required=True, low=-500.0, high=15000.0)
+    bottom = reader.number(table, "[day]", "band_bottom_m", required=True, low=-500.0, high=15000.0)
+    start_height = reader.number(table, "[day]", "start_height_m", low=-500.0, high=15000.0)
+    if top is not None and bottom is not None and top <= bottom:
+        reader.add("[day] band_top_m", f"the band top ({top:g} m) must be above band_bottom_m ({bottom:g} m)")
+    if start_height is not None and top is not None and start_height > top:
+        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above band_top_m ({top:g} m)")
+    if start is not None and lift_ends is not None and start >= lift_ends:
+        reader.add("[day] start_time", f"the start ({format_clock(start)}) must be before lift_ends "
+                                       f"({format_clock(lift_ends)})")
+    given = [key for key in ("climb_ms", "thermal_strength_ms") if key in table]
+    climb = strength = None
+    if len(given) != 1:
+        reader.add("[day] climb_ms", "give exactly one of climb_ms (achieved climb) and thermal_strength_ms "
+                                     f"(thermal core strength), got {' and '.join(given) or 'neither'}")
+    elif given[0] == "climb_ms":
+        climb = _profile(reader, table, "climb_ms")
+    else:
+        strength = _profile(reader, table, "thermal_strength_ms")
+    wind = _wind(reader, table)
+    airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
+    isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
+    mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
+    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True)
+    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa, radius):
+        return None
+    if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
+        return None
+    return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
+               climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
+               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius)
+
+
+def _safety(reader: _Reader, table: dict | None) -> Safety | None:
+    if table is None:
+        return Safety()
+    reader.unknown(table, "[safety]", SAFETY_KEYS)
+    margin = reader.number(table, "[safety]", "arrival_margin_m", default=200.0, low=0.0, high=5000.0)
+    clearance = reader.number(table, "[safety]", "terrain_clearance_m", default=150.0, low=0.0, high=5000.0)
+    mc = reader.number(table, "[safety]", "final_glide_mc_ms", low=0.0, high=10.0)
+    if margin is None or clearance is None or ("final_glide_mc_ms" in table and mc is None):
+        return None
+    return Safety(margin, clearance, mc)
+
+
+def _terrain(reader: _Reader, table: dict | None, base: Path) -> str | None:
+    if table is None:
+        return None
+    reader.unknown(table, "[terrain]", TERRAIN_KEYS)
+    value = reader.text(table, "[terrain]", "file", required=True)
+    if value is None:
+        return None
+    path = _resolve(base, value)
+    if not path.is_file():
+        reader.add("[terrain] file", f"no such file: {path}")
+        return None
+    return str(path.resolve())
+
+
+# ---------------------------------------------------------------- reading
+
+
+def _parse_toml(path: Path, file: str) -> dict:
+    try:
+        text = path.read_bytes().decode("utf-8")
+    except FileNotFoundError:
+        raise InputError.one(file, "file", "no such file") from None
+    except UnicodeDecodeError:
+        raise InputError.one(file, "file", "is not UTF-8 text") from None
+    except OSError as error:
+        raise InputError.one(file, "file", f"cannot read it: {error.strerror or error}") from None
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as error:
+        message = str(error)
+        marker = message.rfind(" (at line ")
+        if marker >= 0:
+            line = message[marker + len(" (at line "):].split(",")[0]
+            raise InputError.one(file, f"line {line}", f"TOML syntax error: {message[:marker]}") from None
+        raise InputError.one(file, "file", f"TOML syntax error: {message}") from None
+
+
+def load_scenario(path: str | os.PathLike) -> Scenario:
+    """Read a task file (contract 2.3) with everything it references.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The task file. Paths inside it are relative to its folder.
+
+    Returns
+    -------
+    Scenario
+        ``task``, ``glider`` (its ``polar_file`` an absolute path), ``day``, ``safety``,
+        ``turnpoints`` (the whole turnpoint file), ``terrain_file`` (absolute path or None)
+        and ``source`` (``path`` as given).
+
+    Raises
+    ------
+    InputError
+        With every problem found in the task file, the turnpoint file and the polar file.
+    """
+    file = str(path)
+    document = _parse_toml(Path(path), file)
+    reader = _Reader(file)
+    base = Path(path).parent
+    for key in document:
+        if key not in TABLES:
+            reader.add(f"[{key}]", f"unknown table (expected {', '.join('[' + t + ']' for t in TABLES)})")
+    task_table = reader.table(document, "task", required=True)
+    glider_table = reader.table(document, "glider", required=True)
+    day_table = reader.table(document, "day", required=True)
+    task = turnpoints = None
+    if task_table is not None:
+        task, turnpoints, _ = _task(reader, task_table, base, Path(path).stem)
+    glider = _glider(reader, glider_table, base) if glider_table is not None else None
+    day = _day(reader, day_table) if day_table is not None else None
+    safety = _safety(reader, reader.table(document, "safety", required=False))
+    terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
+    reader.problems.raise_if_any()
+    return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
+                    terrain_file=terrain, source=file)
+
+
+def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
+    """The turnpoint file a task file names (resolved against its folder), or None."""
+    try:
+        document = _parse_toml(Path(task_path), str(task_path))
+    except InputError:
+        return None
+    value = document.get("task", {}).get("turnpoints") if isinstance(document.get("task"), dict) else None
+    return _resolve(Path(task_path).parent, value) if isinstance(value, str) else None
+
+
+# ---------------------------------------------------------------- writing
+
+
+def _toml_value(value: Any) -> str:
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, str):
+        return json.dumps(value, ensure_ascii=False)  # JSON string escapes are valid TOML basic strings
+    if isinstance(value, (int, float)):
+        number = round(float(value), 6)
+        return str(int(number)) + ".0" if number.is_integer() else repr(number)
+    if isinstance(value, (list, tuple)):
+        return "[" + ", ".join(_toml_value(v) for v in value) + "]"
+    if isinstance(value, dict):
+        return "{ " + ", ".join(f"{k} = {_toml_value(v)}" for k, v in value.items()) + " }"
+    raise TypeError(f"cannot write {type(value).__name__} to TOML")
+
+
+def _zone_entry(point: TaskPoint) -> dict[str, Any]:
+    zone = point.zone
+    entry: dict[str, Any] = {"at": point.turnpoint.code or point.turnpoint.name}
+    if zone.kind == "line":
+        entry.update(zone="line", length_km=zone.length_m / 1000.0)
+    elif zone.kind in ("cylinder", "area_cylinder"):
+        entry.update(zone="cylinder", radius_km=zone.radius_m / 1000.0)
+    elif zone.kind == "sector":
+        entry.update(zone="sector", radius_km=zone.radius_m / 1000.0, angle_deg=zone.angle_deg)
+    elif zone.kind == "keyhole":
+        entry.update(zone="keyhole", radius_km=zone.radius_m / 1000.0, angle_deg=zone.angle_deg,
+                     cylinder_radius_km=zone.cylinder_radius_m / 1000.0)
+    else:
+        entry.update(zone="sector", inner_radius_km=zone.inner_radius_m / 1000.0, radius_km=zone.radius_m / 1000.0,
+                     radial_from_deg=zone.radial_from_deg, radial_to_deg=zone.radial_to_deg)
+    return entry
+
+
+def _relative(target: str | os.PathLike, folder: Path) -> str:
+    """``target`` relative to ``folder`` (POSIX separators), or absolute if on another drive."""
+    try:
+        return Path(os.path.relpath(Path(target).resolve(), folder.resolve())).as_posix()
+    except ValueError:
+        return Path(target).resolve().as_posix()
+
+
+def _profile_value(profile: Profile) -> list:
+    return [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)]
+
+
+def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
+                     header: str | None = None) -> str:
+    """The TOML text of a task file for ``scenario``, with paths relative to ``folder``."""
+    task, glider, day, safety = scenario.task, scenario.glider, scenario.day, scenario.safety
+    lines = [f"# {line}".rstrip() for line in (header or "").splitlines()]
+    if lines:
+        lines.append("")
+    lines += ["[task]", f"name = {_toml_value(task.name)}", f"kind = {_toml_value(task.kind)}",
+              f"turnpoints = {_toml_value(_relative(turnpoints_file, folder))}"]
+    if task.min_time_s is not None:
+        lines.append(f"min_time_min = {_toml_value(task.min_time_s / 60.0)}")
+    for point in task.points:
+        lines += ["", "[[task.points]]"] + [f"{k} = {_toml_value(v)}" for k, v in _zone_entry(point).items()]
+    lines += ["", "[glider]", f"polar = {_toml_value(_relative(glider.polar_file, folder))}",
+              f"pilot_kg = {_toml_value(glider.pilot_kg)}", f"ballast_kg = {_toml_value(glider.ballast_kg)}",
+              f"bugs_percent = {_toml_value(glider.bugs_percent)}"]
+    lines += ["", "[day]", f"start_time = {_toml_value(format_clock(day.start_time_s))}"]
+    if day.start_height_m is not None:
+        lines.append(f"start_height_m = {_toml_value(day.start_height_m)}")
+    lines += [f"band_top_m = {_toml_value(day.band_top_m)}", f"band_bottom_m = {_toml_value(day.band_bottom_m)}",
+              f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}"]
+    if day.climb is not None:
+        lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
+    else:
+        lines.append(f"thermal_strength_ms = {_toml_value(_profile_value(day.thermal_strength))}")
+        lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    lines += [f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}",
+              f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
+              f"isa_deviation_c = {_toml_value(day.isa_deviation_c)}"]
+    if day.mc_ms is not None:
+        lines.append(f"mc_ms = {_toml_value(day.mc_ms)}")
+    if scenario.terrain_file:
+        lines += ["", "[terrain]", f"file = {_toml_value(_relative(scenario.terrain_file, folder))}"]
+    lines += ["", "[safety]", f"arrival_margin_m = {_toml_value(safety.arrival_margin_m)}",
+              f"terrain_clearance_m = {_toml_value(safety.terrain_clearance_m)}"]
+    if safety.final_glide_mc_ms is not None:
+        lines.append(f"final_glide_mc_ms = {_toml_value(safety.final_glide_mc_ms)}")
+    return "\n".join(lines) + "\n"
+
+
+def _leading_comments(path: str | os.PathLike | None) -> str | None:
+    if not path:
+        return None
+    try:
+        text = Path(path).read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        return None
+    comments = []
+    for line in text.splitlines():
+        if not line.startswith("#"):
+            break
+        comments.append(line[1:].removeprefix(" "))
+    return "\n".join(comments) or None
+
+
+def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: str | os.PathLike | None = None,
+              header: str | None = None) -> None:
+    """Write ``scenario`` as a task file (contract 2.3), atomically.
+
+    Parameters
+    ----------
+    path : str or path-like
+        Where to write; the referenced files are written relative to its folder.
+    scenario : Scenario
+        As :func:`load_scenario` returns it (possibly edited with ``dataclasses.replace``).
+    turnpoints_file : path, optional
+        The turnpoint file the task refers to. Default: the ``turnpoints_file`` attribute
+        of the scenario if it has one, else the file named by ``scenario.source``.
+    header : str, optional
+        Comment lines for the top of the file. Default: the leading comment block of
+        ``scenario.source`` (so a note such as "invented demo data" is kept).
+
+    Raises
+    ------
+    ValueError
+        If the turnpoint file cannot be found out.
+    """
+    target = Path(path)
+    if turnpoints_file is None:
+        turnpoints_file = getattr(scenario, "turnpoints_file", None) or (
+            turnpoints_file_of(scenario.source) if scenario.source else None)
+    if turnpoints_file is None:
+        raise ValueError("save_task needs the turnpoint file: pass turnpoints_file=")
+    if header is None:
+        header = _leading_comments(scenario.source)
+    write_atomic(target, scenario_to_toml(scenario, target.parent, turnpoints_file, header))
+
+
+__all__ = ["load_scenario", "save_task", "scenario_to_toml", "turnpoints_file_of", "Problem"]
