@@ -13,8 +13,8 @@ import numpy as np
 
 from glidetask.engine.polar import Polar
 from glidetask.engine.scenario import Wind
-from glidetask.engine.speedtofly import _glide_terms, glide_in_wind, solve_increasing
-from glidetask.engine.wind import heading_for_course, wind_components
+from glidetask.engine.speedtofly import _ground_speed, _glide_terms, glide_in_wind, solve_increasing
+from glidetask.engine.wind import correction_angle_deg, wind_components
 
 MC_TO_ARRIVE_CAP_MS = 10.0  # the largest MacCready setting reported [m/s]
 
@@ -62,11 +62,11 @@ def height_used(polar: Polar, distance_m, along_ms, across_ms, mc_ms, airmass_ms
     return _scalar_or_array(np.where(distance == 0.0, 0.0, distance * per_metre))
 
 
-def _height_rate(v, a, b, c, along, across, airmass, target):
+def _height_rate(v, a, b, c, along, across_sq, airmass, target):
     """Height per metre at airspeed ``v`` minus ``target``, and its derivative in ``v``."""
-    sink, ground, *_ = _glide_terms(a, b, c, v, along, across, airmass)
+    sink = (a * v + b) * v + c
+    q, ground = _ground_speed(v, along, across_sq)
     with np.errstate(divide="ignore", invalid="ignore"):
-        q = np.sqrt(np.maximum(v * v - across * across, 0.0))
         rate = (sink - airmass) / ground
         d_rate = ((2.0 * a * v + b) * ground - (sink - airmass) * v / q) / (ground * ground)
     return rate - target, d_rate
@@ -113,12 +113,17 @@ def mc_to_arrive(polar: Polar, distance_m, available_m, along_ms, across_ms, air
     with np.errstate(divide="ignore", invalid="ignore"):
         target = np.where(distance > 0.0, available / distance, np.where(available >= 0.0, np.inf, -np.inf))
     enough = rate_zero <= target  # NaN (out of reach) compares False
-    rate_vne, _ = _height_rate(vne, a, b, c, along, across, airmass, 0.0)
+    across_sq = across * across
+    rate_vne, _ = _height_rate(vne, a, b, c, along, across_sq, airmass, 0.0)
     spare_at_vne = enough & ~(rate_vne > target)
     interior = enough & ~spare_at_vne
+    target = np.where(interior, target, 0.0)
+    with np.errstate(invalid="ignore"):  # first guess: the no-crosswind root of sink - u = target (v + We)
+        slope = b - target
+        guess = (-slope + np.sqrt(slope * slope - 4.0 * a * (c - airmass - target * along))) / (2.0 * a)
     v = solve_increasing(_height_rate, np.where(interior, v_zero, np.nan), np.where(interior, vne, np.nan),
-                         args=(a, b, c, along, across, airmass, np.where(interior, target, 0.0)))
-    *_, setting, _ = _glide_terms(a, b, c, v, along, across, airmass)
+                         guess, args=(a, b, c, along, across_sq, airmass, target))
+    *_, setting, _ = _glide_terms(a, b, c, v, along, across_sq, airmass)
     setting = np.clip(setting, 0.0, cap_ms)
     result = np.where(spare_at_vne, cap_ms, np.where(interior, setting, np.nan))
     return _scalar_or_array(result)
@@ -222,7 +227,7 @@ def final_glide(polar: Polar, distance_m, height_m, *, course_deg=0.0, wind: Win
     with np.errstate(divide="ignore", invalid="ignore"):
         ld_required = np.where(usable > 0.0, distance / usable, np.nan)
         time = np.where(distance == 0.0, 0.0, distance / np.asarray(glide.ground_speed_ms))
-    heading, _ = heading_for_course(course_deg, glide.airspeed_ms, wind.from_deg, wind.speed_ms)
+    heading = np.mod(np.asarray(course_deg, dtype=float) - correction_angle_deg(glide.airspeed_ms, across), 360.0)
     to_arrive = mc_to_arrive(polar, distance, usable, along, across, airmass_ms)
     shape = np.broadcast_shapes(np.shape(required), np.shape(height), np.shape(to_arrive), np.shape(heading))
 

@@ -37,7 +37,7 @@ def _scalar_or_array(value):
     return float(value) if value.ndim == 0 else value
 
 
-def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1e-10):
+def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1e-9):
     """Roots of increasing functions on brackets, elementwise (safeguarded Newton).
 
     Parameters
@@ -123,20 +123,29 @@ def speed_to_fly_still_air(polar: Polar, mc_ms, airmass_ms=0.0):
     return polar.clamp(tangent)
 
 
-def _glide_terms(a, b, c, v, along, across, airmass):
-    """Sink, ground speed, and ``M(v)`` (the setting for which ``v`` is optimal) with ``dM/dv``."""
+def _ground_speed(v, along, across_sq):
+    """``q = sqrt(v^2 - Wn^2)`` and ``Vg = q + We`` (q = 0 where the crosswind wins)."""
+    q = np.sqrt(np.maximum(v * v - across_sq, 0.0))
+    return q, q + along
+
+
+def _glide_terms(a, b, c, v, along, across_sq, airmass):
+    """Sink, ground speed, and ``M(v)`` (the setting for which ``v`` is optimal) with ``dM/dv``.
+
+    ``across_sq`` is the squared crosswind ``Wn^2`` [m^2/s^2].
+    """
     sink = (a * v + b) * v + c
     slope = 2.0 * a * v + b
+    q, ground = _ground_speed(v, along, across_sq)
     with np.errstate(invalid="ignore", divide="ignore"):
-        q = np.sqrt(np.maximum(v * v - across * across, 0.0))
-        ground = q + along
-        setting = slope * ground * q / v - sink + airmass
-        d_setting = ground * (2.0 * a * q / v + slope * across * across / (q * v * v))
+        q_over_v = q / v
+        setting = slope * ground * q_over_v - sink + airmass
+        d_setting = ground * (2.0 * a * q_over_v + slope * across_sq / (q * v * v))
     return sink, ground, setting, d_setting
 
 
-def _stationarity(v, a, b, c, along, across, airmass, mc):
-    *_, setting, d_setting = _glide_terms(a, b, c, v, along, across, airmass)
+def _stationarity(v, a, b, c, along, across_sq, airmass, mc):
+    *_, setting, d_setting = _glide_terms(a, b, c, v, along, across_sq, airmass)
     return setting - mc, d_setting
 
 
@@ -152,8 +161,14 @@ def macready_for_speed(polar: Polar, airspeed_ms, along_ms, across_ms, airmass_m
     """
     *_, setting, _ = _glide_terms(np.asarray(polar.a), np.asarray(polar.b), np.asarray(polar.c),
                                   np.asarray(airspeed_ms, dtype=float), np.asarray(along_ms, dtype=float),
-                                  np.asarray(across_ms, dtype=float), np.asarray(airmass_ms, dtype=float))
+                                  np.asarray(across_ms, dtype=float) ** 2, np.asarray(airmass_ms, dtype=float))
     return _scalar_or_array(setting)
+
+
+def _snap_to_ends(v, lo, hi, rtol=1e-8):
+    """Solutions within round-off of an end of the speed range, put exactly on it."""
+    v = np.where(v - lo <= rtol * (1.0 + lo), lo, v)
+    return np.where(hi - v <= rtol * (1.0 + hi), hi, v)
 
 
 @dataclass(frozen=True)
@@ -216,24 +231,24 @@ def glide_in_wind(polar: Polar, mc_ms, along_ms, across_ms, airmass_ms=0.0) -> G
         polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, mc_ms, along_ms, across_ms, airmass_ms)))
     a, b, c, v_min, v_max, m, along, across, airmass = fields
 
+    across_sq = across * across
     # Slowest airspeed that still holds the course with Vg >= 0.
-    v_hold = np.hypot(across, np.minimum(along, 0.0))
+    v_hold = np.sqrt(across_sq + np.minimum(along, 0.0) ** 2)
     lo = np.maximum(v_min, v_hold)
     reachable = lo < v_max
-
-    f_lo, _ = _stationarity(lo, a, b, c, along, across, airmass, m)
-    f_hi, _ = _stationarity(v_max, a, b, c, along, across, airmass, m)
-    at_lo = f_lo >= 0.0
-    at_hi = ~at_lo & (f_hi <= 0.0)
-    interior = reachable & ~at_lo & ~at_hi
-    with np.errstate(invalid="ignore"):  # the no-crosswind closed form as the first guess
+    with np.errstate(invalid="ignore", divide="ignore"):
+        # First guess: the closed form for a pure head/tailwind, where a crosswind counts
+        # as a headwind of Wn^2/(2v) (from sqrt(v^2 - Wn^2) ~ v - Wn^2/(2v)).
         guess = -along + np.sqrt(along * along + (c + m - airmass - b * along) / a)
-    v = solve_increasing(_stationarity, np.where(interior, lo, np.nan), np.where(interior, v_max, np.nan),
-                         guess, args=(a, b, c, along, across, airmass, m))
-    v = np.where(at_lo, lo, np.where(at_hi, v_max, v))
-    v = np.where(reachable, v, np.nan)
+        effective = along - across_sq / (2.0 * guess)
+        guess = -effective + np.sqrt(effective * effective + (c + m - airmass - b * effective) / a)
+    # Where M(v) - m keeps one sign over the range the bracketed solver walks to that end.
+    v = solve_increasing(_stationarity, np.where(reachable, lo, np.nan), np.where(reachable, v_max, np.nan),
+                         guess, args=(a, b, c, along, across_sq, airmass, m))
+    v = _snap_to_ends(v, lo, v_max)
 
-    sink, ground, *_ = _glide_terms(a, b, c, v, along, across, airmass)
+    sink = (a * v + b) * v + c
+    _, ground = _ground_speed(v, along, across_sq)
     valid = ground > 0.0
     net_sink = sink - airmass
     with np.errstate(divide="ignore", invalid="ignore"):

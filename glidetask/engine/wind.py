@@ -74,9 +74,20 @@ def heading_for_course(course_deg, airspeed_ms, wind_from_deg, wind_speed_ms):
     along, across = wind_components(course_deg, wind_from_deg, wind_speed_ms)
     along, across = np.asarray(along), np.asarray(across)
     v = np.asarray(airspeed_ms, dtype=float)
-    holdable = np.abs(across) < v
-    with np.errstate(invalid="ignore", divide="ignore"):
-        correction = np.degrees(np.arcsin(np.where(holdable, across / v, np.nan)))
-        ground = np.sqrt(np.where(holdable, v * v - across * across, np.nan)) + along
-    heading = np.mod(np.asarray(course_deg, dtype=float) - correction, 360.0)
+    with np.errstate(invalid="ignore"):
+        ground = np.sqrt(np.where(np.abs(across) < v, v * v - across * across, np.nan)) + along
+    heading = np.mod(np.asarray(course_deg, dtype=float) - np.asarray(correction_angle_deg(v, across)), 360.0)
     return _scalar_or_array(heading), _scalar_or_array(ground)
+
+
+def correction_angle_deg(airspeed_ms, across_ms):
+    """Wind-correction angle ``asin(Wn / v)`` [deg]: turn this far into the wind.
+
+    Positive for a wind from the left (heading = course - angle); NaN where the crosswind
+    ``across_ms`` [m/s] is at least the true airspeed ``airspeed_ms`` [m/s].
+    """
+    v = np.asarray(airspeed_ms, dtype=float)
+    across = np.asarray(across_ms, dtype=float)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        angle = np.degrees(np.arcsin(np.where(np.abs(across) < v, across / v, np.nan)))
+    return _scalar_or_array(angle)
