@@ -118,7 +118,7 @@ def parse_value(spec: FieldSpec, text: str, units: UnitSystem):
         return parse_wind(spec, text, units)
     value = _number(spec, text)
     factor = {"height": units.height_m, "vertical": units.vertical_ms}.get(spec.kind, 1.0)
-    si = value * factor
+    si = value * factor + 0.0  # no "-0"
     if spec.minimum is not None and si < spec.minimum - 1e-9:
         raise _fail(spec, f"must be at least {_shown(spec, spec.minimum, units)}")
     if spec.maximum is not None and si > spec.maximum + 1e-9:

@@ -193,6 +193,10 @@ class GlideView(ViewScreen):
             raise InputError(problems)
         origin = self._turnpoint(self.texts.get("from"))
         goal = self._turnpoint(self.texts.get("to"))
+        if origin is not None and goal is not None:  # exact geodesic, not the rounded figures shown
+            from glidetask.engine import geodesy
+
+            distance, course, _ = (float(v) for v in geodesy.inverse(origin.lat, origin.lon, goal.lat, goal.lon))
         return derived.GlideQuestion(distance, course, height, mc, wind, elevation, margin,
                                      start=(origin.lat, origin.lon) if origin else None,
                                      goal=(goal.lat, goal.lon) if goal else None)
