@@ -229,6 +229,20 @@ class Coverage:
         k = int(self.best_landable[sample])
         return self.landable_names[k] if k >= 0 else None
 
+    def gap_reasons(self) -> tuple[str, ...]:
+        """Why each gap is one: ``"range"`` (no field within a glide), ``"terrain"`` (the
+        terrain is in the way) or ``"unknown"`` (the terrain model does not cover the glides)."""
+        reasons = []
+        for start, end in self.gaps:
+            inside = self.status[(self.distance_m >= start) & (self.distance_m <= end)]
+            if np.any(inside == TERRAIN_UNKNOWN):
+                reasons.append("unknown")
+            elif np.any(inside == TERRAIN_BLOCKED):
+                reasons.append("terrain")
+            else:
+                reasons.append("range")
+        return tuple(reasons)
+
     def share_with_status(self, status: int) -> float:
         """Share of the path's length whose samples have this status [0-1]."""
         if self.distance_m.size < 2 or self.total_m <= 0.0:

@@ -744,3 +744,147 @@ def final_glide_over_terrain(terrain: Terrain, lats, lons, height_per_metre, arr
         start_height_m=start_height_m, lats=profile.lats, lons=profile.lons,
         landmarks=landmarks, source=terrain.source,
     )
+
+
+# ---------------------------------------------------------------- terrain along a whole task path
+
+
+@dataclass(frozen=True, eq=False)
+class PathTerrain:
+    """The terrain under a task's planned path, sampled once, for the final-glide requirement.
+
+    Build it with :func:`path_terrain`. It is both the flight core's requirement hook
+    (``extra = path_terrain(position_m, height_per_metre, floor_m)``: how much the terrain
+    raises the final-glide requirement at a point) and the source of the final-glide report
+    (:meth:`final_glide`), so the height the plan flies and the obstacle it names come
+    from the same samples.
+
+    Attributes
+    ----------
+    profile : PathProfile
+        The samples along the path; its segments are the task's legs.
+    clearance_m : float
+        Least clearance over the terrain [m].
+    """
+
+    profile: PathProfile
+    clearance_m: float
+
+    @property
+    def source(self) -> str:
+        return self.profile.source
+
+    def _leg_lengths(self) -> np.ndarray:
+        return np.diff(self.profile.vertex_distance_m)
+
+    def _ahead(self, start_m: float):
+        """Samples from ``start_m`` on: that point itself (interpolated) and every sample beyond."""
+        p = self.profile
+        beyond = p.distance_m > start_m
+        distance = np.concatenate(([start_m], p.distance_m[beyond]))
+        terrain = np.concatenate(([np.interp(start_m, p.distance_m, p.elevation_m)], p.elevation_m[beyond]))
+        lats = np.concatenate(([np.interp(start_m, p.distance_m, p.lats)], p.lats[beyond]))
+        lons = np.concatenate(([np.interp(start_m, p.distance_m, p.lons)], p.lons[beyond]))
+        return distance, terrain, lats, lons, self._leg_of(distance)
+
+    def _leg_of(self, distance) -> np.ndarray:
+        vertex = self.profile.vertex_distance_m
+        return np.clip(np.searchsorted(vertex, distance, side="right") - 1, 0, max(vertex.size - 2, 0))
+
+    def _tail(self, per_metre: np.ndarray) -> np.ndarray:
+        """Height used from each leg's start to the finish, shape (..., L+1), 0 at the finish."""
+        lengths = self._leg_lengths()
+        used = np.where(lengths == 0.0, 0.0, per_metre * lengths)
+        return np.concatenate((np.cumsum(used[..., ::-1], axis=-1)[..., ::-1],
+                               np.zeros(per_metre.shape[:-1] + (1,))), axis=-1)
+
+    def _required(self, distance, leg, height_per_metre, floor_m):
+        """Pure final-glide requirement at samples ``distance`` (J,) on legs ``leg`` (J,), for each row
+        of ``height_per_metre`` (..., L) and ``floor_m`` (...): shape (..., J)."""
+        per_metre = np.asarray(height_per_metre, dtype=float)
+        leg_end = self.profile.vertex_distance_m[leg + 1]
+        return (np.asarray(floor_m, dtype=float)[..., None] + per_metre[..., leg] * (leg_end - distance)
+                + self._tail(per_metre)[..., leg + 1])
+
+    def extra_required(self, position_m, height_per_metre, floor_m) -> np.ndarray:
+        """How much the terrain raises the final-glide requirement at points of the path [m].
+
+        Parameters
+        ----------
+        position_m : array_like, shape (n,)
+            Distance along the path [m].
+        height_per_metre : array_like, shape (n, L)
+            The final glide's height used per metre on each leg [m/m].
+        floor_m : array_like, shape (n,)
+            Arrival floor: finish elevation plus the arrival margin [m MSL].
+
+        Returns
+        -------
+        ndarray, shape (n,)
+            ``max(0, max over the point and the samples ahead of (T + C - R))``, with ``R``
+            the pure requirement (the suffix maximum of :func:`final_glide_clearance`);
+            unknown terrain adds nothing here and is reported by :meth:`final_glide`.
+        """
+        position = np.atleast_1d(np.asarray(position_m, dtype=float))
+        per_metre = np.broadcast_to(np.atleast_2d(np.asarray(height_per_metre, dtype=float)),
+                                    (position.size, self._leg_lengths().size))
+        floor = np.broadcast_to(np.asarray(floor_m, dtype=float), position.shape)
+        p = self.profile
+        sample_leg = self._leg_of(p.distance_m)
+        # The point itself, between samples: terrain interpolated, requirement exact.
+        line = np.arange(position.size)
+        here_leg = self._leg_of(position)
+        here_required = (floor + per_metre[line, here_leg] * (p.vertex_distance_m[here_leg + 1] - position)
+                         + self._tail(per_metre)[line, here_leg + 1])
+        here = np.interp(position, p.distance_m, p.elevation_m) + self.clearance_m - here_required
+        extra = np.where(np.isfinite(here), here, -np.inf)
+        rows_per_batch = max(1, 2_000_000 // max(p.distance_m.size, 1))
+        for first in range(0, position.size, rows_per_batch):
+            rows = slice(first, first + rows_per_batch)
+            deficit = p.elevation_m + self.clearance_m - self._required(p.distance_m, sample_leg, per_metre[rows],
+                                                                         floor[rows])
+            ahead = np.isfinite(deficit) & (p.distance_m >= position[rows, None])
+            extra[rows] = np.maximum(extra[rows], np.max(np.where(ahead, deficit, -np.inf), axis=1))
+        return np.maximum(extra, 0.0)
+
+    __call__ = extra_required
+
+    def final_glide(self, start_m: float, height_per_metre, floor_m: float, *,
+                    start_height_m: float | None = None, landmarks: Sequence = ()) -> FinalGlideTerrain:
+        """The final glide from ``start_m`` along the path to the finish, checked over the terrain.
+
+        Parameters
+        ----------
+        start_m : float
+            Where the final glide starts, along the path [m].
+        height_per_metre : array_like, shape (L,)
+            The final glide's height used per metre on each leg [m/m].
+        floor_m : float
+            Finish elevation plus the arrival margin [m MSL].
+        start_height_m : float, optional
+            The height it starts at [m MSL]; default as high as the terrain demands.
+        landmarks : sequence, optional
+            Named places (turnpoints) to describe the obstacle.
+
+        Returns
+        -------
+        FinalGlideTerrain
+            Distances along the task path; ``raised_by_m`` equals :meth:`extra_required`
+            at ``start_m`` for the same heights per metre.
+        """
+        distance, terrain, lats, lons, leg = self._ahead(float(start_m))
+        required = self._required(distance, leg, np.asarray(height_per_metre, dtype=float), floor_m)
+        return final_glide_clearance(distance, required, terrain, self.clearance_m, start_height_m=start_height_m,
+                                     lats=lats, lons=lons, landmarks=landmarks, source=self.source)
+
+
+def path_terrain(terrain: Terrain, lats, lons, clearance_m: float, spacing_m: float = PATH_SPACING_M) -> PathTerrain:
+    """Sample the terrain along a task's planned path (one vertex per task point) once.
+
+    See :class:`PathTerrain`; ``clearance_m`` is the task's ``terrain_clearance_m`` [m].
+    """
+    if not (math.isfinite(clearance_m) and clearance_m >= 0.0):
+        raise ValueError(f"clearance_m must be a finite number >= 0, got {clearance_m!r}")
+    if np.size(lats) < 2:
+        raise ValueError("a task path needs at least two points")
+    return PathTerrain(sample_path(terrain, lats, lons, spacing_m), float(clearance_m))
