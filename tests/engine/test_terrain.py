@@ -464,3 +464,59 @@ def test_terrain_is_a_frozen_dataclass_with_read_only_elevations(geographic_plan
     assert isinstance(geographic_plane, Terrain)
     with pytest.raises(ValueError):
         geographic_plane.elevation_m[0, 0] = 1.0
+
+
+# ---------------------------------------------------------------- terrain along the whole task path
+
+
+@pytest.fixture
+def wall_path(tmp_path):
+    """The plateau model of the raster-ridge test, and a two-leg path down a column of centres."""
+    lat, lon = geographic_centres()
+    grid = np.full((ROWS, COLS), 200.0)
+    grid[20:25, :] = 1400.0
+    terrain = load_terrain(write_raster(tmp_path / "wall2.tif", grid, from_origin(WEST, NORTH, STEP, STEP)))
+    column = lon[0, 40]
+    vertices = [lat[5, 40], lat[24, 40], lat[55, 40]]  # start, the plateau's southern row centre, finish
+    return terrain, vertices, column
+
+
+def test_the_requirement_hook_and_the_final_glide_report_agree(wall_path):
+    from glidetask.engine.terrain import path_terrain
+
+    terrain, v_lats, column = wall_path
+    along = path_terrain(terrain, v_lats, [column] * 3, CLEARANCE)
+    per_metre, floor = np.array([1 / 30.0, 1 / 42.0]), 400.0
+    # By hand (GeographicLib meridian arcs): at the plateau's southern centre (a vertex, so
+    # a sample) R = 400 + d(crest, finish)/42, and the terrain demands 1400 + 150 there.
+    to_goal = WGS84.Inverse(v_lats[1], column, v_lats[2], column)["s12"]
+    first_leg = WGS84.Inverse(v_lats[0], column, v_lats[1], column)["s12"]
+    expected = 1400.0 + CLEARANCE - (floor + to_goal / 42.0)
+    positions = np.array([0.0, 5000.0, first_leg, first_leg + 2000.0, first_leg + 10_000.0])
+    extra = along(positions, np.tile(per_metre, (positions.size, 1)), np.full(positions.size, floor))
+    np.testing.assert_allclose(extra[:3], expected, atol=1e-6)
+    # One cell (1.1 km) past the plateau's last row centre the ground is back at 200 m.
+    np.testing.assert_allclose(extra[3:], 0.0)
+    for start in (0.0, 5000.0, first_leg + 10_000.0):
+        report = along.final_glide(start, per_metre, floor)
+        assert report.raised_by_m == pytest.approx(float(along([start], per_metre[None, :], [floor])[0]), abs=1e-9)
+        assert report.distance_m[0] == start and report.distance_m[-1] == pytest.approx(along.profile.total_m)
+    report = along.final_glide(0.0, per_metre, floor)
+    # The pure requirement at the start: floor + L1/30 + L2/42.
+    assert report.required_m[0] == pytest.approx(floor + first_leg / 30.0 + to_goal / 42.0, abs=1e-6)
+    assert report.obstacle.at_m == pytest.approx(first_leg, abs=1e-6)
+
+
+def test_the_requirement_hook_takes_many_flights_at_once(wall_path):
+    from glidetask.engine.terrain import path_terrain
+
+    terrain, v_lats, column = wall_path
+    along = path_terrain(terrain, v_lats, [column] * 3, CLEARANCE)
+    rng = np.random.default_rng(5)
+    positions = rng.uniform(0.0, along.profile.total_m, 50)
+    per_metre = rng.uniform(1 / 60.0, 1 / 20.0, (50, 2))
+    floors = rng.uniform(300.0, 600.0, 50)
+    together = along(positions, per_metre, floors)
+    one_by_one = [float(along([p], h[None, :], [f])[0]) for p, h, f in zip(positions, per_metre, floors)]
+    np.testing.assert_allclose(together, one_by_one, atol=1e-9)
+    assert np.all(together >= 0.0)
