@@ -43,8 +43,9 @@ def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1
     Parameters
     ----------
     func : callable
-        ``func(x, *args) -> (f, dfdx)`` on 1-D arrays; ``f`` increasing in ``x`` with
-        ``f(lo) <= 0 <= f(hi)`` for every element that has a root.
+        ``func(x, *args) -> (f, dfdx)`` on 1-D arrays; ``f`` increasing in ``x``.
+        Where ``f`` keeps one sign over the bracket, the answer is the end it points to
+        (``hi`` where ``f < 0`` throughout, ``lo`` where ``f > 0``).
     lo, hi : array_like
         Brackets; elements where they are equal or NaN come back as they are.
     guess : array_like, optional
