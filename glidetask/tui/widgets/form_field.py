@@ -11,7 +11,8 @@ from glidetask.tui import messages
 
 
 class FormField(Horizontal):
-    """``label [input] unit``; typing posts :class:`~glidetask.tui.messages.FieldEdited`.
+    """``label [input] unit``; typing posts :class:`~glidetask.tui.messages.FieldEdited`,
+    enter leaves the field.
 
     The input's id is the field id of :mod:`glidetask.tui.edits`, so the screen can mark it
     ``-invalid`` when the app refuses what was typed.
@@ -49,6 +50,11 @@ class FormField(Horizontal):
         if field.value != text:
             with field.prevent(Input.Changed):
                 field.value = text
+
+    @on(Input.Submitted)
+    def _done(self, event: Input.Submitted) -> None:
+        event.stop()
+        self.screen.set_focus(None)  # enter leaves the field: the view keys work again
 
     @on(Input.Changed)
     def _typed(self, event: Input.Changed) -> None:

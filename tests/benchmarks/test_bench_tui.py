@@ -1,0 +1,94 @@
+"""Speed of the terminal UI: the first screen, and an edit's recompute path.
+
+Budgets (issue 6): the first screen in at most 2x the bare
+``python -c "import textual.app, numpy, pyproj"`` measured in the same run; an edit on the
+demo task updates the figures within 50 ms. Times go into ``extra_info`` (no assertion on
+time: machines differ); in the normal run (benchmarks disabled) each path runs once and its
+result is checked.
+"""
+
+from __future__ import annotations
+
+import os
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+
+ROOT = Path(__file__).resolve().parents[2]
+ROUNDS = 5
+BASELINE = ["-c", "import textual.app, numpy, pyproj"]
+EDIT_BUDGET_S = 0.050
+# Opens the demo headless and prints a marker once the first screen has been composed and painted.
+FIRST_SCREEN = """
+import sys
+from glidetask.tui.app import make_app
+app = make_app(show_cautions=False)
+async def first_screen(pilot):
+    await pilot.pause()
+    sys.stdout.write("FIRST-SCREEN\\n")
+    sys.stdout.flush()
+    app.exit()
+app.run(headless=True, size=(120, 40), auto_pilot=first_screen)
+"""
+
+
+def _env(tmp_path) -> dict:
+    return {**os.environ, "PYTHONPATH": str(ROOT), "XDG_CONFIG_HOME": str(tmp_path)}
+
+
+def _baseline_s(env) -> float:
+    start = time.perf_counter()
+    subprocess.run([sys.executable, *BASELINE], env=env, check=True, timeout=120)
+    return time.perf_counter() - start
+
+
+def _first_screen_s(env) -> float:
+    start = time.perf_counter()
+    process = subprocess.Popen([sys.executable, "-c", FIRST_SCREEN], cwd=ROOT, env=env,
+                               stdout=subprocess.PIPE, text=True)
+    elapsed = None
+    for line in process.stdout:
+        if "FIRST-SCREEN" in line and elapsed is None:
+            elapsed = time.perf_counter() - start
+    assert process.wait(timeout=120) == 0
+    assert elapsed is not None, "the app never reached its first screen"
+    return elapsed
+
+
+def test_bench_first_screen(benchmark, tmp_path):
+    env = _env(tmp_path)
+    if benchmark.disabled:
+        benchmark(_first_screen_s, env)
+        return
+    _baseline_s(env)  # warm the file cache
+    baseline = statistics.median(_baseline_s(env) for _ in range(ROUNDS))
+    benchmark.pedantic(_first_screen_s, args=(env,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
+    median = benchmark.stats.stats.median
+    benchmark.extra_info.update(baseline_s=baseline, first_screen_s=median, ratio_to_baseline=median / baseline,
+                                budget_ratio=2.0)
+
+
+def test_bench_edit_recompute(benchmark):
+    """What the worker does after a keystroke: apply the field, plan, put the plan in contract form."""
+    pytest.importorskip("glidetask.engine.planner")
+    from glidetask import paths, units
+    from glidetask.tui import recompute
+    from glidetask.tui.session import EditSession
+
+    scenario = recompute.load_task(paths.demo_task())
+    session = EditSession(scenario, units.METRIC)
+    recompute.compute_plan(scenario)  # warm caches (terrain, imports) as the first plan does
+    ballasts = iter(["40", "60", "80", "100", "120"] * 1000)
+
+    def edit_and_plan():
+        assert session.edit_field("glider-ballast_kg", next(ballasts))
+        return recompute.compute_plan(session.scenario)
+
+    outcome = benchmark(edit_and_plan)
+    assert outcome.summary["legs"]
+    if not benchmark.disabled:
+        benchmark.extra_info.update(budget_s=EDIT_BUDGET_S, median_s=benchmark.stats.stats.median)

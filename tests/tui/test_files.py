@@ -1,0 +1,93 @@
+"""Open, edit, save and reopen a task file from the UI; a bad file is a message, not a crash."""
+
+from __future__ import annotations
+
+import shutil
+from pathlib import Path
+
+import pytest
+from conftest import settle
+
+from glidetask.formats.task_file import load_scenario
+from glidetask.tui.app import make_app
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+@pytest.fixture
+def demo_copy(tmp_path) -> Path:
+    """The demo folders copied, so the task's relative paths (../polars) still hold."""
+    shutil.copytree(ROOT / "demo_tasks", tmp_path / "demo_tasks")
+    shutil.copytree(ROOT / "polars", tmp_path / "polars")
+    return tmp_path / "demo_tasks" / "vardmoor-triangle-300.toml"
+
+
+async def type_into(pilot, field_id: str, text: str) -> None:
+    await pilot.click(f"#{field_id}")
+    await pilot.press("home", "ctrl+k", *text, "enter")
+    await settle(pilot)
+
+
+async def test_edit_save_and_reopen(demo_copy, acknowledged):
+    app = make_app(demo_copy)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        assert app.scenario.task.name == "Vardmoor 300 km triangle"
+        await pilot.press("2")
+        await settle(pilot)
+        await type_into(pilot, "glider-ballast_kg", "60")
+        await pilot.press("3")
+        await settle(pilot)
+        await type_into(pilot, "day-wind", "300/25")
+        assert app.dirty
+        await pilot.press("ctrl+s")
+        await settle(pilot)
+        assert not app.dirty
+        assert "saved" in app.notice
+    reread = load_scenario(demo_copy)
+    assert reread.glider.ballast_kg == 60.0
+    assert reread.day.wind.from_deg == 300.0
+    assert abs(reread.day.wind.speed_ms - 25.0 / 3.6) < 1e-9
+    leftovers = [p.name for p in demo_copy.parent.iterdir() if p.name.endswith(".tmp")]
+    assert not leftovers  # an atomic save leaves no temporary file behind
+
+    again = make_app(demo_copy)
+    async with again.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("3")
+        await settle(pilot)
+        assert again.screen.query_one("#day-wind").value == "300/25"
+
+
+async def test_save_as_and_open_from_the_dialog(demo_copy, acknowledged):
+    target = demo_copy.parent / "my-task.toml"
+    app = make_app(demo_copy)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        app.action_save_as()
+        await pilot.pause()
+        field = app.screen.query_one("#path-input")
+        field.value = str(target)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert target.exists()
+        assert app.task_path == target
+        app.action_open()
+        await pilot.pause()
+        app.screen.query_one("#path-input").value = str(demo_copy.parent / "vardmoor-out-and-return.toml")
+        await pilot.press("enter")
+        await settle(pilot)
+        assert "out" in app.scenario.task.name.lower() or len(app.scenario.task.points) == 3
+
+
+async def test_a_bad_task_file_is_reported_in_the_app(tmp_path, acknowledged):
+    bad = tmp_path / "bad.toml"
+    bad.write_text("[task]\nname = 3\n", encoding="utf-8")
+    app = make_app(bad)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        assert app.is_running
+        assert app.problems
+        assert all(str(bad) in p.file or p.file.endswith("bad.toml") for p in app.problems)
+        status = str(app.screen.query_one("#status-line").render())
+        assert "bad.toml" in status
