@@ -40,3 +40,12 @@ async def settle(pilot, rounds: int = 3) -> None:
         await pilot.pause()
         await pilot.app.workers.wait_for_complete()
     await pilot.pause()
+
+
+def text_of(widget, width: int = 120) -> str:
+    """The plain text a Static-like widget shows (its rich content rendered without colour)."""
+    from rich.console import Console
+
+    console = Console(width=width, record=True, color_system=None, file=open("/dev/null", "w"))
+    console.print(widget.content)
+    return console.export_text()

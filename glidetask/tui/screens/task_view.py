@@ -51,6 +51,8 @@ class TaskView(ViewScreen):
         self.query_one("#sketch-panel").border_title = "Sketch"
         super().on_mount()
         self.query_one(LegsTable).show(None, self.app.units)
+        # a refused input marks the plan on screen as the last good one
+        self.watch(self.app, "invalid_fields", lambda _: self.show_plan(self.app.plan), init=False)
 
     # ------------------------------------------------------------ showing
 

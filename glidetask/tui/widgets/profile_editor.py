@@ -93,6 +93,7 @@ class ProfileEditor(Vertical):
             texts.append((time_text, value_text))
             texts.sort(key=lambda row: parse_clock(row[0]) if ":" in row[0] else 0.0)
         self._post(texts, "lift profile")
+        self.query_one(ProfileTable).focus()  # back to the rows: the view keys work again
 
     def remove_selected(self) -> None:
         table = self.query_one(ProfileTable)
