@@ -878,3 +878,24 @@ class _Simulation:
             leg_required_height_m=required, leg_climb_ms=self.leg_climb.copy(),
             leg_mc_ms=self.leg_mc.copy(), leg_final=self.leg_final.copy(),
         )
+
+
+def requirement_card(course: Course, flights: Flights, mc_values) -> np.ndarray:
+    """Required height [m MSL] at each leg's start and at the finish for final glides home
+    at several MacCready settings, shape (N, M, L+1), M = ``len(mc_values)``.
+
+    Each requirement is computed as in :func:`fly`: the arrival floor plus the pure-glide
+    height used over the remaining legs in their own wind, the density at the middle of
+    its start and arrival heights. The last column is the floor itself.
+    """
+    simulation = _Simulation(course, flights, None, None)
+    settings = np.atleast_1d(np.asarray(mc_values, dtype=float))
+    n, count, legs = simulation.n, settings.size, course.legs
+    rows = np.repeat(np.arange(n), count * legs)
+    leg = np.tile(np.arange(legs), n * count)
+    mc = np.tile(np.repeat(settings, legs), n)
+    zero = np.zeros(rows.size)
+    hpm, _, tail, _ = simulation._final_table(rows, leg, zero, mc)
+    required = simulation.required(rows, leg, zero, hpm, tail).reshape(n, count, legs)
+    floor = np.broadcast_to(simulation.floor[:, None, None], (n, count, 1))
+    return np.concatenate([required, floor], axis=2)

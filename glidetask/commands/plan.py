@@ -1,0 +1,181 @@
+"""``glidetask plan TASK.toml``: the task flown on paper (contract 4 and 5.3).
+
+The what-if options (``--mc-ms``, ``--ballast-kg``, ``--bugs-percent``, ``--wind``,
+``--start``) replace the task file's values for this plan only. Text output shows the
+legs table, the totals, where the final glide starts, the heights needed at each
+turnpoint, the verdict and the cautions; ``--json`` prints the contract's object.
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+
+from glidetask import units
+from glidetask.cli import CMDLINE, check_number, parse_wind
+from glidetask.commands._output import caution_block, print_json
+from glidetask.errors import InputError, Problem
+
+
+def what_if_problems(args: argparse.Namespace) -> list[Problem]:
+    """Range checks of the what-if options (shared with ``export``); parsed values go on ``args``."""
+    problems = (check_number(args, "mc-ms", minimum=0.0, maximum=10.0)
+                + check_number(args, "ballast-kg", minimum=0.0)
+                + check_number(args, "bugs-percent", minimum=0.0, maximum=100.0))
+    args.wind_value = args.start_s = None
+    if args.wind is not None:
+        try:
+            args.wind_value = parse_wind(args.wind)
+        except InputError as error:
+            problems += error.problems
+    if args.start is not None:
+        try:
+            args.start_s = units.parse_clock(args.start)
+        except ValueError as error:
+            problems.append(Problem(CMDLINE, "--start", str(error)))
+    return problems
+
+
+def plan_from_args(args: argparse.Namespace):
+    """Read the task file, check the options, and plan (shared with ``export``)."""
+    problems = what_if_problems(args)
+    if problems:
+        raise InputError(problems)
+    from glidetask.engine.planner import plan
+    from glidetask.engine.scenario import Wind
+    from glidetask.formats.task_file import load_scenario
+
+    scenario = load_scenario(args.task)
+    wind = None
+    if args.wind_value is not None:
+        wind = Wind(from_deg=args.wind_value[0], speed_ms=args.wind_value[1] * units.KMH)
+    return plan(scenario, mc_ms=args.mc_ms, ballast_kg=args.ballast_kg, bugs_percent=args.bugs_percent,
+                wind=wind, start_time_s=args.start_s)
+
+
+# ---------------------------------------------------------------- text
+
+
+def _fmt(value: float, fmt: str = "{:.0f}") -> str:
+    return "-" if value is None or not math.isfinite(value) else fmt.format(value)
+
+
+def _header(plan, unit: units.UnitSystem) -> list[str]:
+    scenario = plan.scenario
+    task, day, safety, glider = scenario.task, scenario.day, scenario.safety, scenario.glider
+    dist = unit.fmt_distance
+    lines = [f"{task.name}  ({task.kind} task, {len(plan.legs)} legs)"]
+    distances = f"optimized {dist(plan.optimized_distance_m)}, nominal {dist(plan.nominal_distance_m)}"
+    if plan.area is not None:
+        area = plan.area
+        distances = (f"planned {dist(area.target_distance_m)} (areas allow {dist(area.min_distance_m)}"
+                     f" to {dist(area.max_distance_m)}), minimum time {units.format_duration(area.min_time_s)}")
+    lines.append(f"  Distance  {distances}")
+    lines.append(f"  Glider    {glider.spec.label}")
+    lines.append(f"            {plan.mass_kg:.0f} kg ({glider.ballast_kg:g} kg water, bugs {glider.bugs_percent:g} %), "
+                 f"{plan.wing_loading_kgm2:.1f} kg/m2, best L/D {plan.best_ld:.0f} at "
+                 f"{unit.fmt_speed(plan.best_ld_speed_ms)} TAS")
+    profile = day.climb if day.climb is not None else day.thermal_strength
+    kind = "climb" if day.climb is not None else "thermal strength"
+    lift = ", ".join(f"{units.format_clock(t)} {unit.vertical(v):.1f}" for t, v in zip(profile.times_s, profile.values))
+    wind = "calm" if day.wind.speed_ms == 0.0 else f"{day.wind.from_deg:03.0f}/{unit.fmt_speed(day.wind.speed_ms)}"
+    lines.append(f"  Day       start {units.format_clock(day.start_time_s)} at "
+                 f"{unit.fmt_height(day.effective_start_height_m)}, band {unit.fmt_height(day.band_bottom_m)}"
+                 f" - {unit.fmt_height(day.band_top_m)}, wind {wind}")
+    lines.append(f"            {kind} [{unit.vertical_label}] {lift}; lift ends {units.format_clock(day.lift_ends_s)}")
+    mc = "the climb of each thermal" if day.mc_ms is None else unit.fmt_vertical(day.mc_ms)
+    fg = "the cruise setting" if safety.final_glide_mc_ms is None else unit.fmt_vertical(safety.final_glide_mc_ms)
+    lines.append(f"            MacCready {mc}; final glide at {fg}; arrival "
+                 f"{unit.fmt_height(safety.arrival_margin_m)} over the finish "
+                 f"({unit.fmt_height(plan.arrival_floor_m)})")
+    return lines
+
+
+def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
+    head = ("Leg", "Dist", "Crs", "Climb", "MC", "Air", "Hdg", "Glide", "Avg", "Time", "Need", "Arrive")
+    sub = ("", unit.distance_label, "deg", unit.vertical_label, unit.vertical_label, unit.speed_label, "deg",
+           unit.speed_label, unit.speed_label, "h:mm", unit.height_label, unit.height_label)
+    rows = []
+    for i, leg in enumerate(plan.legs, start=1):
+        mark = "*" if leg.final_glide else ""
+        name = f"{i} {leg.from_name} > {leg.to_name}"
+        rows.append((
+            name[:34], f"{unit.distance(leg.distance_m):.1f}", f"{leg.course_deg:03.0f}",
+            _fmt(unit.vertical(leg.climb_ms), "{:.1f}"), _fmt(unit.vertical(leg.mc_ms), "{:.1f}") + mark,
+            _fmt(unit.speed(leg.airspeed_ms)), _fmt(leg.heading_deg, "{:03.0f}"),
+            _fmt(unit.speed(leg.glide_ground_speed_ms)), _fmt(unit.speed(leg.cruise_speed_ms)),
+            units.format_duration(leg.time_s) if math.isfinite(leg.time_s) else "-",
+            _fmt(unit.height(leg.required_height_m)), _fmt(unit.height(leg.arrival_height_m))))
+    widths = [max(len(r[c]) for r in (head, sub, *rows)) for c in range(len(head))]
+
+    def line(cells):
+        first = cells[0].ljust(widths[0])
+        return "  " + "  ".join([first] + [cell.rjust(w) for cell, w in zip(cells[1:], widths[1:])])
+
+    out = [line(head), line(sub)] + [line(r) for r in rows]
+    out.append("  Climb/MC: the leg's first thermal; * final glide setting. Air, Hdg, Glide: in the glides."
+               " Avg: with climbs.")
+    out.append("  Need: height to final-glide home from the leg's start. Arrive: planned height at its end.")
+    return out
+
+
+def _totals(plan, unit: units.UnitSystem) -> list[str]:
+    lines = []
+    if plan.finished:
+        lines.append(f"Total     {units.format_duration(plan.total_time_s)} for {unit.fmt_distance(plan.planned_distance_m)}"
+                     f" at {unit.fmt_speed(plan.task_speed_ms)} task speed; finish "
+                     f"{units.format_clock(plan.finish_time_s)}")
+    else:
+        lines.append(f"Total     ends short after {units.format_duration(plan.total_time_s)}, "
+                     f"{unit.fmt_distance(plan.landout_m)} along the task")
+    if math.isfinite(plan.final_glide_from_m):
+        to_go = plan.planned_distance_m - plan.final_glide_from_m
+        lines.append(f"Final     glide from {unit.fmt_distance(plan.final_glide_from_m)} ({unit.fmt_distance(to_go)}"
+                     f" out) at {unit.fmt_height(plan.final_glide_height_m)}, MacCready "
+                     f"{unit.fmt_vertical(plan.final_glide_mc_ms)}")
+    return lines
+
+
+def _required_card(plan, unit: units.UnitSystem) -> list[str]:
+    names = [leg.from_name for leg in plan.legs] + [plan.legs[-1].to_name]
+    heights = [leg.required_height_m for leg in plan.legs] + [plan.arrival_floor_m]
+    out = [f"Heights needed to final-glide home (arrival {unit.fmt_height(plan.scenario.safety.arrival_margin_m)}"
+           " over the finish, each at the plan's final-glide setting there):"]
+    width = max(len(n) for n in names)
+    for name, height in zip(names, heights):
+        out.append(f"  {name.ljust(width)}  {_fmt(unit.height(height)).rjust(6)} {unit.height_label}")
+    return out
+
+
+def verdict(plan, unit: units.UnitSystem) -> str:
+    """One line: finished (when, how fast) or where and why the plan ends short."""
+    if plan.finished:
+        return (f"FINISHED at {units.format_clock(plan.finish_time_s)} in {units.format_duration(plan.total_time_s)}"
+                f", {unit.fmt_speed(plan.task_speed_ms)}.")
+    return f"ENDS SHORT {unit.fmt_distance(plan.landout_m)} along the task: {plan.reason}."
+
+
+def plan_text(plan, unit_name: str = "metric") -> str:
+    """The readable plan: header, legs, totals, heights card, verdict, cautions."""
+    unit = units.by_name(unit_name)
+    lines = _header(plan, unit) + [""] + _legs_table(plan, unit) + [""] + _totals(plan, unit)
+    lines += [""] + _required_card(plan, unit) + ["", verdict(plan, unit), ""]
+    lines.append(caution_block(plan.cautions[len(_general()):]))
+    return "\n".join(lines)
+
+
+def _general():
+    from glidetask import cautions
+
+    return cautions.GENERAL
+
+
+def run(args: argparse.Namespace) -> int:
+    plan = plan_from_args(args)
+    if args.json:
+        from glidetask.formats.plan_json import plan_to_dict
+
+        print_json(plan_to_dict(plan))
+    else:
+        print(plan_text(plan, args.units))
+    return 0

@@ -1,0 +1,548 @@
+"""The planner: a whole task flown on paper, leg by leg, into a :class:`Plan`.
+
+:func:`plan` applies the what-ifs to a :class:`~glidetask.engine.scenario.Scenario`,
+chooses the planned path (the optimized path of a racing task; for an area task the
+target points that bring the planned time to the minimum time or just above it), flies
+it with the vectorised flight core (:func:`glidetask.engine.flight.fly`, one flight) and
+gathers what a pilot reads before take-off: per leg the climb and MacCready setting,
+airspeed, heading, ground speeds, time, the height required at its start and the height
+planned on reaching its end; the totals, where the final glide starts, and cautions.
+The rules of the flight are the contract's section 3 (see :mod:`glidetask.engine.flight`).
+
+:func:`flights_for` and :func:`course_for` turn a scenario and a path into the core's
+inputs, for the ballast sweep and the Monte-Carlo days, which vary them per flight.
+
+References
+----------
+.. [1] FAI Sporting Code Section 3 (Gliding), Annex A: assigned-area tasks are scored
+   on the marking distance over the greater of the task time and the minimum task time
+   (from memory).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from glidetask import cautions as caution_text
+from glidetask.engine import flight
+from glidetask.engine.flight import Course, Flights, Flown, fly
+from glidetask.engine.scenario import Scenario, Wind
+from glidetask.errors import InputError, Problem
+from glidetask.units import format_clock, format_duration
+
+CMDLINE = "command line"
+AREA_TIME_SLACK = 0.05  # planned area-task time within [min time, (1 + this) x min time]
+TIGHT_DAY_S = 1800.0  # caution when the last climb ends this close to the end of lift [s]
+THIN_MARGIN_M = 150.0  # caution for an arrival margin below this [m] (common practice)
+CARD_MC_MS = (0.0, 1.0, 2.0, 3.0)  # MacCready settings of the briefing's final-glide card
+
+
+@dataclass(frozen=True)
+class LegPlan:
+    """One leg of the plan (contract 5.3), SI units.
+
+    Attributes
+    ----------
+    from_name, to_name : str
+        Turnpoint names.
+    distance_m : float
+        Length along the planned path [m].
+    course_deg : float
+        Geodesic azimuth at the leg's start [deg true].
+    climb_ms, mc_ms : float
+        Achieved climb and MacCready setting used: those of the leg's first climb, or of
+        the climb in force on entering the leg if it has none [m/s]. On a leg flown in
+        final glide ``mc_ms`` is the final glide's setting. NaN if the leg is not reached.
+    airspeed_ms : float
+        Speed to fly in the leg's glides [m/s TAS]; on final-glide legs the final glide's.
+    heading_deg : float
+        Heading in the leg's glides [deg true]: in cruise it makes good the course over a
+        whole climb-and-glide cycle (the glides cancel the drift of the climbs); on
+        final-glide legs it holds the course on the glide.
+    glide_ground_speed_ms : float
+        Speed over the ground along the course while gliding [m/s].
+    cruise_speed_ms : float
+        Drift-aware average speed along the course with climbs, at ``climb_ms`` and
+        ``mc_ms`` [m/s] (contract section 3); NaN without a climb.
+    time_s : float
+        Time on the leg [s]; for the leg where the plan ends short, the time until it does.
+    required_height_m : float
+        Height needed at the leg's start to final-glide home with the margin [m MSL].
+    arrival_height_m : float
+        Planned height on reaching the leg's end [m MSL]; NaN if not reached.
+    final_glide : bool
+        The leg is flown entirely in final glide.
+    start_time_s : float
+        Clock time at the leg's start [s after midnight]; NaN if not reached.
+    """
+
+    from_name: str
+    to_name: str
+    distance_m: float
+    course_deg: float
+    climb_ms: float
+    mc_ms: float
+    airspeed_ms: float
+    heading_deg: float
+    glide_ground_speed_ms: float
+    cruise_speed_ms: float
+    time_s: float
+    required_height_m: float
+    arrival_height_m: float
+    final_glide: bool
+    start_time_s: float
+
+
+@dataclass(frozen=True)
+class AreaPlan:
+    """How an assigned-area task's targets were chosen [m], [s]."""
+
+    min_distance_m: float
+    max_distance_m: float
+    target_distance_m: float
+    min_time_s: float
+    depth: float  # 0 = the shortest path through the areas, 1 = the longest
+
+
+@dataclass(frozen=True)
+class Plan:
+    """A task flown on paper (contract 5.3 in SI units; see :mod:`glidetask.formats.plan_json`).
+
+    Attributes
+    ----------
+    scenario : Scenario
+        The inputs with the what-ifs applied.
+    path : TaskPath
+        The planned path (racing: the optimized path; area: through the chosen targets).
+    legs : tuple of LegPlan
+    nominal_distance_m, optimized_distance_m, planned_distance_m : float
+        Centre to centre, shortest through the zones, and along the planned path [m].
+    area : AreaPlan or None
+        For area tasks.
+    mass_kg, wing_loading_kgm2, best_ld, best_ld_speed_ms : float
+        The glider as loaded; best L/D speed TAS at the middle of the working band.
+    total_time_s : float
+        Start to finish, or to where the plan ends short [s].
+    task_speed_ms : float
+        Racing: optimized distance over the time; area: planned distance over the greater
+        of the time and the minimum time [1]_; NaN when the plan ends short.
+    finished : bool
+    finish_time_s : float
+        Clock time at the finish; NaN when the plan ends short.
+    landout_m : float
+        Distance along the planned path where the plan ends short; NaN when finished.
+    final_glide_from_m, final_glide_height_m, final_glide_mc_ms : float
+        Where the final glide starts (distance along the path), its start height [m MSL]
+        and MacCready setting; NaN without one.
+    reason : str
+        How the flight ended (:data:`glidetask.engine.flight.REASONS`).
+    cautions : tuple of str
+        The general cautions, then this plan's own.
+    flown : Flown
+        The flight core's full result (one flight).
+    terrain, landables : object or None
+        Terrain check and landable coverage, filled in where those are computed.
+    """
+
+    scenario: Scenario
+    path: object
+    legs: tuple[LegPlan, ...]
+    nominal_distance_m: float
+    optimized_distance_m: float
+    planned_distance_m: float
+    area: AreaPlan | None
+    mass_kg: float
+    wing_loading_kgm2: float
+    best_ld: float
+    best_ld_speed_ms: float
+    total_time_s: float
+    task_speed_ms: float
+    finished: bool
+    finish_time_s: float
+    landout_m: float
+    final_glide_from_m: float
+    final_glide_height_m: float
+    final_glide_mc_ms: float
+    reason: str
+    cautions: tuple[str, ...]
+    flown: Flown
+    terrain: object | None = None
+    landables: object | None = None
+
+    @property
+    def start_time_s(self) -> float:
+        return self.scenario.day.start_time_s
+
+    @property
+    def arrival_floor_m(self) -> float:
+        """Finish elevation plus the arrival margin [m MSL]."""
+        return self.scenario.task.points[-1].turnpoint.elevation_m + self.scenario.safety.arrival_margin_m
+
+    @property
+    def last_climb_end_s(self) -> float:
+        return float(self.flown.last_climb_end_s[0])
+
+
+# ---------------------------------------------------------------- the core's inputs
+
+
+def course_for(path) -> Course:
+    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`)."""
+    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs])
+
+
+def flights_for(scenario: Scenario) -> Flights:
+    """The flight core's inputs for one flight of ``scenario`` (scalars; vary them with
+    :func:`dataclasses.replace` to fly many).
+
+    The lift profile is the day's achieved climb, or its thermal strength
+    (``lift_is_strength``) for the circling model. Fixed settings absent from the
+    scenario are NaN (the core then follows the climb of each cycle).
+    """
+    day, glider, safety = scenario.day, scenario.glider, scenario.safety
+    profile = day.climb if day.climb is not None else day.thermal_strength
+    nan = float("nan")
+    return Flights(
+        spec=glider.spec, mass_kg=glider.mass_kg, bugs_percent=glider.bugs_percent,
+        wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms,
+        start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
+        band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
+        lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
+        lift_is_strength=day.climb is None, thermal_radius_m=day.thermal_radius_m,
+        mc_ms=nan if day.mc_ms is None else day.mc_ms,
+        final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
+        finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
+        arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
+        isa_deviation_c=day.isa_deviation_c)
+
+
+# ---------------------------------------------------------------- what-ifs
+
+
+def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
+                  start_time_s=None) -> Scenario:
+    """The scenario with the given what-ifs (None keeps the scenario's value).
+
+    Raises
+    ------
+    InputError
+        A what-if that makes the inputs inconsistent (ballast above the polar's
+        maximum, a mass above the maximum mass, a start at or after the end of lift, a
+        negative setting), named by its command-line option; problems of the scenario
+        itself are named by the task file and key.
+    """
+    glider, day = scenario.glider, scenario.day
+    problems: list[Problem] = []
+    if ballast_kg is not None:
+        glider = dataclasses.replace(glider, ballast_kg=float(ballast_kg))
+    if bugs_percent is not None:
+        glider = dataclasses.replace(glider, bugs_percent=float(bugs_percent))
+    if mc_ms is not None:
+        day = dataclasses.replace(day, mc_ms=float(mc_ms))
+    if wind is not None:
+        day = dataclasses.replace(day, wind=wind)
+    if start_time_s is not None:
+        day = dataclasses.replace(day, start_time_s=float(start_time_s))
+    file = scenario.source or "task"
+
+    def blame(option, key):
+        return (CMDLINE, option) if option else (file, key)
+
+    spec = glider.spec
+    where = blame("--ballast-kg" if ballast_kg is not None else None, "[glider] ballast_kg")
+    if not 0.0 <= glider.ballast_kg <= spec.max_ballast_kg:
+        problems.append(Problem(*where, f"ballast {glider.ballast_kg:g} kg is outside 0-{spec.max_ballast_kg:g} kg, "
+                                        f"the polar's maximum water ballast"))
+    elif spec.max_mass_kg is not None and glider.mass_kg > spec.max_mass_kg + 1e-9:
+        problems.append(Problem(*where, f"the flying mass {glider.mass_kg:g} kg (empty {spec.empty_mass_kg:g} + pilot "
+                                        f"{glider.pilot_kg:g} + ballast {glider.ballast_kg:g}) is above the maximum "
+                                        f"{spec.max_mass_kg:g} kg"))
+    if not glider.bugs_percent >= 0.0 or not math.isfinite(glider.bugs_percent):
+        problems.append(Problem(*blame("--bugs-percent" if bugs_percent is not None else None,
+                                       "[glider] bugs_percent"), "bugs must be 0 % or more"))
+    if day.mc_ms is not None and not 0.0 <= day.mc_ms <= 10.0:
+        problems.append(Problem(*blame("--mc-ms" if mc_ms is not None else None, "[day] mc_ms"),
+                                f"the MacCready setting must be 0-10 m/s, got {day.mc_ms:g}"))
+    if not day.start_time_s < day.lift_ends_s:
+        problems.append(Problem(*blame("--start" if start_time_s is not None else None, "[day] start_time"),
+                                f"the start ({format_clock(day.start_time_s)}) must be before lift ends "
+                                f"({format_clock(day.lift_ends_s)})"))
+    if not day.band_top_m > day.band_bottom_m:
+        problems.append(Problem(file, "[day] band_top_m", "the band top must be above band_bottom_m"))
+    if day.start_height_m is not None and day.start_height_m > day.band_top_m:
+        problems.append(Problem(file, "[day] start_height_m", "the start height is above band_top_m"))
+    if problems:
+        raise InputError(problems)
+    return dataclasses.replace(scenario, glider=glider, day=day)
+
+
+# ---------------------------------------------------------------- the plan
+
+
+def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
+         start_time_s=None) -> Plan:
+    """Fly the scenario's task on paper.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        Task, glider, day and margins (from :func:`glidetask.formats.task_file.load_scenario`).
+    mc_ms : float, optional
+        Fixed MacCready setting [m/s] instead of the day's.
+    ballast_kg, bugs_percent : float, optional
+        Water ballast [kg] and bugs [%] instead of the task file's.
+    wind : Wind, optional
+        The wind instead of the day's.
+    start_time_s : float, optional
+        Start time [s after midnight] instead of the day's.
+
+    Returns
+    -------
+    Plan
+        A plan that ends short (wind too strong, no lift) is a result: ``finished``
+        false, ``landout_m`` and a caution that says why.
+
+    Raises
+    ------
+    InputError
+        What-ifs that make the inputs inconsistent (see :func:`with_what_ifs`).
+    """
+    from glidetask.engine import task as task_geometry
+
+    scenario = with_what_ifs(scenario, mc_ms=mc_ms, ballast_kg=ballast_kg, bugs_percent=bugs_percent, wind=wind,
+                             start_time_s=start_time_s)
+    task = scenario.task
+    flights = flights_for(scenario)
+    optimized = task_geometry.optimized_path(task)
+    area = None
+    notes: list[str] = []
+    if task.kind == "area":
+        path, flown, area, notes = _area_path(scenario, flights)
+    else:
+        path, flown = optimized, fly(course_for(optimized), flights)
+    return _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
+
+
+def _area_path(scenario: Scenario, flights: Flights):
+    """Targets of an area task: the depth whose planned time is in [T, 1.05 T] (T the minimum
+    time) when the areas allow; else the longest path (too short) or the shortest (too long).
+
+    The time grows with the depth (the path with it), so a bracketing secant search on
+    ``time(depth) - 1.025 T`` finds it in a few flights.
+    """
+    from glidetask.engine.task import area_distance_range, area_targets, path_through
+
+    task = scenario.task
+    minimum = float(task.min_time_s)
+    shortest, longest = area_distance_range(task)
+
+    def attempt(depth):
+        lats, lons = area_targets(task, float(depth))
+        path = path_through(task, lats, lons)
+        flown = fly(course_for(path), flights)
+        time = float(flown.total_time_s[0]) if flown.finished[0] else math.inf
+        return depth, path, flown, time
+
+    def good(time):
+        return minimum <= time <= (1.0 + AREA_TIME_SLACK) * minimum
+
+    low = attempt(0.0)
+    notes: list[str] = []
+    if low[3] >= minimum:
+        chosen = low
+        if low[3] > (1.0 + AREA_TIME_SLACK) * minimum and math.isfinite(low[3]):
+            notes.append(f"Even the shortest path through the areas ({shortest / 1000:.1f} km) takes "
+                         f"{format_duration(low[3])}, more than the minimum time {format_duration(minimum)}.")
+    else:
+        high = attempt(1.0)
+        chosen = high
+        if high[3] < minimum:
+            notes.append(f"Even the longest path through the areas ({longest / 1000:.1f} km) takes only "
+                         f"{format_duration(high[3])}, under the minimum time {format_duration(minimum)}: "
+                         f"the speed is scored over the minimum time.")
+        elif not good(high[3]):
+            chosen = _bisect_depth(attempt, low, high, minimum)
+    depth, path, flown, _ = chosen
+    area = AreaPlan(shortest, longest, path.total_m, minimum, float(depth))
+    return path, flown, area, notes
+
+
+def _bisect_depth(attempt, low, high, minimum, tries: int = 14):
+    """Regula falsi (Illinois) on the depth between a too-short ``low`` and a too-long ``high``."""
+    target = (1.0 + AREA_TIME_SLACK / 2.0) * minimum
+    f_low, f_high = low[3] - target, min(high[3], 10.0 * minimum) - target
+    side = 0
+    best = high
+    for _ in range(tries):
+        depth = (low[0] * f_high - high[0] * f_low) / (f_high - f_low)
+        if not low[0] < depth < high[0]:
+            depth = 0.5 * (low[0] + high[0])
+        trial = attempt(depth)
+        if minimum <= trial[3] <= (1.0 + AREA_TIME_SLACK) * minimum:
+            return trial
+        f_trial = min(trial[3], 10.0 * minimum) - target
+        if f_trial < 0.0:
+            low, f_low = trial, f_trial
+            f_high = f_high / 2.0 if side == -1 else f_high
+            side = -1
+        else:
+            high, f_high, best = trial, f_trial, trial
+            f_low = f_low / 2.0 if side == 1 else f_low
+            side = 1
+    return best
+
+
+def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes) -> Plan:
+    from glidetask.engine.polar import polar_for
+
+    day = scenario.day
+    polar = polar_for(scenario.glider, 0.5 * (day.band_top_m + day.band_bottom_m), day.isa_deviation_c)
+    legs = _legs(scenario, path, flown, polar)
+    finished = bool(flown.finished[0])
+    total = float(flown.total_time_s[0])
+    planned = path.total_m
+    if not finished:
+        speed = math.nan
+    elif area is not None:
+        speed = planned / max(total, area.min_time_s)
+    else:
+        speed = optimized_m / total
+    plan = Plan(
+        scenario=scenario, path=path, legs=legs, nominal_distance_m=nominal_m, optimized_distance_m=optimized_m,
+        planned_distance_m=planned, area=area, mass_kg=float(scenario.glider.mass_kg),
+        wing_loading_kgm2=float(polar.wing_loading_kgm2), best_ld=float(polar.best_ld),
+        best_ld_speed_ms=float(polar.best_ld_speed_ms), total_time_s=total, task_speed_ms=speed,
+        finished=finished, finish_time_s=float(flown.finish_time_s[0]), landout_m=float(flown.landout_m[0]),
+        final_glide_from_m=float(flown.final_glide_from_m[0]), final_glide_height_m=float(flown.final_glide_height_m[0]),
+        final_glide_mc_ms=float(flown.final_glide_mc_ms[0]), reason=flight.REASONS[int(flown.reason[0])],
+        cautions=(), flown=flown)
+    return dataclasses.replace(plan, cautions=tuple(caution_text.general() + notes + plan_cautions(plan)))
+
+
+def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
+    """Per-leg speeds and headings at each leg's settings (one vectorised call per kind)."""
+    from glidetask.engine.atmosphere import density_ratio
+    from glidetask.engine.polar import scaled_polar
+    from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
+    from glidetask.engine.wind import heading_for_course, wind_components
+
+    day = scenario.day
+    courses = np.array([leg.course_deg for leg in path.legs])
+    along, across = (np.asarray(x, dtype=float) for x in wind_components(courses, day.wind.from_deg,
+                                                                          day.wind.speed_ms))
+    climb, mc = flown.leg_climb_ms[0], flown.leg_mc_ms[0]
+    final = flown.leg_final[0]
+    airmass = day.glide_airmass_ms
+    cruise = cruise_in_wind(polar, climb, along, across, airmass, np.maximum(np.nan_to_num(mc), 0.0))
+    v, fraction = np.asarray(cruise.airspeed_ms), np.asarray(cruise.glide_fraction)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        drift_fix = across / fraction  # air velocity across the course in the glides (contract 3)
+        cruise_ground = np.sqrt(v * v - drift_fix**2) + along
+        cruise_heading = np.mod(courses - np.degrees(np.arcsin(drift_fix / v)), 360.0)
+    sigma = float(flown.final_glide_sigma[0])
+    fg_polar = scaled_polar(scenario.glider.spec, scenario.glider.mass_kg, scenario.glider.bugs_percent,
+                            sigma if math.isfinite(sigma) else density_ratio(0.0))
+    pure_mc = np.where(final, np.nan_to_num(mc), 0.0)
+    pure = glide_in_wind(fg_polar, pure_mc, along, across, airmass)
+    no_climb = ~(climb > 0.0)  # a glide with no climb ahead (before the lift starts): best glide
+    best = glide_in_wind(polar, 0.0, along, across, airmass)
+    pure_heading, _ = heading_for_course(courses, pure.airspeed_ms, day.wind.from_deg, day.wind.speed_ms)
+    best_heading, _ = heading_for_course(courses, best.airspeed_ms, day.wind.from_deg, day.wind.speed_ms)
+
+    def pick(final_value, best_value, cruise_value):
+        return np.where(final, final_value, np.where(no_climb, best_value, cruise_value))
+
+    airspeed = pick(pure.airspeed_ms, best.airspeed_ms, v)
+    heading = pick(pure_heading, best_heading, cruise_heading)
+    ground = pick(pure.ground_speed_ms, best.ground_speed_ms, cruise_ground)
+    reached = np.isfinite(flown.leg_entry_time_s[0])
+    out = []
+    for i, leg in enumerate(path.legs):
+        def value(array):
+            return float(array[i]) if reached[i] else math.nan
+        out.append(LegPlan(
+            from_name=leg.from_name, to_name=leg.to_name, distance_m=float(leg.distance_m),
+            course_deg=float(leg.course_deg), climb_ms=value(climb), mc_ms=value(mc),
+            airspeed_ms=value(airspeed), heading_deg=value(heading), glide_ground_speed_ms=value(ground),
+            cruise_speed_ms=value(np.asarray(cruise.cruise_speed_ms, dtype=float) * np.ones(len(path.legs))),
+            time_s=value(flown.leg_time_s[0]), required_height_m=value(flown.leg_required_height_m[0]),
+            arrival_height_m=float(flown.leg_arrival_height_m[0, i]), final_glide=bool(final[i]),
+            start_time_s=float(flown.leg_entry_time_s[0, i])))
+    return tuple(out)
+
+
+# ---------------------------------------------------------------- cautions
+
+
+def _where(plan: Plan, distance_m: float) -> str:
+    """``"123.4 km along the task, on the leg A -> B"``."""
+    bounds = plan.path.cumulative_m
+    index = int(np.clip(np.searchsorted(bounds, distance_m, side="right") - 1, 0, len(plan.legs) - 1))
+    leg = plan.legs[index]
+    return f"{distance_m / 1000:.1f} km along the task, on the leg {leg.from_name} -> {leg.to_name}"
+
+
+def plan_cautions(plan: Plan) -> list[str]:
+    """This plan's own cautions (the general ones come first in :attr:`Plan.cautions`)."""
+    day, flown = plan.scenario.day, plan.flown
+    reason = int(flown.reason[0])
+    stop = float(flown.stop_time_s[0])
+    floor = plan.arrival_floor_m
+    out: list[str] = []
+    if not plan.finished:
+        glide_on = (f"gliding on at MacCready 0 down to {floor:.0f} m (finish elevation plus the arrival "
+                    f"margin, taken as the ground)")
+        if reason == flight.LIFT_ENDED:
+            why = f"Lift ends at {format_clock(day.lift_ends_s)} before the final glide can start"
+        elif reason == flight.NO_CLIMB:
+            why = f"The climb profile gives no climb at {format_clock(stop)}, before the final glide can start"
+        elif reason == flight.UNREACHABLE:
+            speed = day.wind.speed_ms * 3.6
+            why = (f"The wind ({day.wind.from_deg:03.0f}/{speed:.0f} km/h) is too strong for this glider to make "
+                   f"progress with climbs")
+        elif reason == flight.BELOW_FLOOR:
+            why = "The plan reaches the finish below the arrival margin"
+        else:
+            why = "The plan cannot be completed"
+        out.append(f"Task not completed: {why}; the plan ends {_where(plan, plan.landout_m)}, {glide_on}.")
+    elif reason != flight.FINAL_GLIDE:
+        arrival = plan.legs[-1].arrival_height_m
+        out.append(f"Lift ends ({format_clock(stop)}) before the planned final glide: the plan glides home at "
+                   f"MacCready 0 from {plan.final_glide_from_m / 1000:.1f} km, arriving "
+                   f"{arrival - floor:.0f} m above the arrival margin. Any sink on the way and it lands out.")
+    last_climb = plan.last_climb_end_s
+    if plan.finished and reason == flight.FINAL_GLIDE and math.isfinite(last_climb):
+        spare = day.lift_ends_s - last_climb
+        if spare < TIGHT_DAY_S:
+            out.append(f"The last climb ends at {format_clock(last_climb)}, only {spare / 60:.0f} min before lift "
+                       f"ends ({format_clock(day.lift_ends_s)}): little time in hand if the day dies early.")
+    if plan.area is not None and plan.finished and plan.total_time_s < plan.area.min_time_s:
+        out.append(f"The planned time {format_duration(plan.total_time_s)} is under the minimum time "
+                   f"{format_duration(plan.area.min_time_s)}: the speed is scored over the minimum time.")
+    margin = plan.scenario.safety.arrival_margin_m
+    if margin < THIN_MARGIN_M:
+        out.append(f"The arrival margin of {margin:.0f} m is thin: most pilots plan 150-300 m over the finish.")
+    if plan.finished and math.isfinite(plan.final_glide_mc_ms) and plan.final_glide_mc_ms == 0.0:
+        out.append("The final glide is planned at MacCready 0 (best glide): it has no speed in hand "
+                   "for sinking air.")
+    if day.glide_airmass_ms > 0.0:
+        out.append(f"The plan counts on rising air while gliding ({day.glide_airmass_ms:+.1f} m/s): "
+                   f"if it is not there, every glide loses more height.")
+    return out
+
+
+# ---------------------------------------------------------------- cards
+
+
+def final_glide_card(plan: Plan, mc_values=CARD_MC_MS) -> np.ndarray:
+    """Required height [m MSL] at each turnpoint of the planned path (each leg's start and
+    the finish) for a final glide home at each MacCready setting, shape (len(mc_values), L+1).
+
+    Each final glide is computed as in the plan: the day's wind per leg, the arrival
+    margin, the density at the middle of its start and arrival heights.
+    """
+    return flight.requirement_card(course_for(plan.path), flights_for(plan.scenario), mc_values)[0]

@@ -1,0 +1,141 @@
+"""A plan as the contract's JSON (shared/CONTRACT.md 5.3).
+
+Every key carries its unit as a suffix (``_km``, ``_m``, ``_s``, ``_kmh``, ``_ms``,
+``_kg``, ``_deg``, ``_kgm2``); numbers that are undefined (a leg not reached, the
+finish time of a plan that ends short) are ``null``. Keys beyond the contract's are
+additions, never changes of meaning: ``planned_distance_km``, ``start_time``,
+``reason``, ``day``, per leg ``final_glide`` and ``start_time``.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from typing import Any
+
+from glidetask.units import KMH, format_clock
+
+
+def _number(value, scale: float = 1.0, digits: int = 3):
+    """``value / scale`` rounded, or None where undefined."""
+    if value is None:
+        return None
+    value = float(value)
+    if not math.isfinite(value):
+        return None
+    return round(value / scale, digits)
+
+
+def _leg(leg) -> dict[str, Any]:
+    return {
+        "from": leg.from_name,
+        "to": leg.to_name,
+        "distance_km": _number(leg.distance_m, 1000.0),
+        "course_deg": _number(leg.course_deg, digits=1),
+        "climb_ms": _number(leg.climb_ms, digits=2),
+        "mc_ms": _number(leg.mc_ms, digits=2),
+        "airspeed_kmh": _number(leg.airspeed_ms, KMH, 1),
+        "heading_deg": _number(leg.heading_deg, digits=1),
+        "glide_ground_speed_kmh": _number(leg.glide_ground_speed_ms, KMH, 1),
+        "cruise_speed_kmh": _number(leg.cruise_speed_ms, KMH, 1),
+        "time_s": _number(leg.time_s, digits=0),
+        "required_height_m": _number(leg.required_height_m, digits=0),
+        "arrival_height_m": _number(leg.arrival_height_m, digits=0),
+        "final_glide": leg.final_glide,
+        "start_time": format_clock(leg.start_time_s) if math.isfinite(leg.start_time_s) else None,
+    }
+
+
+def _task(plan) -> dict[str, Any]:
+    task = plan.scenario.task
+    out = {
+        "name": task.name,
+        "kind": task.kind,
+        "nominal_distance_km": _number(plan.nominal_distance_m, 1000.0),
+        "optimized_distance_km": _number(plan.optimized_distance_m, 1000.0),
+    }
+    if plan.area is not None:
+        out.update({
+            "min_distance_km": _number(plan.area.min_distance_m, 1000.0),
+            "max_distance_km": _number(plan.area.max_distance_m, 1000.0),
+            "target_distance_km": _number(plan.area.target_distance_m, 1000.0),
+            "min_time_s": _number(plan.area.min_time_s, digits=0),
+        })
+    return out
+
+
+def _day(plan) -> dict[str, Any]:
+    day, safety = plan.scenario.day, plan.scenario.safety
+    profile = day.climb if day.climb is not None else day.thermal_strength
+    return {
+        "start_time": format_clock(day.start_time_s),
+        "start_height_m": _number(day.effective_start_height_m, digits=0),
+        "band_top_m": _number(day.band_top_m, digits=0),
+        "band_bottom_m": _number(day.band_bottom_m, digits=0),
+        "wind": {"from_deg": _number(day.wind.from_deg, digits=0), "speed_kmh": _number(day.wind.speed_ms, KMH, 1)},
+        "lift_profile": "climb_ms" if day.climb is not None else "thermal_strength_ms",
+        "lift": [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)],
+        "lift_ends": format_clock(day.lift_ends_s),
+        "mc_ms": _number(day.mc_ms, digits=2),
+        "final_glide_mc_ms": _number(safety.final_glide_mc_ms, digits=2),
+        "arrival_margin_m": _number(safety.arrival_margin_m, digits=0),
+        "glide_airmass_ms": _number(day.glide_airmass_ms, digits=2),
+        "isa_deviation_c": _number(day.isa_deviation_c, digits=1),
+    }
+
+
+def _extra(value):
+    """Terrain or landable results as plain data (a dict, or a dataclass turned into one)."""
+    if dataclasses.is_dataclass(value) and not isinstance(value, type):
+        return dataclasses.asdict(value)
+    if hasattr(value, "to_dict"):
+        return value.to_dict()
+    return value
+
+
+def plan_to_dict(plan) -> dict[str, Any]:
+    """The plan as the contract's ``plan --json`` object (5.3), JSON-ready (no NaN).
+
+    Parameters
+    ----------
+    plan : glidetask.engine.planner.Plan
+
+    Returns
+    -------
+    dict
+        ``task``, ``glider``, ``legs``, ``total_time_s``, ``task_speed_kmh``, ``finished``,
+        ``finish_time``, ``landout_km``, ``final_glide``, ``cautions``, and the additions
+        named in the module docstring; ``terrain`` and ``landables`` when computed.
+    """
+    final = None
+    if math.isfinite(plan.final_glide_from_m):
+        final = {"from_km": _number(plan.final_glide_from_m, 1000.0),
+                 "start_height_m": _number(plan.final_glide_height_m, digits=0),
+                 "mc_ms": _number(plan.final_glide_mc_ms, digits=2)}
+    out: dict[str, Any] = {
+        "task": _task(plan),
+        "glider": {
+            "label": plan.scenario.glider.spec.label,
+            "mass_kg": _number(plan.mass_kg, digits=1),
+            "wing_loading_kgm2": _number(plan.wing_loading_kgm2, digits=2),
+            "best_ld": _number(plan.best_ld, digits=1),
+            "best_ld_speed_kmh": _number(plan.best_ld_speed_ms, KMH, 1),
+        },
+        "planned_distance_km": _number(plan.planned_distance_m, 1000.0),
+        "start_time": format_clock(plan.start_time_s),
+        "legs": [_leg(leg) for leg in plan.legs],
+        "total_time_s": _number(plan.total_time_s, digits=0),
+        "task_speed_kmh": _number(plan.task_speed_ms, KMH, 2),
+        "finished": bool(plan.finished),
+        "finish_time": format_clock(plan.finish_time_s) if plan.finished else None,
+        "landout_km": None if plan.finished else _number(plan.landout_m, 1000.0),
+        "final_glide": final if final is not None else {"from_km": None, "start_height_m": None, "mc_ms": None},
+        "reason": plan.reason,
+        "day": _day(plan),
+        "cautions": list(plan.cautions),
+    }
+    if plan.terrain is not None:
+        out["terrain"] = _extra(plan.terrain)
+    if plan.landables is not None:
+        out["landables"] = _extra(plan.landables)
+    return out
