@@ -291,11 +291,18 @@ _WINDOW_HALF = 1.5  # half-width of the next window, in spacings of the previous
 _FINE_M = 4.0  # refine every window to below this spacing [m] (see optimized_path Notes)
 _INSIDE_M = 1e-3  # a neighbour's candidate counts as inside a zone within this [m]
 _OFFSETS = np.linspace(-1.0, 1.0, _WINDOW)
+_MAX_ROUNDS = 100  # a bound only; the search ends when every window is fine and settled
 
 
 @dataclass
 class _Window:
-    """Search state of one task point: its boundary loops and the current window on them."""
+    """Search state of one task point: its boundary loops and the current window on them.
+
+    The window is a trust region: it shrinks round by round around the chosen point, but
+    when the choice lands on its edge it moves there at the same size, so the search can
+    travel as far as it needs (the coarse round's spherical distances can put the choice
+    a few samples off where the zone is nearly flat for the path, e.g. along a line).
+    """
 
     lat: float
     lon: float
@@ -304,7 +311,9 @@ class _Window:
     loops: tuple
     loop: int = -1  # the loop the window is on (-1: the coarse round samples every loop)
     centre_s: float = 0.0  # window centre on that loop [m along the boundary]
-    spacing_m: float = math.inf
+    half_m: float = math.inf  # half-width of the window [m along the boundary]
+    spacing_m: float = math.inf  # sample spacing of the last round [m]
+    at_edge: bool = False  # the last choice sat on the window's edge
 
     def samples(self) -> tuple[np.ndarray, np.ndarray]:
         """(loop index, boundary parameter) of this round's own candidates."""
@@ -320,10 +329,7 @@ class _Window:
             self.spacing_m = max(spacings)
             return np.concatenate(loops), np.concatenate(params)
         loop = self.loops[self.loop]
-        # Shrink the window round by round; below the fine spacing keep its size, so a
-        # converged zone can still follow neighbours that are converging.
-        fine = self.spacing_m <= _FINE_M
-        half = (0.5 * (_WINDOW - 1) if fine else _WINDOW_HALF) * self.spacing_m
+        half = self.half_m
         s = self.centre_s + half * _OFFSETS
         corners = loop.corners_m
         if loop.closed:
@@ -338,6 +344,21 @@ class _Window:
                 s = np.concatenate([s, corners[near]])
         self.spacing_m = 2.0 * half / (_WINDOW - 1)
         return np.full(s.shape, self.loop), s
+
+    def recentre(self, loop_index: int, s: float, own: bool) -> None:
+        """Centre the next window on the chosen sample: smaller, unless the choice was on the
+        edge of this window (then the same size); at the fine spacing it keeps its size."""
+        loop = self.loops[loop_index]
+        if self.loop < 0:
+            moved, self.at_edge = 0.0, False
+        else:
+            moved = abs(s - self.centre_s)
+            if loop.closed:
+                moved = min(moved, loop.length_m - moved)
+            self.at_edge = own and moved >= 0.999 * self.half_m and (loop.closed or 0.0 < s < loop.length_m)
+        self.loop, self.centre_s = loop_index, s
+        if not self.at_edge and self.spacing_m > _FINE_M:
+            self.half_m = _WINDOW_HALF * self.spacing_m
 
 
 @dataclass
@@ -374,23 +395,31 @@ def _own_candidates(windows: list[_Window]) -> list[_Candidates]:
 
 
 def _with_neighbours(windows, own: list[_Candidates], overlapping: list[bool]) -> list[_Candidates]:
-    """Add to each zone the neighbours' candidates that lie inside it (where zones overlap)."""
+    """Add to each zone the candidates of its neighbours that lie inside it (where zones
+    overlap), passed along forwards and then backwards, so that a run of overlapping zones
+    can share one point."""
     from glidetask.engine.zones import contains
 
     out = list(own)
-    for i, window in enumerate(windows):
-        extra = [own[j] for j in (i - 1, i + 1) if 0 <= j < len(windows) and overlapping[min(i, j)]]
-        if not extra:
-            continue
-        lats = np.concatenate([c.lats for c in extra])
-        lons = np.concatenate([c.lons for c in extra])
-        inside = np.atleast_1d(contains(window.zone, window.lat, window.lon, lats, lons, window.axis_deg,
-                                        tolerance_m=_INSIDE_M))
+
+    def take(i: int, source: _Candidates) -> None:
+        window = windows[i]
+        inside = np.atleast_1d(contains(window.zone, window.lat, window.lon, source.lats, source.lons,
+                                        window.axis_deg, tolerance_m=_INSIDE_M))
         count = int(inside.sum())
         if count:
-            mine = own[i]
-            out[i] = _Candidates(np.concatenate([mine.lats, lats[inside]]), np.concatenate([mine.lons, lons[inside]]),
-                                 np.concatenate([mine.loop, np.full(count, -1)]), np.concatenate([mine.s, np.zeros(count)]))
+            mine = out[i]
+            out[i] = _Candidates(np.concatenate([mine.lats, source.lats[inside]]),
+                                 np.concatenate([mine.lons, source.lons[inside]]),
+                                 np.concatenate([mine.loop, np.full(count, -1)]),
+                                 np.concatenate([mine.s, np.zeros(count)]))
+
+    for i in range(1, len(windows)):  # forwards: what zone i-1 may use, zone i may share
+        if overlapping[i - 1]:
+            take(i, out[i - 1])
+    for i in range(len(windows) - 2, -1, -1):  # backwards: zone i+1's own points and what it took
+        if overlapping[i]:
+            take(i, _Candidates(*(np.asarray(getattr(out[i + 1], f)) for f in ("lats", "lons", "loop", "s"))))
     return out
 
 
@@ -467,19 +496,21 @@ def _search(task: Task, maximize: bool) -> tuple[np.ndarray, np.ndarray]:
     reach = np.array([p.zone.reach_m for p in task.points])
     overlapping = list(gaps <= reach[:-1] + reach[1:] + 1.0)
     exact = False
-    while True:
+    for _ in range(_MAX_ROUNDS):
         own = _own_candidates(windows)
         candidates = own if maximize else _with_neighbours(windows, own, overlapping)
         choice = _chain_search(_leg_costs(candidates, exact), maximize)
-        picked = [c for c in zip(candidates, choice)]
-        if exact and all(w.spacing_m <= _FINE_M for w in windows):
-            return (np.array([c.lats[k] for c, k in picked]), np.array([c.lons[k] for c, k in picked]))
+        picked = list(zip(candidates, choice))
+        if exact and all(w.spacing_m <= _FINE_M and not w.at_edge for w in windows):
+            break
         for window, (c, k) in zip(windows, picked):
-            if c.loop[k] < 0:  # a neighbour's point: centre the window on our own nearest sample
+            own_choice = c.loop[k] >= 0
+            if not own_choice:  # a neighbour's point: centre the window on our own nearest sample
                 mine = np.flatnonzero(c.loop >= 0)
                 k = mine[np.argmin(_sphere_distance(c.lats[mine], c.lons[mine], c.lats[k], c.lons[k]))]
-            window.loop, window.centre_s = int(c.loop[k]), float(c.s[k])
+            window.recentre(int(c.loop[k]), float(c.s[k]), own_choice)
         exact = True
+    return (np.array([c.lats[k] for c, k in picked]), np.array([c.lons[k] for c, k in picked]))
 
 
 @lru_cache(maxsize=128)
@@ -573,11 +604,21 @@ def _target_curve(task: Task) -> _TargetCurve:
     low, high = optimized_path(task), _longest_path(task)
     az0, r0 = (np.atleast_1d(v) for v in polar_coordinates(task.lats, task.lons, low.lats, low.lons))
     az1, r1 = (np.atleast_1d(v) for v in polar_coordinates(task.lats, task.lons, high.lats, high.lons))
+    # At the zone's very point the azimuth means nothing: move straight out along the other one.
+    az0 = np.where(r0 < 1e-3, az1, az0)
+    az1 = np.where(r1 < 1e-3, az0, az1)
     turn = (az1 - az0 + 180.0) % 360.0 - 180.0
     for i, point in enumerate(task.points):
         zone, axis = point.zone, task.axes_deg[i]
         if zone.kind == "area_sector":  # stay within the radials: turn clockwise from radial_from
-            turn[i] = (az1[i] - zone.radial_from_deg) % 360.0 - (az0[i] - zone.radial_from_deg) % 360.0
+            offsets = []
+            for azimuth in (az0[i], az1[i]):
+                offset = (azimuth - zone.radial_from_deg) % 360.0
+                if offset > zone.span_deg:  # round-off just outside a radial: onto the nearer one
+                    offset = zone.span_deg if offset - zone.span_deg < 360.0 - offset else 0.0
+                offsets.append(offset)
+            az0[i] = zone.radial_from_deg + offsets[0]
+            turn[i] = offsets[1] - offsets[0]
         elif zone.kind == "line":  # signed distance along the line, right of the axis positive
             right = axis + 90.0
             r0[i] *= 1.0 if abs((az0[i] - right + 180.0) % 360.0 - 180.0) < 90.0 else -1.0

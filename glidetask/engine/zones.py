@@ -183,8 +183,10 @@ def _outward_bisector(azimuth_in_deg: float | None, azimuth_out_deg: float | Non
         return (known + 180.0) % 360.0
     a, b = math.radians(azimuth_in_deg), math.radians(azimuth_out_deg)
     east, north = math.sin(a) + math.sin(b), math.cos(a) + math.cos(b)
-    if math.hypot(east, north) < 1e-9:  # no turn at all: take the left of the course
-        return (azimuth_out_deg - 90.0) % 360.0
+    if math.hypot(east, north) < 1e-9:  # no turn at all: of the two perpendiculars, the one
+        # between north (included) and south (excluded) through east, the same whichever way
+        # the task is flown
+        return (azimuth_out_deg + 90.0) % 180.0
     return (math.degrees(math.atan2(-east, -north))) % 360.0
 
 
@@ -204,8 +206,9 @@ def zone_axes(lats, lons, zones) -> tuple[float, ...]:
         For a line: the course of the adjacent leg at the point (a start: the first leg's
         azimuth on leaving it; a finish: the last leg's azimuth on arriving). For a sector
         or keyhole: the outward bisector of the legs (the mean direction away from the
-        previous and the next point). 0 for the other kinds. Coincident neighbours are
-        skipped to the nearest distinct point; with none, 0.
+        previous and the next point); where the legs run straight through, the
+        perpendicular that lies in [0, 180) deg. 0 for the other kinds. Coincident
+        neighbours are skipped to the nearest distinct point; with none, 0.
 
     Notes
     -----
