@@ -36,21 +36,37 @@ def what_if_problems(args: argparse.Namespace) -> list[Problem]:
     return problems
 
 
-def plan_from_args(args: argparse.Namespace):
-    """Read the task file, check the options, and plan (shared with ``export``)."""
-    problems = what_if_problems(args)
-    if problems:
-        raise InputError(problems)
-    from glidetask.engine.planner import plan
+def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = None):
+    """Read the task file, check the options against it, and plan (shared with ``export``).
+
+    Every problem is reported together: ``problems`` found by the caller, the options',
+    the task file's, and the what-ifs' against the task (e.g. ballast above the polar's
+    maximum).
+    """
+    from glidetask.engine.planner import plan, with_what_ifs
     from glidetask.engine.scenario import Wind
     from glidetask.formats.task_file import load_scenario
 
-    scenario = load_scenario(args.task)
+    problems = list(problems or []) + what_if_problems(args)
+    scenario = None
+    try:
+        scenario = load_scenario(args.task)
+    except InputError as error:
+        problems += error.problems
     wind = None
     if args.wind_value is not None:
         wind = Wind(from_deg=args.wind_value[0], speed_ms=args.wind_value[1] * units.KMH)
-    return plan(scenario, mc_ms=args.mc_ms, ballast_kg=args.ballast_kg, bugs_percent=args.bugs_percent,
-                wind=wind, start_time_s=args.start_s)
+    what_ifs = dict(mc_ms=args.mc_ms, ballast_kg=args.ballast_kg, bugs_percent=args.bugs_percent, wind=wind,
+                    start_time_s=args.start_s)
+    if scenario is not None:
+        try:
+            with_what_ifs(scenario, **what_ifs)
+        except InputError as error:  # what the options' own checks have not said already
+            said = {(p.file, p.where) for p in problems}
+            problems += [p for p in error.problems if (p.file, p.where) not in said]
+    if problems:
+        raise InputError(problems)
+    return plan(scenario, **what_ifs)
 
 
 # ---------------------------------------------------------------- text

@@ -254,7 +254,10 @@ def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_perce
 
     spec = glider.spec
     where = blame("--ballast-kg" if ballast_kg is not None else None, "[glider] ballast_kg")
-    if not 0.0 <= glider.ballast_kg <= spec.max_ballast_kg:
+    if spec.max_ballast_kg <= 0.0 and glider.ballast_kg != 0.0:
+        problems.append(Problem(*where, f"this glider carries no water ballast (the polar's maximum is 0 kg), "
+                                        f"got {glider.ballast_kg:g} kg"))
+    elif not 0.0 <= glider.ballast_kg <= spec.max_ballast_kg:
         problems.append(Problem(*where, f"ballast {glider.ballast_kg:g} kg is outside 0-{spec.max_ballast_kg:g} kg, "
                                         f"the polar's maximum water ballast"))
     elif spec.max_mass_kg is not None and glider.mass_kg > spec.max_mass_kg + 1e-9:
@@ -497,17 +500,17 @@ def plan_cautions(plan: Plan) -> list[str]:
         glide_on = (f"gliding on at MacCready 0 down to {floor:.0f} m (finish elevation plus the arrival "
                     f"margin, taken as the ground)")
         if reason == flight.LIFT_ENDED:
-            why = f"Lift ends at {format_clock(day.lift_ends_s)} before the final glide can start"
+            why = f"lift ends at {format_clock(day.lift_ends_s)} before the final glide can start"
         elif reason == flight.NO_CLIMB:
-            why = f"The climb profile gives no climb at {format_clock(stop)}, before the final glide can start"
+            why = f"the climb profile gives no climb at {format_clock(stop)}, before the final glide can start"
         elif reason == flight.UNREACHABLE:
             speed = day.wind.speed_ms * 3.6
-            why = (f"The wind ({day.wind.from_deg:03.0f}/{speed:.0f} km/h) is too strong for this glider to make "
+            why = (f"the wind ({day.wind.from_deg:03.0f}/{speed:.0f} km/h) is too strong for this glider to make "
                    f"progress with climbs")
         elif reason == flight.BELOW_FLOOR:
-            why = "The plan reaches the finish below the arrival margin"
+            why = "the plan reaches the finish below the arrival margin"
         else:
-            why = "The plan cannot be completed"
+            why = "the plan cannot be completed"
         out.append(f"Task not completed: {why}; the plan ends {_where(plan, plan.landout_m)}, {glide_on}.")
     elif reason != flight.FINAL_GLIDE:
         arrival = plan.legs[-1].arrival_height_m

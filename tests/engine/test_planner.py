@@ -134,7 +134,7 @@ def test_lift_ending_early_ends_the_plan_short_with_a_caution():
     assert not p.finished
     assert 0.0 < p.landout_m < p.planned_distance_m
     assert p.cautions[:len(cautions.GENERAL)] == cautions.GENERAL
-    assert any(c.startswith("Task not completed: Lift ends at 13:30") for c in p.cautions)
+    assert any(c.startswith("Task not completed: lift ends at 13:30") for c in p.cautions)
     reached = [leg for leg in p.legs if math.isfinite(leg.arrival_height_m)]
     assert len(reached) < len(p.legs)
 

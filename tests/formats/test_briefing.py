@@ -1,0 +1,73 @@
+"""The one-page pre-flight briefing (glidetask.formats.briefing)."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+
+import pytest
+
+from glidetask import cautions
+from glidetask.engine.planner import CARD_MC_MS, final_glide_card, plan
+from glidetask.engine.scenario import Wind
+from glidetask.formats.briefing import plan_to_markdown
+from glidetask.formats.task_file import load_scenario
+
+ROOT = Path(__file__).resolve().parents[2]
+
+
+@pytest.fixture(scope="module")
+def triangle():
+    p = plan(load_scenario(ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"))
+    return p, plan_to_markdown(p)
+
+
+def _table_after(text: str, heading: str) -> list[list[str]]:
+    """The rows of the first table under ``heading`` (its header first, no separator row)."""
+    section = text.split(heading, 1)[1].split("\n## ", 1)[0]
+    rows = [line for line in section.splitlines() if line.startswith("|")]
+    cells = [[c.strip() for c in row.strip("|").split("|")] for row in rows]
+    return [c for c in cells if not set("".join(c)) <= set(":-")]
+
+
+def test_briefing_has_every_section_and_fits_a_page(triangle):
+    _, text = triangle
+    for heading in ("# Pre-flight briefing", "## Legs", "## Heights needed to get home", "## Day assumed",
+                    "## Cautions"):
+        assert heading in text
+    # A printed page holds about 60 lines (common practice for A4/letter at 10-11 pt).
+    assert len(text.splitlines()) <= 60
+
+
+def test_legs_table_has_one_row_per_leg_with_the_plan_figures(triangle):
+    p, text = triangle
+    rows = _table_after(text, "## Legs")
+    assert len(rows) == 1 + len(p.legs)  # the header and one row per leg
+    for row, leg in zip(rows[1:], p.legs):
+        assert leg.from_name in row[1] and leg.to_name in row[1]
+        assert row[2] == f"{leg.distance_m / 1000:.1f}"
+        assert row[-1] == f"{leg.arrival_height_m:.0f}"
+        assert row[-2] == f"{leg.required_height_m:.0f}"
+
+
+def test_final_glide_card_shows_the_engine_requirements(triangle):
+    p, text = triangle
+    rows = _table_after(text, "## Heights needed to get home")
+    assert rows[0][3:] == [f"MC {m:.0f}" for m in CARD_MC_MS]
+    card = final_glide_card(p)
+    for i, row in enumerate(rows[1:]):
+        assert [int(v) for v in row[3:]] == [round(card[j, i]) for j in range(len(CARD_MC_MS))]
+
+
+def test_every_caution_is_in_the_briefing(triangle):
+    p, text = triangle
+    for caution in (*cautions.GENERAL, *p.cautions):
+        assert caution in text
+
+
+def test_briefing_in_aviation_units_and_for_a_plan_that_ends_short():
+    p = plan(load_scenario(ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"), wind=Wind(250.0, 200 / 3.6))
+    text = plan_to_markdown(p, "aviation")
+    assert "Ends short" in text and "not completed" in text
+    assert re.search(r"Dist NM", text) and "Need ft" in text
+    assert "MC 0 | MC 2 | MC 4 | MC 6" in text  # the aviation card in knots
