@@ -78,18 +78,19 @@ def read_turnpoints(path: str | os.PathLike) -> tuple[Turnpoint, ...]:
 class _Fields:
     """Checks one record's values, reporting problems under ``where``."""
 
-    __slots__ = ("problems", "where")
+    __slots__ = ("problems", "where", "text_numbers")
 
-    def __init__(self, problems: ProblemCollector, where: str):
+    def __init__(self, problems: ProblemCollector, where: str, text_numbers: bool = False):
         self.problems = problems
         self.where = where
+        self.text_numbers = text_numbers  # CSV cells are text; JSON numbers must be numbers
 
     def fail(self, what: str) -> None:
         self.problems.add(self.where, what)
 
     def number(self, key: str, value, *, low: float | None = None, high: float | None = None,
                positive: bool = False) -> float | None:
-        if isinstance(value, str):
+        if isinstance(value, str) and self.text_numbers:
             try:
                 value = float(value.strip())
             except ValueError:
@@ -158,21 +159,64 @@ def _turnpoint(fields: _Fields, name, code, lat, lon, elevation, landable, kind,
                      heading, length, note)
 
 
-def _check_unique(problems: ProblemCollector, points: list[tuple[str, Turnpoint]]) -> None:
+def _place(where: str | int, point: Turnpoint) -> str:
+    """A record's place: given as text, or as a GeoJSON feature number (text made only when needed)."""
+    return where if isinstance(where, str) else f"feature {where} ({point.name})"
+
+
+def _check_unique(problems: ProblemCollector, points: list[tuple[str | int, Turnpoint]]) -> None:
     """Report repeated names and codes, naming where each was first seen."""
     for attribute in ("name", "code"):
-        first_seen: dict[str, str] = {}
+        first_seen: dict[str, tuple] = {}
         for where, point in points:
             value = getattr(point, attribute)
             if value is None:
                 continue
             if value in first_seen:
-                problems.add(where, f"{attribute} {value!r} is used again (first at {first_seen[value]})")
+                problems.add(_place(where, point),
+                             f"{attribute} {value!r} is used again (first at {_place(*first_seen[value])})")
             else:
-                first_seen[value] = where
+                first_seen[value] = (where, point)
 
 
 # ---------------------------------------------------------------- GeoJSON
+
+
+_NUMBER = (int, float)
+_KINDS = frozenset(TURNPOINT_KINDS)
+
+
+def _plain_feature(feature) -> Turnpoint | None:
+    """The turnpoint of a well-formed feature, checked with as little work as possible, or
+    None: then the careful path below looks at it again and says what is wrong.
+    (Large files are almost all well-formed; this keeps 50,000 points quick.)"""
+    try:
+        if feature["type"] != "Feature" or feature["geometry"]["type"] != "Point":
+            return None
+        coordinates = feature["geometry"]["coordinates"]
+        properties = feature["properties"]
+        if type(coordinates) is not list or len(coordinates) != 2 or type(properties) is not dict:
+            return None
+        lon, lat = coordinates
+        name = properties["name"]
+        elevation = properties["elevation_m"]
+    except (KeyError, TypeError, ValueError):
+        return None
+    get = properties.get
+    code, landable, kind, note = get("code"), get("landable", False), get("kind", "waypoint"), get("note", "")
+    heading, length = get("runway_heading_deg"), get("runway_length_m")
+    if not (type(lon) in _NUMBER and type(lat) in _NUMBER and type(elevation) in _NUMBER
+            and -90.0 <= lat <= 90.0 and -360.0 <= lon <= 360.0
+            and ELEVATION_RANGE_M[0] <= elevation <= ELEVATION_RANGE_M[1]
+            and type(name) is str and name and name == name.strip()
+            and (code is None or (type(code) is str and code and code == code.strip()))
+            and type(landable) is bool and kind in _KINDS and type(note) is str
+            and (heading is None or (type(heading) in _NUMBER and 0.0 <= heading <= 360.0))
+            and (length is None or (type(length) in _NUMBER and 0.0 < length < math.inf))):
+        return None
+    return Turnpoint(name, code, float(lat), ((lon + 180.0) % 360.0) - 180.0, float(elevation), landable, kind,
+                     None if heading is None else float(heading), None if length is None else float(length),
+                     note.strip())
 
 
 def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
@@ -187,8 +231,12 @@ def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
     features = document.get("features")
     if not isinstance(features, list):
         raise InputError.one(file, "features", "expected a list of features")
-    points: list[tuple[str, Turnpoint]] = []
+    points: list[tuple[str | int, Turnpoint]] = []
     for number, feature in enumerate(features, start=1):
+        point = _plain_feature(feature)
+        if point is not None:
+            points.append((number, point))
+            continue
         where = f"feature {number}"
         if not isinstance(feature, dict) or feature.get("type") != "Feature":
             problems.add(where, "expected a GeoJSON Feature object")
@@ -267,7 +315,7 @@ def parse_csv(text: str, file: str = "<csv>") -> tuple[Turnpoint, ...]:
         lines_read = reader.line_num
         if not row or all(not cell.strip() for cell in row) or row[0].lstrip().startswith("#"):
             continue
-        fields = _Fields(problems, where)
+        fields = _Fields(problems, where, text_numbers=True)
         if len(row) != width:
             fields.fail(f"expected {width} fields as in the header, got {len(row)}")
             continue
