@@ -229,27 +229,40 @@ class Coverage:
         k = int(self.best_landable[sample])
         return self.landable_names[k] if k >= 0 else None
 
-    def gap_reasons(self) -> tuple[str, ...]:
-        """Why each gap is one: ``"range"`` (no field within a glide), ``"terrain"`` (the
-        terrain is in the way) or ``"unknown"`` (the terrain model does not cover the glides)."""
-        reasons = []
+    def _cells_m(self) -> np.ndarray:
+        """Length of path each sample stands for: midpoint to midpoint [m]."""
+        if self.distance_m.size < 2:
+            return np.zeros(self.distance_m.shape)
+        mid = 0.5 * (self.distance_m[1:] + self.distance_m[:-1])
+        return np.diff(np.concatenate((self.distance_m[:1], mid, self.distance_m[-1:])))
+
+    def gap_breakdown(self) -> tuple[dict[str, float], ...]:
+        """For each gap, the length [m] of it for each cause: ``range`` (no field within a
+        glide), ``terrain`` (terrain in the way, or the band bottom too near the ground) and
+        ``unknown`` (glides the terrain model does not cover), by the samples inside it."""
+        cells = self._cells_m()
+        out = []
         for start, end in self.gaps:
-            inside = self.status[(self.distance_m >= start) & (self.distance_m <= end)]
-            if np.any(inside == TERRAIN_UNKNOWN):
-                reasons.append("unknown")
-            elif np.any(inside == TERRAIN_BLOCKED):
-                reasons.append("terrain")
-            else:
-                reasons.append("range")
+            inside = (self.distance_m >= start) & (self.distance_m <= end)
+            out.append({name: float(np.sum(cells[inside & (self.status == code)]))
+                        for name, code in (("range", OUT_OF_RANGE), ("terrain", TERRAIN_BLOCKED),
+                                           ("unknown", TERRAIN_UNKNOWN))})
+        return tuple(out)
+
+    def gap_reasons(self) -> tuple[str, ...]:
+        """The main cause of each gap: the one covering most of it (see :meth:`gap_breakdown`);
+        a gap between two samples with no sample inside takes ``range``."""
+        reasons = []
+        for parts in self.gap_breakdown():
+            ranked = sorted(parts, key=lambda name: (-parts[name], ("unknown", "terrain", "range").index(name)))
+            reasons.append(ranked[0] if parts[ranked[0]] > 0.0 else "range")
         return tuple(reasons)
 
     def share_with_status(self, status: int) -> float:
         """Share of the path's length whose samples have this status [0-1]."""
         if self.distance_m.size < 2 or self.total_m <= 0.0:
             return float(np.all(self.status == status)) if self.status.size else 0.0
-        mid = 0.5 * (self.distance_m[1:] + self.distance_m[:-1])
-        cells = np.diff(np.concatenate((self.distance_m[:1], mid, self.distance_m[-1:])))
-        return float(np.sum(cells[self.status == status]) / self.total_m)
+        return float(np.sum(self._cells_m()[self.status == status]) / self.total_m)
 
 
 # ---------------------------------------------------------------- coverage

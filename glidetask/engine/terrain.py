@@ -35,6 +35,9 @@ from glidetask.engine import geodesy
 
 #: Largest sample spacing along a path [m] (shared issue: at most 250 m).
 PATH_SPACING_M = 250.0
+#: A glide that misses the clearance by less than this still passes [m]: heights are shown
+#: to the metre, and a plan's start height comes from its own solver, not this module's.
+CLEARANCE_TOLERANCE_M = 0.5
 _NEGLIGIBLE_WEIGHT = 1e-9
 _FOOT_M = 0.3048
 _FEET_UNITS = {"ft", "foot", "feet", "us-ft", "us survey foot", "international foot"}
@@ -454,7 +457,8 @@ class FinalGlideTerrain:
         The elevation model's file.
     ok : bool
         True when the model covers the whole glide and the glide as planned clears the
-        terrain by at least ``clearance_m`` everywhere. False otherwise: never a silent pass.
+        terrain by at least ``clearance_m`` everywhere (less :data:`CLEARANCE_TOLERANCE_M`).
+        False otherwise: never a silent pass.
     clearance_m : float
         The clearance demanded over the terrain [m].
     min_clearance_m : float
@@ -476,7 +480,8 @@ class FinalGlideTerrain:
         The height at which the glide as planned starts [m MSL]: the one given, or
         ``required_start_m``.
     shortfall_m : float
-        ``max(0, required_start_m - start_height_m)``: height missing for the clearance [m].
+        ``required_start_m - start_height_m`` where that exceeds :data:`CLEARANCE_TOLERANCE_M`,
+        else 0: height missing for the clearance [m].
     covered_share : float
         Share of the glide's length covered by the elevation model [0-1].
     uncovered : tuple of (float, float)
@@ -575,6 +580,12 @@ def _terrain_point(index, distance, lats, lons, terrain, glide, clearance_m, lan
     )
 
 
+def _shortfall(required_m: float, start_m: float) -> float:
+    """Height missing for the clearance [m]; within the tolerance it is none."""
+    missing = required_m - start_m
+    return missing if missing > CLEARANCE_TOLERANCE_M else 0.0
+
+
 def final_glide_clearance(distance_m, required_height_m, terrain_m, clearance_m: float, *,
                           start_height_m: float | None = None, lats=None, lons=None,
                           landmarks: Sequence = (), source: str = "") -> FinalGlideTerrain:
@@ -660,11 +671,11 @@ def final_glide_clearance(distance_m, required_height_m, terrain_m, clearance_m:
         obstacle = _terrain_point(worst, distance, lats, lons, terrain, glide, clearance_m, landmarks)
 
     covered = _covered_share(distance, known)
-    ok = bool(known.all() and math.isfinite(min_clearance) and min_clearance >= clearance_m - 1e-6)
+    ok = bool(known.all() and math.isfinite(min_clearance) and min_clearance >= clearance_m - CLEARANCE_TOLERANCE_M)
     return FinalGlideTerrain(
         source=source, ok=ok, clearance_m=float(clearance_m), min_clearance_m=min_clearance, at_m=at,
         lowest=lowest, raised_by_m=raised_by, obstacle=obstacle, required_start_m=required_start,
-        start_height_m=start, shortfall_m=max(0.0, required_start - start), covered_share=covered,
+        start_height_m=start, shortfall_m=_shortfall(required_start, start), covered_share=covered,
         uncovered=_runs(distance, ~known),
         distance_m=distance, lats=lats if lats is not None else np.full(distance.shape, np.nan),
         lons=lons if lons is not None else np.full(distance.shape, np.nan),

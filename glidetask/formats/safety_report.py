@@ -20,6 +20,7 @@ from glidetask.units import UnitSystem
 _COMPASS = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW")
 _GAP_REASONS = {"range": "no field within a glide", "terrain": "terrain in the way",
                 "unknown": "terrain model does not cover the glides"}
+_SHOWN_SHORTFALL_M = 0.5  # a height missing below this rounds to nothing on screen [m]
 
 
 def _num(value):
@@ -95,7 +96,8 @@ def landables_to_dict(c, leg_names: Sequence | None = None) -> dict:
     """The contract's ``landables`` object for a :class:`~glidetask.engine.reach.Coverage`.
 
     Keys of the contract: ``coverage_percent``, ``gaps`` [{``from_km``, ``to_km``}] (plus
-    ``reason``: ``range``, ``terrain`` or ``unknown``), ``by_leg`` [{``leg``, ``nearest``,
+    ``reason``, the main cause: ``range``, ``terrain`` or ``unknown``, and ``by_reason_km``,
+    the length of the gap for each cause), ``by_leg`` [{``leg``, ``nearest``,
     ``distance_km``}] with ``leg`` numbered from 1 like the legs a pilot flies (plus
     ``alternates`` [{``name``, ``distance_km``}] and, given ``leg_names`` as (from, to)
     pairs, ``from`` and ``to``). Extra keys: ``band_bottom_m``, ``arrival_margin_m``,
@@ -110,8 +112,9 @@ def landables_to_dict(c, leg_names: Sequence | None = None) -> dict:
         by_leg.append(item)
     return {
         "coverage_percent": _num(c.coverage_percent),
-        "gaps": [{"from_km": _km(a), "to_km": _km(b), "reason": reason}
-                 for (a, b), reason in zip(c.gaps, c.gap_reasons())],
+        "gaps": [{"from_km": _km(a), "to_km": _km(b), "reason": reason,
+                  "by_reason_km": {name: _km(length) for name, length in parts.items()}}
+                 for (a, b), reason, parts in zip(c.gaps, c.gap_reasons(), c.gap_breakdown())],
         "by_leg": by_leg,
         "band_bottom_m": _num(c.band_bottom_m),
         "arrival_margin_m": _num(c.margin_m),
@@ -132,7 +135,7 @@ def terrain_cautions(t, units: UnitSystem) -> list[str]:
         model = f"The terrain model {t.source}" if t.source else "The terrain model"
         out.append(f"{model} does not cover {100.0 * (1.0 - t.covered_share):.0f}% of the "
                    f"final glide ({stretches}): clearance there is unknown, not checked.")
-    if t.shortfall_m > 0.0:
+    if t.shortfall_m >= _SHOWN_SHORTFALL_M:
         out.append(f"The glide does not clear the terrain by {units.fmt_height(t.clearance_m)}: it needs "
                    f"{units.fmt_height(t.shortfall_m)} more height ({units.fmt_height(t.required_start_m)}).")
     elif t.raised_by_m > 0.0 and t.obstacle is not None:
@@ -151,7 +154,7 @@ def landables_cautions(c, units: UnitSystem) -> list[str]:
         out.append(f"No landable field is in reach from the band bottom ({units.fmt_height(c.band_bottom_m)}) on "
                    f"{len(c.gaps)} stretch{'es' if len(c.gaps) != 1 else ''} of the task "
                    f"({units.fmt_distance(length)} in all): stay higher there or plan where to land.")
-    if "unknown" in c.gap_reasons():
+    if any(parts["unknown"] > 0.0 for parts in c.gap_breakdown()):
         out.append("The terrain model does not cover some glides to fields: those fields were not counted as in reach.")
     return out
 
@@ -177,7 +180,7 @@ def _terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
         return [("verdict", "NOT CHECKED: the terrain model covers none of the final glide")]
     if t.ok:
         verdict = f"clears the terrain by at least {units.fmt_height(t.clearance_m)}"
-    elif t.shortfall_m > 0.0:
+    elif t.shortfall_m > 0.0:  # ok is false: say so even when the height missing rounds to 0 m
         verdict = f"NOT CLEARED: the glide passes less than {units.fmt_height(t.clearance_m)} over the terrain"
     else:
         verdict = "NOT CHECKED EVERYWHERE: the terrain model does not cover all of the glide"
@@ -190,7 +193,7 @@ def _terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
     else:
         facts.append(("terrain demands", f"nothing beyond the arrival margin "
                                          f"({units.fmt_height(t.required_start_m)} at the start)"))
-    if t.shortfall_m > 0.0:
+    if t.shortfall_m >= _SHOWN_SHORTFALL_M:
         facts.append(("height missing", f"{units.fmt_height(t.shortfall_m)} "
                                         f"(starting at {units.fmt_height(t.start_height_m)})"))
     missing = ", ".join(f"{units.fmt_distance(a)} to {units.fmt_distance(b)}" for a, b in t.uncovered)
@@ -205,6 +208,16 @@ def terrain_text(t, units: UnitSystem) -> str:
     return "\n".join([title] + [f"  {label:<17} {text}" for label, text in _terrain_facts(t, units)])
 
 
+def _gap_whys(c, units: UnitSystem) -> list[str]:
+    """Each gap's main cause, and the others with their lengths."""
+    whys = []
+    for reason, parts in zip(c.gap_reasons(), c.gap_breakdown()):
+        others = [f"{_GAP_REASONS[name]} over {units.fmt_distance(length)}"
+                  for name, length in parts.items() if name != reason and length > 0.0]
+        whys.append(_GAP_REASONS[reason] + (f" ({'; '.join(others)})" if others else ""))
+    return whys
+
+
 def landables_text(c, units: UnitSystem, leg_names: Sequence | None = None) -> str:
     """A readable section on landable coverage along the task (text plan)."""
     terrain = (f", clearing terrain by {units.fmt_height(c.clearance_m)}" if c.terrain_checked else "")
@@ -216,9 +229,9 @@ def landables_text(c, units: UnitSystem, leg_names: Sequence | None = None) -> s
     lines.append(f"  coverage   {c.coverage_percent:.0f}% of the task")
     if not c.gaps:
         lines.append("  gaps       none")
-    for (start, end), reason in zip(c.gaps, c.gap_reasons()):
+    for (start, end), why in zip(c.gaps, _gap_whys(c, units)):
         lines.append(f"  gap        {units.fmt_distance(start)} to {units.fmt_distance(end)}"
-                     f" ({units.fmt_distance(end - start)}): {_GAP_REASONS[reason]}")
+                     f" ({units.fmt_distance(end - start)}): {why}")
     for entry in c.by_leg:
         label = _leg_label(entry.leg, leg_names)
         if entry.nearest is None:
@@ -338,9 +351,9 @@ def landables_markdown(c, units: UnitSystem, leg_names: Sequence | None = None) 
     lines += [f"**Coverage: {c.coverage_percent:.0f}% of the task.**", ""]
     if c.gaps:
         lines += [f"| Gap from ({d}) | to ({d}) | length ({d}) | why |", "|---:|---:|---:|---|"]
-        for (start, end), reason in zip(c.gaps, c.gap_reasons()):
+        for (start, end), why in zip(c.gaps, _gap_whys(c, units)):
             lines.append(f"| {units.distance(start):.1f} | {units.distance(end):.1f} | "
-                         f"{units.distance(end - start):.1f} | {_GAP_REASONS[reason]} |")
+                         f"{units.distance(end - start):.1f} | {why} |")
     else:
         lines.append("No gaps: a landable field is in reach from every point of the task.")
     lines += ["", f"| Leg | Nearest field in reach | off track ({d}) | other alternates |", "|---|---|---:|---|"]

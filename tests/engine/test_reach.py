@@ -281,3 +281,24 @@ def test_no_landables_at_all_is_a_result_not_a_crash():
     result = coverage(lats, lons, s, 0, [], POLAR, CALM, BAND_BOTTOM, MARGIN)
     assert result.coverage_percent == 0.0 and result.gaps == ((0.0, 10_000.0),)
     assert result.by_leg[0].nearest is None and math.isnan(result.by_leg[0].distance_m)
+
+
+def test_a_gap_says_how_much_of_it_is_terrain_and_how_much_is_range(tmp_path):
+    # By hand: one field at the start, 600 m up: 1000 - 600 - 200 = 200 m to lose, so it is
+    # in reach for 200 x L/D (about 8.5 km). Ground at 900 m from 46.1 to 46.2 N (about
+    # 11.1 km of the path, GeographicLib) puts the band bottom within 150 m of it there.
+    grid = np.zeros((40, 40))
+    grid[20:30, :] = 900.0  # rows 20-29 from the top at 46.4 N: 46.2 down to 46.1 N
+    terrain = write_raster(tmp_path / "plateau.tif", grid, -33.2, 46.4, STEP)
+    lats, lons, s = meridian_path(40)
+    result = coverage(lats, lons, s, 0, [field("Start Field", 46.0, -33.0, elevation=600.0)], POLAR, CALM,
+                      BAND_BOTTOM, MARGIN, terrain=terrain)
+    ((start, end),) = result.gaps
+    assert start == pytest.approx(200.0 * LD, abs=1.0) and end == pytest.approx(40_000.0)
+    (parts,) = result.gap_breakdown()
+    plateau = WGS84.Inverse(46.1, -33.0, 46.2, -33.0)["s12"]
+    # Tolerance: samples every 1 km, and bilinear ramps half a cell (0.55 km) at each edge.
+    assert parts["terrain"] == pytest.approx(plateau, abs=1600.0)
+    assert parts["range"] + parts["terrain"] == pytest.approx(end - start, abs=1000.0)
+    assert parts["unknown"] == 0.0
+    assert result.gap_reasons() == ("range",)

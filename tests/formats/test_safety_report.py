@@ -92,6 +92,10 @@ def test_landables_object_has_the_contract_keys_and_legs_numbered_from_one():
         (pytest.approx(reach_km, abs=1e-5), pytest.approx(80.0 - reach_km, abs=1e-5)),
         (pytest.approx(80.0 + reach_km, abs=1e-5), pytest.approx(160.0 - reach_km, abs=1e-5))]
     assert all(g["reason"] == "range" for g in data["gaps"])
+    # Each gap's length by cause, from the 1 km samples inside it (within one sample).
+    for gap in data["gaps"]:
+        assert gap["by_reason_km"]["range"] == pytest.approx(gap["to_km"] - gap["from_km"], abs=1.0)
+        assert gap["by_reason_km"]["terrain"] == 0.0 and gap["by_reason_km"]["unknown"] == 0.0
     first = data["by_leg"][0]
     assert first["leg"] == 1 and first["nearest"] == "Ashfield" and first["distance_km"] == pytest.approx(0.0)
     assert (first["from"], first["to"]) == ("Ashfield", "Bramble")
