@@ -149,15 +149,16 @@ def task_problems(kind: str, zone_kinds: list[str], min_time_s: float | None) ->
     if kind not in TASK_KINDS:
         return [(None, f"unknown task kind {kind!r}; expected racing or area")]
     least = 3 if kind == "area" else 2
+    a_kind = "an area" if kind == "area" else "a racing"
     if len(zone_kinds) < least:
-        problems.append((None, f"a {kind} task needs at least {least} points, got {len(zone_kinds)}"))
+        problems.append((None, f"{a_kind} task needs at least {least} points, got {len(zone_kinds)}"))
     turn_kinds = AREA_KINDS if kind == "area" else TURN_KINDS
     last = len(zone_kinds) - 1
     for i, zone_kind in enumerate(zone_kinds):
         role = "start" if i == 0 else "finish" if i == last else "turn"
         allowed = START_FINISH_KINDS if role != "turn" else turn_kinds
         if zone_kind not in allowed:
-            problems.append((i, f"a {zone_kind!r} zone cannot be the {role} of a {kind} task; "
+            problems.append((i, f"a {zone_kind!r} zone cannot be the {role} of {a_kind} task; "
                                 f"expected {' or '.join(allowed)}"))
     if kind == "area":
         if min_time_s is None or not min_time_s > 0.0:

@@ -146,6 +146,11 @@ def _show(value: Any) -> str:
     return json.dumps(value) if isinstance(value, (bool, int, float)) else repr(value)
 
 
+def _a(word: str) -> str:
+    """``word`` with its indefinite article."""
+    return f"{'an' if word[:1] in 'aeiou' else 'a'} {word}"
+
+
 def _resolve(base: Path, value: str) -> Path:
     """A path from a task file, relative to the task file's folder (as the user can open it)."""
     path = Path(os.path.expanduser(value))
@@ -198,7 +203,7 @@ def _zone(reader: _Reader, entry: dict, where: str, task_kind: str, role: str) -
         every = set(_START_FINISH) | set(_RACING_TURNS) | set(_AREA_TURNS)
         if name in every:
             place = "a turn" if role == "turn" else f"the {role}"
-            what = f"a {name} cannot be {place} of a {task_kind} task; use {' or '.join(table)}"
+            what = f"a {name} cannot be {place} of {_a(task_kind)} task; use {' or '.join(table)}"
         else:
             what = f"unknown zone {name!r}; use {' or '.join(table)}"
         reader.add(f"{where} zone", what)
@@ -291,7 +296,7 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
     if kind is not None:
         least = 3 if kind == "area" else 2
         if len(entries) < least:
-            reader.add("[[task.points]]", f"a {kind} task needs at least {least} points (start, "
+            reader.add("[[task.points]]", f"{_a(kind)} task needs at least {least} points (start, "
                                           f"{'turns, ' if kind == 'area' else ''}finish), got {len(entries)}")
             ok = False
     if not ok or reader.problems or name is None:
