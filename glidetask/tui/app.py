@@ -246,7 +246,7 @@ class GlideTaskApp(App[int]):
         self.last_compute_s = outcome.elapsed_s
         self.plan = outcome
         self._publish_problems()
-        self.notice = f"plan updated ({outcome.elapsed_s * 1000:.0f} ms)"
+        self.notice = "plan updated"
 
     def _plan_failed(self, generation: int, problems: list[Problem]) -> None:
         if generation != self._generation:

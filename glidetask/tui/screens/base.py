@@ -42,6 +42,11 @@ class ViewScreen(Screen):
         self.watch(self.app, "units", self._units_changed, init=False)
         self.watch(self.app, "invalid_fields", self._highlight_fields)
 
+    def on_resize(self, event) -> None:
+        # small terminals: panels keep only a title rule, so the figures keep their rows
+        self.set_class(event.size.height < 32, "-short")
+        self.set_class(event.size.width < 100, "-narrow")
+
     def _scenario_changed(self, scenario) -> None:
         if scenario is not None:
             self.show_scenario(scenario)

@@ -8,7 +8,7 @@ from glidetask import cautions
 
 
 class CautionBar(Static):
-    """One or two lines of the compact caution; f1 shows them in full."""
+    """The compact caution (two lines at 80 columns); f1 shows them in full."""
 
     def __init__(self, **kwargs):
-        super().__init__(f"⚠ {cautions.COMPACT} (f1: in full)", markup=False, **kwargs)
+        super().__init__(cautions.COMPACT, markup=False, **kwargs)
