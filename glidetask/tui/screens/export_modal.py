@@ -49,7 +49,7 @@ class ExportModal(ModalScreen):
 
         app = self.app
         try:
-            target = export_plan(event.value.strip(), app.plan.scenario, app.plan.plan)
+            target = export_plan(event.value.strip(), app.plan.plan, app.units.name)
         except Exception as error:  # a failed export is a message in the dialog, never a crash
             self.query_one("#export-error", Static).update(f"✗ not written: {error}")
             return
