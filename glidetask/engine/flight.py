@@ -785,6 +785,8 @@ class _Simulation:
         self.fg_from[rows] = self.leg_start[k] + self.pos[rows]
         self.fg_height[rows], self.fg_mc[rows], self.fg_leg[rows] = h, setting, k
         self.fg_sigma[rows] = self.sigma_fg[rows] if planned else self.sigma_band[rows]
+        if not planned:  # the glide home's own table, for the requirements on its legs
+            self.hpm_fg[rows], self.tail[rows] = hpm, self._tail(hpm)
         self.end_t[rows] = t + cumulative_time[:, -1]
         self.finished[rows], self.reason[rows], self.mode[rows] = True, reason, _DONE
 
@@ -850,10 +852,22 @@ class _Simulation:
         self._landed(rows, UNRESOLVED)
 
     def leg_requirements(self):
-        """Required height at each leg's start reached, at the final-glide setting in force
-        then, with the density of its own final glide, shape (N, L) [m MSL]; one solve."""
-        pairs = np.argwhere(np.isfinite(self.leg_entry) & np.isfinite(self.leg_fg_mc))
+        """Required height at each leg's start reached [m MSL], shape (N, L).
+
+        Legs entered in the final glide take it from the final glide's own table, so the
+        requirement there is what that glide plans to pass with. The others are what a final
+        glide from the leg's start would need at the setting in force then, with the density
+        of its own start and arrival heights (one solve for all of them).
+        """
+        reached = np.isfinite(self.leg_entry) & np.isfinite(self.leg_fg_mc)
+        gliding_home = np.arange(self.legs)[None, :] > self.fg_leg[:, None]
+        gliding_home &= (self.fg_leg >= 0)[:, None] & reached
         required = np.full((self.n, self.legs), np.nan)
+        pairs = np.argwhere(gliding_home)
+        if pairs.size:
+            rows, legs = pairs[:, 0], pairs[:, 1]
+            required[rows, legs] = self.required(rows, legs, np.zeros(rows.size))
+        pairs = np.argwhere(reached & ~gliding_home)
         if pairs.size:
             rows, legs = pairs[:, 0], pairs[:, 1]
             zero = np.zeros(rows.size)
