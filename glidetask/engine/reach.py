@@ -9,13 +9,15 @@ every sample, the stretches of the task with none (gaps) and the alternates for 
 
 Candidates are pruned with a k-d tree (:class:`scipy.spatial.cKDTree`) on unit-sphere
 coordinates: no field beyond the longest glide the band allows can be in reach, so a
-file of 50,000 fields costs little more than one of fifty.
+file of 50,000 fields costs little more than one of fifty. (For a few hundred fields the
+same radius test runs on every pair directly, which spares importing scipy.spatial.)
 """
 
 from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from functools import cached_property
 from typing import Sequence
 
 import numpy as np
@@ -37,6 +39,9 @@ _NO_PROGRESS = 1.0e6  # height per metre standing for "no progress possible" [m/
 _LONGEST_GLIDE_M = 1.0e6  # cap on the search radius when the air mass rises faster than the glider sinks
 _GLIDE_SPACING_M = 250.0  # terrain samples along a glide to a landable [m]
 _CHUNK_SAMPLES = 2_000_000  # terrain samples checked per vectorised batch
+# Up to this many (sample, landable) pairs the candidates are found by comparing every
+# pair's chord directly: cheaper than importing scipy.spatial and building a tree.
+_DIRECT_PAIRS = 2_000_000
 
 
 def reach_distance(polar: Polar, height_m, course_deg=0.0, wind: Wind = Wind(), airmass_ms=0.0):
@@ -99,18 +104,27 @@ class LandableIndex:
         Positions [deg].
     elevation_m : ndarray
         Field elevations [m MSL].
-    tree : scipy.spatial.cKDTree or None
-        Over the unit-sphere coordinates; None when there are no landables.
+    xyz : ndarray, shape (n, 3)
+        Unit-sphere coordinates.
     """
 
     names: tuple[str, ...]
     lats: np.ndarray
     lons: np.ndarray
     elevation_m: np.ndarray
-    tree: object
+    xyz: np.ndarray
 
     def __len__(self) -> int:
         return len(self.names)
+
+    @cached_property
+    def tree(self):
+        """A :class:`scipy.spatial.cKDTree` over ``xyz``, built on first use (None without landables)."""
+        if not self.names:
+            return None
+        from scipy.spatial import cKDTree
+
+        return cKDTree(self.xyz)
 
 
 def landable_index(turnpoints: Sequence) -> LandableIndex:
@@ -120,12 +134,7 @@ def landable_index(turnpoints: Sequence) -> LandableIndex:
     lats = np.array([f[1] for f in fields], dtype=float)
     lons = np.array([f[2] for f in fields], dtype=float)
     elevation = np.array([f[3] for f in fields], dtype=float)
-    tree = None
-    if names:
-        from scipy.spatial import cKDTree
-
-        tree = cKDTree(_unit_xyz(lats, lons))
-    return LandableIndex(names, lats, lons, elevation, tree)
+    return LandableIndex(names, lats, lons, elevation, _unit_xyz(lats, lons).reshape(-1, 3))
 
 
 # ---------------------------------------------------------------- the result
@@ -315,15 +324,11 @@ def _candidate_pairs(index: LandableIndex, lats, lons, available_m, table) -> _P
     reach_bound = np.minimum(np.maximum(available_m, 0.0) * gain, _LONGEST_GLIDE_M)
     radius = float(np.max(reach_bound)) if reach_bound.size else 0.0
     empty = np.zeros(0)
-    if index.tree is None or not np.any(available_m >= 0.0):
+    if len(index) == 0 or not np.any(available_m >= 0.0):
         return _Pairs(empty.astype(np.intp), empty.astype(np.intp), empty, empty, empty, empty, empty.astype(np.int8))
-    from scipy.spatial import cKDTree
-
     angle = min(radius / _SMALLEST_RADIUS_M * 1.01 + 1e-9, math.pi)
-    found = cKDTree(_unit_xyz(lats, lons)).sparse_distance_matrix(
-        index.tree, 2.0 * math.sin(angle / 2.0), output_type="ndarray")
-    point, landable = found["i"].astype(np.intp), found["j"].astype(np.intp)
-    lower_bound = 2.0 * np.arcsin(np.minimum(found["v"] / 2.0, 1.0)) * _SMALLEST_RADIUS_M
+    point, landable, chord = _pairs_within(_unit_xyz(lats, lons), index, 2.0 * math.sin(angle / 2.0))
+    lower_bound = 2.0 * np.arcsin(np.minimum(chord / 2.0, 1.0)) * _SMALLEST_RADIUS_M
     keep = (available_m[landable] >= 0.0) & (lower_bound <= reach_bound[landable] * 1.01 + 1.0)
     point, landable = point[keep], landable[keep]
     distance, azimuth, _ = geodesy.inverse(lats[point], lons[point], index.lats[landable], index.lons[landable])
@@ -332,6 +337,18 @@ def _candidate_pairs(index: LandableIndex, lats, lons, available_m, table) -> _P
     spare = available_m[landable] - np.where(distance > 0.0, per_metre * distance, 0.0)
     pairs = _Pairs(point, landable, distance, azimuth, per_metre, spare, np.full(point.size, -1, np.int8))
     return pairs.take(spare >= 0.0)
+
+
+def _pairs_within(path_xyz: np.ndarray, index: LandableIndex, chord: float):
+    """``(sample, landable, chord)`` for every pair closer than ``chord`` on the unit sphere."""
+    if path_xyz.shape[0] * len(index) <= _DIRECT_PAIRS:
+        distance = np.sqrt(np.maximum(2.0 - 2.0 * (path_xyz @ index.xyz.T), 0.0))
+        point, landable = np.nonzero(distance <= chord)
+        return point.astype(np.intp), landable.astype(np.intp), distance[point, landable]
+    from scipy.spatial import cKDTree
+
+    found = cKDTree(path_xyz).sparse_distance_matrix(index.tree, chord, output_type="ndarray")
+    return found["i"].astype(np.intp), found["j"].astype(np.intp), found["v"]
 
 
 class _GlideChecker:

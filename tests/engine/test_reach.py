@@ -302,3 +302,20 @@ def test_a_gap_says_how_much_of_it_is_terrain_and_how_much_is_range(tmp_path):
     assert parts["range"] + parts["terrain"] == pytest.approx(end - start, abs=1000.0)
     assert parts["unknown"] == 0.0
     assert result.gap_reasons() == ("range",)
+
+
+def test_the_tree_and_the_direct_pair_search_find_the_same_landables(monkeypatch):
+    import glidetask.engine.reach as reach
+
+    rng = np.random.default_rng(11)
+    lats, lons, s = meridian_path(80, step_m=1000.0)
+    fields = [field(f"F{i}", a, b, e) for i, (a, b, e) in
+              enumerate(zip(rng.uniform(45.6, 47.0, 400), rng.uniform(-33.8, -32.2, 400), rng.uniform(0, 700, 400)))]
+    wind = Wind(300.0, 30 * KMH)
+    direct = coverage(lats, lons, s, 0, fields, POLAR, wind, BAND_BOTTOM, MARGIN)
+    monkeypatch.setattr(reach, "_DIRECT_PAIRS", 0)
+    tree = coverage(lats, lons, s, 0, fields, POLAR, wind, BAND_BOTTOM, MARGIN)
+    np.testing.assert_array_equal(direct.status, tree.status)
+    np.testing.assert_array_equal(direct.best_landable, tree.best_landable)
+    np.testing.assert_allclose(direct.spare_height_m, tree.spare_height_m, atol=1e-9)
+    assert direct.gaps == tree.gaps and direct.by_leg == tree.by_leg
