@@ -27,7 +27,8 @@ WGS84 = pyproj.Geod(ellps="WGS84")
 
 def normalize_lon(lon):
     """Longitude [deg] folded into [-180, 180) (scalar or array)."""
-    folded = (np.asarray(lon, dtype=float) + 180.0) % 360.0 - 180.0
+    lon = np.asarray(lon, dtype=float)
+    folded = np.where((lon >= -180.0) & (lon < 180.0), lon, (lon + 180.0) % 360.0 - 180.0)  # exact if in range
     return float(folded) if folded.ndim == 0 else folded
 
 

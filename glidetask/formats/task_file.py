@@ -35,7 +35,7 @@ from typing import Any
 from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
-from glidetask.errors import InputError, Problem, ProblemCollector
+from glidetask.errors import InputError, ProblemCollector
 from glidetask.formats.atomic import write_atomic
 from glidetask.units import KMH, format_clock, parse_clock
 
@@ -658,4 +658,4 @@ def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: s
     write_atomic(target, scenario_to_toml(scenario, target.parent, turnpoints_file, header))
 
 
-__all__ = ["load_scenario", "save_task", "scenario_to_toml", "turnpoints_file_of", "Problem"]
+__all__ = ["load_scenario", "save_task", "scenario_to_toml", "turnpoints_file_of"]

@@ -36,6 +36,11 @@ CSV_REQUIRED = ("name", "lat", "lon", "elevation_m")
 ELEVATION_RANGE_M = (-500.0, 9000.0)  # below the lowest dry land to above the highest summit
 
 
+def _fold(lon: float) -> float:
+    """Longitude in [-180, 180); values already there are kept exactly."""
+    return float(lon) if -180.0 <= lon < 180.0 else (lon + 180.0) % 360.0 - 180.0
+
+
 def turnpoint_format(path: str | os.PathLike) -> str | None:
     """``"geojson"``, ``"csv"`` or None, from the file name's suffix."""
     suffix = Path(path).suffix.lower()
@@ -155,7 +160,7 @@ def _turnpoint(fields: _Fields, name, code, lat, lon, elevation, landable, kind,
     note = fields.text("note", note) or ""
     if None in (name, lat, lon, elevation, landable, kind):
         return None
-    return Turnpoint(name, code, lat, ((lon + 180.0) % 360.0) - 180.0, elevation, landable, kind,
+    return Turnpoint(name, code, lat, _fold(lon), elevation, landable, kind,
                      heading, length, note)
 
 
@@ -214,7 +219,7 @@ def _plain_feature(feature) -> Turnpoint | None:
             and (heading is None or (type(heading) in _NUMBER and 0.0 <= heading <= 360.0))
             and (length is None or (type(length) in _NUMBER and 0.0 < length < math.inf))):
         return None
-    return Turnpoint(name, code, float(lat), ((lon + 180.0) % 360.0) - 180.0, float(elevation), landable, kind,
+    return Turnpoint(name, code, float(lat), _fold(lon), float(elevation), landable, kind,
                      None if heading is None else float(heading), None if length is None else float(length),
                      note.strip())
 
