@@ -33,7 +33,7 @@ import numpy as np
 
 from glidetask.engine import geodesy
 
-#: Largest sample spacing along a path [m] (shared issue: at most 250 m).
+#: Largest sample spacing along a path [m]: the terrain is checked at least every 250 m.
 PATH_SPACING_M = 250.0
 #: A glide that misses the clearance by less than this still passes [m]: heights are shown
 #: to the metre, and a plan's start height comes from its own solver, not this module's.
