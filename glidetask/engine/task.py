@@ -372,22 +372,64 @@ class _Candidates:
     s: np.ndarray
 
 
-def _own_candidates(windows: list[_Window]) -> list[_Candidates]:
+class _Outlines:
+    """Every boundary piece of every zone in flat arrays, so that boundary parameters of
+    all windows turn into polar coordinates in one vectorised step."""
+
+    def __init__(self, windows: list[_Window]):
+        az0, az1, r0, r1, starts = [], [], [], [], []
+        self.offset: dict[tuple[int, int], tuple[float, float, bool, int, int]] = {}
+        at = 0.0
+        for w, window in enumerate(windows):
+            for l, loop in enumerate(window.loops):
+                table = loop._table
+                first = len(starts)
+                az0 += list(table[0])
+                az1 += list(table[1])
+                r0 += list(table[2])
+                r1 += list(table[3])
+                starts += list(at + table[4][:-1])
+                self.offset[(w, l)] = (at, loop.length_m, loop.closed, first, len(starts) - 1)
+                at += loop.length_m
+        self.az0, self.az1 = np.array(az0), np.array(az1)
+        self.r0, self.r1 = np.array(r0), np.array(r1)
+        self.starts = np.array(starts)
+        self.ends = np.append(self.starts[1:], at)
+
+    def polar(self, keys: list[tuple[int, int]], params: list[np.ndarray]):
+        """Azimuth [deg] and distance [m] about each zone's point of the samples ``params``
+        (boundary parameters [m]) on the loops ``keys`` ((window, loop) pairs)."""
+        info = [self.offset[k] for k in keys]
+        counts = [len(p) for p in params]
+        offset, length, closed, first, last = (np.repeat([i[j] for i in info], counts) for j in range(5))
+        s = np.concatenate(params)
+        s = np.where(closed, np.mod(s, length), np.clip(s, 0.0, length)) + offset
+        piece = np.clip(np.searchsorted(self.starts, s, side="right") - 1, first, last)
+        span = self.ends[piece] - self.starts[piece]
+        u = np.where(span > 0.0, (s - self.starts[piece]) / np.where(span > 0.0, span, 1.0), 0.0)
+        return (self.az0[piece] + u * (self.az1[piece] - self.az0[piece]),
+                self.r0[piece] + u * (self.r1[piece] - self.r0[piece]))
+
+
+def _own_candidates(windows: list[_Window], outlines: _Outlines) -> list[_Candidates]:
     """Every window's boundary samples as points, in one vectorised direct-geodesic call."""
-    parts, centre_lat, centre_lon, azimuths, radii = [], [], [], [], []
-    for window in windows:
+    keys, params, parts = [], [], []
+    for w, window in enumerate(windows):
         loop_index, s = window.samples()
-        azimuth, r = np.empty(s.shape), np.empty(s.shape)
-        for index in np.unique(loop_index):
-            mask = loop_index == index
-            azimuth[mask], r[mask] = window.loops[index].polar(s[mask])
-        parts.append((loop_index, s))
-        centre_lat.append(np.full(s.shape, window.lat))
-        centre_lon.append(np.full(s.shape, window.lon))
-        azimuths.append(azimuth)
-        radii.append(r)
-    lats, lons = geodesy.destination(np.concatenate(centre_lat), np.concatenate(centre_lon),
-                                     np.concatenate(azimuths), np.concatenate(radii))
+        if window.loop >= 0:  # a refined window lies on one loop
+            groups = [(window.loop, s)]
+        else:
+            groups = [(int(i), s[loop_index == i]) for i in np.unique(loop_index)]
+        for index, values in groups:
+            keys.append((w, index))
+            params.append(values)
+        parts.append((np.concatenate([np.full(len(v), i) for i, v in groups]), np.concatenate([v for _, v in groups])))
+    azimuth, r = outlines.polar(keys, params)
+    counts = [len(s) for _, s in parts]
+    centre_lat = np.repeat([w.lat for w in windows], counts)
+    centre_lon = np.repeat([w.lon for w in windows], counts)
+    lons, lats, _ = geodesy.WGS84.fwd(centre_lon, centre_lat, azimuth, r)
+    lats, lons = np.asarray(lats), geodesy.normalize_lon(np.asarray(lons))
     out, at = [], 0
     for loop_index, s in parts:
         out.append(_Candidates(lats[at:at + len(s)], lons[at:at + len(s)], loop_index, s))
@@ -445,7 +487,8 @@ def _leg_costs(candidates: list[_Candidates], exact: bool) -> list[np.ndarray]:
         pieces[1].append(np.repeat(a.lons, len(b.lats)))
         pieces[2].append(np.tile(b.lats, len(a.lats)))
         pieces[3].append(np.tile(b.lons, len(a.lats)))
-    flat = np.atleast_1d(geodesy.distance(*(np.concatenate(p) for p in pieces)))
+    lat1, lon1, lat2, lon2 = (np.concatenate(p) for p in pieces)
+    flat = np.asarray(geodesy.WGS84.inv(lon1, lat1, lon2, lat2)[2])
     out, at = [], 0
     for rows, columns in shapes:
         out.append(flat[at:at + rows * columns].reshape(rows, columns))
@@ -496,9 +539,10 @@ def _search(task: Task, maximize: bool) -> tuple[np.ndarray, np.ndarray]:
     gaps = np.atleast_1d(geodesy.distance(task.lats[:-1], task.lons[:-1], task.lats[1:], task.lons[1:]))
     reach = np.array([p.zone.reach_m for p in task.points])
     overlapping = list(gaps <= reach[:-1] + reach[1:] + 1.0)
+    outlines = _Outlines(windows)
     exact = False
     for _ in range(_MAX_ROUNDS):
-        own = _own_candidates(windows)
+        own = _own_candidates(windows, outlines)
         candidates = own if maximize else _with_neighbours(windows, own, overlapping)
         choice = _chain_search(_leg_costs(candidates, exact), maximize)
         picked = list(zip(candidates, choice))
