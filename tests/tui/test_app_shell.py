@@ -123,3 +123,15 @@ async def test_run_app_returns_zero_after_ctrl_q(monkeypatch, synthetic, acknowl
     thread.start()
     thread.join(30)
     assert results == [0]
+
+
+async def test_resizing_every_view_never_crashes(synthetic, acknowledged):
+    app = make_app(scenario=synthetic, compute_on_start=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        for index in range(1, len(VIEWS) + 1):
+            await pilot.press(str(index))
+            for size in ((40, 10), (80, 24), (200, 60), (20, 6), (120, 40)):
+                await pilot.resize_terminal(*size)
+                await pilot.pause()
+            assert app.is_running
+    assert app.return_code in (0, None)

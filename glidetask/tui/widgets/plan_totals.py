@@ -12,6 +12,16 @@ from glidetask.tui.contract import si
 from glidetask.units import UnitSystem
 
 
+def final_glide_text(summary: dict, units: UnitSystem) -> str:
+    """Where the final glide starts: along the task, and how far out from the finish."""
+    start = si(summary.get("final_glide") or {}, "from_km")
+    if start is None:
+        return display.DASH
+    total = sum(si(leg, "distance_km") or 0.0 for leg in summary["legs"])
+    return (f"{display.with_unit(display.distance(units, start), units.distance_label)} "
+            f"({display.distance(units, max(total - start, 0.0))} out)")
+
+
 class PlanTotals(Static):
     """A compact block of the plan's totals and any caution particular to this plan."""
 
@@ -35,7 +45,7 @@ class PlanTotals(Static):
         )
         grid.add_row(
             "Nominal", display.with_unit(display.distance(units, si(task, "nominal_distance_km")), units.distance_label),
-            "Final glide from", display.with_unit(display.distance(units, si(fg, "from_km")), units.distance_label),
+            "Final glide at", final_glide_text(summary, units),
             "at", display.with_unit(display.height(units, fg.get("start_height_m")), units.height_label),
             "MC", display.with_unit(display.vertical(units, fg.get("mc_ms")), units.vertical_label),
         )

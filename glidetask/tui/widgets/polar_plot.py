@@ -24,5 +24,4 @@ class PolarPlot(PlotextPlot):
                     marker="●", label="best glide")
         plt.xlabel(f"airspeed ({units.speed_label} TAS)")
         plt.ylabel(f"sink ({units.vertical_label})")
-        plt.title("Polar")
         self.refresh()
