@@ -1,0 +1,541 @@
+"""Ballast against thermal strength, and how the task time answers to the day.
+
+Two questions asked on the launch grid, answered with the planner's own flight core
+(:func:`glidetask.engine.flight.fly`), never a second model of the flight:
+
+* :func:`ballast_sweep`: the task with its wind flown for every ballast from empty to
+  the most the glider may carry, in thermals of constant strength from weak to strong
+  (shared/CONTRACT.md 5.4). Each strength becomes an achieved climb through the circling
+  model (:func:`glidetask.engine.circling.achieved_climb`) for each ballast: the heavier
+  glider circles faster, wider and sinks faster, so it climbs less in the same thermal,
+  and gains speed only in the glides. The best ballast per strength and where ballast
+  starts (and stops) paying follow.
+* :func:`sensitivity`: the planned task time for a few what-ifs (weaker climbs, more
+  wind, a later start, bugs), each flown exactly as :func:`glidetask.engine.planner.plan`
+  flies it, all in one vectorised call.
+
+References
+----------
+.. [1] H. Reichmann, Cross-Country Soaring, Thomson Publications, 1978: water ballast
+   raises the speed in the glides but costs climb, most in narrow and weak thermals;
+   carry it when the climbs are good (from memory).
+.. [2] P. B. MacCready Jr., "Optimum airspeed selector", Soaring, Jan.-Feb. 1958: the
+   time value of height is 1/m_c at the setting m_c (from memory).
+.. [3] F. Thomas, Fundamentals of Sailplane Design, College Park Press, 1999: the
+   circling polar and the climb of gliders of different wing loading in model
+   thermals (from memory).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+from typing import Sequence
+
+import numpy as np
+
+from glidetask.engine.flight import Flights, Flown, fly
+from glidetask.engine.scenario import Profile, Scenario, Wind
+
+SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
+SWEEP_BALLAST_STEPS = 19  # ballast values from empty to full
+SWEEP_PHASES = 8  # positions of the climbs along the route averaged over (see ballast_sweep)
+
+WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
+MORE_WIND_MS = 10.0 / 3.6  # what-if: this much more wind [m/s] (10 km/h)
+LATER_START_S = 1800.0  # what-if: the start this much later [s]
+MORE_BUGS_PERCENT = 5.0  # what-if: this much more sink from bugs [%]
+INVERSE_STRENGTH_STEP_MS = 0.01  # strength grid for turning a climb back into a thermal strength [m/s]
+INVERSE_STRENGTH_MAX_MS = 15.0  # the task file's largest profile value [m/s]
+
+
+# ---------------------------------------------------------------- shared helpers
+
+
+def usable_ballast_kg(scenario: Scenario) -> float:
+    """The most water the glider may carry with this pilot [kg]: the polar's maximum
+    ballast, or less if the maximum mass is reached first (never below 0)."""
+    glider = scenario.glider
+    spec = glider.spec
+    limit = spec.max_ballast_kg
+    if spec.max_mass_kg is not None:
+        limit = min(limit, spec.max_mass_kg - spec.empty_mass_kg - glider.pilot_kg)
+    return max(float(limit), 0.0)
+
+
+def stack_flights(flights: Sequence[Flights]) -> Flights:
+    """One :class:`Flights` of N flights from N single flights (same polar and profile times).
+
+    Raises
+    ------
+    ValueError
+        Flights of different polars, profile times or kinds of profile.
+    """
+    first = flights[0]
+    for other in flights[1:]:
+        if (other.spec != first.spec or other.lift_is_strength != first.lift_is_strength
+                or tuple(np.atleast_1d(other.lift_times_s)) != tuple(np.atleast_1d(first.lift_times_s))):
+            raise ValueError("stacked flights must share the polar and the lift profile's times")
+    columns = {name: np.array([np.asarray(getattr(f, name), dtype=float) for f in flights])
+               for name in Flights._PER_FLIGHT}
+    values = np.array([np.atleast_1d(np.asarray(f.lift_values, dtype=float)) for f in flights])
+    return dataclasses.replace(first, lift_values=values, **columns)
+
+
+def _planned_path(scenario: Scenario, path=None):
+    """The path the plan flies (racing: optimized; area: the chosen targets)."""
+    if path is not None:
+        return path
+    from glidetask.engine.planner import plan
+
+    return plan(scenario).path
+
+
+# ---------------------------------------------------------------- climb and ballast
+
+
+def _band_polar(scenario: Scenario, ballast_kg):
+    """The polar at each ballast at the density of the middle of the working band (as the
+    flight core flies it)."""
+    from glidetask.engine.atmosphere import density_ratio
+    from glidetask.engine.polar import scaled_polar
+
+    glider, day = scenario.glider, scenario.day
+    mass = glider.spec.empty_mass_kg + glider.pilot_kg + np.asarray(ballast_kg, dtype=float)
+    sigma = density_ratio(0.5 * (day.band_top_m + day.band_bottom_m), day.isa_deviation_c)
+    return scaled_polar(glider.spec, mass, glider.bugs_percent, sigma)
+
+
+def strength_for_climb(scenario: Scenario, climb_ms):
+    """The thermal strength in which the glider as loaded achieves ``climb_ms`` [m/s]
+    (the circling model inverted on a 0.01 m/s grid; NaN above its range)."""
+    from glidetask.engine.circling import achieved_climb
+
+    grid = np.arange(0.0, INVERSE_STRENGTH_MAX_MS + 1e-9, INVERSE_STRENGTH_STEP_MS)
+    own = np.asarray(achieved_climb(_band_polar(scenario, scenario.glider.ballast_kg), grid,
+                                    scenario.day.thermal_radius_m).climb_ms, dtype=float)
+    own = np.maximum.accumulate(own)
+    climb = np.asarray(climb_ms, dtype=float)
+    return np.where(climb <= own[-1], np.interp(climb, own, grid), np.nan)
+
+
+def forecast_strength_ms(scenario: Scenario) -> float:
+    """The thermal strength of the forecast's peak [m/s] (see :class:`BallastSweep`)."""
+    day = scenario.day
+    if day.thermal_strength is not None:
+        return float(max(day.thermal_strength.values))
+    return float(strength_for_climb(scenario, max(day.climb.values)))
+
+
+def climb_values_for_ballasts(scenario: Scenario, ballasts_kg) -> np.ndarray:
+    """The day's achieved-climb profile values as other ballasts would climb in the same thermals.
+
+    A day given as achieved climb (``climb_ms``) is the climb of the glider as loaded in
+    the task file. For another ballast each value of the profile is turned back into the
+    thermal strength that gives it at the file's ballast, and that strength into the
+    climb at the other ballast, by the circling model in a thermal of the day's radius.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        A day with a ``climb`` profile.
+    ballasts_kg : sequence of float
+        Ballasts [kg].
+
+    Returns
+    -------
+    ndarray, (B, P)
+        Climb [m/s] at each profile time for each ballast, not below 0. The file's own
+        ballast gets the profile's values unchanged, and a value of 0 (no lift) stays 0.
+    """
+    from glidetask.engine.circling import achieved_climb
+
+    day = scenario.day
+    if day.climb is None:
+        raise ValueError("the day has no achieved-climb profile")
+    values = np.asarray(day.climb.values, dtype=float)
+    ballast = np.asarray(ballasts_kg, dtype=float)
+    strength = np.nan_to_num(strength_for_climb(scenario, values), nan=INVERSE_STRENGTH_MAX_MS)
+    polar = _band_polar(scenario, ballast[:, None])
+    climb = np.asarray(achieved_climb(polar, strength[None, :], day.thermal_radius_m).climb_ms, dtype=float)
+    climb = np.where(values[None, :] > 0.0, np.maximum(climb, 0.0), 0.0)
+    same = ballast == scenario.glider.ballast_kg
+    climb[same] = values
+    return climb
+
+
+# ---------------------------------------------------------------- ballast sweep
+
+
+@dataclass(frozen=True)
+class BallastSweep:
+    """Task time by ballast and thermal strength (contract 5.4), SI units.
+
+    Arrays are indexed ``[strength, ballast]``; undefined values are NaN.
+
+    Attributes
+    ----------
+    task_name : str
+    planned_distance_m : float
+        Length of the path flown (racing: optimized; area: the plan's targets) [m].
+    ballast_kg, mass_kg : ndarray, (B,)
+        Water ballast and flying mass of each column [kg].
+    thermal_strength_ms : ndarray, (S,)
+        Thermal core updraft of each row, constant through the day [m/s].
+    thermal_radius_m : float
+        e-folding radius of the thermals [m].
+    achieved_climb_ms : ndarray, (S, B)
+        Climb achieved circling in the thermal (circling model) [m/s]; negative where
+        the glider cannot climb in it.
+    cruise_speed_ms : ndarray, (S, B)
+        Still-air MacCready cruise speed at that climb (setting = climb) [m/s]; NaN where
+        the glider cannot climb.
+    task_time_s : ndarray, (S, B)
+        Start to finish, averaged over where the climbs fall along the route; NaN where
+        the task cannot be finished before lift ends.
+    best_ballast_kg : ndarray, (S,)
+        The ballast of the shortest time per strength; NaN where no ballast finishes.
+    ballast_pays_from_ms : float
+        The weakest strength at which some ballast beats the empty glider (below it no
+        ballast is best); NaN if never in the range.
+    full_ballast_from_ms : float
+        The weakest strength at which full ballast is best; NaN if never.
+    scenario_ballast_kg : float
+        The ballast in the task file [kg].
+    forecast_strength_ms : float
+        The thermal strength of the forecast's peak: the peak of a thermal-strength
+        profile, or the strength in which the glider as loaded achieves the peak of an
+        achieved-climb profile [m/s].
+    phases : int
+        Number of positions of the climbs along the route averaged over.
+    notes : tuple of str
+        What the pilot should know about this sweep (cautions of its own).
+    """
+
+    task_name: str
+    planned_distance_m: float
+    ballast_kg: np.ndarray
+    mass_kg: np.ndarray
+    thermal_strength_ms: np.ndarray
+    thermal_radius_m: float
+    achieved_climb_ms: np.ndarray
+    cruise_speed_ms: np.ndarray
+    task_time_s: np.ndarray
+    best_ballast_kg: np.ndarray
+    ballast_pays_from_ms: float
+    full_ballast_from_ms: float
+    scenario_ballast_kg: float
+    forecast_strength_ms: float
+    phases: int
+    notes: tuple[str, ...]
+
+
+def sweep_ballasts_kg(scenario: Scenario, steps: int = SWEEP_BALLAST_STEPS) -> np.ndarray:
+    """``steps`` ballasts evenly from 0 to :func:`usable_ballast_kg` [kg]; ``[0]`` if the
+    glider carries no water."""
+    full = usable_ballast_kg(scenario)
+    return np.linspace(0.0, full, steps) if full > 0.0 else np.zeros(1)
+
+
+def climb_table(scenario: Scenario, ballast_kg, strengths_ms):
+    """Achieved climb and still-air cruise speed for each strength x ballast.
+
+    Returns
+    -------
+    climb_ms, cruise_ms : ndarray, (S, B)
+        The circling model's climb in a Gaussian thermal of the day's radius, at the
+        density of the middle of the working band (as the flight core uses it), and the
+        MacCready cruise speed at that climb in still air [m/s].
+    """
+    from glidetask.engine.circling import achieved_climb
+    from glidetask.engine.speedtofly import cruise_in_wind
+
+    day = scenario.day
+    polar = _band_polar(scenario, np.asarray(ballast_kg, dtype=float)[None, :])
+    strengths = np.asarray(strengths_ms, dtype=float)[:, None]
+    climb = np.asarray(achieved_climb(polar, strengths, day.thermal_radius_m).climb_ms, dtype=float)
+    with np.errstate(invalid="ignore"):
+        cruise = np.asarray(cruise_in_wind(polar, np.maximum(climb, 0.0), 0.0, 0.0).cruise_speed_ms, dtype=float)
+    cruise = np.where(climb > 0.0, cruise, np.nan)
+    return climb, np.broadcast_to(cruise, climb.shape).copy()
+
+
+def _phase_start_heights(day, phases: int) -> np.ndarray:
+    """Start heights ``h0 - k D / K`` (k = 0..K-1, D the band's depth), lifted by D where
+    they fall below the band bottom: K evenly spaced phases of the climb-and-glide cycle."""
+    depth = day.band_top_m - day.band_bottom_m
+    start = day.effective_start_height_m
+    heights = start - np.arange(phases) * depth / phases
+    return np.where(heights < day.band_bottom_m, heights + depth, heights)
+
+
+def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballasts_kg=None, path=None,
+                  phases: int = SWEEP_PHASES) -> BallastSweep:
+    """Task time for every ballast against thermal strength, one vectorised flight call.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        Task, glider (polar, pilot, bugs), day (start, band, wind, end of lift, thermal
+        radius) and margins.
+    strengths_ms : sequence of float
+        Thermal core strengths [m/s], constant through the day until lift ends.
+    ballasts_kg : sequence of float, optional
+        Ballasts [kg]; default :func:`sweep_ballasts_kg` (19 from empty to full).
+    path : TaskPath, optional
+        The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
+    phases : int
+        Positions of the climbs along the route to average over (>= 1).
+
+    Returns
+    -------
+    BallastSweep
+
+    Notes
+    -----
+    Every flight is the planner's (:func:`glidetask.engine.planner.flights_for`) with the
+    mass of its ballast and a thermal-strength profile held at the row's strength; the
+    MacCready setting follows the achieved climb (a fixed setting in the day would not
+    suit every strength), the final-glide setting and margins are the scenario's.
+
+    In the flight core every climb is taken where the glider reaches the band bottom, so
+    the places of the climbs, and with them whether a climb drifts on a tailwind or a
+    headwind leg, shift with the ballast: a step of 1-2 % in the task time between
+    neighbouring ballasts that no pilot could count on. Real thermals are not placed by
+    the glider's sink rate, so the time is averaged over ``K`` phases of the cycle: the
+    task is flown from start heights ``h0 - k D/K`` (band depth ``D``, wrapped into the
+    band) and each time is referred back to the real start height ``h0`` by the time the
+    height difference is worth, ``(h_k - h0)/m_c`` at the achieved climb ``m_c`` [2]_.
+    A cell counts as finished only if every phase finishes.
+    """
+    from glidetask.engine.planner import course_for, flights_for
+
+    if phases < 1:
+        raise ValueError("phases must be at least 1")
+    path = _planned_path(scenario, path)
+    day, glider = scenario.day, scenario.glider
+    ballast = sweep_ballasts_kg(scenario) if ballasts_kg is None else np.asarray(ballasts_kg, dtype=float)
+    strengths = np.asarray(strengths_ms, dtype=float)
+    if ballast.ndim != 1 or strengths.ndim != 1 or np.any(ballast < 0.0) or np.any(~(strengths > 0.0)):
+        raise ValueError("ballasts must be >= 0 and strengths > 0, each a 1-D sequence")
+    climb, cruise = climb_table(scenario, ballast, strengths)
+    starts = _phase_start_heights(day, phases)
+    s_grid, b_grid, h_grid = np.meshgrid(strengths, ballast, starts, indexing="ij")
+    base = flights_for(scenario)
+    flights = dataclasses.replace(
+        base, mass_kg=(glider.spec.empty_mass_kg + glider.pilot_kg + b_grid).ravel(),
+        start_height_m=h_grid.ravel(), lift_scale=s_grid.ravel(), lift_times_s=(day.start_time_s,),
+        lift_values=(1.0,), lift_is_strength=True, mc_ms=math.nan)
+    flown = fly(course_for(path), flights, detail=False)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        worth = (h_grid - day.effective_start_height_m) / climb[..., None]
+    worth = np.where(h_grid == day.effective_start_height_m, 0.0, worth)
+    times = np.where(flown.finished, flown.total_time_s, np.nan).reshape(h_grid.shape) + worth
+    task_time = np.where(np.all(np.isfinite(times), axis=-1), times.mean(axis=-1), np.nan)
+    task_time = np.where(climb > 0.0, task_time, times[..., 0])  # no climbs: only the real start counts
+    best = _best_ballast(task_time, ballast)
+    return BallastSweep(
+        task_name=scenario.task.name, planned_distance_m=float(path.total_m), ballast_kg=ballast,
+        mass_kg=glider.spec.empty_mass_kg + glider.pilot_kg + ballast, thermal_strength_ms=strengths,
+        thermal_radius_m=float(day.thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
+        task_time_s=task_time, best_ballast_kg=best,
+        ballast_pays_from_ms=_first_strength(strengths, best > 0.0),
+        full_ballast_from_ms=_first_strength(strengths, (best == ballast.max()) & (ballast.max() > 0.0)),
+        scenario_ballast_kg=float(glider.ballast_kg), forecast_strength_ms=forecast_strength_ms(scenario),
+        phases=phases, notes=tuple(_sweep_notes(scenario, ballast)))
+
+
+def _best_ballast(task_time: np.ndarray, ballast: np.ndarray) -> np.ndarray:
+    """Ballast of the shortest time per row (the lighter one on a tie); NaN for rows with none."""
+    finite = np.isfinite(task_time)
+    index = np.argmin(np.where(finite, task_time, np.inf), axis=1)
+    return np.where(finite.any(axis=1), ballast[index], np.nan)
+
+
+def _first_strength(strengths: np.ndarray, mask: np.ndarray) -> float:
+    """The weakest strength where ``mask`` holds; NaN if nowhere."""
+    order = np.argsort(strengths)
+    hits = order[mask[order]]
+    return float(strengths[hits[0]]) if hits.size else math.nan
+
+
+def _sweep_notes(scenario: Scenario, ballast: np.ndarray) -> list[str]:
+    notes = ["Thermals are taken as constant in strength all day and of one size "
+             f"({scenario.day.thermal_radius_m:.0f} m radius): real days vary, and a narrower thermal "
+             "punishes ballast more."]
+    if ballast.max() <= 0.0:
+        notes.append("This glider carries no water ballast: only the empty glider is shown.")
+    if scenario.task.kind == "area":
+        notes.append("Area task: the times are for the targets the plan chose; the minimum time still applies.")
+    if scenario.day.mc_ms is not None:
+        notes.append("The sweep flies at a MacCready setting equal to the achieved climb, not the day's "
+                     f"fixed setting of {scenario.day.mc_ms:g} m/s.")
+    notes.append("Dump water before landing out, and whenever the climbs turn weak.")
+    return notes
+
+
+# ---------------------------------------------------------------- sensitivity
+
+
+@dataclass(frozen=True)
+class SensitivityRow:
+    """The task flown with one what-if.
+
+    Attributes
+    ----------
+    key : str
+        Which what-if: one of :data:`WHAT_IFS`.
+    label : str
+        The what-if in words ("Climbs 0.5 m/s weaker"; "Forecast" for the plan itself).
+    change : str
+        What was changed, with the new value ("wind 250/25 km/h").
+    total_time_s : float
+        Start to finish, or to where the flight ends short [s]; NaN if it cannot start.
+    delta_s : float
+        ``total_time_s`` minus the forecast's [s]; NaN unless both finish.
+    finished : bool
+    finish_time_s : float
+        Clock time at the finish [s after midnight]; NaN if not finished.
+    landout_m : float
+        Where the flight ends short along the path [m]; NaN if finished.
+    task_speed_ms : float
+        As the plan scores it (racing: optimized distance over the time; area: the
+        planned distance over the greater of the time and the minimum time) [m/s].
+    """
+
+    key: str
+    label: str
+    change: str
+    total_time_s: float
+    delta_s: float
+    finished: bool
+    finish_time_s: float
+    landout_m: float
+    task_speed_ms: float
+
+
+@dataclass(frozen=True)
+class Sensitivity:
+    """The forecast plan and its what-ifs (first row: the forecast).
+
+    ``wind``, ``start_time_s``, ``bugs_percent`` and ``lift_is_strength`` are the
+    forecast's, for describing the what-ifs in any units.
+    """
+
+    task_name: str
+    kind: str
+    rows: tuple[SensitivityRow, ...]
+    notes: tuple[str, ...]
+    wind: Wind
+    start_time_s: float
+    bugs_percent: float
+    lift_is_strength: bool
+
+    @property
+    def forecast(self) -> SensitivityRow:
+        return self.rows[0]
+
+
+def _weaker(profile: Profile, by: float) -> Profile:
+    return Profile(profile.times_s, tuple(max(v - by, 0.0) for v in profile.values))
+
+
+WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs")
+
+
+def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario | None]]:
+    """``(key, label, change, scenario)`` for the forecast and each what-if of
+    :data:`WHAT_IFS`; the scenario is None where the what-if cannot be flown (a start at
+    or after the end of lift)."""
+    from glidetask.engine.planner import with_what_ifs
+    from glidetask.errors import InputError
+    from glidetask.units import format_clock
+
+    day, glider = scenario.day, scenario.glider
+    if day.climb is not None:
+        weaker_day = dataclasses.replace(day, climb=_weaker(day.climb, WEAKER_CLIMB_MS))
+        weaker = ("Climbs 0.5 m/s weaker", "achieved climb -0.5 m/s all day")
+    else:
+        weaker_day = dataclasses.replace(day, thermal_strength=_weaker(day.thermal_strength, WEAKER_CLIMB_MS))
+        weaker = ("Thermals 0.5 m/s weaker", "thermal strength -0.5 m/s all day")
+    wind = Wind(day.wind.from_deg, day.wind.speed_ms + MORE_WIND_MS)
+    start = day.start_time_s + LATER_START_S
+    bugs = glider.bugs_percent + MORE_BUGS_PERCENT
+    out = [("forecast", "Forecast", "the plan as given", scenario),
+           ("weaker_climbs", *weaker, dataclasses.replace(scenario, day=weaker_day))]
+    for key, label, change, what_if in (
+            ("more_wind", "Wind 10 km/h stronger", f"wind {wind.from_deg:03.0f}/{wind.speed_ms * 3.6:.0f} km/h",
+             {"wind": wind}),
+            ("later_start", "Start 30 min later", f"start {format_clock(start)}", {"start_time_s": start}),
+            ("more_bugs", "5 % more bugs", f"bugs {bugs:g} % (sink rate)", {"bugs_percent": bugs})):
+        try:
+            out.append((key, label, change, with_what_ifs(scenario, **what_if)))
+        except InputError:
+            out.append((key, label, change + ": at or after the end of lift", None))
+    return out
+
+
+def sensitivity(scenario: Scenario, *, path=None) -> Sensitivity:
+    """How much the task time changes for climbs 0.5 m/s weaker, 10 km/h more wind, a
+    30-minute later start and 5 % more bugs.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The forecast (its task, glider, day and margins).
+    path : TaskPath, optional
+        The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
+
+    Returns
+    -------
+    Sensitivity
+        The forecast row first, then one row per what-if.
+
+    Notes
+    -----
+    Each what-if is a scenario built as :func:`glidetask.engine.planner.plan` builds it
+    (its ``with_what_ifs`` for wind, start and bugs; the day's climb or thermal-strength
+    profile lowered by 0.5 m/s, not below 0, for weaker climbs) and turned into the core's
+    inputs by the planner's ``flights_for``; all are flown in one call over the planned
+    path. For a racing task that path is the optimized one, whatever the day, so every
+    row is the plan the planner would make for that what-if. For an area task the
+    targets stay where the forecast plan put them (the planner would move them to keep
+    the minimum time), so the change shows as time rather than distance.
+    """
+    from glidetask.engine.planner import course_for, flights_for
+
+    path = _planned_path(scenario, path)
+    variants = what_if_scenarios(scenario)
+    flyable = [v for v in variants if v[3] is not None]
+    flown = fly(course_for(path), stack_flights([flights_for(v[3]) for v in flyable]), detail=False)
+    by_key = {key: flown.flight(i) for i, (key, _, _, _) in enumerate(flyable)}
+    rows = [_sensitivity_row(key, label, change, by_key.get(key), scenario, path)
+            for key, label, change, _ in variants]
+    forecast = rows[0]
+    rows = [dataclasses.replace(row, delta_s=row.total_time_s - forecast.total_time_s
+                                if row.finished and forecast.finished else math.nan) for row in rows]
+    notes = []
+    if scenario.task.kind == "area":
+        notes.append("Area task: the what-ifs fly the forecast plan's targets; on the day, move the targets "
+                     "to keep the minimum time.")
+    day = scenario.day
+    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes), day.wind,
+                       day.start_time_s, scenario.glider.bugs_percent, day.climb is None)
+
+
+def _sensitivity_row(key: str, label: str, change: str, flown: Flown | None, scenario: Scenario,
+                     path) -> SensitivityRow:
+    if flown is None:
+        return SensitivityRow(key, label, change, math.nan, math.nan, False, math.nan, math.nan, math.nan)
+    finished = bool(flown.finished[0])
+    total = float(flown.total_time_s[0])
+    task = scenario.task
+    if not finished:
+        speed = math.nan
+    elif task.kind == "area":
+        speed = path.total_m / max(total, float(task.min_time_s))
+    else:
+        speed = path.total_m / total
+    return SensitivityRow(key, label, change, total, math.nan, finished, float(flown.finish_time_s[0]),
+                          float(flown.landout_m[0]), speed)

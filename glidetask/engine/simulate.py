@@ -1,0 +1,380 @@
+"""The odds of getting home: the task flown over many simulated days around the forecast.
+
+The forecast is one day; the real one will differ. :func:`simulate_days` draws many
+days from a spread around the forecast (:class:`DaySpread`), flies the task on each
+with the planner's own flight core (:func:`glidetask.engine.flight.fly`), vectorised over
+all days and ballast choices at once, and counts how often the task is finished, how
+long it takes, and where the land-outs happen.
+
+Each simulated day differs from the forecast in four ways (planning assumptions of our
+own, not a forecast model; every spread can be set, and zero reproduces the plan):
+
+* **Strength of the day**: every climb (or thermal strength) of the profile times a
+  factor ``exp(s Z)``, ``Z`` standard normal; default ``s = 0.2`` (the forecast is the
+  median day; one day in six is 18 % weaker or more).
+* **Wind**: speed plus a normal error (default sd 8 km/h, not below calm), direction
+  plus a normal error (default sd 20 degrees).
+* **End of lift**: shifted by a normal error (default sd 30 min); the afternoon decay of
+  the profile (from its last peak, or the start if later, to the end of lift) is
+  stretched or squeezed to match, so an early end also weakens the late climbs.
+* **Thermal spacing along the route**: the forecast plan finds every climb at the band
+  bottom. In a simulated day a pilot reaching the band bottom must glide on a distance
+  ``d ~ Exponential(mean)`` before the next usable climb: usable thermals placed at
+  random along the track (a Poisson process, so the distance still to go is memoryless).
+  The mean (default 2 km on the forecast day) grows as the day's strength factor
+  falls (``mean / factor``: weak days have fewer usable thermals). A pilot who reaches
+  the arrival floor (finish elevation plus the margin, taken as the ground) before
+  finding one lands out there.
+
+The days are drawn once per run and shared by every ballast choice (common random
+numbers), so the choices are compared on the same days.
+
+References
+----------
+.. [1] D. H. Lenschow and P. L. Stephens, "The role of thermals in the convective boundary
+   layer", Boundary-Layer Meteorology 19, 1980: thermals spaced about one to two
+   boundary-layer depths apart (from memory).
+.. [2] H. Reichmann, Cross-Country Soaring, Thomson Publications, 1978: the risk of
+   landing out when flying low, and the choice of water ballast (from memory).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from glidetask.engine import flight
+from glidetask.engine.flight import Flights, fly
+from glidetask.engine.scenario import Scenario
+
+SEARCH_DRAWS = 64  # exponential draws kept per day; climb n uses draw n mod this
+DEFAULT_RUNS = 2000
+PERCENTILES = (10.0, 50.0, 90.0)
+#: Why a simulated flight ended short, by the core's reason code: (key, words).
+LANDOUT_REASONS = {
+    flight.LIFT_ENDED: ("lift_ended", "lift ended"),
+    flight.NO_CLIMB: ("too_weak", "thermals too weak to climb in"),
+    flight.UNREACHABLE: ("wind_too_strong", "wind too strong to make progress"),
+    flight.NO_THERMAL_FOUND: ("no_thermal_found", "no climb found low down"),
+    flight.BELOW_FLOOR: ("below_floor", "reached the finish below the margin"),
+    flight.UNRESOLVED: ("unresolved", "unresolved"),
+}
+WARP_STEP_S = 300.0  # time grid of a stretched afternoon profile [s]
+SHORTEST_DECAY_S = 600.0  # an early end of lift never squeezes the decay below this [s]
+
+
+@dataclass(frozen=True)
+class DaySpread:
+    """How simulated days spread around the forecast (planning assumptions, see module notes).
+
+    Attributes
+    ----------
+    climb_log_sd : float
+        Standard deviation of the log of the day's climb factor [-].
+    wind_speed_sd_ms : float
+        Standard deviation of the wind speed error [m/s].
+    wind_direction_sd_deg : float
+        Standard deviation of the wind direction error [deg].
+    lift_end_sd_s : float
+        Standard deviation of the shift of the end of lift [s].
+    thermal_search_mean_m : float
+        Mean distance beyond the band bottom to the next usable climb on the forecast
+        day [m]; 0: every climb is found at the band bottom, as the plan assumes.
+    """
+
+    climb_log_sd: float = 0.2
+    wind_speed_sd_ms: float = 8.0 / 3.6
+    wind_direction_sd_deg: float = 20.0
+    lift_end_sd_s: float = 1800.0
+    thermal_search_mean_m: float = 2000.0
+
+    def __post_init__(self):
+        for item in dataclasses.fields(self):
+            value = getattr(self, item.name)
+            if not (math.isfinite(value) and value >= 0.0):
+                raise ValueError(f"{item.name} must be finite and not negative, got {value!r}")
+
+    @classmethod
+    def none(cls) -> "DaySpread":
+        """No spread: every simulated day is the forecast."""
+        return cls(0.0, 0.0, 0.0, 0.0, 0.0)
+
+
+@dataclass(frozen=True)
+class Days:
+    """The drawn days, one entry per run (arrays of shape (runs,))."""
+
+    climb_factor: np.ndarray
+    wind_from_deg: np.ndarray
+    wind_speed_ms: np.ndarray
+    lift_ends_s: np.ndarray
+    search_mean_m: np.ndarray
+    search_unit: np.ndarray  # (runs, SEARCH_DRAWS) standard exponential draws
+
+
+def draw_days(scenario: Scenario, spread: DaySpread, runs: int, seed: int) -> Days:
+    """Draw ``runs`` days around the scenario's forecast (seeded: the same seed, the same days).
+
+    Draws come from ``numpy.random.default_rng(seed)`` in a fixed order (climb factor,
+    wind speed, wind direction, end of lift, search distances), whatever the spread, so a
+    change of one spread leaves the other errors of each day as they were.
+    """
+    if runs < 1:
+        raise ValueError("runs must be at least 1")
+    rng = np.random.default_rng(seed)
+    day = scenario.day
+    z_climb, z_speed, z_direction, z_end = rng.standard_normal((4, runs))
+    search_unit = rng.standard_exponential((runs, SEARCH_DRAWS))
+    factor = np.exp(spread.climb_log_sd * z_climb)
+    return Days(
+        climb_factor=factor,
+        wind_from_deg=np.mod(day.wind.from_deg + spread.wind_direction_sd_deg * z_direction, 360.0),
+        wind_speed_ms=np.maximum(day.wind.speed_ms + spread.wind_speed_sd_ms * z_speed, 0.0),
+        lift_ends_s=day.lift_ends_s + spread.lift_end_sd_s * z_end,
+        search_mean_m=spread.thermal_search_mean_m / factor,
+        search_unit=search_unit,
+    )
+
+
+def _decay_anchor(scenario: Scenario) -> float:
+    """Where the afternoon decay starts: the profile's last peak (or the start, if later),
+    at least :data:`SHORTEST_DECAY_S` before the end of lift [s]."""
+    day = scenario.day
+    profile = day.climb if day.climb is not None else day.thermal_strength
+    values = np.asarray(profile.values)
+    peak = float(np.asarray(profile.times_s)[np.flatnonzero(values == values.max())[-1]])
+    return min(max(peak, day.start_time_s), day.lift_ends_s - SHORTEST_DECAY_S)
+
+
+def stretched_profiles(scenario: Scenario, lift_ends_s: np.ndarray, values=None):
+    """The day's profile with its afternoon decay moved to end at each ``lift_ends_s``.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The forecast day (its profile's times, its end of lift ``L``).
+    lift_ends_s : ndarray, (N,)
+        The simulated ends of lift [s].
+    values : array_like, (C, P), optional
+        Rows of profile values at the profile's times (default: the day's own, C = 1).
+
+    Returns
+    -------
+    times_s : ndarray, (G,)
+        A shared time grid: the profile's own times, the anchor ``A``, and every
+        :data:`WARP_STEP_S` from ``A`` to the latest end of lift.
+    values : ndarray, (C * N, G)
+        Row ``c N + i``: profile row ``c`` at source time ``A + (t - A)(L - A)/(L_i - A)``
+        for ``t > A``, the profile itself before.
+    lift_ends_s : ndarray, (N,)
+        The ends of lift, none closer than :data:`SHORTEST_DECAY_S` to the anchor.
+    """
+    day = scenario.day
+    profile = day.climb if day.climb is not None else day.thermal_strength
+    rows = np.atleast_2d(np.asarray(profile.values if values is None else values, dtype=float))
+    anchor = _decay_anchor(scenario)
+    ends = np.maximum(np.asarray(lift_ends_s, dtype=float), anchor + SHORTEST_DECAY_S)
+    knots = np.asarray(profile.times_s, dtype=float)
+    grid = np.arange(anchor, ends.max() + WARP_STEP_S, WARP_STEP_S)
+    times = np.unique(np.concatenate([knots, [anchor], grid]))
+    stretch = (day.lift_ends_s - anchor) / (ends - anchor)
+    source = np.where(times[None, :] > anchor, anchor + (times[None, :] - anchor) * stretch[:, None], times[None, :])
+    return times, np.concatenate([np.interp(source, knots, row) for row in rows]), ends
+
+
+# ---------------------------------------------------------------- results
+
+
+@dataclass(frozen=True)
+class ChoiceOdds:
+    """One ballast choice over all simulated days.
+
+    Attributes
+    ----------
+    ballast_kg, mass_kg : float
+    runs : int
+    finished : int
+        Days on which the task was finished (reaching the finish at or above the floor).
+    finish_probability, finish_probability_se : float
+        ``finished / runs`` and its binomial standard error ``sqrt(p(1-p)/runs)``.
+    task_time_s : tuple of float
+        10th, 50th and 90th percentile of the task time among the finishers [s]; NaN
+        with no finisher.
+    landouts_by_leg : tuple of int
+        Land-outs on each leg.
+    landouts_by_reason : tuple of (str, int)
+        Land-outs by why the flight ended (keys of :data:`LANDOUT_REASONS`), only those
+        that happened.
+    forecast_time_s : float
+        The task on the forecast day (no spread) [s], as the plan flies it.
+    forecast_finished : bool
+    finish_times_s : ndarray
+        The finishers' task times [s] (for plots; not in the JSON).
+    """
+
+    ballast_kg: float
+    mass_kg: float
+    runs: int
+    finished: int
+    finish_probability: float
+    finish_probability_se: float
+    task_time_s: tuple[float, float, float]
+    landouts_by_leg: tuple[int, ...]
+    landouts_by_reason: tuple[tuple[str, int], ...]
+    forecast_time_s: float
+    forecast_finished: bool
+    finish_times_s: np.ndarray
+
+
+@dataclass(frozen=True)
+class Odds:
+    """The simulation's answer for each ballast choice."""
+
+    task_name: str
+    legs: tuple[tuple[str, str], ...]
+    runs: int
+    seed: int
+    spread: DaySpread
+    choices: tuple[ChoiceOdds, ...]
+    notes: tuple[str, ...]
+
+
+def default_ballasts_kg(scenario: Scenario) -> tuple[float, ...]:
+    """Empty, half and full (the most the glider may carry with this pilot); just empty
+    for a glider that carries no water."""
+    from glidetask.engine.compare import usable_ballast_kg
+
+    full = usable_ballast_kg(scenario)
+    return (0.0, 0.5 * full, full) if full > 0.0 else (0.0,)
+
+
+# ---------------------------------------------------------------- the simulation
+
+
+def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1, ballasts_kg=None,
+                  spread: DaySpread | None = None, path=None) -> Odds:
+    """Fly the task over ``runs`` simulated days for each ballast choice.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The forecast: task, glider, day, margins.
+    runs : int
+        Simulated days (>= 1), the same days for every ballast choice.
+    seed : int
+        Seed of ``numpy.random.default_rng``: the same seed gives the same days.
+    ballasts_kg : sequence of float, optional
+        Ballast choices [kg] (default :func:`default_ballasts_kg`).
+    spread : DaySpread, optional
+        How the days spread (default :class:`DaySpread`); :meth:`DaySpread.none`
+        reproduces the plan.
+    path : TaskPath, optional
+        The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
+
+    Returns
+    -------
+    Odds
+
+    Raises
+    ------
+    InputError
+        A ballast the glider cannot carry (the planner's ``with_what_ifs`` check).
+
+    Notes
+    -----
+    Every flight starts from the planner's inputs for its ballast
+    (:func:`glidetask.engine.planner.flights_for` of ``with_what_ifs(scenario,
+    ballast_kg=...)``); a day changes only the lift scale, the wind, the end of lift (and
+    the profile's decay with it) and adds the thermal search. With no spread these are
+    the forecast's own values, untouched, and no search hook is passed: each run is
+    then the plan, to the last bit. The path is the plan's (for an area task the
+    targets the plan chose at the scenario's ballast).
+    """
+    from glidetask.engine.compare import _planned_path, climb_values_for_ballasts, stack_flights
+    from glidetask.engine.planner import course_for, flights_for, with_what_ifs
+
+    spread = DaySpread() if spread is None else spread
+    choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))
+    if not choices:
+        raise ValueError("give at least one ballast choice")
+    setups = [flights_for(with_what_ifs(scenario, ballast_kg=b)) for b in choices]
+    if scenario.day.climb is not None:  # climbs for the file's ballast: other ballasts climb as in the same thermals
+        rows = climb_values_for_ballasts(scenario, choices)
+        setups = [dataclasses.replace(s, lift_values=tuple(row)) for s, row in zip(setups, rows)]
+    path = _planned_path(scenario, path)
+    course = course_for(path)
+    days = draw_days(scenario, spread, runs, seed)
+    flights, search = _day_flights(scenario, setups, days, spread)
+    flown = fly(course, flights, search=search, detail=False)
+    forecast = fly(course, stack_flights(setups), detail=False)
+    legs = tuple((leg.from_name, leg.to_name) for leg in path.legs)
+    results = tuple(_choice(choices[c], setups[c], flown, slice(c * runs, (c + 1) * runs), forecast.flight(c),
+                            len(legs)) for c in range(len(choices)))
+    return Odds(scenario.task.name, legs, runs, int(seed), spread, results, tuple(_notes(scenario, spread)))
+
+
+def _day_flights(scenario: Scenario, setups: list[Flights], days: Days, spread: DaySpread):
+    """The core's inputs for every (choice, day), choice-major, and the search hook (or None)."""
+    from glidetask.engine.compare import stack_flights
+
+    runs, count = days.climb_factor.size, len(setups)
+    stacked = stack_flights(setups)
+    per_choice = {name: np.repeat(np.asarray(getattr(stacked, name)), runs) for name in Flights._PER_FLIGHT}
+
+    def tile(array):
+        return np.tile(array, count)
+
+    per_choice.update(lift_scale=tile(days.climb_factor), wind_from_deg=tile(days.wind_from_deg),
+                      wind_speed_ms=tile(days.wind_speed_ms))
+    values = np.repeat(np.asarray(stacked.lift_values), runs, axis=0)
+    times = stacked.lift_times_s
+    if spread.lift_end_sd_s > 0.0:
+        times, values, ends = stretched_profiles(scenario, days.lift_ends_s, stacked.lift_values)
+        per_choice["lift_ends_s"] = tile(ends)
+    flights = dataclasses.replace(stacked, lift_times_s=times, lift_values=values, **per_choice)
+    if spread.thermal_search_mean_m <= 0.0:
+        return flights, None
+    day_of = tile(np.arange(runs))
+    mean = tile(days.search_mean_m)
+    unit = days.search_unit
+
+    def search(rows, climb_number):
+        return unit[day_of[rows], np.asarray(climb_number) % SEARCH_DRAWS] * mean[rows]
+
+    return flights, search
+
+
+def _choice(ballast: float, setup: Flights, flown, rows: slice, forecast, legs: int) -> ChoiceOdds:
+    finished = flown.finished[rows]
+    runs = finished.size
+    count = int(finished.sum())
+    p = count / runs
+    times = flown.total_time_s[rows][finished]
+    pct = tuple(float(x) for x in np.percentile(times, PERCENTILES)) if count else (math.nan,) * 3
+    landed = ~finished
+    by_leg = np.bincount(flown.landout_leg[rows][landed], minlength=legs)[:legs]
+    reasons = np.bincount(flown.reason[rows][landed], minlength=len(flight.REASONS))
+    return ChoiceOdds(
+        ballast_kg=ballast, mass_kg=float(setup.mass_kg), runs=runs, finished=count, finish_probability=p,
+        finish_probability_se=math.sqrt(p * (1.0 - p) / runs), task_time_s=pct,
+        landouts_by_leg=tuple(int(n) for n in by_leg),
+        landouts_by_reason=tuple((LANDOUT_REASONS[i][0], int(n)) for i, n in enumerate(reasons)
+                                 if n and i in LANDOUT_REASONS),
+        forecast_time_s=float(forecast.total_time_s[0]), forecast_finished=bool(forecast.finished[0]),
+        finish_times_s=np.sort(times))
+
+
+def _notes(scenario: Scenario, spread: DaySpread) -> list[str]:
+    notes = ["The spread of days is a planning assumption of glidetask, not a forecast: strength "
+             f"x exp(N(0, {spread.climb_log_sd:g})), wind speed +/- {spread.wind_speed_sd_ms * 3.6:.0f} km/h "
+             f"and direction +/- {spread.wind_direction_sd_deg:.0f} deg (1 sd), end of lift +/- "
+             f"{spread.lift_end_sd_s / 60:.0f} min, next climb on average {spread.thermal_search_mean_m / 1000:.1f} km "
+             "beyond the band bottom."]
+    notes.append("A land-out here means reaching the finish elevation plus the arrival margin away from the "
+                 "finish: choose a field well before that.")
+    if scenario.task.kind == "area":
+        notes.append("Area task: every day flies the forecast plan's targets.")
+    return notes
