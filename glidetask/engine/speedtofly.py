@@ -74,6 +74,7 @@ def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1
     index = np.flatnonzero(lo < hi)
     xa, la, ha = x[index], lo[index], hi[index]
     pa = [p[index] for p in params]
+    done = np.zeros(index.size, dtype=bool)  # settled elements stay put: results do not depend on the batch
     for _ in range(iterations):
         if index.size == 0:
             break
@@ -83,14 +84,15 @@ def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1
         with np.errstate(divide="ignore", invalid="ignore"):
             newton = xa - f / dfdx
         x_new = np.where((newton >= la) & (newton <= ha), newton, 0.5 * (la + ha))
-        settled = (np.abs(x_new - xa) <= rtol * (1.0 + np.abs(xa))) | np.isnan(x_new)
-        xa = x_new
+        x_new = np.where(done, xa, x_new)
+        settled = done | (np.abs(x_new - xa) <= rtol * (1.0 + np.abs(xa))) | np.isnan(x_new)
+        xa, done = x_new, settled
         if settled.all():
             break
         if 2 * np.count_nonzero(~settled) < index.size:
             x[index] = xa
             keep = ~settled
-            index, xa, la, ha = index[keep], xa[keep], la[keep], ha[keep]
+            index, xa, la, ha, done = index[keep], xa[keep], la[keep], ha[keep], done[keep]
             pa = [p[keep] for p in pa]
     x[index] = xa
     return x.reshape(shape)

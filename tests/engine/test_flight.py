@@ -160,6 +160,23 @@ def test_many_flights_equal_the_same_flights_one_by_one():
         _assert_same(batch, fly(TRIANGLE, one), i)
 
 
+def test_many_flights_equal_one_by_one_with_thermal_strength_and_searches():
+    # The same with the circling model's tables (one per distinct polar) and a search hook
+    # drawing per flight and climb number.
+    day = dataclasses.replace(_varied_flights(8, seed=5), lift_is_strength=True, lift_values=[2.0, 3.5, 2.5])
+
+    def search(rows, number):
+        return 500.0 * ((rows * 7 + number * 3) % 5)  # depends only on the flight and the climb
+
+    names = {i: i for i in range(8)}
+    batch = fly(TRIANGLE, day, search=lambda rows, number: search(np.asarray([names[r] for r in rows]), number))
+    columns = day.columns()
+    for i in range(8):
+        one = dataclasses.replace(day, **{name: columns[name][i] for name in Flights._PER_FLIGHT})
+        single = fly(TRIANGLE, one, search=lambda rows, number, i=i: search(np.full(rows.size, i), number))
+        _assert_same(batch, single, i)
+
+
 def test_identical_flights_give_identical_results():
     # A Monte-Carlo with no spread must reproduce the single plan exactly.
     day = calm_day(wind_from_deg=200.0, wind_speed_ms=18 * KMH, lift_times_s=[11 * HOUR, 15 * HOUR],
