@@ -287,7 +287,7 @@ def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_perce
 
 
 def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
-         start_time_s=None) -> Plan:
+         start_time_s=None, requirement_for=None) -> Plan:
     """Fly the scenario's task on paper.
 
     Parameters
@@ -302,6 +302,10 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         The wind instead of the day's.
     start_time_s : float, optional
         Start time [s after midnight] instead of the day's.
+    requirement_for : callable, optional
+        ``requirement_for(scenario, path) -> RequirementHook or None``: extra final-glide
+        height along a candidate path (a terrain check; see
+        :data:`glidetask.engine.flight.RequirementHook`), asked once per path flown.
 
     Returns
     -------
@@ -323,14 +327,18 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     optimized = task_geometry.optimized_path(task)
     area = None
     notes: list[str] = []
+    def fly_path(path):
+        hook = None if requirement_for is None else requirement_for(scenario, path)
+        return fly(course_for(path), flights, requirement=hook)
+
     if task.kind == "area":
-        path, flown, area, notes = _area_path(scenario, flights)
+        path, flown, area, notes = _area_path(scenario, fly_path)
     else:
-        path, flown = optimized, fly(course_for(optimized), flights)
+        path, flown = optimized, fly_path(optimized)
     return _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
 
 
-def _area_path(scenario: Scenario, flights: Flights):
+def _area_path(scenario: Scenario, fly_path):
     """Targets of an area task: the depth whose planned time is in [T, 1.05 T] (T the minimum
     time) when the areas allow; else the longest path (too short) or the shortest (too long).
 
@@ -346,7 +354,7 @@ def _area_path(scenario: Scenario, flights: Flights):
     def attempt(depth):
         lats, lons = area_targets(task, float(depth))
         path = path_through(task, lats, lons)
-        flown = fly(course_for(path), flights)
+        flown = fly_path(path)
         time = float(flown.total_time_s[0]) if flown.finished[0] else math.inf
         return depth, path, flown, time
 

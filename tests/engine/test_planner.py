@@ -255,3 +255,18 @@ def test_flights_for_carries_the_scenario_into_the_core():
     assert f.mass_kg == s.glider.mass_kg and f.mc_ms == 1.2 and f.final_glide_mc_ms == 0.8
     assert f.finish_elevation_m == ELEVATION and not f.lift_is_strength
     assert math.isnan(flights_for(scenario(OUT_AND_RETURN)).mc_ms)
+
+
+def test_a_terrain_requirement_hook_lifts_the_final_glide():
+    # The hook a terrain check plugs in: here a constant 150 m of extra height along the path.
+    seen = []
+
+    def requirement_for(s, path):
+        seen.append(path.total_m)
+        return lambda at, per_metre, floor: np.full(np.shape(at), 150.0)
+
+    base = plan(scenario(TRIANGLE, final_mc=1.0))
+    lifted = plan(scenario(TRIANGLE, final_mc=1.0), requirement_for=requirement_for)
+    assert seen == [pytest.approx(base.planned_distance_m)]
+    assert lifted.legs[-1].arrival_height_m == pytest.approx(base.legs[-1].arrival_height_m + 150.0, abs=1e-6)
+    assert lifted.total_time_s > base.total_time_s
