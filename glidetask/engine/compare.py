@@ -40,7 +40,10 @@ from glidetask.engine.scenario import Profile, Scenario, Wind
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
 SWEEP_BALLAST_STEPS = 19  # ballast values from empty to full
-SWEEP_PHASES = 8  # positions of the climbs along the route averaged over (see ballast_sweep)
+SWEEP_PHASES = 16  # positions of the climbs along the route averaged over (see ballast_sweep)
+#: Water is "best" only if it saves more than this share of the fastest time: a smaller
+#: gain is within what the model resolves (see :func:`ballast_sweep`) and not worth the water.
+BALLAST_GAIN_TOLERANCE = 0.002
 
 WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
 MORE_WIND_MS = 10.0 / 3.6  # what-if: this much more wind [m/s] (10 km/h)
@@ -195,7 +198,10 @@ class BallastSweep:
         Start to finish, averaged over where the climbs fall along the route; NaN where
         the task cannot be finished before lift ends.
     best_ballast_kg : ndarray, (S,)
-        The ballast of the shortest time per strength; NaN where no ballast finishes.
+        Per strength the lightest ballast whose time is within
+        :data:`BALLAST_GAIN_TOLERANCE` of the fastest; NaN where no ballast finishes.
+    fastest_ballast_kg : ndarray, (S,)
+        Per strength the ballast of the shortest time, however small its gain.
     ballast_pays_from_ms : float
         The weakest strength at which some ballast beats the empty glider (below it no
         ballast is best); NaN if never in the range.
@@ -223,6 +229,7 @@ class BallastSweep:
     cruise_speed_ms: np.ndarray
     task_time_s: np.ndarray
     best_ballast_kg: np.ndarray
+    fastest_ballast_kg: np.ndarray
     ballast_pays_from_ms: float
     full_ballast_from_ms: float
     scenario_ballast_kg: float
@@ -282,7 +289,8 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     strengths_ms : sequence of float
         Thermal core strengths [m/s], constant through the day until lift ends.
     ballasts_kg : sequence of float, optional
-        Ballasts [kg]; default :func:`sweep_ballasts_kg` (19 from empty to full).
+        Ballasts [kg] (sorted, repeats dropped); default :func:`sweep_ballasts_kg` (19
+        from empty to full).
     path : TaskPath, optional
         The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
     phases : int
@@ -307,7 +315,11 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     task is flown from start heights ``h0 - k D/K`` (band depth ``D``, wrapped into the
     band) and each time is referred back to the real start height ``h0`` by the time the
     height difference is worth, ``(h_k - h0)/m_c`` at the achieved climb ``m_c`` [2]_.
-    A cell counts as finished only if every phase finishes.
+    A cell counts as finished only if every phase finishes. What remains (a few tenths of
+    a minute where the time hardly changes with ballast) is why the best ballast is the
+    lightest within :data:`BALLAST_GAIN_TOLERANCE` (0.2 %, 20 seconds in three hours)
+    of the fastest: water that buys less is not worth carrying, and the model
+    cannot tell such gains apart.
     """
     from glidetask.engine.planner import course_for, flights_for
 
@@ -315,7 +327,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         raise ValueError("phases must be at least 1")
     path = _planned_path(scenario, path)
     day, glider = scenario.day, scenario.glider
-    ballast = sweep_ballasts_kg(scenario) if ballasts_kg is None else np.asarray(ballasts_kg, dtype=float)
+    ballast = sweep_ballasts_kg(scenario) if ballasts_kg is None else np.unique(np.asarray(ballasts_kg, dtype=float))
     strengths = np.asarray(strengths_ms, dtype=float)
     if ballast.ndim != 1 or strengths.ndim != 1 or np.any(ballast < 0.0) or np.any(~(strengths > 0.0)):
         raise ValueError("ballasts must be >= 0 and strengths > 0, each a 1-D sequence")
@@ -339,18 +351,28 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         task_name=scenario.task.name, planned_distance_m=float(path.total_m), ballast_kg=ballast,
         mass_kg=glider.spec.empty_mass_kg + glider.pilot_kg + ballast, thermal_strength_ms=strengths,
         thermal_radius_m=float(day.thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
-        task_time_s=task_time, best_ballast_kg=best,
+        task_time_s=task_time, best_ballast_kg=best, fastest_ballast_kg=_fastest_ballast(task_time, ballast),
         ballast_pays_from_ms=_first_strength(strengths, best > 0.0),
         full_ballast_from_ms=_first_strength(strengths, (best == ballast.max()) & (ballast.max() > 0.0)),
         scenario_ballast_kg=float(glider.ballast_kg), forecast_strength_ms=forecast_strength_ms(scenario),
         phases=phases, notes=tuple(_sweep_notes(scenario, ballast)))
 
 
-def _best_ballast(task_time: np.ndarray, ballast: np.ndarray) -> np.ndarray:
+def _fastest_ballast(task_time: np.ndarray, ballast: np.ndarray) -> np.ndarray:
     """Ballast of the shortest time per row (the lighter one on a tie); NaN for rows with none."""
     finite = np.isfinite(task_time)
     index = np.argmin(np.where(finite, task_time, np.inf), axis=1)
     return np.where(finite.any(axis=1), ballast[index], np.nan)
+
+
+def _best_ballast(task_time: np.ndarray, ballast: np.ndarray,
+                  tolerance: float = BALLAST_GAIN_TOLERANCE) -> np.ndarray:
+    """Per row the lightest ballast within ``tolerance`` (a share) of the fastest time; NaN
+    for rows where nothing finishes. ``ballast`` must be increasing."""
+    times = np.where(np.isfinite(task_time), task_time, np.inf)
+    fastest = times.min(axis=1, keepdims=True)
+    index = np.argmax(times <= fastest * (1.0 + tolerance), axis=1)
+    return np.where(np.isfinite(fastest[:, 0]), ballast[index], np.nan)
 
 
 def _first_strength(strengths: np.ndarray, mask: np.ndarray) -> float:

@@ -171,6 +171,12 @@ def stretched_profiles(scenario: Scenario, lift_ends_s: np.ndarray, values=None)
         for ``t > A``, the profile itself before.
     lift_ends_s : ndarray, (N,)
         The ends of lift, none closer than :data:`SHORTEST_DECAY_S` to the anchor.
+
+    Notes
+    -----
+    The stretched profile's kinks fall between grid times; linear interpolation on the
+    grid is off there by at most the change of slope times the step over four (a few
+    hundredths of a m/s for a decay of 1 m/s per hour).
     """
     day = scenario.day
     profile = day.climb if day.climb is not None else day.thermal_strength

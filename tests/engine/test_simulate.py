@@ -1,0 +1,190 @@
+"""The odds of getting home over simulated days (engine/simulate.py)."""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from glidetask.engine import simulate
+from glidetask.engine.planner import plan
+from glidetask.engine.scenario import Profile
+from glidetask.engine.simulate import DaySpread, draw_days, simulate_days, stretched_profiles
+from glidetask.errors import InputError
+from glidetask.formats.task_file import load_scenario
+
+DEMO = Path(__file__).resolve().parents[2] / "demo_tasks"
+TASKS = ("triangle-300", "area-3h", "out-and-return", "ridge-final-glide")
+
+
+@pytest.fixture(scope="module")
+def demo():
+    return {name: load_scenario(DEMO / f"vardmoor-{name}.toml") for name in TASKS}
+
+
+def strength_day(scenario):
+    """The triangle flown on a thermal-strength day (so every ballast flies as plan() does)."""
+    day = scenario.day
+    strength = Profile(day.climb.times_s, tuple(2.0 * v for v in day.climb.values))
+    return dataclasses.replace(scenario, day=dataclasses.replace(day, climb=None, thermal_strength=strength))
+
+
+# ---------------------------------------------------------------- zero spread is the plan
+
+
+@pytest.mark.parametrize("task", TASKS)
+def test_zero_spread_reproduces_the_plan_exactly(demo, task):
+    # By construction: the planner's own inputs, untouched, through the same core.
+    s = demo[task]
+    expected = plan(s)
+    odds = simulate_days(s, runs=7, seed=3, spread=DaySpread.none(), ballasts_kg=[s.glider.ballast_kg])
+    choice = odds.choices[0]
+    assert choice.finished == (7 if expected.finished else 0)
+    assert np.all(choice.finish_times_s == expected.total_time_s)  # exactly, every run
+    assert choice.forecast_time_s == expected.total_time_s
+    assert choice.forecast_finished == expected.finished
+
+
+def test_zero_spread_reproduces_the_plan_at_every_ballast_on_a_strength_day(demo):
+    s = strength_day(demo["triangle-300"])
+    ballasts = [0.0, 85.0, 170.0]
+    odds = simulate_days(s, runs=3, seed=1, spread=DaySpread.none(), ballasts_kg=ballasts)
+    for choice, ballast in zip(odds.choices, ballasts):
+        expected = plan(s, ballast_kg=ballast)
+        assert expected.finished and choice.finished == 3
+        assert np.all(choice.finish_times_s == expected.total_time_s)
+
+
+# ---------------------------------------------------------------- seeds and convergence
+
+
+def test_a_fixed_seed_gives_the_same_answer_and_another_seed_another(demo):
+    s = demo["out-and-return"]
+    first = simulate_days(s, runs=300, seed=42)
+    again = simulate_days(s, runs=300, seed=42)
+    other = simulate_days(s, runs=300, seed=43)
+    for a, b in zip(first.choices, again.choices):
+        assert a.finished == b.finished and a.landouts_by_leg == b.landouts_by_leg
+        assert np.array_equal(a.finish_times_s, b.finish_times_s)
+    assert not np.array_equal(first.choices[0].finish_times_s, other.choices[0].finish_times_s)
+
+
+def test_finishing_probability_converges_as_one_over_root_runs(demo):
+    # Source: the binomial standard error sqrt(p(1-p)/n): four times the runs, half the
+    # error. Tolerance 0.1 on the ratio 2: by the delta method the ratio's own sd is
+    # about |1-2p|/2 * sqrt(p(1-p)/400)/(p(1-p)) * 2, under 0.03 for p in 0.3-0.9, so
+    # 0.1 is more than three of them.
+    s = demo["out-and-return"]
+    small = simulate_days(s, runs=400, seed=7).choices[0]
+    large = simulate_days(s, runs=1600, seed=8).choices[0]
+    assert 0.3 < large.finish_probability < 0.9  # a day where the odds are in question
+    assert small.finish_probability_se / large.finish_probability_se == pytest.approx(2.0, abs=0.1)
+    # and the smaller estimate lies within three of its standard errors of the larger's
+    both = math.hypot(small.finish_probability_se, large.finish_probability_se)
+    assert abs(small.finish_probability - large.finish_probability) < 3.0 * both
+
+
+def test_the_same_days_for_every_ballast_choice(demo):
+    s = demo["triangle-300"]
+    alone = simulate_days(s, runs=200, seed=5, ballasts_kg=[170.0]).choices[0]
+    among = simulate_days(s, runs=200, seed=5, ballasts_kg=[0.0, 170.0]).choices[1]
+    assert np.array_equal(alone.finish_times_s, among.finish_times_s)
+    assert alone.landouts_by_leg == among.landouts_by_leg
+
+
+# ---------------------------------------------------------------- the drawn days
+
+
+def test_days_follow_the_stated_spread(demo):
+    # Source: the spread documented in engine/simulate.py (our planning assumptions).
+    # Tolerances: five standard errors of each estimate at 200,000 draws.
+    s = demo["triangle-300"]
+    spread = DaySpread()
+    n = 200_000
+    days = draw_days(s, spread, n, seed=11)
+    log_factor = np.log(days.climb_factor)
+    assert np.median(log_factor) == pytest.approx(0.0, abs=5 * 1.2533 * 0.2 / math.sqrt(n))
+    assert np.std(log_factor) == pytest.approx(0.2, abs=5 * 0.2 / math.sqrt(2 * n))
+    turn = (days.wind_from_deg - s.day.wind.from_deg + 180.0) % 360.0 - 180.0
+    assert np.std(turn) == pytest.approx(20.0, abs=5 * 20.0 / math.sqrt(2 * n))
+    assert np.std(days.lift_ends_s) == pytest.approx(1800.0, abs=5 * 1800.0 / math.sqrt(2 * n))
+    assert np.mean(days.lift_ends_s) == pytest.approx(s.day.lift_ends_s, abs=5 * 1800.0 / math.sqrt(n))
+    assert np.mean(days.search_unit) == pytest.approx(1.0, abs=5 / math.sqrt(days.search_unit.size))
+    assert np.all(days.search_mean_m == pytest.approx(2000.0 / days.climb_factor))
+    assert np.all(days.wind_speed_ms >= 0.0)
+
+
+def test_the_afternoon_decay_moves_with_the_end_of_lift(demo):
+    s = demo["triangle-300"]  # climbs 1.2 at 17:30 and 0 at 18:15 after a 15:30 peak
+    ends = s.day.lift_ends_s + np.array([0.0, -1800.0, 2700.0])
+    times, values, new_ends = stretched_profiles(s, ends)
+    original = s.day.climb.at(times)
+    # No shift: the profile itself (up to rounding in the time arithmetic).
+    assert values[0] == pytest.approx(original, abs=1e-12)
+    # Before the peak every day is the forecast.
+    before = times <= 15.5 * 3600.0
+    assert np.array_equal(values[1][before], original[before]) and np.array_equal(values[2][before], original[before])
+    # The 17:30 value (2 h after the peak, 2 h 45 min before the end) comes 2/2.75 of the
+    # way along the new decay: 15:30 + 2 h x (2.25/2.75) for lift ending 30 min early.
+    for row, end in ((1, new_ends[1]), (2, new_ends[2])):
+        at = 15.5 * 3600.0 + 2.0 * 3600.0 * (end - 15.5 * 3600.0) / (2.75 * 3600.0)
+        # Tolerance: linear interpolation on the 5-minute grid across a kink is off by at
+        # most (change of slope) x step / 4; the slopes -0.5 and -1.6 m/s per hour squeezed
+        # by 2.75/2.25 change by 1.35 per hour: 1.35 x (5/60) / 4 = 0.028 m/s.
+        assert np.interp(at, times, values[row]) == pytest.approx(1.2, abs=0.03)
+    assert np.array_equal(new_ends, ends)
+
+
+# ---------------------------------------------------------------- what the odds say
+
+
+def test_land_outs_add_up_by_leg_and_by_reason(demo):
+    odds = simulate_days(demo["ridge-final-glide"], runs=500, seed=2)
+    assert len(odds.legs) == 3
+    for choice in odds.choices:
+        out = choice.runs - choice.finished
+        assert out > 0
+        assert sum(choice.landouts_by_leg) == out
+        assert sum(n for _, n in choice.landouts_by_reason) == out
+        assert {key for key, _ in choice.landouts_by_reason} <= {k for k, _ in simulate.LANDOUT_REASONS.values()}
+        p10, p50, p90 = choice.task_time_s
+        assert p10 <= p50 <= p90
+
+
+def test_thermals_further_apart_mean_more_land_outs(demo):
+    # Days shared (same seed): each search distance scales with the mean.
+    s = demo["out-and-return"]
+    odds = [simulate_days(s, runs=600, seed=9, spread=DaySpread(thermal_search_mean_m=m)).choices[0]
+            for m in (0.0, 1000.0, 3000.0)]
+    probabilities = [c.finish_probability for c in odds]
+    assert probabilities[0] >= probabilities[1] > probabilities[2]
+    no_search = dict(odds[0].landouts_by_reason)
+    assert "no_thermal_found" not in no_search  # no search, no failed search
+
+
+def test_the_forecast_day_is_inside_the_spread_of_times(demo):
+    # The forecast is the median day of the spread, so its time lies between the 10th
+    # and 90th percentiles of the finishers' times.
+    odds = simulate_days(demo["triangle-300"], runs=1000, seed=4)
+    for choice in odds.choices:
+        p10, _, p90 = choice.task_time_s
+        assert p10 < choice.forecast_time_s < p90
+
+
+def test_default_choices_are_empty_half_and_full(demo):
+    assert simulate.default_ballasts_kg(demo["triangle-300"]) == (0.0, 85.0, 170.0)
+    assert simulate.default_ballasts_kg(demo["out-and-return"]) == (0.0,)  # a trainer carries no water
+
+
+def test_bad_options_are_refused(demo):
+    s = demo["triangle-300"]
+    with pytest.raises(ValueError):
+        simulate_days(s, runs=0)
+    with pytest.raises(ValueError):
+        DaySpread(climb_log_sd=-0.1)
+    with pytest.raises(InputError) as error:
+        simulate_days(s, runs=10, ballasts_kg=[200.0])
+    assert error.value.problems[0].where == "--ballast-kg"
