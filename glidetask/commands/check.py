@@ -152,7 +152,7 @@ def _toml_kind(path: str) -> str:
     try:
         document = tomllib.loads(Path(path).read_bytes().decode("utf-8"))
     except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
-        return "polar"  # the polar reader reports unreadable and malformed files well
+        return "toml"  # unreadable or malformed: the polar reader says where and why
     if "task" in document:
         return "task"
     if "polar" in document:
@@ -186,7 +186,7 @@ def check_file(path: str) -> dict:
         if kind == "toml":
             kind = _toml_kind(path)
             result["kind"] = kind
-        summary = {"task": check_task, "polar": check_polar, "turnpoints": check_turnpoints,
+        summary = {"task": check_task, "polar": check_polar, "toml": check_polar, "turnpoints": check_turnpoints,
                    "terrain": check_terrain}[kind](path)
     except InputError as error:
         return {**result, "ok": False, "problems": _problem_dicts(error.problems)}

@@ -115,3 +115,11 @@ def test_only_skipped_files_is_fine(capsys, tmp_path):
     status, out, err = _run(capsys, str(notes), str(tmp_path))
     assert status == 0 and err == ""
     assert out.count("skipped (not a glidetask file)") == 2
+
+
+def test_malformed_toml_says_where(capsys, tmp_path):
+    broken = tmp_path / "broken.toml"
+    broken.write_text("[task\nname = \"x\"\n")
+    status, out, err = _run(capsys, str(broken))
+    assert status == 2 and "broken.toml: toml, 1 problem(s)" in out
+    assert err.startswith(f"glidetask: error: {broken}: line 1: TOML syntax error")
