@@ -49,7 +49,7 @@ def _view_factory(name: str):
 class GlideTaskApp(App[int]):
     """Plan a cross-country task: legs, glider, day, final glide, safety."""
 
-    CSS_PATH = "app.tcss"
+    CSS_PATH = Path(__file__).with_name("app.tcss")  # absolute: subclasses elsewhere keep it
     TITLE = "glidetask"
     MODES = {name: _view_factory(name) for name in VIEWS}
     DEFAULT_MODE = "task"
@@ -101,9 +101,11 @@ class GlideTaskApp(App[int]):
         if self._initial_scenario is not None:
             self._opened(self._initial_path, self._initial_scenario)
             if self._compute_on_start:
-                self.request_plan()
+                self.call_after_refresh(self.request_plan)
         elif self._compute_on_start and self._initial_path is not None:
-            self._open_path(self._initial_path)
+            self.notice = f"opening {self._initial_path.name} …"
+            # after the first paint: the worker's imports (file readers, planner) compete for the GIL
+            self.call_after_refresh(self._open_path, self._initial_path)
 
     def action_view(self, view: str) -> None:
         if view in VIEWS and self.current_mode != view:

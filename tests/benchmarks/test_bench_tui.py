@@ -22,17 +22,24 @@ ROOT = Path(__file__).resolve().parents[2]
 ROUNDS = 5
 BASELINE = ["-c", "import textual.app, numpy, pyproj"]
 EDIT_BUDGET_S = 0.050
-# Opens the demo headless and prints a marker once the first screen has been composed and painted.
+# Opens the demo headless and prints a marker right after the first screen is painted
+# (call_after_refresh from on_mount runs once the first frame has been drawn).
 FIRST_SCREEN = """
 import sys
-from glidetask.tui.app import make_app
-app = make_app(show_cautions=False)
-async def first_screen(pilot):
-    await pilot.pause()
-    sys.stdout.write("FIRST-SCREEN\\n")
-    sys.stdout.flush()
-    app.exit()
-app.run(headless=True, size=(120, 40), auto_pilot=first_screen)
+from glidetask import paths
+from glidetask.tui.app import GlideTaskApp
+
+class Timed(GlideTaskApp):
+    def on_mount(self):
+        super().on_mount()
+        self.call_after_refresh(self.painted)
+
+    def painted(self):
+        sys.stdout.write("FIRST-SCREEN\\n")
+        sys.stdout.flush()
+        self.exit()
+
+Timed(paths.demo_task(), show_cautions=False).run(headless=True, size=(120, 40))
 """
 
 
