@@ -22,7 +22,8 @@ from functools import cached_property, lru_cache
 import numpy as np
 
 from glidetask.engine import geodesy
-from glidetask.engine.zones import AREA_KINDS, START_FINISH_KINDS, TURN_KINDS, Zone, zone_axes
+from glidetask.engine.zones import (AREA_KINDS, START_FINISH_KINDS, TURN_KINDS, Zone, boundary_loops, contains,
+                                    polar_coordinates, zone_axes)
 
 TURNPOINT_KINDS = ("airfield", "field", "waypoint")
 TASK_KINDS = ("racing", "area")
@@ -230,6 +231,20 @@ class TaskPath:
             Distance from the start along the path [m].
         """
         return geodesy.path_points(self.lats, self.lons, spacing_m)
+
+
+def zone_outlines(task: Task, points_per_circle: int = 72) -> list[list[tuple[np.ndarray, np.ndarray]]]:
+    """Every task point's zone outline for drawing: one list of ``(lats, lons)`` polylines per
+    task point, oriented by the task's legs (:func:`glidetask.engine.zones.boundary`)."""
+    from glidetask.engine.zones import boundary
+
+    return [boundary(p.zone, p.lat, p.lon, axis, points_per_circle) for p, axis in zip(task.points, task.axes_deg)]
+
+
+def in_zone(task: Task, index: int, lat, lon, tolerance_m: float = 1.0):
+    """Whether points lie in the zone of task point ``index`` (see :func:`glidetask.engine.zones.contains`)."""
+    point = task.points[index]
+    return contains(point.zone, point.lat, point.lon, lat, lon, task.axes_deg[index], tolerance_m)
 
 
 def nominal_distance_m(task: Task) -> float:
@@ -441,8 +456,6 @@ def _with_neighbours(windows, own: list[_Candidates], overlapping: list[bool]) -
     """Add to each zone the candidates of its neighbours that lie inside it (where zones
     overlap), passed along forwards and then backwards, so that a run of overlapping zones
     can share one point."""
-    from glidetask.engine.zones import contains
-
     out = list(own)
 
     def take(i: int, source: _Candidates) -> None:
@@ -532,8 +545,6 @@ def _chain_search(costs: list[np.ndarray], maximize: bool) -> list[int]:
 
 def _search(task: Task, maximize: bool) -> tuple[np.ndarray, np.ndarray]:
     """Path points (lats, lons) of the shortest path, or of the longest through the area zones."""
-    from glidetask.engine.zones import boundary_loops
-
     windows = [_Window(p.lat, p.lon, p.zone, axis, boundary_loops(p.zone, axis))
                for p, axis in zip(task.points, task.axes_deg)]
     gaps = np.atleast_1d(geodesy.distance(task.lats[:-1], task.lons[:-1], task.lats[1:], task.lons[1:]))
@@ -644,8 +655,6 @@ class _TargetCurve:
 
 @lru_cache(maxsize=128)
 def _target_curve(task: Task) -> _TargetCurve:
-    from glidetask.engine.zones import polar_coordinates
-
     low, high = optimized_path(task), _longest_path(task)
     az0, r0 = (np.atleast_1d(v) for v in polar_coordinates(task.lats, task.lons, low.lats, low.lons))
     az1, r1 = (np.atleast_1d(v) for v in polar_coordinates(task.lats, task.lons, high.lats, high.lons))

@@ -19,8 +19,8 @@ from geographiclib.geodesic import Geodesic
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from glidetask.engine.task import (Task, TaskPoint, Turnpoint, area_distance_range, area_targets, nominal_distance_m,
-                                   nominal_path, optimized_path, path_through)
+from glidetask.engine.task import (Task, TaskPoint, Turnpoint, area_distance_range, area_targets, in_zone,
+                                   nominal_distance_m, nominal_path, optimized_path, path_through, zone_outlines)
 from glidetask.engine.zones import Zone, contains
 
 REF = Geodesic.WGS84
@@ -326,3 +326,15 @@ def test_path_through_checks_the_number_of_points():
     task = _task(CASES["triangle with mixed zones"])
     with pytest.raises(ValueError):
         path_through(task, [46.0, 45.0], [-33.0, -34.0])
+
+
+def test_zone_outlines_and_in_zone_follow_the_task_axes():
+    task = _task(CASES["triangle with mixed zones"])
+    outlines = zone_outlines(task)
+    assert [len(o) for o in outlines] == [1, 1, 2, 1]  # the keyhole has its sector and its cylinder
+    for index, polylines in enumerate(outlines):
+        for lats, lons in polylines:
+            assert np.all(in_zone(task, index, lats, lons, tolerance_m=0.01))
+    path = optimized_path(task)
+    assert all(in_zone(task, i, path.lats[i], path.lons[i], tolerance_m=ON_ZONE_M) for i in range(4))
+    assert not in_zone(task, 3, task.lats[3] + 0.1, task.lons[3])  # 11 km from a 3 km cylinder
