@@ -135,3 +135,15 @@ async def test_resizing_every_view_never_crashes(synthetic, acknowledged):
                 await pilot.pause()
             assert app.is_running
     assert app.return_code in (0, None)
+
+
+async def test_views_are_in_the_command_palette(synthetic, acknowledged):
+    app = make_app(scenario=synthetic, compute_on_start=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.press("ctrl+p")
+        await pilot.pause()
+        await pilot.press(*"View: Safety")
+        await pilot.pause(0.5)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.current_mode == "safety"

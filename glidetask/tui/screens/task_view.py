@@ -67,8 +67,7 @@ class TaskView(ViewScreen):
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
         self.query_one(LegsTable).show(summary, units, codes)
-        stale = bool(self.app.invalid_fields) or (outcome is not None and outcome.scenario is not self.app.scenario)
-        self.query_one(PlanTotals).show(summary, units, stale=stale)
+        self.query_one(PlanTotals).show(summary, units, stale=bool(self.app.invalid_fields))
         self._draw_sketch()
 
     def _draw_sketch(self) -> None:
