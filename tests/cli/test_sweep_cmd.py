@@ -72,7 +72,7 @@ def test_text_table_has_strengths_as_rows_and_ballast_as_columns(capsys, triangl
         line = next(x for x in lines if x.strip().startswith(f"{strength:.1f} m/s") and len(x.split()) > 10)
         cells = line.split()[2:]
         assert len(cells) == len(row)
-        for cell, time, ballast in zip(cells, row, triangle_json["ballast_kg"]):
+        for cell, time, ballast in zip(cells, row, sweep.ballast_kg):
             if np.isnan(time):
                 assert cell == "-"
             else:
