@@ -1,0 +1,82 @@
+"""Speed of the strategy tools: the ballast sweep as a whole process, and 10,000 simulated
+flights of a 300 km task.
+
+The sweep's whole-process time is compared with the bare ``python -c "import numpy,
+scipy.optimize, pyproj"`` measured in the same run (budget: 2.5 times that); the
+simulation's time with its 2 s budget. The figures go into ``extra_info``; there is no
+assertion on time (machines differ). In the normal run (benchmarks disabled) each runs
+once and its output is checked.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import statistics
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+TRIANGLE = ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"
+ROUNDS = 7
+BASELINE = ["-c", "import numpy, scipy.optimize, pyproj"]
+SWEEP = ["-m", "glidetask", "sweep", str(TRIANGLE), "--json"]
+SWEEP_BUDGET_RATIO = 2.5
+SIMULATION_RUNS = 10_000
+SIMULATION_BUDGET_S = 2.0
+
+
+def _run(argv: list[str]) -> str:
+    env = {**os.environ, "PYTHONPATH": str(ROOT)}
+    result = subprocess.run([sys.executable, *argv], cwd=ROOT, env=env, capture_output=True, text=True,
+                            timeout=120, check=True)
+    return result.stdout
+
+
+def _median_seconds(argv: list[str], rounds: int) -> float:
+    times = []
+    for _ in range(rounds):
+        start = time.perf_counter()
+        _run(argv)
+        times.append(time.perf_counter() - start)
+    return statistics.median(times)
+
+
+def test_bench_sweep_whole_process(benchmark):
+    if benchmark.disabled:
+        output = benchmark(_run, SWEEP)
+    else:
+        _run(BASELINE)  # warm the file cache
+        baseline = _median_seconds(BASELINE, ROUNDS)
+        output = benchmark.pedantic(_run, args=(SWEEP,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
+        median = benchmark.stats.stats.median
+        benchmark.extra_info.update(baseline_s=baseline, command_s=median, ratio_to_baseline=median / baseline,
+                                    budget_ratio=SWEEP_BUDGET_RATIO)
+    data = json.loads(output)
+    assert len(data["ballast_kg"]) >= 19 and len(data["thermal_strength_ms"]) == 10
+
+
+def test_bench_ten_thousand_simulated_flights(benchmark):
+    from glidetask.engine.planner import plan
+    from glidetask.engine.simulate import simulate_days
+    from glidetask.formats.task_file import load_scenario
+
+    scenario = load_scenario(TRIANGLE)
+    path = plan(scenario).path  # the plan itself is not part of the simulation's budget
+    assert path.total_m > 300e3
+
+    def simulate():
+        return simulate_days(scenario, runs=SIMULATION_RUNS, seed=1, ballasts_kg=[scenario.glider.ballast_kg],
+                             path=path)
+
+    if benchmark.disabled:
+        odds = benchmark(simulate)
+    else:
+        odds = benchmark.pedantic(simulate, rounds=5, iterations=1, warmup_rounds=1)
+        median = benchmark.stats.stats.median
+        benchmark.extra_info.update(flights=SIMULATION_RUNS, seconds=median, budget_s=SIMULATION_BUDGET_S,
+                                    ratio_to_budget=median / SIMULATION_BUDGET_S,
+                                    flights_per_second=SIMULATION_RUNS / median)
+    assert odds.choices[0].runs == SIMULATION_RUNS
