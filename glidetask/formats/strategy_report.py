@@ -314,7 +314,7 @@ def probability_bar(p: float, width: int = BAR_WIDTH) -> str:
     return ("█" * full + partial).ljust(width, "░")[:width]
 
 
-def _assumption_text(odds, units: UnitSystem) -> str:
+def assumption_text(odds, units: UnitSystem) -> str:
     s = odds.spread
     return (f"strength x exp(N(0, {s.climb_log_sd:g})); wind +/- {units.fmt_speed(s.wind_speed_sd_ms)}, "
             f"+/- {s.wind_direction_sd_deg:.0f} deg; end of lift +/- {s.lift_end_sd_s / 60:.0f} min; "
@@ -326,7 +326,7 @@ def odds_text(odds, units: UnitSystem | str = "metric") -> str:
     units = _units(units)
     lines = [f"Odds of getting home: {odds.task_name}",
              f"  {odds.runs} simulated days around the forecast (seed {odds.seed}), the same days for each ballast",
-             f"  spread (planning assumptions, not a forecast): {_assumption_text(odds, units)}", ""]
+             f"  spread (planning assumptions, not a forecast): {assumption_text(odds, units)}", ""]
     head = ["ballast", "finish", "+/-", "", "10%", "50%", "90%", "forecast day"]
     rows = []
     for c in odds.choices:
@@ -359,7 +359,7 @@ def odds_markdown(odds, units: UnitSystem | str = "metric") -> str:
              *(_duration(t) for t in c.task_time_s), str(c.runs - c.finished)] for c in odds.choices]
     lines = ["## Odds of getting home", "",
              f"{odds.runs} simulated days around the forecast (seed {odds.seed}); spread (our planning "
-             f"assumptions, not a forecast): {_assumption_text(odds, units)}.", ""]
+             f"assumptions, not a forecast): {assumption_text(odds, units)}.", ""]
     lines += _markdown_table(["Ballast", "Finish", "10 %", "50 %", "90 %", "Land-outs"], rows)
     lines += [""] + [f"- {note}" for note in odds.notes]
     return "\n".join(lines) + "\n"

@@ -1,28 +1,117 @@
-"""The Compare view: ballast against thermal strength (engine/compare.py).
+"""The Compare view: ballast against thermal strength for the task as planned
+(engine/compare.py), computed in a worker thread whenever a new plan arrives.
 
-Until that engine module exists this view says what it needs; the view is its own
-file so that it can be filled in without touching the rest of the UI.
+A heat-map table of task time by strength and ballast (each row coloured from its
+fastest time, the best ballast marked), a plot of task time against ballast for a few
+strengths, and the verdict: where ballast starts paying, where full ballast is best, and
+where the forecast day sits.
 """
 
 from __future__ import annotations
 
-import importlib.util
+from rich.console import Group
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.containers import Horizontal, Vertical
+from textual.widgets import Static
 
 from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
 
-
-def engine_ready() -> bool:
-    return importlib.util.find_spec("glidetask.engine.compare") is not None
+WAITING = "Compare shows the task time for every water ballast against thermal strength, once the plan is ready."
 
 
 class CompareView(ViewScreen):
-    VIEW = "compare"
+    """Ballast against thermal strength: table, plot, verdict."""
 
-    def compose_body(self):
-        if engine_ready():
-            yield NeedsNotice("Compare: glidetask.engine.compare is installed; this view is waiting "
-                              "to be connected to it.", id="compare-needs")
-        else:
-            yield NeedsNotice("Compare needs ballast against thermal strength (engine/compare.py), which is not part of this build yet. "
-                              "The other views work without it.", id="compare-needs")
+    VIEW = "compare"
+    DEFAULT_CSS = """
+    #sweep-panel { height: auto; }
+    #compare-bottom { height: 1fr; min-height: 10; }
+    #sweep-plot { width: 1fr; height: 1fr; }
+    #sweep-summary { width: 46; height: 1fr; }
+    """
+
+    def __init__(self):
+        super().__init__()
+        self.sweep = None
+        self._computed_for = None
+        self._token = 0
+
+    def compose_body(self) -> ComposeResult:
+        yield NeedsNotice(WAITING, id="compare-waiting")
+        with Vertical(id="sweep-panel", classes="panel"):
+            yield SweepTable(id="sweep-table")
+        with Horizontal(id="compare-bottom"):
+            yield SweepPlot(id="sweep-plot", classes="panel")
+            yield Static(id="sweep-summary", classes="panel")
+
+    def on_mount(self) -> None:
+        self.query_one("#sweep-panel").border_title = "Task time (h:mm) by thermal strength and water ballast (kg)"
+        self.query_one("#sweep-plot").border_title = "Task time against ballast"
+        self.query_one("#sweep-summary").border_title = "Should I fill the tanks?"
+        self._show_parts(False)
+        super().on_mount()
+
+    def _show_parts(self, ready: bool) -> None:
+        self.query_one("#compare-waiting").display = not ready
+        self.query_one("#sweep-panel").display = ready
+        self.query_one("#compare-bottom").display = ready
+
+    # ------------------------------------------------------------ computing
+
+    def show_plan(self, outcome) -> None:
+        if outcome is None or outcome is self._computed_for:
+            return
+        self._computed_for = outcome
+        self._token += 1
+        self.query_one("#sweep-panel").border_subtitle = "computing …"
+        self.sweep_in_background(outcome.scenario, outcome.plan.path, self._token)
+
+    @work(thread=True, exclusive=True, group="compare")
+    def sweep_in_background(self, scenario, path, token: int) -> None:
+        from glidetask.engine.compare import ballast_sweep
+
+        try:
+            sweep = ballast_sweep(scenario, path=path)
+        except Exception as error:  # shown, never a crash; the last sweep stays
+            self.app.call_from_thread(self._failed, token, f"{type(error).__name__}: {error}")
+            return
+        self.app.call_from_thread(self._swept, token, sweep)
+
+    def _swept(self, token: int, sweep) -> None:
+        if token != self._token:
+            return  # a newer plan is being swept
+        self.sweep = sweep
+        self.query_one("#sweep-panel").border_subtitle = (
+            f"{sweep.task_name} · {len(sweep.ballast_kg)} ballasts × {len(sweep.thermal_strength_ms)} strengths")
+        self._draw()
+
+    def _failed(self, token: int, message: str) -> None:
+        if token == self._token:
+            self.query_one("#sweep-panel").border_subtitle = "not computed"
+            self.app.notice = f"ballast sweep: {message}"
+
+    # ------------------------------------------------------------ drawing
+
+    def show_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        if self.sweep is None:
+            return
+        from glidetask.formats.strategy_report import forecast_line, sweep_verdict
+
+        units, sweep = self.app.units, self.sweep
+        self._show_parts(True)
+        self.query_one(SweepTable).show(sweep, units)
+        self.query_one(SweepPlot).show(sweep, units)
+        lines = [Text(sweep_verdict(sweep, units), style="bold #8cc66d"), Text(""),
+                 Text(forecast_line(sweep, units)), Text(""),
+                 Text(f"Thermals {units.fmt_height(sweep.thermal_radius_m)} in radius, the same strength all day; "
+                      f"times averaged over where the climbs fall ({sweep.phases} positions). The best is the "
+                      "lightest ballast within 0.2 % of the fastest.", style="dim")]
+        lines += [Text(f"⚠ {note}", style="#e0b15a") for note in sweep.notes]
+        self.query_one("#sweep-summary", Static).update(Group(*lines))

@@ -1,28 +1,208 @@
-"""The Odds view: the Monte-Carlo simulation of the day (engine/simulate.py).
+"""The Odds view: the task over simulated days around the forecast (engine/simulate.py),
+computed in a worker thread whenever a new plan arrives or the pilot changes the runs,
+the seed or the ballast choices.
 
-Until that engine module exists this view says what it needs; the view is its own
-file so that it can be filled in without touching the rest of the UI.
+Finishing odds as bars, task-time percentiles among the finishers, land-outs by leg and
+why, and the spread of days assumed (planning assumptions of our own, not a forecast).
 """
 
 from __future__ import annotations
 
-import importlib.util
+import math
+import re
 
+from rich.text import Text
+from textual import on, work
+from textual.app import ComposeResult
+from textual.containers import Vertical
+from textual.widgets import Static
+
+from glidetask.tui import messages
 from glidetask.tui.screens.base import ViewScreen
+from glidetask.tui.widgets.form_field import FormField
 from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.strategy_odds import FinishPlot, LandoutsTable, OddsTable, ProbabilityBars
+
+WAITING = "Odds flies the task over many simulated days around the forecast, once the plan is ready."
+DEFAULT_RUNS = 2000
+MAX_RUNS = 20_000  # keeps a recompute in the view under a few seconds
+MAX_CHOICES = 5
+FIELDS = (("odds-runs", "Simulated days", "runs"), ("odds-seed", "Random seed", ""),
+          ("odds-ballasts", "Ballast choices", "kg"))
 
 
-def engine_ready() -> bool:
-    return importlib.util.find_spec("glidetask.engine.simulate") is not None
+def parse_runs(text: str) -> int:
+    value = int(text.strip())
+    if not 1 <= value <= MAX_RUNS:
+        raise ValueError(f"simulated days: 1 to {MAX_RUNS}")
+    return value
+
+
+def parse_seed(text: str) -> int:
+    value = int(text.strip())
+    if value < 0:
+        raise ValueError("seed: 0 or more")
+    return value
+
+
+def parse_ballasts(text: str, most_kg: float) -> tuple[float, ...] | None:
+    """``"0, 85, 170"`` -> the choices [kg]; empty -> None (empty, half, full)."""
+    parts = [p for p in re.split(r"[,\s]+", text.strip()) if p]
+    if not parts:
+        return None
+    values = tuple(dict.fromkeys(float(p) for p in parts))
+    if len(values) > MAX_CHOICES or any(not math.isfinite(v) or not 0.0 <= v <= most_kg + 1e-9 for v in values):
+        raise ValueError(f"ballast choices: up to {MAX_CHOICES} values of 0-{most_kg:g} kg")
+    return values
 
 
 class OddsView(ViewScreen):
-    VIEW = "odds"
+    """How likely is the task today, empty, half or full?"""
 
-    def compose_body(self):
-        if engine_ready():
-            yield NeedsNotice("Odds: glidetask.engine.simulate is installed; this view is waiting "
-                              "to be connected to it.", id="odds-needs")
-        else:
-            yield NeedsNotice("Odds needs the Monte-Carlo simulation of the day (engine/simulate.py), which is not part of this build yet. "
-                              "The other views work without it.", id="odds-needs")
+    VIEW = "odds"
+    AUTO_FOCUS = None  # the view keys (1-7, u) work until the pilot picks a field
+    DEFAULT_CSS = """
+    #view-body { layout: horizontal; }
+    #odds-left { width: 52; }
+    #odds-inputs { height: auto; }
+    #odds-bars { height: auto; }
+    #odds-assumptions { height: auto; color: $text-muted; }
+    #odds-right { width: 1fr; }
+    #odds-table { height: auto; }
+    #landouts-table { height: auto; max-height: 16; }
+    #finish-plot { height: 1fr; min-height: 8; }
+    """
+
+    def __init__(self):
+        super().__init__()
+        self.runs, self.seed, self.ballasts = DEFAULT_RUNS, 1, None
+        self.odds = None
+        self._computed_for = None
+        self._token = 0
+
+    def compose_body(self) -> ComposeResult:
+        with Vertical(id="odds-left"):
+            yield NeedsNotice(WAITING, id="odds-waiting")
+            with Vertical(id="odds-inputs", classes="panel"):
+                for field_id, label, unit in FIELDS:
+                    yield FormField(field_id, label, unit, placeholder="empty, half, full" if "ballast" in field_id
+                                    else "")
+            yield ProbabilityBars(id="odds-bars", classes="panel")
+            yield Static(id="odds-assumptions", classes="panel")
+        with Vertical(id="odds-right"):
+            yield OddsTable(id="odds-table", classes="panel")
+            yield LandoutsTable(id="landouts-table", classes="panel")
+            yield FinishPlot(id="finish-plot", classes="panel")
+
+    def on_mount(self) -> None:
+        self.query_one("#odds-inputs").border_title = "Simulation"
+        self.query_one("#odds-bars").border_title = "Odds of finishing"
+        self.query_one("#odds-assumptions").border_title = "The spread of days assumed"
+        self.query_one("#odds-table").border_title = "Task time among the finishers (h:mm)"
+        self.query_one("#landouts-table").border_title = "Land-outs by leg (days)"
+        self.query_one("#finish-plot").border_title = "Days finished within a task time"
+        self._field("odds-runs").show(str(self.runs), force=True)
+        self._field("odds-seed").show(str(self.seed), force=True)
+        self._show_parts(False)
+        super().on_mount()
+
+    def _show_parts(self, ready: bool) -> None:
+        self.query_one("#odds-waiting").display = not ready
+        for widget_id in ("#odds-bars", "#odds-assumptions", "#odds-right"):
+            self.query_one(widget_id).display = ready
+
+    # ------------------------------------------------------------ inputs
+
+    def _field(self, field_id: str) -> FormField:
+        return self.query_one(f"#{field_id}").parent
+
+    def _most_kg(self) -> float:
+        from glidetask.engine.compare import usable_ballast_kg
+
+        scenario = self.app.scenario
+        return usable_ballast_kg(scenario) if scenario is not None else 0.0
+
+    @on(messages.FieldEdited)
+    def _field_edited(self, message: messages.FieldEdited) -> None:
+        if not message.field_id.startswith("odds-"):
+            return  # the app's fields go up to the app
+        message.stop()
+        field = self.query_one(f"#{message.field_id}")
+        try:
+            if message.field_id == "odds-runs":
+                self.runs = parse_runs(message.text)
+            elif message.field_id == "odds-seed":
+                self.seed = parse_seed(message.text)
+            else:
+                self.ballasts = parse_ballasts(message.text, self._most_kg())
+        except ValueError as error:
+            field.add_class("-invalid")
+            self.app.notice = str(error) if "invalid literal" not in str(error) else "odds: expected a number"
+            return
+        field.remove_class("-invalid")
+        self._simulate(self.app.plan)
+
+    # ------------------------------------------------------------ computing
+
+    def show_plan(self, outcome) -> None:
+        if outcome is not None and outcome is not self._computed_for:
+            self._simulate(outcome)
+
+    def _simulate(self, outcome) -> None:
+        if outcome is None:
+            return
+        if self.ballasts is not None and max(self.ballasts) > self._most_kg() + 1e-9:
+            self.ballasts = None  # the glider changed: back to empty, half, full
+            self.app.notice = "ballast choices reset: the glider carries less water"
+        self._computed_for = outcome
+        self._token += 1
+        self.query_one("#odds-bars").border_subtitle = "computing …"
+        self.simulate_in_background(outcome.scenario, outcome.plan.path, self.runs, self.seed, self.ballasts,
+                                    self._token)
+
+    @work(thread=True, exclusive=True, group="odds")
+    def simulate_in_background(self, scenario, path, runs: int, seed: int, ballasts, token: int) -> None:
+        from glidetask.engine.simulate import simulate_days
+
+        try:
+            odds = simulate_days(scenario, runs=runs, seed=seed, ballasts_kg=ballasts, path=path)
+        except Exception as error:  # shown, never a crash; the last result stays
+            self.app.call_from_thread(self._failed, token, f"{type(error).__name__}: {error}")
+            return
+        self.app.call_from_thread(self._simulated, token, odds)
+
+    def _simulated(self, token: int, odds) -> None:
+        if token != self._token:
+            return
+        self.odds = odds
+        self._draw()
+
+    def _failed(self, token: int, message: str) -> None:
+        if token == self._token:
+            self.query_one("#odds-bars").border_subtitle = "not computed"
+            self.app.notice = f"odds: {message}"
+
+    # ------------------------------------------------------------ drawing
+
+    def show_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        odds = self.odds
+        if odds is None:
+            return
+        from glidetask.formats.strategy_report import assumption_text
+
+        self._show_parts(True)
+        self._field("odds-ballasts").show(", ".join(f"{c.ballast_kg:g}" for c in odds.choices))
+        self.query_one("#odds-bars").border_subtitle = f"{odds.runs} days · seed {odds.seed}"
+        self.query_one(ProbabilityBars).show(odds)
+        self.query_one(OddsTable).show(odds)
+        self.query_one(LandoutsTable).show(odds)
+        self.query_one(FinishPlot).show(odds)
+        text = Text(assumption_text(odds, self.app.units) + ".")
+        text.append("\nPlanning assumptions of glidetask, not a forecast. The same days for each ballast.",
+                    style="italic")
+        for note in odds.notes[1:]:
+            text.append(f"\n⚠ {note}", style="#e0b15a")
+        self.query_one("#odds-assumptions", Static).update(text)
