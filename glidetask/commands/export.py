@@ -1,7 +1,7 @@
 """``glidetask export TASK.toml --to FILE``: the plan as a file (contract 4).
 
 The file's suffix chooses the format: ``.gpx`` (a GPX 1.1 route of the planned path),
-``.md`` (the one-page pre-flight briefing, in the ``--units`` chosen) or ``.json`` (the
+``.md`` (the pre-flight briefing, in the ``--units`` chosen) or ``.json`` (the
 plan as ``plan --json`` prints it). The what-if options work as for ``plan``. The file
 is written atomically: an interrupted export never leaves half a file behind.
 """
@@ -35,18 +35,25 @@ def target_problems(target: str) -> list[Problem]:
 
 
 def render(plan, suffix: str, unit_name: str = "metric") -> str:
-    """The file's text for a plan in the format of ``suffix``."""
+    """The file's text for a plan in the format of ``suffix``.
+
+    The briefing and the JSON carry the sensitivity of the task time (computed here, so
+    the terminal UI's export, which calls this, gets the same file).
+    """
     if suffix == ".gpx":
         from glidetask.formats.gpx import plan_to_gpx
 
         return plan_to_gpx(plan)
+    from glidetask.engine.planner import plan_sensitivity
+
+    sensitivity = plan_sensitivity(plan)
     if suffix == ".md":
         from glidetask.formats.briefing import plan_to_markdown
 
-        return plan_to_markdown(plan, unit_name)
+        return plan_to_markdown(plan, unit_name, sensitivity)
     from glidetask.formats.plan_json import plan_to_dict
 
-    return json.dumps(jsonable(plan_to_dict(plan)), indent=2, allow_nan=False) + "\n"
+    return json.dumps(jsonable(plan_to_dict(plan, sensitivity)), indent=2, allow_nan=False) + "\n"
 
 
 def run(args: argparse.Namespace) -> int:

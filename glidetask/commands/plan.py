@@ -3,7 +3,10 @@
 The what-if options (``--mc-ms``, ``--ballast-kg``, ``--bugs-percent``, ``--wind``,
 ``--start``) replace the task file's values for this plan only. Text output shows the
 legs table, the totals, where the final glide starts, the heights needed at each
-turnpoint, the verdict and the cautions; ``--json`` prints the contract's object.
+turnpoint, the final glide over the terrain (with a ``[terrain]`` model), the landable
+fields in reach along the task, how the task time answers to the day (sensitivity), the
+verdict and the cautions; ``--json`` prints the contract's object with ``terrain``,
+``landables`` and ``sensitivity``.
 """
 
 from __future__ import annotations
@@ -156,8 +159,11 @@ def _totals(plan, unit: units.UnitSystem) -> list[str]:
 def _required_card(plan, unit: units.UnitSystem) -> list[str]:
     names = [leg.from_name for leg in plan.legs] + [plan.legs[-1].to_name]
     heights = [leg.required_height_m for leg in plan.legs] + [plan.arrival_floor_m]
+    terrain = ""
+    if plan.terrain_source is not None:
+        terrain = f", clearing the terrain by {unit.fmt_height(plan.scenario.safety.terrain_clearance_m)}"
     out = [f"Heights needed to final-glide home (arrival {unit.fmt_height(plan.scenario.safety.arrival_margin_m)}"
-           " over the finish, each at the plan's final-glide setting there):"]
+           f" over the finish{terrain}, each at the plan's final-glide setting there):"]
     width = max(len(n) for n in names)
     for name, height in zip(names, heights):
         out.append(f"  {name.ljust(width)}  {_fmt(unit.height(height)).rjust(6)} {unit.height_label}")
@@ -172,11 +178,56 @@ def verdict(plan, unit: units.UnitSystem) -> str:
     return f"ENDS SHORT {unit.fmt_distance(plan.landout_m)} along the task: {plan.reason}."
 
 
-def plan_text(plan, unit_name: str = "metric") -> str:
-    """The readable plan: header, legs, totals, heights card, verdict, cautions."""
+def terrain_section(plan, unit: units.UnitSystem) -> list[str]:
+    """The final glide over the terrain: verdict, least clearance, what decided the height,
+    and a small profile; empty without an elevation model."""
+    from glidetask.formats import safety_report
+
+    if plan.terrain_source is None:
+        return []
+    if plan.terrain is None:
+        return [f"Final glide over the terrain (model {plan.terrain_source})",
+                "  not checked: the plan has no final glide"]
+    lines = safety_report.terrain_text(plan.terrain, unit).splitlines()
+    path = plan.terrain_path
+    if path is not None and path.profile.covered_share < 1.0:
+        missing = ", ".join(f"{unit.fmt_distance(a)} to {unit.fmt_distance(b)}"
+                            for a, b in path.profile.uncovered_ranges())
+        lines.append(f"  {'planned path':<17} the model covers {100.0 * path.profile.covered_share:.0f}%; "
+                     f"no data from {missing}")
+    if plan.terrain.lowest is not None:
+        lines += [""] + ["  " + row for row in
+                         safety_report.terrain_profile_ascii(plan.terrain, unit, width=60, height=10).splitlines()]
+    return lines
+
+
+def landables_section(plan, unit: units.UnitSystem) -> list[str]:
+    """Landable coverage from the band bottom: coverage, gaps, alternates per leg."""
+    from glidetask.formats import safety_report
+
+    if plan.landables is None:
+        return []
+    names = [(leg.from_name, leg.to_name) for leg in plan.legs]
+    return safety_report.landables_text(plan.landables, unit, leg_names=names).splitlines()
+
+
+def sensitivity_section(sensitivity, unit: units.UnitSystem) -> list[str]:
+    from glidetask.formats.strategy_report import sensitivity_text
+
+    return [] if sensitivity is None else sensitivity_text(sensitivity, unit).splitlines()
+
+
+def plan_text(plan, unit_name: str = "metric", sensitivity=None) -> str:
+    """The readable plan: header, legs, totals, heights card, terrain and landable sections,
+    the sensitivity table (when given), verdict, cautions."""
     unit = units.by_name(unit_name)
     lines = _header(plan, unit) + [""] + _legs_table(plan, unit) + [""] + _totals(plan, unit)
-    lines += [""] + _required_card(plan, unit) + ["", verdict(plan, unit), ""]
+    lines += [""] + _required_card(plan, unit)
+    for section in (terrain_section(plan, unit), landables_section(plan, unit),
+                    sensitivity_section(sensitivity, unit)):
+        if section:
+            lines += [""] + section
+    lines += ["", verdict(plan, unit), ""]
     lines.append(caution_block(plan.cautions[len(_general()):]))
     return "\n".join(lines)
 
@@ -188,11 +239,14 @@ def _general():
 
 
 def run(args: argparse.Namespace) -> int:
+    from glidetask.engine.planner import plan_sensitivity
+
     plan = plan_from_args(args)
+    sensitivity = plan_sensitivity(plan)
     if args.json:
         from glidetask.formats.plan_json import plan_to_dict
 
-        print_json(plan_to_dict(plan))
+        print_json(plan_to_dict(plan, sensitivity))
     else:
-        print(plan_text(plan, args.units))
+        print(plan_text(plan, args.units, sensitivity))
     return 0

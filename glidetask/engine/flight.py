@@ -894,15 +894,17 @@ class _Simulation:
         )
 
 
-def requirement_card(course: Course, flights: Flights, mc_values) -> np.ndarray:
+def requirement_card(course: Course, flights: Flights, mc_values,
+                     requirement: RequirementHook | None = None) -> np.ndarray:
     """Required height [m MSL] at each leg's start and at the finish for final glides home
     at several MacCready settings, shape (N, M, L+1), M = ``len(mc_values)``.
 
     Each requirement is computed as in :func:`fly`: the arrival floor plus the pure-glide
     height used over the remaining legs in their own wind, the density at the middle of
-    its start and arrival heights. The last column is the floor itself.
+    its start and arrival heights, plus the ``requirement`` hook's extra (terrain). The
+    last column is the floor itself.
     """
-    simulation = _Simulation(course, flights, None, None)
+    simulation = _Simulation(course, flights, None, requirement)
     settings = np.atleast_1d(np.asarray(mc_values, dtype=float))
     n, count, legs = simulation.n, settings.size, course.legs
     rows = np.repeat(np.arange(n), count * legs)

@@ -12,6 +12,14 @@ The rules of the flight are the contract's section 3 (see :mod:`glidetask.engine
 :func:`flights_for` and :func:`course_for` turn a scenario and a path into the core's
 inputs, for the ballast sweep and the Monte-Carlo days, which vary them per flight.
 
+Safety over the ground: when the task names an elevation model (``[terrain] file``) the
+plan samples it along every path it flies (:func:`glidetask.engine.terrain.path_terrain`),
+lets it raise the final-glide requirement wherever the terrain ahead demands more height
+than the arrival margin, and reports the final glide over the terrain from the same
+samples (:attr:`Plan.terrain`). Whenever the turnpoint collection has landable fields it
+reports the coverage along the planned path from the band bottom
+(:func:`glidetask.engine.reach.coverage`, :attr:`Plan.landables`).
+
 References
 ----------
 .. [1] FAI Sporting Code Section 3 (Gliding), Annex A: assigned-area tasks are scored
@@ -23,6 +31,8 @@ from __future__ import annotations
 
 import dataclasses
 import math
+import threading
+from collections import OrderedDict
 from dataclasses import dataclass
 
 import numpy as np
@@ -39,6 +49,8 @@ AREA_TIME_SLACK = 0.05  # planned area-task time within [min time, (1 + this) x 
 TIGHT_DAY_S = 1800.0  # caution when the last climb ends this close to the end of lift [s]
 THIN_MARGIN_M = 150.0  # caution for an arrival margin below this [m] (common practice)
 CARD_MC_MS = (0.0, 1.0, 2.0, 3.0)  # MacCready settings of the briefing's final-glide card
+COVERAGE_SPACING_M = 1000.0  # landable coverage sampled along the path at least this often [m]
+_COVERAGE_CACHE_SIZE = 16  # coverage results kept for repeated plans (the UI replans on every edit)
 
 
 @dataclass(frozen=True)
@@ -144,8 +156,19 @@ class Plan:
         The general cautions, then this plan's own.
     flown : Flown
         The flight core's full result (one flight).
-    terrain, landables : object or None
-        Terrain check and landable coverage, filled in where those are computed.
+    terrain : FinalGlideTerrain or None
+        The final glide checked over the elevation model
+        (:class:`glidetask.engine.terrain.FinalGlideTerrain`), from the same samples that
+        raised its requirement; None without a model or without a final glide.
+    landables : Coverage or None
+        Landable coverage along the planned path from the band bottom
+        (:class:`glidetask.engine.reach.Coverage`); None when no turnpoint is landable.
+    requirement : RequirementHook or None
+        The extra final-glide requirement the plan was flown with (a
+        :class:`glidetask.engine.terrain.PathTerrain` when the task has a model).
+    terrain_source : str or None
+        The elevation model's file when the task has one (even when no final glide
+        could be checked).
     """
 
     scenario: Scenario
@@ -172,6 +195,8 @@ class Plan:
     flown: Flown
     terrain: object | None = None
     landables: object | None = None
+    requirement: object | None = None
+    terrain_source: str | None = None
 
     @property
     def start_time_s(self) -> float:
@@ -185,6 +210,21 @@ class Plan:
     @property
     def last_climb_end_s(self) -> float:
         return float(self.flown.last_climb_end_s[0])
+
+    @property
+    def terrain_path(self):
+        """The terrain sampled along the planned path (a ``PathTerrain``), or None."""
+        return self.requirement if hasattr(self.requirement, "profile") else None
+
+    @property
+    def terrain_ok(self) -> bool | None:
+        """The contract's ``terrain.ok``: the final glide clears the terrain by the clearance
+        and the model covers the whole planned path; None without a model."""
+        if self.terrain_source is None:
+            return None
+        path = self.terrain_path
+        covered = path is None or path.profile.covered_share >= 1.0
+        return bool(self.terrain is not None and self.terrain.ok and covered)
 
 
 # ---------------------------------------------------------------- the core's inputs
@@ -304,38 +344,53 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         Start time [s after midnight] instead of the day's.
     requirement_for : callable, optional
         ``requirement_for(scenario, path) -> RequirementHook or None``: extra final-glide
-        height along a candidate path (a terrain check; see
-        :data:`glidetask.engine.flight.RequirementHook`), asked once per path flown.
+        height along a candidate path (see :data:`glidetask.engine.flight.RequirementHook`),
+        asked once per path flown. Default: the task's elevation model, if it has one
+        (:func:`terrain_requirement`).
 
     Returns
     -------
     Plan
         A plan that ends short (wind too strong, no lift) is a result: ``finished``
-        false, ``landout_m`` and a caution that says why.
+        false, ``landout_m`` and a caution that says why. With an elevation model the
+        plan carries the final glide checked over the terrain (``terrain``); with landable
+        turnpoints, the coverage along the planned path (``landables``).
 
     Raises
     ------
     InputError
-        What-ifs that make the inputs inconsistent (see :func:`with_what_ifs`).
+        What-ifs that make the inputs inconsistent (see :func:`with_what_ifs`); an
+        elevation model that cannot be read or does not cover the task at all (named
+        ``[terrain] file`` of the task file).
     """
     from glidetask.engine import task as task_geometry
 
     scenario = with_what_ifs(scenario, mc_ms=mc_ms, ballast_kg=ballast_kg, bugs_percent=bugs_percent, wind=wind,
                              start_time_s=start_time_s)
+    model = load_terrain_for(scenario)
+    if requirement_for is None and model is not None:
+        requirement_for = terrain_requirement(model)
     task = scenario.task
     flights = flights_for(scenario)
     optimized = task_geometry.optimized_path(task)
     area = None
     notes: list[str] = []
+    hooks: list[tuple[object, object]] = []  # (path, hook) of every path flown
+
     def fly_path(path):
         hook = None if requirement_for is None else requirement_for(scenario, path)
+        hooks.append((path, hook))
         return fly(course_for(path), flights, requirement=hook)
 
     if task.kind == "area":
         path, flown, area, notes = _area_path(scenario, fly_path)
     else:
         path, flown = optimized, fly_path(optimized)
-    return _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
+    hook = next(h for p, h in hooks if p is path)
+    if model is not None:
+        _check_model_covers(scenario, model, hook)
+    result = _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
+    return _with_safety(result, hook, model)
 
 
 def _area_path(scenario: Scenario, fly_path):
@@ -486,6 +541,191 @@ def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
     return tuple(out)
 
 
+# ---------------------------------------------------------------- safety over the ground
+
+
+def load_terrain_for(scenario: Scenario):
+    """The task's elevation model (cached by :func:`glidetask.engine.terrain.load_terrain`), or None.
+
+    Raises
+    ------
+    InputError
+        The model cannot be used (missing, not a raster, no CRS), named by the task
+        file's ``[terrain] file``.
+    """
+    if not scenario.terrain_file:
+        return None
+    from glidetask.engine.terrain import TerrainError, load_terrain
+
+    try:
+        return load_terrain(scenario.terrain_file)
+    except TerrainError as error:
+        raise InputError([Problem(scenario.source or "task", "[terrain] file", f"{error.path}: {error.what}")]) from None
+
+
+_PATH_TERRAIN_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
+_PATH_TERRAIN_CACHE_SIZE = 32  # an area task tries up to about 16 paths per plan
+_PATH_TERRAIN_LOCK = threading.Lock()
+
+
+def terrain_requirement(model):
+    """``requirement_for`` of :func:`plan` for an elevation model: the terrain sampled along
+    each path flown (every 250 m), at the scenario's terrain clearance.
+
+    The samples are cached by path, model and clearance: a replan after an edit that
+    leaves the path alone (the day, the glider, the margins) samples nothing again.
+    """
+    from glidetask.engine.terrain import path_terrain
+
+    def requirement_for(scenario: Scenario, path):
+        clearance = scenario.safety.terrain_clearance_m
+        key = (id(model), np.asarray(path.lats).tobytes(), np.asarray(path.lons).tobytes(), clearance)
+        with _PATH_TERRAIN_LOCK:
+            cached = _PATH_TERRAIN_CACHE.get(key)
+            if cached is not None and cached[0] is model:
+                _PATH_TERRAIN_CACHE.move_to_end(key)
+                return cached[1]
+        hook = path_terrain(model, path.lats, path.lons, clearance)
+        with _PATH_TERRAIN_LOCK:
+            _PATH_TERRAIN_CACHE[key] = (model, hook)  # the model is kept, so its id stays its own
+            while len(_PATH_TERRAIN_CACHE) > _PATH_TERRAIN_CACHE_SIZE:
+                _PATH_TERRAIN_CACHE.popitem(last=False)
+        return hook
+
+    return requirement_for
+
+
+def _check_model_covers(scenario: Scenario, model, hook) -> None:
+    """A model that covers none of the planned path is the wrong file: an input error."""
+    profile = getattr(hook, "profile", None)
+    if profile is not None and not np.any(np.isfinite(profile.elevation_m)):
+        raise InputError([Problem(scenario.source or "task", "[terrain] file",
+                                  f"{model.source}: the elevation model covers none of the task's planned path")])
+
+
+def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
+    """Height used per metre on each leg [m/m] by the plan's final glide, shape (L,).
+
+    The final glide's own polar (at its density, ``flown.final_glide_sigma``) and setting
+    (``flown.final_glide_mc_ms``) in each leg's wind, exactly as the flight core flew it;
+    NaN without a final glide.
+    """
+    from glidetask.engine.polar import scaled_polar
+    from glidetask.engine.speedtofly import glide_in_wind
+    from glidetask.engine.wind import wind_components
+
+    sigma, mc = float(flown.final_glide_sigma[0]), float(flown.final_glide_mc_ms[0])
+    if not (math.isfinite(sigma) and math.isfinite(mc)):
+        return np.full(len(path.legs), np.nan)
+    day, glider = scenario.day, scenario.glider
+    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), day.wind.from_deg,
+                                    day.wind.speed_ms)
+    polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
+    glide = glide_in_wind(polar, mc, along, across, day.glide_airmass_ms)
+    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float), (len(path.legs),)).copy()
+
+
+_COVERAGE_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
+_COVERAGE_LOCK = threading.Lock()
+
+
+def landable_coverage(scenario: Scenario, path, model=None):
+    """Landable coverage along a planned path from the band bottom, or None without landables.
+
+    Every :data:`COVERAGE_SPACING_M` along the path (and at every turnpoint), the fields
+    of the turnpoint collection marked ``landable`` in reach at MacCready 0 in the day's
+    wind, arriving with the arrival margin, clearing the terrain by the terrain clearance
+    when a model is given (:func:`glidetask.engine.reach.coverage`).
+
+    Notes
+    -----
+    The polar is the glider's as loaded at the density of the middle of the band bottom
+    and the arrival floor (finish elevation plus margin): the heights glided through on
+    the way down to a field. Air rising in the glides is not counted on (a glide to a
+    field plans with ``min(glide_airmass_ms, 0)``): a pilot low and looking for a field
+    cannot rely on it. Results are cached, keyed by everything they depend on, so an
+    edit that changes none of it (a climb, a start time, a MacCready setting) costs
+    nothing here.
+    """
+    from glidetask.engine import reach
+    from glidetask.engine.polar import polar_for
+
+    fields = tuple((p.name, p.lat, p.lon, p.elevation_m) for p in scenario.turnpoints if getattr(p, "landable", False))
+    if not fields:
+        return None
+    day, safety = scenario.day, scenario.safety
+    floor = scenario.task.points[-1].turnpoint.elevation_m + safety.arrival_margin_m
+    polar = polar_for(scenario.glider, 0.5 * (day.band_bottom_m + floor), day.isa_deviation_c)
+    airmass = min(day.glide_airmass_ms, 0.0)
+    key = (np.asarray(path.lats).tobytes(), np.asarray(path.lons).tobytes(), fields,
+           tuple(float(x) for x in (polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms)),
+           day.wind, day.band_bottom_m, safety.arrival_margin_m, airmass,
+           None if model is None else (id(model), safety.terrain_clearance_m))
+    with _COVERAGE_LOCK:
+        cached = _COVERAGE_CACHE.get(key)
+        if cached is not None and cached[0] is model:
+            _COVERAGE_CACHE.move_to_end(key)
+            return cached[1]
+    lats, lons, along = path.sample(COVERAGE_SPACING_M)
+    leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
+    result = reach.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, day.wind,
+                            day.band_bottom_m, safety.arrival_margin_m, model, safety.terrain_clearance_m,
+                            airmass_ms=airmass)
+    with _COVERAGE_LOCK:
+        _COVERAGE_CACHE[key] = (model, result)  # the model is kept, so its id stays its own
+        while len(_COVERAGE_CACHE) > _COVERAGE_CACHE_SIZE:
+            _COVERAGE_CACHE.popitem(last=False)
+    return result
+
+
+def _with_safety(plan: Plan, hook, model) -> Plan:
+    """The plan with its terrain check, landable coverage and their cautions."""
+    terrain = None
+    if hasattr(hook, "final_glide") and math.isfinite(plan.final_glide_from_m):
+        landmarks = plan.scenario.turnpoints or tuple(p.turnpoint for p in plan.scenario.task.points)
+        terrain = hook.final_glide(plan.final_glide_from_m, final_glide_per_metre(plan.scenario, plan.path, plan.flown),
+                                   plan.arrival_floor_m, start_height_m=plan.final_glide_height_m, landmarks=landmarks)
+    plan = dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
+                               requirement=hook, terrain_source=None if model is None else model.source)
+    extra = [text for text in safety_cautions(plan) if text not in plan.cautions]
+    return dataclasses.replace(plan, cautions=plan.cautions + tuple(dict.fromkeys(extra)))
+
+
+def safety_cautions(plan: Plan) -> list[str]:
+    """The terrain and landable cautions of a plan, metric (wording from
+    :mod:`glidetask.formats.safety_report`, the one source for every output)."""
+    from glidetask.formats import safety_report
+    from glidetask.units import METRIC
+
+    out: list[str] = []
+    if plan.terrain_source is not None:
+        if plan.terrain is not None:
+            out += safety_report.terrain_cautions(plan.terrain, METRIC)
+        else:
+            out += list(caution_text.TERRAIN)
+            out.append("The final glide was not checked over the terrain: the plan has no final glide.")
+        path = plan.terrain_path
+        if path is not None and path.profile.covered_share < 1.0:
+            stretches = ", ".join(f"{a / 1000:.1f} to {b / 1000:.1f} km" for a, b in path.profile.uncovered_ranges())
+            out.append(f"The terrain model {plan.terrain_source} does not cover "
+                       f"{100.0 * (1.0 - path.profile.covered_share):.0f}% of the planned path ({stretches}): "
+                       f"the heights needed there do not allow for the terrain.")
+    if plan.landables is not None:
+        out += safety_report.landables_cautions(plan.landables, METRIC)
+    elif plan.scenario.turnpoints:
+        out.append("No turnpoint is marked landable: field coverage along the task was not checked.")
+    return out
+
+
+def plan_sensitivity(plan: Plan):
+    """How the task time answers to the day: the plan flown again with climbs 0.5 m/s weaker,
+    10 km/h more wind, a 30-minute later start and 5 % more bugs, over the planned path
+    (:func:`glidetask.engine.compare.sensitivity`, one vectorised flight of five)."""
+    from glidetask.engine.compare import sensitivity
+
+    return sensitivity(plan.scenario, path=plan.path)
+
+
 # ---------------------------------------------------------------- cautions
 
 
@@ -554,6 +794,8 @@ def final_glide_card(plan: Plan, mc_values=CARD_MC_MS) -> np.ndarray:
     the finish) for a final glide home at each MacCready setting, shape (len(mc_values), L+1).
 
     Each final glide is computed as in the plan: the day's wind per leg, the arrival
-    margin, the density at the middle of its start and arrival heights.
+    margin, the density at the middle of its start and arrival heights, and the terrain
+    ahead when the plan has an elevation model.
     """
-    return flight.requirement_card(course_for(plan.path), flights_for(plan.scenario), mc_values)[0]
+    return flight.requirement_card(course_for(plan.path), flights_for(plan.scenario), mc_values,
+                                   requirement=plan.requirement)[0]

@@ -1,8 +1,13 @@
-"""A one-page pre-flight briefing in Markdown: the plan as a pilot takes it to the glider.
+"""The pre-flight briefing in Markdown: the plan as a pilot takes it to the glider.
 
-Sections: the task and the verdict, the legs table, the heights needed at each turnpoint
-to get home (at the plan's final-glide setting and at MacCready 0, 1, 2 and 3), the day
-the plan assumes, and the cautions. Short enough to print on one page.
+Page one: the task and the verdict (with the terrain and landable verdicts in a line
+each), the legs table, the heights needed at each turnpoint to get home (at the plan's
+final-glide setting and at MacCready 0, 1, 2 and 3), the day the plan assumes, and how
+the task time answers to the day (sensitivity). Page two, when the task has an elevation
+model or landable fields: the final glide over the terrain (verdict, what decided the
+height, an ASCII profile), the landable fields along the task (coverage, gaps,
+alternates per leg); then the cautions. Each page prints on one sheet (a page break
+between them for printing from HTML).
 """
 
 from __future__ import annotations
@@ -13,6 +18,7 @@ from glidetask import units
 from glidetask.units import KNOT, format_clock, format_duration
 
 CARD_MC_KT = tuple(k * KNOT for k in (0.0, 2.0, 4.0, 6.0))  # the aviation card's settings [m/s]
+PAGE_BREAK = '<div style="page-break-before: always"></div>'
 
 
 def _num(value: float, fmt: str = "{:.0f}") -> str:
@@ -54,7 +60,33 @@ def _summary(plan, unit) -> list[str]:
         f"- **Glider**: {glider.spec.label}; {plan.mass_kg:.0f} kg with {glider.ballast_kg:g} kg water, "
         f"bugs {glider.bugs_percent:g} %; {plan.wing_loading_kgm2:.1f} kg/m2; best L/D {plan.best_ld:.0f}.",
         f"- **Plan**: {verdict}{final}",
-    ]
+    ] + _safety_summary(plan, unit)
+
+
+def _safety_summary(plan, unit) -> list[str]:
+    """One line each for the terrain check and the landable coverage (details on page two)."""
+    out = []
+    clearance = unit.fmt_height(plan.scenario.safety.terrain_clearance_m)
+    t = plan.terrain
+    if plan.terrain_source is not None:
+        if t is None or t.lowest is None:
+            text = "final glide **not checked** over the terrain"
+        else:
+            if plan.terrain_ok:
+                text = f"final glide clears the terrain by {clearance} or more"
+            else:
+                text = f"final glide **not cleared or not checked everywhere** (clearance {clearance})"
+            text += (f"; least {unit.fmt_height(t.min_clearance_m)} at {unit.fmt_distance(t.at_m)}")
+            if t.raised_by_m > 0.0 and t.obstacle is not None:
+                text += f"; the terrain raises its start by {unit.fmt_height(t.raised_by_m)}"
+        out.append(f"- **Terrain**: {text}.")
+    c = plan.landables
+    if c is not None:
+        gaps = len(c.gaps)
+        out.append(f"- **Fields**: a landable in reach from the band bottom on {c.coverage_percent:.0f}% of the task"
+                   + (f"; {gaps} gap{'s' if gaps != 1 else ''}, "
+                      f"{unit.fmt_distance(sum(b - a for a, b in c.gaps))} in all." if gaps else "; no gaps."))
+    return out
 
 
 def _legs(plan, unit) -> list[str]:
@@ -119,9 +151,62 @@ def _day(plan, unit) -> list[str]:
     ]
 
 
-def plan_to_markdown(plan, unit_name: str = "metric") -> str:
-    """The one-page briefing for ``plan`` as Markdown text, in metric or aviation units."""
+def _sensitivity(sensitivity, unit) -> list[str]:
+    if sensitivity is None:
+        return []
+    from glidetask.formats.strategy_report import sensitivity_markdown
+
+    return ["", *sensitivity_markdown(sensitivity, unit).rstrip("\n").splitlines()]
+
+
+def _without_cautions(section: str) -> list[str]:
+    """A safety section's lines without its quoted cautions (they are in the Cautions list)."""
+    lines = [line for line in section.rstrip("\n").splitlines() if not line.startswith("> - ")]
+    while lines and not lines[-1].strip():
+        lines.pop()
+    return lines
+
+
+def _safety_pages(plan, unit) -> list[str]:
+    """Page two: the final glide over the terrain and the landable fields; empty without either."""
+    from glidetask.formats.safety_report import landables_markdown, terrain_markdown
+
+    lines: list[str] = []
+    if plan.terrain_source is not None:
+        if plan.terrain is not None:
+            lines += _without_cautions(terrain_markdown(plan.terrain, unit, table=False))
+        else:
+            lines += ["## Final glide over the terrain", "", f"Elevation model: `{plan.terrain_source}`.", "",
+                      "Not checked: the plan has no final glide."]
+        path = plan.terrain_path
+        if path is not None and path.profile.covered_share < 1.0:
+            missing = ", ".join(f"{unit.fmt_distance(a)} to {unit.fmt_distance(b)}"
+                                for a, b in path.profile.uncovered_ranges())
+            lines += ["", f"The model covers {100.0 * path.profile.covered_share:.0f}% of the planned path; "
+                          f"no data from {missing}: the heights needed there do not allow for the terrain."]
+    if plan.landables is not None:
+        names = [(leg.from_name, leg.to_name) for leg in plan.legs]
+        lines += ([""] if lines else []) + _without_cautions(landables_markdown(plan.landables, unit, names))
+    return lines
+
+
+def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
+    """The briefing for ``plan`` as Markdown text, in metric or aviation units.
+
+    Parameters
+    ----------
+    plan : glidetask.engine.planner.Plan
+    unit_name : str
+        ``"metric"`` or ``"aviation"``.
+    sensitivity : glidetask.engine.compare.Sensitivity, optional
+        The task time under what-ifs (:func:`glidetask.engine.planner.plan_sensitivity`);
+        a table on page one when given.
+    """
     unit = units.by_name(unit_name)
     lines = _summary(plan, unit) + [""] + _legs(plan, unit) + [""] + _heights(plan, unit) + [""] + _day(plan, unit)
+    lines += _sensitivity(sensitivity, unit)
+    safety = _safety_pages(plan, unit)
+    if safety:
+        lines += ["", PAGE_BREAK, ""] + safety
     lines += ["", "## Cautions", ""] + [f"- {text}" for text in plan.cautions]
     return "\n".join(lines) + "\n"

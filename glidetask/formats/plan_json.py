@@ -4,12 +4,12 @@ Every key carries its unit as a suffix (``_km``, ``_m``, ``_s``, ``_kmh``, ``_ms
 ``_kg``, ``_deg``, ``_kgm2``); numbers that are undefined (a leg not reached, the
 finish time of a plan that ends short) are ``null``. Keys beyond the contract's are
 additions, never changes of meaning: ``planned_distance_km``, ``start_time``,
-``reason``, ``day``, per leg ``final_glide`` and ``start_time``.
+``reason``, ``day``, per leg ``final_glide`` and ``start_time``, ``sensitivity`` (the task
+time under what-ifs), and the extras inside ``terrain`` and ``landables``.
 """
 
 from __future__ import annotations
 
-import dataclasses
 import math
 from typing import Any
 
@@ -84,28 +84,70 @@ def _day(plan) -> dict[str, Any]:
     }
 
 
-def _extra(value):
-    """Terrain or landable results as plain data (a dict, or a dataclass turned into one)."""
-    if dataclasses.is_dataclass(value) and not isinstance(value, type):
-        return dataclasses.asdict(value)
-    if hasattr(value, "to_dict"):
-        return value.to_dict()
-    return value
+def _leg_names(plan) -> list[tuple[str, str]]:
+    return [(leg.from_name, leg.to_name) for leg in plan.legs]
 
 
-def plan_to_dict(plan) -> dict[str, Any]:
+def terrain_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``terrain`` object (5.3), or None when the task has no elevation model.
+
+    ``source``, ``ok``, ``final_glide_min_clearance_m``, ``at_km`` (distance along the task)
+    and the extras of :func:`glidetask.formats.safety_report.terrain_to_dict` (``raised_by_m``,
+    ``obstacle``, ...). ``ok`` is true only when the final glide clears the terrain by the
+    clearance and the model covers the whole planned path (``task_covered_percent``,
+    ``task_uncovered``); a plan with no final glide has ``ok`` false and a ``reason``.
+    """
+    from glidetask.formats.safety_report import terrain_to_dict
+
+    if plan.terrain_source is None:
+        return None
+    if plan.terrain is not None:
+        out = terrain_to_dict(plan.terrain, source=plan.terrain_source)
+        out["final_glide_from_km"] = _number(plan.final_glide_from_m, 1000.0)
+    else:
+        out = {"source": plan.terrain_source, "ok": False, "final_glide_min_clearance_m": None, "at_km": None,
+               "reason": "the plan has no final glide to check"}
+    out["ok"] = bool(plan.terrain_ok)
+    path = plan.terrain_path
+    if path is not None:
+        out["task_covered_percent"] = _number(100.0 * path.profile.covered_share, digits=1)
+        out["task_uncovered"] = [{"from_km": _number(a, 1000.0), "to_km": _number(b, 1000.0)}
+                                 for a, b in path.profile.uncovered_ranges()]
+    return out
+
+
+def landables_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``landables`` object (5.3), or None when no turnpoint is landable.
+
+    ``coverage_percent``, ``gaps`` [{``from_km``, ``to_km``}], ``by_leg`` [{``leg`` (from 1),
+    ``nearest``, ``distance_km``}] and the extras of
+    :func:`glidetask.formats.safety_report.landables_to_dict` (``reason`` of each gap,
+    ``alternates``, the leg's ``from`` and ``to``, the heights and margins used).
+    """
+    from glidetask.formats.safety_report import landables_to_dict
+
+    if plan.landables is None:
+        return None
+    return landables_to_dict(plan.landables, leg_names=_leg_names(plan))
+
+
+def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
     """The plan as the contract's ``plan --json`` object (5.3), JSON-ready (no NaN).
 
     Parameters
     ----------
     plan : glidetask.engine.planner.Plan
+    sensitivity : glidetask.engine.compare.Sensitivity, optional
+        The task time under what-ifs (:func:`glidetask.engine.planner.plan_sensitivity`),
+        added as ``sensitivity`` when given.
 
     Returns
     -------
     dict
         ``task``, ``glider``, ``legs``, ``total_time_s``, ``task_speed_kmh``, ``finished``,
         ``finish_time``, ``landout_km``, ``final_glide``, ``cautions``, and the additions
-        named in the module docstring; ``terrain`` and ``landables`` when computed.
+        named in the module docstring; ``terrain`` (with an elevation model), ``landables``
+        (with landable turnpoints) and ``sensitivity`` when given.
     """
     final = None
     if math.isfinite(plan.final_glide_from_m):
@@ -134,8 +176,13 @@ def plan_to_dict(plan) -> dict[str, Any]:
         "day": _day(plan),
         "cautions": list(plan.cautions),
     }
-    if plan.terrain is not None:
-        out["terrain"] = _extra(plan.terrain)
-    if plan.landables is not None:
-        out["landables"] = _extra(plan.landables)
+    terrain, landables = terrain_dict(plan), landables_dict(plan)
+    if terrain is not None:
+        out["terrain"] = terrain
+    if landables is not None:
+        out["landables"] = landables
+    if sensitivity is not None:
+        from glidetask.formats.strategy_report import sensitivity_to_dict
+
+        out["sensitivity"] = sensitivity_to_dict(sensitivity)
     return out

@@ -309,8 +309,8 @@ def _profile_rows(t, count: int = 10) -> list[int]:
     return sorted(picks)
 
 
-def terrain_markdown(t, units: UnitSystem) -> str:
-    """The briefing section: verdict, the profile as ASCII and as a short table."""
+def terrain_markdown(t, units: UnitSystem, *, table: bool = True) -> str:
+    """The briefing section: verdict, the profile as ASCII and (``table``) as a short table."""
     h, d = units.height_label, units.distance_label
     lines = ["## Final glide over the terrain", ""]
     if t.source:
@@ -318,10 +318,11 @@ def terrain_markdown(t, units: UnitSystem) -> str:
     lines += [f"- **{label.capitalize()}:** {text}" for label, text in _terrain_facts(t, units)]
     if t.lowest is None:
         return "\n".join(lines + ["", *(f"> - {text}" for text in terrain_cautions(t, units))]) + "\n"
-    lines += ["", "```", terrain_profile_ascii(t, units), "```", "",
-              f"| Along ({d}) | Terrain ({h}) | Glide ({h}) | Clearance ({h}) | |",
-              "|---:|---:|---:|---:|---|"]
-    for i in _profile_rows(t):
+    lines += ["", "```", terrain_profile_ascii(t, units), "```"]
+    if table:
+        lines += ["", f"| Along ({d}) | Terrain ({h}) | Glide ({h}) | Clearance ({h}) | |",
+                  "|---:|---:|---:|---:|---|"]
+    for i in _profile_rows(t) if table else ():
         ground, glide = float(t.terrain_m[i]), float(t.glide_m[i])
         note = []
         if t.lowest is not None and i == int(np.argmin(np.abs(t.distance_m - t.lowest.at_m))):

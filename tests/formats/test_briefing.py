@@ -8,9 +8,9 @@ from pathlib import Path
 import pytest
 
 from glidetask import cautions
-from glidetask.engine.planner import CARD_MC_MS, final_glide_card, plan
+from glidetask.engine.planner import CARD_MC_MS, final_glide_card, plan, plan_sensitivity
 from glidetask.engine.scenario import Wind
-from glidetask.formats.briefing import plan_to_markdown
+from glidetask.formats.briefing import PAGE_BREAK, plan_to_markdown
 from glidetask.formats.task_file import load_scenario
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -19,7 +19,7 @@ ROOT = Path(__file__).resolve().parents[2]
 @pytest.fixture(scope="module")
 def triangle():
     p = plan(load_scenario(ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"))
-    return p, plan_to_markdown(p)
+    return p, plan_to_markdown(p, sensitivity=plan_sensitivity(p))
 
 
 def _table_after(text: str, heading: str) -> list[list[str]]:
@@ -30,13 +30,17 @@ def _table_after(text: str, heading: str) -> list[list[str]]:
     return [c for c in cells if not set("".join(c)) <= set(":-")]
 
 
-def test_briefing_has_every_section_and_fits_a_page(triangle):
+def test_briefing_has_every_section_and_each_page_fits_a_sheet(triangle):
     _, text = triangle
     for heading in ("# Pre-flight briefing", "## Legs", "## Heights needed to get home", "## Day assumed",
-                    "## Cautions"):
+                    "## How the task time answers to the day", "## Final glide over the terrain",
+                    "## Landable fields along the task", "## Cautions"):
         assert heading in text
+    pages = text.split(PAGE_BREAK)
+    assert len(pages) == 2  # the plan, then safety over the ground
+    assert "## Final glide over the terrain" in pages[1] and "## Legs" in pages[0]
     # A printed page holds about 60 lines (common practice for A4/letter at 10-11 pt).
-    assert len(text.splitlines()) <= 60
+    assert all(len(page.strip().splitlines()) <= 60 for page in pages)
 
 
 def test_legs_table_has_one_row_per_leg_with_the_plan_figures(triangle):
