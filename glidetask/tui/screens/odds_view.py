@@ -60,7 +60,7 @@ class OddsView(ViewScreen):
     """How likely is the task today, empty, half or full?"""
 
     VIEW = "odds"
-    AUTO_FOCUS = None  # the view keys (1-7, u) work until the pilot picks a field
+    AUTO_FOCUS = ""  # no field takes the keys: the view keys (1-7, u) work until the pilot picks one
     DEFAULT_CSS = """
     #view-body { layout: horizontal; }
     #odds-left { width: 52; }

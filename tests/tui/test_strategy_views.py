@@ -1,0 +1,199 @@
+"""The Compare and Odds views against the engine (Pilot tests), and their snapshots at
+120x40 with the demo data (layout and drawing; the numbers are asserted in the Pilot tests).
+Review a snapshot diff before ``--snapshot-update``."""
+
+from __future__ import annotations
+
+import dataclasses
+
+import numpy as np
+from conftest import settle
+
+from glidetask import cautions
+from glidetask.engine.compare import ballast_sweep
+from glidetask.engine.planner import plan
+from glidetask.engine.scenario import Wind
+from glidetask.engine.simulate import simulate_days
+from glidetask.formats.strategy_report import sweep_verdict
+from glidetask.tui import display, messages
+from glidetask.tui.app import make_app
+from glidetask.units import AVIATION, KMH, METRIC
+
+
+def cell(table, row: int, column: int) -> str:
+    return str(table.get_cell_at((row, column))).strip()
+
+
+def summary_text(app) -> str:
+    from rich.console import Console
+
+    console = Console(width=46, record=True, color_system=None)
+    console.print(app.screen.query_one("#sweep-summary").content)
+    return " ".join(console.export_text().split())
+
+
+async def open_view(pilot, key: str) -> None:
+    await settle(pilot)
+    await pilot.press(key)
+    await settle(pilot)
+    await settle(pilot)
+
+
+# ---------------------------------------------------------------- Compare
+
+
+async def test_compare_table_is_the_engines_sweep(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "6")
+        sweep = ballast_sweep(synthetic, path=plan(synthetic).path)
+        table = app.screen.query_one("#sweep-table")
+        assert table.row_count == 10 and table.ordered_columns[1].label.plain.strip() == "0"
+        assert len(table.columns) == 1 + len(sweep.ballast_kg) >= 20
+        for i, strength in enumerate(sweep.thermal_strength_ms):
+            assert cell(table, i, 0) == f"{strength:.1f} m/s"
+            for j, ballast in enumerate(sweep.ballast_kg):
+                time = sweep.task_time_s[i, j]
+                expected = display.duration(time) if np.isfinite(time) else display.DASH
+                if ballast == sweep.best_ballast_kg[i]:
+                    expected = "*" + expected  # the best ballast per strength is marked
+                assert cell(table, i, j + 1) == expected
+        assert sweep_verdict(sweep, METRIC) in summary_text(app)
+        assert cautions.COMPACT in str(app.screen.query_one("#caution-bar").render())
+
+
+async def test_compare_follows_the_units_switch(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "6")
+        await pilot.press("u")
+        await settle(pilot)
+        table = app.screen.query_one("#sweep-table")
+        # Source: 1 kt = 0.514444 m/s (contract section 6): 0.5 m/s = 0.97 kt, 5.0 m/s = 9.7 kt
+        assert cell(table, 0, 0) == "1.0 kt" and cell(table, 9, 0) == "9.7 kt"
+        assert AVIATION.vertical_label in summary_text(app)
+
+
+async def test_compare_is_computed_again_for_a_new_plan(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "6")
+        before = app.screen.sweep
+        stronger_wind = Wind(270.0, 35 * KMH)
+        app.post_message(messages.ScenarioEdit(
+            lambda s: dataclasses.replace(s, day=dataclasses.replace(s.day, wind=stronger_wind)), "wind"))
+        await settle(pilot)
+        await settle(pilot)
+        after = app.screen.sweep
+        assert after is not before
+        edited = app.scenario
+        expected = ballast_sweep(edited, path=plan(edited).path)
+        assert np.array_equal(np.isnan(after.task_time_s), np.isnan(expected.task_time_s))
+        finite = np.isfinite(expected.task_time_s)
+        assert np.array_equal(after.task_time_s[finite], expected.task_time_s[finite])
+
+
+# ---------------------------------------------------------------- Odds
+
+
+async def test_odds_show_the_engines_simulation(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "7")
+        odds = simulate_days(synthetic, runs=2000, seed=1, path=plan(synthetic).path)
+        table = app.screen.query_one("#odds-table")
+        assert table.row_count == len(odds.choices) == 3  # empty, half, full
+        for row, choice in enumerate(odds.choices):
+            assert cell(table, row, 0) == f"{choice.ballast_kg:.0f}"
+            assert cell(table, row, 1) == f"{100 * choice.finish_probability:.1f}"
+            assert cell(table, row, 2) == f"{100 * choice.finish_probability_se:.1f}"
+            assert [cell(table, row, k) for k in (3, 4, 5)] == [display.duration(t) for t in choice.task_time_s]
+        bars = str(app.screen.query_one("#odds-bars").content)
+        for choice in odds.choices:
+            assert f"{100 * choice.finish_probability:5.1f} %" in bars
+        landouts = app.screen.query_one("#landouts-table")
+        for leg in range(len(odds.legs)):
+            assert [cell(landouts, leg, c + 1) for c in range(3)] == [str(c.landouts_by_leg[leg]) for c in odds.choices]
+        assert "not a forecast" in str(app.screen.query_one("#odds-assumptions").content)
+        assert cautions.COMPACT in str(app.screen.query_one("#caution-bar").render())
+
+
+async def type_into(pilot, field_id: str, text: str) -> None:
+    await pilot.click(f"#{field_id}")
+    await pilot.press("home", "ctrl+k", *text)
+    await settle(pilot)
+    await settle(pilot)
+
+
+async def test_odds_follow_runs_seed_and_ballast_choices(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "7")
+        await type_into(pilot, "odds-runs", "300")
+        await type_into(pilot, "odds-seed", "5")
+        await type_into(pilot, "odds-ballasts", "40 120")
+        odds = simulate_days(synthetic, runs=300, seed=5, ballasts_kg=[40.0, 120.0], path=plan(synthetic).path)
+        shown = app.screen.odds
+        assert (shown.runs, shown.seed) == (300, 5)
+        assert [c.ballast_kg for c in shown.choices] == [40.0, 120.0]
+        for got, expected in zip(shown.choices, odds.choices):
+            assert got.finished == expected.finished
+            assert np.array_equal(got.finish_times_s, expected.finish_times_s)
+        assert app.screen.query_one("#odds-bars").border_subtitle == "300 days · seed 5"
+
+
+async def test_odds_refuse_bad_input_and_keep_the_last_result(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "7")
+        before = app.screen.odds
+        await type_into(pilot, "odds-runs", "0")
+        assert app.screen.query_one("#odds-runs").has_class("-invalid")
+        assert "simulated days" in app.notice
+        assert app.screen.odds is before  # nothing valid was typed: the last result stays
+        await type_into(pilot, "odds-ballasts", "full")
+        assert app.screen.query_one("#odds-ballasts").has_class("-invalid")
+        await type_into(pilot, "odds-ballasts", "0, 500")  # above the glider's 170 kg
+        assert app.screen.query_one("#odds-ballasts").has_class("-invalid")
+        assert "0-170 kg" in app.notice
+        await type_into(pilot, "odds-runs", "200")
+        assert not app.screen.query_one("#odds-runs").has_class("-invalid")
+        assert app.screen.odds.runs == 200
+
+
+async def test_odds_follow_the_units_switch(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "7")
+        assert "8 km/h" in str(app.screen.query_one("#odds-assumptions").content)
+        await pilot.press("u")
+        await settle(pilot)
+        # Source: 8 km/h / 1.852 = 4.3 kt; 2 km / 1852 m = 1.1 NM (contract section 6)
+        text = str(app.screen.query_one("#odds-assumptions").content)
+        assert "4 kt" in text and "1.1 NM" in text
+
+
+# ---------------------------------------------------------------- snapshots
+
+
+def demo_app():
+    return make_app(show_cautions=False)
+
+
+def showing(view_key: str):
+    async def run_before(pilot) -> None:
+        await open_view(pilot, view_key)
+        for field in pilot.app.screen.query("Input"):
+            field.cursor_blink = False
+        pilot.app.notice = ""  # the plan's timing would change from run to run
+        await settle(pilot)
+
+    return run_before
+
+
+def test_compare_view_snapshot(snap_compare, acknowledged):
+    assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing("6"))
+
+
+def test_odds_view_snapshot(snap_compare, acknowledged):
+    assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing("7"))
