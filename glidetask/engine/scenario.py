@@ -117,7 +117,8 @@ class Scenario:
 
     ``turnpoints`` is the whole turnpoint collection the task file referenced (the
     landables among them feed the coverage check); ``terrain_file`` is an absolute
-    path or None; ``source`` the task file's path (for messages), if any.
+    path or None; ``source`` the task file's path (for messages), if any;
+    ``turnpoints_file`` the turnpoint file's absolute path (a saved task refers to it).
     """
 
     task: "Task"
@@ -127,3 +128,4 @@ class Scenario:
     turnpoints: tuple["Turnpoint", ...] = ()
     terrain_file: str | None = None
     source: str | None = None
+    turnpoints_file: str | None = None

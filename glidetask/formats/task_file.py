@@ -500,16 +500,17 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     task_table = reader.table(document, "task", required=True)
     glider_table = reader.table(document, "glider", required=True)
     day_table = reader.table(document, "day", required=True)
-    task = turnpoints = None
+    task = turnpoints = turnpoint_file = None
     if task_table is not None:
-        task, turnpoints, _ = _task(reader, task_table, base, Path(path).stem)
+        task, turnpoints, turnpoint_file = _task(reader, task_table, base, Path(path).stem)
     glider = _glider(reader, glider_table, base) if glider_table is not None else None
     day = _day(reader, day_table) if day_table is not None else None
     safety = _safety(reader, reader.table(document, "safety", required=False))
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
     reader.problems.raise_if_any()
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
-                    terrain_file=terrain, source=file)
+                    terrain_file=terrain, source=file,
+                    turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
 
 
 def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
@@ -649,7 +650,7 @@ def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: s
     """
     target = Path(path)
     if turnpoints_file is None:
-        turnpoints_file = getattr(scenario, "turnpoints_file", None) or (
+        turnpoints_file = scenario.turnpoints_file or (
             turnpoints_file_of(scenario.source) if scenario.source else None)
     if turnpoints_file is None:
         raise ValueError("save_task needs the turnpoint file: pass turnpoints_file=")

@@ -205,7 +205,7 @@ def test_save_writes_paths_relative_to_the_new_file(folder):
 
 
 def test_save_needs_a_turnpoint_file(folder):
-    scenario = replace(load_scenario(_write(folder, RACING)), source=None)
+    scenario = replace(load_scenario(_write(folder, RACING)), source=None, turnpoints_file=None)
     with pytest.raises(ValueError):
         save_task(folder / "x.toml", scenario)
     save_task(folder / "x.toml", scenario, turnpoints_file=folder / "points.csv")
@@ -320,3 +320,13 @@ def test_too_few_points(folder):
         "[glider]" + RACING.split("[glider]")[1]
     problems = _problems(_write(folder, text))
     assert any(p[1] == "[[task.points]]" and "at least 2 points" in p[2] for p in problems)
+
+
+def test_loaded_scenario_remembers_its_turnpoint_file(folder):
+    # A task built in the UI from a loaded one is saved with the same turnpoint file.
+    scenario = load_scenario(_write(folder, RACING))
+    assert scenario.turnpoints_file == str((folder / "points.csv").resolve())
+    moved = folder / "sub"
+    moved.mkdir()
+    save_task(moved / "copy.toml", replace(scenario, source=None))
+    assert load_scenario(moved / "copy.toml").turnpoints == scenario.turnpoints
