@@ -549,7 +549,7 @@ class _Simulation:
         line = np.arange(rows.size)
         first = self._first_estimate(rows, leg, pos, mc_fg)
         estimate = first if estimate is None else np.where(np.isfinite(estimate), estimate, first)
-        for _ in range(2):
+        for attempt in range(2):
             estimate = np.where(np.isfinite(estimate), estimate, col["band_top_m"][rows])
             mid = np.clip(0.5 * (estimate + self.floor[rows]), -1000.0, _HIGHEST_MID_M)
             sigma = np.asarray(density_ratio(mid, col["isa_deviation_c"][rows]), dtype=float)
@@ -558,7 +558,8 @@ class _Simulation:
                                   self.airmass[rows, None])
             hpm = np.broadcast_to(glide.height_per_metre, (rows.size, self.legs))
             tail = self._tail(hpm)
-            estimate = self.floor[rows] + hpm[line, leg] * (self.distance[leg] - pos) + tail[line, leg + 1]
+            if attempt == 0:  # the next pass's start height, with the terrain's extra: the real start
+                estimate = self.required(rows, leg, pos, hpm, tail)
         return hpm, np.broadcast_to(glide.ground_speed_ms, hpm.shape), tail, sigma
 
     def _solve_final(self, rows) -> None:
