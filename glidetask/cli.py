@@ -121,7 +121,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--wind", default=None, metavar="FROM/KMH", help="wind, e.g. 270/20 (default calm)")
     p.add_argument("--mc-ms", type=float, default=0.0, metavar="M", help="MacCready setting [m/s] (default 0)")
     p.add_argument("--arrival-elevation-m", type=float, default=None, metavar="E",
-                   help="elevation of the goal [m MSL] (default 0)")
+                   help="elevation of the goal [m MSL] (default 0; with --terrain, the model's at --to)")
     p.add_argument("--margin-m", type=float, default=200.0, metavar="S", help="arrival margin [m] (default 200)")
     p.add_argument("--isa-deviation-c", type=float, default=0.0, metavar="T", help="ISA temperature deviation [C]")
     p.add_argument("--airmass-ms", type=float, default=0.0, metavar="U",

@@ -4,7 +4,9 @@ The distance and course come from ``--distance-km``/``--course-deg`` or from the
 geodesic between ``--from`` and ``--to``. The polar is scaled to the density at the middle
 of the glide: halfway between the present height and the planned arrival height (goal
 elevation plus margin). With ``--terrain`` the glide is also checked over an elevation
-model by :mod:`glidetask.commands.glide_terrain`.
+model by :mod:`glidetask.commands.glide_terrain`; without ``--arrival-elevation-m`` the
+goal's elevation then comes from that model at ``--to`` (the output says so), so the
+verdict and the terrain check use the same goal height.
 """
 
 from __future__ import annotations
@@ -129,6 +131,8 @@ def glide_text(args: argparse.Namespace, spec_label: str, polar: Polar, sigma: f
         f"  height now           {height(args.height_m)}",
         f"  required height      {height(glide.required_height_m)} (goal {height(elevation)}"
         f" + margin {height(args.margin_m)} + glide {height(glide.height_used_m)})",
+        *([f"  goal elevation       {height(elevation)}, from the terrain model at --to"]
+          if getattr(args, "arrival_elevation_source", "") == "terrain" else []),
         f"  speed to fly         {speed(glide.speed_to_fly_ms)}{ias}",
         f"  ground speed         {speed(glide.ground_speed_ms)}",
         f"  heading              {heading}",
@@ -167,7 +171,16 @@ def run(args: argparse.Namespace) -> int:
     problems = _option_problems(args) + _route_problems(args) + problems
     if problems:
         raise InputError(problems)
-    args.arrival_elevation_m = 0.0 if args.arrival_elevation_m is None else args.arrival_elevation_m
+    goal_cautions: list[str] = []
+    args.goal_model_m = math.nan
+    if args.terrain is not None:
+        from glidetask.commands import glide_terrain
+
+        args.arrival_elevation_source = "option" if args.arrival_elevation_m is not None else "terrain"
+        args.arrival_elevation_m, args.goal_model_m, goal_cautions = glide_terrain.goal_elevation(args)
+    else:
+        args.arrival_elevation_source = "option" if args.arrival_elevation_m is not None else "default"
+        args.arrival_elevation_m = 0.0 if args.arrival_elevation_m is None else args.arrival_elevation_m
     distance_m, course_deg = _resolve_route(args)
     from_deg, speed_kmh = parse_wind(args.wind) if args.wind is not None else (0.0, 0.0)
     wind = Wind(from_deg=from_deg, speed_ms=speed_kmh * KMH)
@@ -176,7 +189,7 @@ def run(args: argparse.Namespace) -> int:
     glide = final_glide(polar, distance_m, args.height_m, course_deg=course_deg, wind=wind, mc_ms=args.mc_ms,
                         arrival_elevation_m=args.arrival_elevation_m, margin_m=args.margin_m,
                         airmass_ms=args.airmass_ms)
-    extra_cautions = _cautions_for(glide, args)
+    extra_cautions = _cautions_for(glide, args) + goal_cautions
     extra_json: dict = {}
     extra_text = ""
     if args.terrain is not None:
@@ -220,6 +233,8 @@ def glide_payload(args: argparse.Namespace, label: str, polar: Polar, sigma: flo
         "course_deg": course_deg,
         "height_m": args.height_m,
         "arrival_elevation_m": args.arrival_elevation_m,
+        "arrival_elevation_source": getattr(args, "arrival_elevation_source", "option"),
+        "goal_terrain_elevation_m": getattr(args, "goal_model_m", math.nan),
         "arrival_margin_m": args.margin_m,
         "mc_ms": args.mc_ms,
         "airmass_ms": args.airmass_ms,

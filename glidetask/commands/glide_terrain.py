@@ -5,7 +5,9 @@ plain glide check never loads rasterio). The glide line runs from the present he
 ``--from`` down the straight geodesic to ``--to`` at the height used per metre of the
 final glide just computed, and is checked over the elevation model with
 :func:`glidetask.engine.terrain.final_glide_over_terrain`: the least clearance and where,
-and the height needed to clear the terrain by ``--clearance-m`` all the way.
+and the height needed to clear the terrain by ``--clearance-m`` all the way. Without
+``--arrival-elevation-m`` the goal's elevation is the model's at ``--to``
+(:func:`goal_elevation`), so the verdict and the terrain check agree on it.
 """
 
 from __future__ import annotations
@@ -14,10 +16,13 @@ import argparse
 import math
 
 from glidetask import units as unit_systems
+from glidetask.cli import CMDLINE
 from glidetask.errors import InputError
 from glidetask.formats import safety_report
 
 NOT_CHECKED = "The terrain was not checked: the goal is out of reach against this wind."
+GOAL_DISAGREEMENT_M = 50.0  # caution when the given goal elevation and the model's differ by more [m]
+FROM_MODEL = "terrain model at --to"
 
 
 def _load(path: str):
@@ -27,6 +32,44 @@ def _load(path: str):
         return load_terrain(path)
     except TerrainError as error:
         raise InputError.one(path, "--terrain", error.what) from None
+
+
+def goal_elevation(args: argparse.Namespace) -> tuple[float, float, list[str]]:
+    """The goal's elevation for the glide, so the verdict and the terrain check agree on it.
+
+    Without ``--arrival-elevation-m`` it is the model's elevation at ``--to``; with it, the
+    value given, and a caution when the model differs by more than
+    :data:`GOAL_DISAGREEMENT_M` (a wrong goal elevation moves the whole glide line).
+
+    Returns
+    -------
+    elevation_m : float
+        The goal elevation to use [m MSL].
+    model_m : float
+        The model's elevation at ``--to`` [m MSL] (NaN where it has no data).
+    cautions : list of str
+        In the units shown (metric under ``--json``).
+
+    Raises
+    ------
+    InputError
+        The model cannot be read, or it has no elevation at ``--to`` and none was given.
+    """
+    model = _load(args.terrain)
+    model_m = float(model.sample(*args.to_latlon))
+    units = unit_systems.METRIC if args.json else unit_systems.by_name(args.units)
+    if args.arrival_elevation_m is None:
+        if not math.isfinite(model_m):
+            raise InputError.one(CMDLINE, "--arrival-elevation-m",
+                                 f"needed: the elevation model {args.terrain} has no data at the goal (--to)")
+        return model_m, model_m, []
+    out = []
+    if math.isfinite(model_m) and abs(args.arrival_elevation_m - model_m) > GOAL_DISAGREEMENT_M:
+        out.append(f"The goal elevation given ({units.fmt_height(args.arrival_elevation_m)}) differs from the "
+                   f"terrain model's at the goal ({units.fmt_height(model_m)}) by "
+                   f"{units.fmt_height(abs(args.arrival_elevation_m - model_m))}: check it; the glide uses "
+                   f"the one given.")
+    return float(args.arrival_elevation_m), model_m, out
 
 
 def check(args: argparse.Namespace, polar, result) -> tuple[dict, str]:

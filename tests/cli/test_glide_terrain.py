@@ -161,3 +161,60 @@ def test_out_of_reach_against_the_wind_is_reported_not_checked(capsys):
                   "--wind", "0/320", "--terrain", DEMO_TERRAIN)
     assert data["terrain"]["ok"] is False and data["terrain"]["final_glide_min_clearance_m"] is None
     assert any("not checked" in c for c in data["cautions"])
+
+
+# ---------------------------------------------------------------- the goal's elevation
+
+
+def _to_vardmoor(capsys, *extra: str) -> dict:
+    return _glide(capsys, "--polar", RACING, "--from", "{:.2f},{:.2f}".format(*NORTH_OF_RIDGE),
+                  "--to", "{:.2f},{:.2f}".format(*VARDMOOR), "--height-m", "2600", "--wind", "0/25",
+                  "--terrain", DEMO_TERRAIN, *extra)
+
+
+def test_without_a_goal_elevation_the_model_gives_it_and_both_checks_use_it(capsys):
+    data = _to_vardmoor(capsys)
+    # Source: the demo generator's analytic surface at the goal; tolerance: the bilinear
+    # error on the model's 0.005 deg grid over the gentle ground around the aerodrome
+    # (h^2/8 |f''| well under 1 m there), 1 m.
+    expected = float(_generator().elevation(np.array([VARDMOOR[0]]), np.array([VARDMOOR[1]]))[0])
+    assert data["arrival_elevation_source"] == "terrain"
+    assert data["arrival_elevation_m"] == pytest.approx(expected, abs=1.0)
+    assert data["goal_terrain_elevation_m"] == data["arrival_elevation_m"]
+    # Contract 5.2: required = arrival elevation + margin + height used; the terrain check's
+    # requirement less what the ridge adds is the same number, so verdict and check agree.
+    assert data["required_height_m"] == pytest.approx(data["arrival_elevation_m"] + 200.0 + data["height_used_m"])
+    terrain = data["terrain"]
+    assert terrain["required_start_height_m"] - terrain["raised_by_m"] == pytest.approx(data["required_height_m"],
+                                                                                        abs=1e-6)
+    assert not any("differs from the terrain model" in c for c in data["cautions"])
+
+
+def test_the_text_says_where_the_goal_elevation_came_from(capsys):
+    argv = ["glide", "--polar", RACING, "--from", "46.70,-33.30", "--to", "46.05,-33.30", "--height-m", "2600",
+            "--terrain", DEMO_TERRAIN]
+    assert main(argv) == 0
+    assert "from the terrain model at --to" in capsys.readouterr().out
+
+
+def test_a_given_goal_elevation_is_used_and_cautioned_when_far_from_the_model(capsys):
+    close = _to_vardmoor(capsys, "--arrival-elevation-m", "340")
+    assert close["arrival_elevation_m"] == 340.0 and close["arrival_elevation_source"] == "option"
+    assert not any("differs from the terrain model" in c for c in close["cautions"])
+    far = _to_vardmoor(capsys, "--arrival-elevation-m", "100")
+    assert far["arrival_elevation_m"] == 100.0
+    # More than 50 m from the model (about 325 m there): a caution naming both.
+    (caution,) = [c for c in far["cautions"] if "differs from the terrain model" in c]
+    assert "(100 m)" in caution and "(326 m)" in caution
+
+
+def test_a_goal_outside_the_model_needs_its_elevation(capsys):
+    assert main(["glide", "--polar", RACING, "--from", "47.40,-33.30", "--to", "47.90,-33.30", "--height-m", "2600",
+                 "--terrain", DEMO_TERRAIN]) == 2
+    captured = capsys.readouterr()
+    (line,) = captured.err.strip().splitlines()
+    assert ERROR_LINE.match(line) and line.startswith("glidetask: error: command line: --arrival-elevation-m: ")
+    # With the elevation given it is a result, the uncovered stretch never a silent pass.
+    data = _glide(capsys, "--polar", RACING, "--from", "47.40,-33.30", "--to", "47.90,-33.30", "--height-m", "2600",
+                  "--terrain", DEMO_TERRAIN, "--arrival-elevation-m", "300")
+    assert data["terrain"]["ok"] is False
