@@ -84,6 +84,23 @@ def _day(plan) -> dict[str, Any]:
     }
 
 
+_DIGITS = (("_km", 3), ("_m", 1), ("_percent", 2), ("_deg", 1), ("lat", 6), ("lon", 6))
+
+
+def _rounded(value, key: str = ""):
+    """Numbers rounded as the rest of the plan rounds them, by the unit of their key
+    (``_km`` to metres, ``_m`` to decimetres, ``_percent`` to 0.01, degrees of course or
+    bearing to 0.1, positions to 6 decimals of a degree, about 0.1 m)."""
+    if isinstance(value, dict):
+        return {k: _rounded(v, k) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_rounded(v, key) for v in value]
+    if isinstance(value, float):
+        digits = next((d for suffix, d in _DIGITS if key.endswith(suffix)), None)
+        return _number(value, digits=digits) if digits is not None else _number(value, digits=6)
+    return value
+
+
 def _leg_names(plan) -> list[tuple[str, str]]:
     return [(leg.from_name, leg.to_name) for leg in plan.legs]
 
@@ -113,7 +130,7 @@ def terrain_dict(plan) -> dict[str, Any] | None:
         out["task_covered_percent"] = _number(100.0 * path.profile.covered_share, digits=1)
         out["task_uncovered"] = [{"from_km": _number(a, 1000.0), "to_km": _number(b, 1000.0)}
                                  for a, b in path.profile.uncovered_ranges()]
-    return out
+    return _rounded(out)
 
 
 def landables_dict(plan) -> dict[str, Any] | None:
@@ -128,7 +145,7 @@ def landables_dict(plan) -> dict[str, Any] | None:
 
     if plan.landables is None:
         return None
-    return landables_to_dict(plan.landables, leg_names=_leg_names(plan))
+    return _rounded(landables_to_dict(plan.landables, leg_names=_leg_names(plan)))
 
 
 def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
