@@ -86,13 +86,60 @@ def stack_flights(flights: Sequence[Flights]) -> Flights:
     return dataclasses.replace(first, lift_values=values, **columns)
 
 
-def _planned_path(scenario: Scenario, path=None):
-    """The path the plan flies (racing: optimized; area: the chosen targets)."""
-    if path is not None:
-        return path
-    from glidetask.engine.planner import plan
+TASK_TERRAIN = "task"  # requirement=: the task's elevation model, as plan() flies by default
 
-    return plan(scenario).path
+
+def planned_route(scenario: Scenario, path=None, requirement=TASK_TERRAIN):
+    """The path the plan flies and the final-glide requirement hook it flies it with.
+
+    Parameters
+    ----------
+    scenario : Scenario
+    path : TaskPath, optional
+        The planned path; default the one :func:`glidetask.engine.planner.plan` chooses
+        (racing: optimized; area: the chosen targets), and then its hook as well.
+    requirement : RequirementHook, None or "task"
+        Extra final-glide height along the path; ``"task"`` (default): what ``plan()``
+        uses by default, the task's elevation model sampled along ``path`` (None without one).
+
+    Returns
+    -------
+    (TaskPath, RequirementHook or None)
+    """
+    from glidetask.engine import planner
+
+    if path is None:
+        planned = planner.plan(scenario)
+        return planned.path, only_where_defined(planned.requirement)
+    if isinstance(requirement, str):
+        if requirement != TASK_TERRAIN:
+            raise ValueError(f"requirement must be a hook, None or {TASK_TERRAIN!r}")
+        model = planner.load_terrain_for(scenario)
+        requirement = None if model is None else planner.terrain_requirement(model)(scenario, path)
+    return path, only_where_defined(requirement)
+
+
+def only_where_defined(hook):
+    """The requirement hook asked only for the flights that have a final-glide table.
+
+    The flight core asks for the extra height of every flight it moves, also of those
+    still too far out to have a final-glide table (NaN heights per metre), whose
+    requirement is NaN whatever the hook adds. Over an elevation model each question
+    costs the whole path's samples, so for thousands of flights this halves the work; the
+    flights that have a table get exactly the hook's own answer.
+    """
+    if hook is None:
+        return None
+
+    def requirement(position_m, height_per_metre, floor_m):
+        per_metre = np.asarray(height_per_metre, dtype=float)
+        rows = np.all(np.isfinite(per_metre), axis=-1)
+        extra = np.zeros(np.shape(position_m))
+        if rows.any():
+            extra[rows] = hook(np.asarray(position_m)[rows], per_metre[rows], np.asarray(floor_m)[rows])
+        return extra
+
+    return requirement
 
 
 # ---------------------------------------------------------------- climb and ballast
@@ -278,7 +325,7 @@ def _phase_start_heights(day, phases: int) -> np.ndarray:
 
 
 def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballasts_kg=None, path=None,
-                  phases: int = SWEEP_PHASES) -> BallastSweep:
+                  requirement=TASK_TERRAIN, phases: int = SWEEP_PHASES) -> BallastSweep:
     """Task time for every ballast against thermal strength, one vectorised flight call.
 
     Parameters
@@ -291,8 +338,9 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     ballasts_kg : sequence of float, optional
         Ballasts [kg] (sorted, repeats dropped); default :func:`sweep_ballasts_kg` (19
         from empty to full).
-    path : TaskPath, optional
-        The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
+    path, requirement : optional
+        The planned path and its final-glide requirement (see :func:`planned_route`;
+        default: as :func:`glidetask.engine.planner.plan` flies the task).
     phases : int
         Positions of the climbs along the route to average over (>= 1).
 
@@ -325,7 +373,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
 
     if phases < 1:
         raise ValueError("phases must be at least 1")
-    path = _planned_path(scenario, path)
+    path, requirement = planned_route(scenario, path, requirement)
     day, glider = scenario.day, scenario.glider
     ballast = sweep_ballasts_kg(scenario) if ballasts_kg is None else np.unique(np.asarray(ballasts_kg, dtype=float))
     strengths = np.asarray(strengths_ms, dtype=float)
@@ -339,7 +387,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         base, mass_kg=(glider.spec.empty_mass_kg + glider.pilot_kg + b_grid).ravel(),
         start_height_m=h_grid.ravel(), lift_scale=s_grid.ravel(), lift_times_s=(day.start_time_s,),
         lift_values=(1.0,), lift_is_strength=True, mc_ms=math.nan)
-    flown = fly(course_for(path), flights, detail=False)
+    flown = fly(course_for(path), flights, requirement=requirement, detail=False)
     with np.errstate(invalid="ignore", divide="ignore"):
         worth = (h_grid - day.effective_start_height_m) / climb[..., None]
     worth = np.where(h_grid == day.effective_start_height_m, 0.0, worth)
@@ -498,7 +546,7 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
     return out
 
 
-def sensitivity(scenario: Scenario, *, path=None) -> Sensitivity:
+def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> Sensitivity:
     """How much the task time changes for climbs 0.5 m/s weaker, 10 km/h more wind, a
     30-minute later start and 5 % more bugs.
 
@@ -506,8 +554,9 @@ def sensitivity(scenario: Scenario, *, path=None) -> Sensitivity:
     ----------
     scenario : Scenario
         The forecast (its task, glider, day and margins).
-    path : TaskPath, optional
-        The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
+    path, requirement : optional
+        The planned path and its final-glide requirement (see :func:`planned_route`;
+        default: as :func:`glidetask.engine.planner.plan` flies the task).
 
     Returns
     -------
@@ -520,17 +569,18 @@ def sensitivity(scenario: Scenario, *, path=None) -> Sensitivity:
     (its ``with_what_ifs`` for wind, start and bugs; the day's climb or thermal-strength
     profile lowered by 0.5 m/s, not below 0, for weaker climbs) and turned into the core's
     inputs by the planner's ``flights_for``; all are flown in one call over the planned
-    path. For a racing task that path is the optimized one, whatever the day, so every
+    path, with the plan's final-glide requirement (the terrain, if the task has a model). For a racing task that path is the optimized one, whatever the day, so every
     row is the plan the planner would make for that what-if. For an area task the
     targets stay where the forecast plan put them (the planner would move them to keep
     the minimum time), so the change shows as time rather than distance.
     """
     from glidetask.engine.planner import course_for, flights_for
 
-    path = _planned_path(scenario, path)
+    path, requirement = planned_route(scenario, path, requirement)
     variants = what_if_scenarios(scenario)
     flyable = [v for v in variants if v[3] is not None]
-    flown = fly(course_for(path), stack_flights([flights_for(v[3]) for v in flyable]), detail=False)
+    flown = fly(course_for(path), stack_flights([flights_for(v[3]) for v in flyable]), requirement=requirement,
+                detail=False)
     by_key = {key: flown.flight(i) for i, (key, _, _, _) in enumerate(flyable)}
     rows = [_sensitivity_row(key, label, change, by_key.get(key), scenario, path)
             for key, label, change, _ in variants]

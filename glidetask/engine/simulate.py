@@ -261,7 +261,7 @@ def default_ballasts_kg(scenario: Scenario) -> tuple[float, ...]:
 
 
 def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1, ballasts_kg=None,
-                  spread: DaySpread | None = None, path=None) -> Odds:
+                  spread: DaySpread | None = None, path=None, requirement="task") -> Odds:
     """Fly the task over ``runs`` simulated days for each ballast choice.
 
     Parameters
@@ -277,8 +277,10 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     spread : DaySpread, optional
         How the days spread (default :class:`DaySpread`); :meth:`DaySpread.none`
         reproduces the plan.
-    path : TaskPath, optional
-        The planned path (default: the one :func:`glidetask.engine.planner.plan` flies).
+    path, requirement : optional
+        The planned path and its final-glide requirement (the terrain, if the task has
+        a model): see :func:`glidetask.engine.compare.planned_route`; default: as
+        :func:`glidetask.engine.planner.plan` flies the task.
 
     Returns
     -------
@@ -299,7 +301,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     then the plan, to the last bit. The path is the plan's (for an area task the
     targets the plan chose at the scenario's ballast).
     """
-    from glidetask.engine.compare import _planned_path, climb_values_for_ballasts, stack_flights
+    from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights
     from glidetask.engine.planner import course_for, flights_for, with_what_ifs
 
     spread = DaySpread() if spread is None else spread
@@ -310,12 +312,12 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     if scenario.day.climb is not None:  # climbs for the file's ballast: other ballasts climb as in the same thermals
         rows = climb_values_for_ballasts(scenario, choices)
         setups = [dataclasses.replace(s, lift_values=tuple(row)) for s, row in zip(setups, rows)]
-    path = _planned_path(scenario, path)
+    path, requirement = planned_route(scenario, path, requirement)
     course = course_for(path)
     days = draw_days(scenario, spread, runs, seed)
     flights, search = _day_flights(scenario, setups, days, spread)
-    flown = fly(course, flights, search=search, detail=False)
-    forecast = fly(course, stack_flights(setups), detail=False)
+    flown = fly(course, flights, search=search, requirement=requirement, detail=False)
+    forecast = fly(course, stack_flights(setups), requirement=requirement, detail=False)
     legs = tuple((leg.from_name, leg.to_name) for leg in path.legs)
     results = tuple(_choice(choices[c], setups[c], flown, slice(c * runs, (c + 1) * runs), forecast.flight(c),
                             len(legs)) for c in range(len(choices)))

@@ -18,6 +18,8 @@ import sys
 import time
 from pathlib import Path
 
+import pytest
+
 ROOT = Path(__file__).resolve().parents[2]
 TRIANGLE = ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"
 ROUNDS = 7
@@ -58,18 +60,23 @@ def test_bench_sweep_whole_process(benchmark):
     assert len(data["ballast_kg"]) >= 19 and len(data["thermal_strength_ms"]) == 10
 
 
-def test_bench_ten_thousand_simulated_flights(benchmark):
+@pytest.mark.parametrize("terrain", [False, True], ids=["no-terrain", "task-terrain"])
+def test_bench_ten_thousand_simulated_flights(benchmark, terrain):
+    """Without terrain: the flight core alone. With the task's elevation model: the final
+    glide's terrain requirement asked by the core at every event, as the plan flies it."""
     from glidetask.engine.planner import plan
     from glidetask.engine.simulate import simulate_days
     from glidetask.formats.task_file import load_scenario
 
     scenario = load_scenario(TRIANGLE)
-    path = plan(scenario).path  # the plan itself is not part of the simulation's budget
-    assert path.total_m > 300e3
+    planned = plan(scenario)  # the plan itself is not part of the simulation's budget
+    assert planned.path.total_m > 300e3
+    requirement = planned.requirement if terrain else None
+    assert (requirement is not None) == terrain
 
     def simulate():
         return simulate_days(scenario, runs=SIMULATION_RUNS, seed=1, ballasts_kg=[scenario.glider.ballast_kg],
-                             path=path)
+                             path=planned.path, requirement=requirement)
 
     if benchmark.disabled:
         odds = benchmark(simulate)

@@ -76,10 +76,12 @@ def test_finishing_probability_converges_as_one_over_root_runs(demo):
     # Source: the binomial standard error sqrt(p(1-p)/n): four times the runs, half the
     # error. Tolerance 0.1 on the ratio 2: by the delta method the ratio's own sd is
     # about |1-2p|/2 * sqrt(p(1-p)/400)/(p(1-p)) * 2, under 0.03 for p in 0.3-0.9, so
-    # 0.1 is more than three of them.
+    # 0.1 is more than three of them. Thermals twice as far apart as the default make
+    # the odds a real question on this day.
     s = demo["out-and-return"]
-    small = simulate_days(s, runs=400, seed=7).choices[0]
-    large = simulate_days(s, runs=1600, seed=8).choices[0]
+    spread = DaySpread(thermal_search_mean_m=4000.0)
+    small = simulate_days(s, runs=400, seed=7, spread=spread).choices[0]
+    large = simulate_days(s, runs=1600, seed=8, spread=spread).choices[0]
     assert 0.3 < large.finish_probability < 0.9  # a day where the odds are in question
     assert small.finish_probability_se / large.finish_probability_se == pytest.approx(2.0, abs=0.1)
     # and the smaller estimate lies within three of its standard errors of the larger's

@@ -11,7 +11,6 @@ from conftest import settle
 
 from glidetask import cautions
 from glidetask.engine.compare import ballast_sweep
-from glidetask.engine.planner import plan
 from glidetask.engine.scenario import Wind
 from glidetask.engine.simulate import simulate_days
 from glidetask.formats.strategy_report import sweep_verdict
@@ -46,7 +45,7 @@ async def test_compare_table_is_the_engines_sweep(synthetic, acknowledged):
     app = make_app(scenario=synthetic)
     async with app.run_test(size=(120, 40)) as pilot:
         await open_view(pilot, "6")
-        sweep = ballast_sweep(synthetic, path=plan(synthetic).path)
+        sweep = ballast_sweep(synthetic)
         table = app.screen.query_one("#sweep-table")
         assert table.row_count == 10 and table.ordered_columns[1].label.plain.strip() == "0"
         assert len(table.columns) == 1 + len(sweep.ballast_kg) >= 20
@@ -87,7 +86,7 @@ async def test_compare_is_computed_again_for_a_new_plan(synthetic, acknowledged)
         after = app.screen.sweep
         assert after is not before
         edited = app.scenario
-        expected = ballast_sweep(edited, path=plan(edited).path)
+        expected = ballast_sweep(edited)
         assert np.array_equal(np.isnan(after.task_time_s), np.isnan(expected.task_time_s))
         finite = np.isfinite(expected.task_time_s)
         assert np.array_equal(after.task_time_s[finite], expected.task_time_s[finite])
@@ -100,7 +99,7 @@ async def test_odds_show_the_engines_simulation(synthetic, acknowledged):
     app = make_app(scenario=synthetic)
     async with app.run_test(size=(120, 40)) as pilot:
         await open_view(pilot, "7")
-        odds = simulate_days(synthetic, runs=2000, seed=1, path=plan(synthetic).path)
+        odds = simulate_days(synthetic, runs=2000, seed=1)
         table = app.screen.query_one("#odds-table")
         assert table.row_count == len(odds.choices) == 3  # empty, half, full
         for row, choice in enumerate(odds.choices):
@@ -132,7 +131,7 @@ async def test_odds_follow_runs_seed_and_ballast_choices(synthetic, acknowledged
         await type_into(pilot, "odds-runs", "300")
         await type_into(pilot, "odds-seed", "5")
         await type_into(pilot, "odds-ballasts", "40 120")
-        odds = simulate_days(synthetic, runs=300, seed=5, ballasts_kg=[40.0, 120.0], path=plan(synthetic).path)
+        odds = simulate_days(synthetic, runs=300, seed=5, ballasts_kg=[40.0, 120.0])
         shown = app.screen.odds
         assert (shown.runs, shown.seed) == (300, 5)
         assert [c.ballast_kg for c in shown.choices] == [40.0, 120.0]

@@ -68,14 +68,15 @@ class CompareView(ViewScreen):
         self._computed_for = outcome
         self._token += 1
         self.query_one("#sweep-panel").border_subtitle = "computing …"
-        self.sweep_in_background(outcome.scenario, outcome.plan.path, self._token)
+        plan = outcome.plan
+        self.sweep_in_background(outcome.scenario, plan.path, getattr(plan, "requirement", None), self._token)
 
     @work(thread=True, exclusive=True, group="compare")
-    def sweep_in_background(self, scenario, path, token: int) -> None:
+    def sweep_in_background(self, scenario, path, requirement, token: int) -> None:
         from glidetask.engine.compare import ballast_sweep
 
         try:
-            sweep = ballast_sweep(scenario, path=path)
+            sweep = ballast_sweep(scenario, path=path, requirement=requirement)
         except Exception as error:  # shown, never a crash; the last sweep stays
             self.app.call_from_thread(self._failed, token, f"{type(error).__name__}: {error}")
             return

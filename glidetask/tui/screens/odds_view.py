@@ -157,15 +157,18 @@ class OddsView(ViewScreen):
         self._computed_for = outcome
         self._token += 1
         self.query_one("#odds-bars").border_subtitle = "computing …"
-        self.simulate_in_background(outcome.scenario, outcome.plan.path, self.runs, self.seed, self.ballasts,
-                                    self._token)
+        plan = outcome.plan
+        self.simulate_in_background(outcome.scenario, (plan.path, getattr(plan, "requirement", None)), self.runs,
+                                    self.seed, self.ballasts, self._token)
 
     @work(thread=True, exclusive=True, group="odds")
-    def simulate_in_background(self, scenario, path, runs: int, seed: int, ballasts, token: int) -> None:
+    def simulate_in_background(self, scenario, route, runs: int, seed: int, ballasts, token: int) -> None:
         from glidetask.engine.simulate import simulate_days
 
+        path, requirement = route
         try:
-            odds = simulate_days(scenario, runs=runs, seed=seed, ballasts_kg=ballasts, path=path)
+            odds = simulate_days(scenario, runs=runs, seed=seed, ballasts_kg=ballasts, path=path,
+                                 requirement=requirement)
         except Exception as error:  # shown, never a crash; the last result stays
             self.app.call_from_thread(self._failed, token, f"{type(error).__name__}: {error}")
             return
