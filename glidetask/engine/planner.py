@@ -719,11 +719,12 @@ def safety_cautions(plan: Plan) -> list[str]:
 
 def plan_sensitivity(plan: Plan):
     """How the task time answers to the day: the plan flown again with climbs 0.5 m/s weaker,
-    10 km/h more wind, a 30-minute later start and 5 % more bugs, over the planned path
+    10 km/h more wind, a 30-minute later start and 5 % more bugs, over the planned path with
+    the plan's own final-glide requirement (the terrain), so the forecast row is the plan
     (:func:`glidetask.engine.compare.sensitivity`, one vectorised flight of five)."""
     from glidetask.engine.compare import sensitivity
 
-    return sensitivity(plan.scenario, path=plan.path)
+    return sensitivity(plan.scenario, path=plan.path, requirement=plan.requirement)
 
 
 # ---------------------------------------------------------------- cautions

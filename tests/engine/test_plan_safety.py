@@ -294,3 +294,12 @@ def test_rising_air_in_the_glides_is_not_counted_on_for_reaching_a_field():
     rising = dataclasses.replace(calm, day=dataclasses.replace(calm.day, glide_airmass_ms=0.3))
     # Common practice: a pilot low and looking for a field plans in still air at best.
     assert plan(rising).landables.coverage_percent == pytest.approx(plan(calm).landables.coverage_percent)
+
+
+def test_the_sensitivity_forecast_is_the_plan_over_the_ridge(ridge):
+    # The what-ifs fly with the plan's own terrain requirement: the forecast row is the plan.
+    from glidetask.engine.planner import plan_sensitivity
+
+    p, _, _ = ridge
+    forecast = plan_sensitivity(p).forecast
+    assert forecast.total_time_s == pytest.approx(p.total_time_s, abs=1e-6)
