@@ -26,7 +26,7 @@ import threading
 import warnings
 from collections import OrderedDict
 from dataclasses import dataclass
-from functools import lru_cache
+from functools import cached_property, lru_cache
 from typing import Sequence
 
 import numpy as np
@@ -35,6 +35,9 @@ from glidetask.engine import geodesy
 
 #: Largest sample spacing along a path [m]: the terrain is checked at least every 250 m.
 PATH_SPACING_M = 250.0
+#: Batches of the terrain requirement hook with at most this many (flight x sample) pairs
+#: evaluate every sample ahead directly; larger ones search convex hulls (same results).
+DIRECT_PAIRS_LIMIT = 20_000
 #: A glide that misses the clearance by less than this still passes [m]: heights are shown
 #: to the metre, and a plan's start height comes from its own solver, not this module's.
 CLEARANCE_TOLERANCE_M = 0.5
@@ -786,7 +789,16 @@ class PathTerrain:
         return self.profile.source
 
     def _leg_lengths(self) -> np.ndarray:
+        return self._lengths
+
+    @cached_property
+    def _lengths(self) -> np.ndarray:
         return np.diff(self.profile.vertex_distance_m)
+
+    @cached_property
+    def _sample_leg(self) -> np.ndarray:
+        """The leg of each sample (a vertex belongs to the leg that starts there)."""
+        return self._leg_of(self.profile.distance_m)
 
     def _ahead(self, start_m: float):
         """Samples from ``start_m`` on: that point itself (interpolated) and every sample beyond."""
@@ -817,6 +829,11 @@ class PathTerrain:
         return (np.asarray(floor_m, dtype=float)[..., None] + per_metre[..., leg] * (leg_end - distance)
                 + self._tail(per_metre)[..., leg + 1])
 
+    @cached_property
+    def _hulls(self) -> "_SuffixHulls":
+        return _suffix_hulls(self.profile.distance_m, self.profile.elevation_m, self._sample_leg,
+                             self._leg_lengths().size)
+
     def extra_required(self, position_m, height_per_metre, floor_m) -> np.ndarray:
         """How much the terrain raises the final-glide requirement at points of the path [m].
 
@@ -835,28 +852,67 @@ class PathTerrain:
             ``max(0, max over the point and the samples ahead of (T + C - R))``, with ``R``
             the pure requirement (the suffix maximum of :func:`final_glide_clearance`);
             unknown terrain adds nothing here and is reported by :meth:`final_glide`.
+
+        Notes
+        -----
+        On leg ``l`` the pure requirement at a sample ``j`` is
+        ``R_j = F + h_l (E_l - s_j) + tail_{l+1}`` (``E_l`` the leg's end, ``tail`` the
+        height used over the legs after it), so the shortfall there is
+        ``T_j + h_l s_j`` plus a term that is the same for every sample of the leg. Its
+        largest value over the leg's samples ahead of a point is reached at a vertex of
+        the upper convex hull of the points ``(s_j, T_j)`` ahead, where the hull's edge
+        slopes pass ``-h_l``. The hulls of every suffix of each leg are built once per
+        path (:func:`_suffix_hulls`) and searched by binary lifting, so a call costs
+        ``O(n L log J)`` for ``J`` samples instead of ``O(n J)``; the shortfall at the
+        chosen sample is then computed exactly as the direct maximum would. Small batches
+        (the planner's single flight: at most :data:`DIRECT_PAIRS_LIMIT` flight-sample
+        pairs) take the direct maximum, which is cheaper than building the hulls.
         """
         position = np.atleast_1d(np.asarray(position_m, dtype=float))
         per_metre = np.broadcast_to(np.atleast_2d(np.asarray(height_per_metre, dtype=float)),
                                     (position.size, self._leg_lengths().size))
         floor = np.broadcast_to(np.asarray(floor_m, dtype=float), position.shape)
         p = self.profile
-        sample_leg = self._leg_of(p.distance_m)
+        tail = self._tail(per_metre)
         # The point itself, between samples: terrain interpolated, requirement exact.
         line = np.arange(position.size)
         here_leg = self._leg_of(position)
         here_required = (floor + per_metre[line, here_leg] * (p.vertex_distance_m[here_leg + 1] - position)
-                         + self._tail(per_metre)[line, here_leg + 1])
+                         + tail[line, here_leg + 1])
         here = np.interp(position, p.distance_m, p.elevation_m) + self.clearance_m - here_required
         extra = np.where(np.isfinite(here), here, -np.inf)
-        rows_per_batch = max(1, 2_000_000 // max(p.distance_m.size, 1))
-        for first in range(0, position.size, rows_per_batch):
-            rows = slice(first, first + rows_per_batch)
-            deficit = p.elevation_m + self.clearance_m - self._required(p.distance_m, sample_leg, per_metre[rows],
-                                                                         floor[rows])
-            ahead = np.isfinite(deficit) & (p.distance_m >= position[rows, None])
-            extra[rows] = np.maximum(extra[rows], np.max(np.where(ahead, deficit, -np.inf), axis=1))
-        return np.maximum(extra, 0.0)
+        if position.size * p.distance_m.size <= DIRECT_PAIRS_LIMIT:
+            ahead = self._shortfall_ahead_direct(position, per_metre, floor, tail)
+        else:
+            ahead = self._shortfall_ahead_hulls(position, per_metre, floor, tail)
+        return np.maximum(np.maximum(extra, ahead), 0.0)
+
+    def _shortfall_ahead_direct(self, position, per_metre, floor, tail) -> np.ndarray:
+        """``max over samples j with s_j >= position of (T_j + C - R_j)`` per row (-inf for none),
+        every sample evaluated."""
+        p, leg = self.profile, self._sample_leg
+        required = (floor[:, None] + per_metre[:, leg] * (p.vertex_distance_m[leg + 1] - p.distance_m)
+                    + tail[:, leg + 1])
+        shortfall = p.elevation_m + self.clearance_m - required
+        ahead = np.isfinite(shortfall) & (p.distance_m >= position[:, None])
+        return np.max(np.where(ahead, shortfall, -np.inf), axis=1)
+
+    def _shortfall_ahead_hulls(self, position, per_metre, floor, tail) -> np.ndarray:
+        """The same maximum, searched on the hulls of the samples ahead (see :meth:`extra_required`)."""
+        p, hulls = self.profile, self._hulls
+        first = np.searchsorted(p.distance_m, position, side="left")
+        begin = np.maximum(first[:, None], hulls.leg_first[None, :])  # (n, L): first sample ahead on each leg
+        inside = begin < hulls.leg_end[None, :]
+        vertex = np.where(inside, hulls.start[np.minimum(begin, hulls.start.size - 1)], -1)
+        rows, legs = np.nonzero(vertex >= 0)
+        slope = per_metre[rows, legs]
+        best = hulls.highest(vertex[rows, legs], slope)
+        leg_end = p.vertex_distance_m[legs + 1]
+        required = floor[rows] + slope * (leg_end - p.distance_m[best]) + tail[rows, legs + 1]
+        shortfall = p.elevation_m[best] + self.clearance_m - required
+        table = np.full(per_metre.shape, -np.inf)
+        table[rows, legs] = np.where(np.isfinite(shortfall), shortfall, -np.inf)
+        return table.max(axis=1)
 
     __call__ = extra_required
 
@@ -887,6 +943,95 @@ class PathTerrain:
         required = self._required(distance, leg, np.asarray(height_per_metre, dtype=float), floor_m)
         return final_glide_clearance(distance, required, terrain, self.clearance_m, start_height_m=start_height_m,
                                      lats=lats, lons=lons, landmarks=landmarks, source=self.source)
+
+
+# ---------------------------------------------------------------- the largest shortfall ahead, fast
+
+
+@dataclass(frozen=True, eq=False)
+class _SuffixHulls:
+    """The upper convex hull of every suffix of each leg's known samples, as linked chains.
+
+    The hull of the samples from ``i`` to the end of ``i``'s leg runs ``start[i]``,
+    ``following[start[i]]``, ... to a sample that is its own follower; along a chain the
+    edge slopes ``rise / run`` strictly decrease (a vertical first edge counts as
+    steepest). ``levels[k]`` is the ``2**k``-th follower, for binary lifting; there are
+    enough levels to walk the longest chain.
+    """
+
+    start: np.ndarray  # (J,) first known sample at or after i on i's leg; -1 when none
+    following: np.ndarray  # (J,) the next hull vertex; itself at a chain's end
+    rise: np.ndarray  # (J,) terrain gained along the edge to the next vertex [m]
+    run: np.ndarray  # (J,) distance along that edge [m]
+    ends: np.ndarray  # (J,) bool: the vertex ends its chain
+    levels: tuple  # ndarray (J,) per level
+    leg_first: np.ndarray  # (L,) first sample of each leg
+    leg_end: np.ndarray  # (L,) one past its last sample
+
+    def highest(self, vertex: np.ndarray, slope: np.ndarray) -> np.ndarray:
+        """The vertex of each chain (starting at ``vertex``) that maximises ``T + slope s``.
+
+        The objective rises along an edge while ``rise + slope run > 0``; the slopes
+        decrease along a chain, so it rises over a prefix of the chain and the answer is
+        the vertex where the prefix ends (found by binary lifting). NaN slopes rise
+        nowhere: the answer is the chain's first vertex.
+        """
+        def rising(at):
+            return ~self.ends[at] & (self.rise[at] + slope * self.run[at] > 0.0)
+
+        climbing = rising(vertex)
+        current = vertex
+        for level in reversed(self.levels):
+            candidate = level[current]
+            current = np.where(climbing & rising(candidate), candidate, current)
+        return np.where(climbing, self.following[current], current)
+
+
+def _suffix_hulls(distance_m: np.ndarray, terrain_m: np.ndarray, leg: np.ndarray, legs: int) -> _SuffixHulls:
+    """Build :class:`_SuffixHulls` (Andrew's monotone chain, run backwards over each leg).
+
+    Scanning a leg from its end, the stack holds the upper hull of the samples scanned so
+    far, leftmost on top; a new sample pops the vertices that no longer turn clockwise
+    and links to the new top. Popped vertices keep their own links, so every suffix's
+    hull stays readable: O(J) time and memory for all of them. Unknown terrain (NaN) is
+    left out, as the direct maximum leaves it out.
+    """
+    s, t = distance_m.tolist(), terrain_m.tolist()
+    count = len(s)
+    start, following, depth = [-1] * count, list(range(count)), [1] * count
+    leg_first = np.searchsorted(leg, np.arange(legs), side="left")
+    leg_end = np.searchsorted(leg, np.arange(legs), side="right")
+    for first, end in zip(leg_first.tolist(), leg_end.tolist()):
+        stack: list[int] = []
+        known = -1
+        for i in range(end - 1, first - 1, -1):
+            if not math.isfinite(t[i]):
+                start[i] = known
+                continue
+            while stack:
+                a = stack[-1]
+                if s[a] == s[i]:  # a repeated position: only the higher sample can be the highest
+                    if t[a] > t[i]:
+                        break
+                elif len(stack) < 2 or ((s[a] - s[i]) * (t[stack[-2]] - t[a])
+                                        - (t[a] - t[i]) * (s[stack[-2]] - s[a])) < 0.0:
+                    break  # a clockwise turn at a: a stays on the upper hull
+                stack.pop()
+            if stack:
+                following[i], depth[i] = stack[-1], depth[stack[-1]] + 1
+            stack.append(i)
+            start[i] = known = i
+    following_arr = np.asarray(following, dtype=np.intp)
+    s_arr, t_arr = np.asarray(s, dtype=float), np.asarray(t, dtype=float)
+    levels = [following_arr]
+    while (1 << len(levels)) < max(depth, default=1):  # 2**K - 1 steps reach the end of the longest chain
+        levels.append(levels[-1][levels[-1]])
+    return _SuffixHulls(
+        start=np.asarray(start, dtype=np.intp), following=following_arr,
+        rise=t_arr[following_arr] - t_arr, run=s_arr[following_arr] - s_arr,
+        ends=following_arr == np.arange(count), levels=tuple(levels),
+        leg_first=leg_first.astype(np.intp), leg_end=leg_end.astype(np.intp),
+    )
 
 
 def path_terrain(terrain: Terrain, lats, lons, clearance_m: float, spacing_m: float = PATH_SPACING_M) -> PathTerrain:

@@ -10,6 +10,7 @@ from __future__ import annotations
 import math
 import os
 import time
+from unittest import mock
 
 import numpy as np
 import pytest
@@ -520,3 +521,120 @@ def test_the_requirement_hook_takes_many_flights_at_once(wall_path):
     one_by_one = [float(along([p], h[None, :], [f])[0]) for p, h, f in zip(positions, per_metre, floors)]
     np.testing.assert_allclose(together, one_by_one, atol=1e-9)
     assert np.all(together >= 0.0)
+
+
+# ---------------------------------------------------------------- the requirement hook, fast and direct
+
+
+def direct_extra_required(profile, clearance_m, position_m, height_per_metre, floor_m):
+    """The requirement hook's definition, evaluated sample by sample (O(n J), for checking).
+
+    At a point ``x`` on leg ``k``: ``max(0, T(x) + C - R(x), max over samples s_j >= x of
+    T_j + C - R_j)``, with ``R(s) = F + h_l (E_l - s) + sum over later legs of h_m L_m`` on
+    leg ``l`` (contract section 3, "required height at a point", with each leg's own table)
+    and unknown terrain left out.
+    """
+    vertex = profile.vertex_distance_m
+    lengths = np.diff(vertex)
+    last_leg = lengths.size - 1
+
+    def leg_of(s):
+        return int(np.clip(np.searchsorted(vertex, s, side="right") - 1, 0, last_leg))
+
+    def required(s, h, floor):
+        leg = leg_of(s)
+        later = sum(h[m] * lengths[m] for m in range(leg + 1, lengths.size) if lengths[m] != 0.0)
+        return floor + h[leg] * (vertex[leg + 1] - s) + later
+
+    out = []
+    for x, h, floor in zip(position_m, height_per_metre, floor_m):
+        candidates = [0.0, np.interp(x, profile.distance_m, profile.elevation_m) + clearance_m - required(x, h, floor)]
+        candidates += [t + clearance_m - required(s, h, floor)
+                       for s, t in zip(profile.distance_m, profile.elevation_m) if s >= x]
+        finite = [c for c in candidates if np.isfinite(c)]
+        out.append(max(finite))
+    return np.array(out)
+
+
+def _profile(distance, elevation, vertex):
+    from glidetask.engine.terrain import PathProfile
+
+    distance = np.asarray(distance, dtype=float)
+    segment = np.clip(np.searchsorted(vertex, distance, side="right") - 1, 0, max(len(vertex) - 2, 0))
+    return PathProfile(distance_m=distance, lats=np.zeros(distance.size), lons=np.zeros(distance.size),
+                       elevation_m=np.asarray(elevation, dtype=float), segment=segment,
+                       vertex_distance_m=np.asarray(vertex, dtype=float))
+
+
+@st.composite
+def random_paths(draw):
+    """A path of 1-4 legs (some of zero length), samples with repeats, rough or terraced
+    terrain with gaps, and flights with any heights per metre (rising air makes them negative)."""
+    legs = draw(st.integers(1, 4))
+    lengths = draw(st.lists(st.sampled_from([0.0, 800.0, 2500.0, 7000.0]) | st.floats(0.0, 9000.0),
+                            min_size=legs, max_size=legs))
+    vertex = np.concatenate(([0.0], np.cumsum(lengths)))
+    seed = draw(st.integers(0, 2**32 - 1))
+    rng = np.random.default_rng(seed)
+    inner = rng.uniform(0.0, vertex[-1], rng.integers(0, 60))
+    distance = np.sort(np.concatenate((vertex, inner, inner[: rng.integers(0, 3)])))
+    elevation = rng.normal(600.0, 300.0, distance.size)
+    if draw(st.booleans()):
+        elevation = np.round(elevation, -2)  # terraces: many equal heights, collinear samples
+    elevation[rng.uniform(size=distance.size) < draw(st.sampled_from([0.0, 0.1, 0.5]))] = np.nan
+    flights = 40
+    position = rng.uniform(-100.0, vertex[-1] + 100.0, flights)
+    position[:10] = distance[rng.integers(0, distance.size, 10)]  # exactly on samples
+    per_metre = rng.uniform(-0.02, 0.08, (flights, legs))
+    per_metre[rng.uniform(size=per_metre.shape) < 0.05] = np.nan  # a flight without a table
+    floor = rng.uniform(0.0, 600.0, flights)
+    clearance = draw(st.floats(0.0, 300.0))
+    return _profile(distance, elevation, vertex), clearance, position, per_metre, floor
+
+
+# Each way the hook finds the largest shortfall ahead, forced by its batch-size limit:
+# convex hulls (large batches) and every sample (small batches).
+SEARCHES = pytest.mark.parametrize("direct_limit", [0, 10**12], ids=["hulls", "every-sample"])
+
+
+@SEARCHES
+@settings(max_examples=100, deadline=None)
+@given(case=random_paths())
+def test_the_fast_requirement_hook_equals_the_direct_maximum(direct_limit, case):
+    # The hook searches convex hulls of the samples ahead instead of every sample: the
+    # answer must be the direct maximum's, to round-off (1e-9 m).
+    from glidetask.engine import terrain
+
+    profile, clearance, position, per_metre, floor = case
+    with mock.patch.object(terrain, "DIRECT_PAIRS_LIMIT", direct_limit):
+        fast = terrain.PathTerrain(profile, clearance)(position, per_metre, floor)
+    direct = direct_extra_required(profile, clearance, position, per_metre, floor)
+    np.testing.assert_allclose(fast, direct, rtol=0.0, atol=1e-9)
+
+
+@SEARCHES
+def test_the_fast_requirement_hook_equals_the_direct_maximum_over_the_demo_terrain(direct_limit, demo_dir):
+    # The demo triangle's planned path over the demo model (hills, a ridge, the plain), and
+    # final-glide tables across the whole plausible range (glide ratios 15 to 60).
+    from glidetask.engine import terrain
+    from glidetask.engine.task import optimized_path
+    from glidetask.engine.terrain import path_terrain
+    from glidetask.formats.task_file import load_scenario
+
+    scenario = load_scenario(demo_dir / "vardmoor-triangle-300.toml")
+    path = optimized_path(scenario.task)
+    along = path_terrain(load_terrain(demo_dir / "terrain.tif"), path.lats, path.lons, 150.0)
+    rng = np.random.default_rng(11)
+    count = 120
+    position = rng.uniform(0.0, along.profile.total_m, count)
+    per_metre = rng.uniform(1 / 60.0, 1 / 15.0, (count, len(path.legs)))
+    floor = rng.uniform(100.0, 800.0, count)
+    with mock.patch.object(terrain, "DIRECT_PAIRS_LIMIT", direct_limit):
+        fast = along(position, per_metre, floor)
+    assert np.count_nonzero(fast) > count // 4  # the terrain does decide somewhere
+    direct = direct_extra_required(along.profile, 150.0, position, per_metre, floor)
+    np.testing.assert_allclose(fast, direct, rtol=0.0, atol=1e-9)
+    # And it agrees with the final-glide check's own suffix maximum (another code path).
+    for i in range(0, count, 17):
+        report = along.final_glide(position[i], per_metre[i], floor[i])
+        assert report.raised_by_m == pytest.approx(fast[i], abs=1e-9)
