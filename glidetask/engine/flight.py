@@ -482,9 +482,19 @@ class _Simulation:
         line = np.arange(rows.size)
         required = self.floor[rows] + hpm[line, leg] * (self.distance[leg] - pos) + tail[line, leg + 1]
         if self.requirement_hook is not None:
-            extra = self.requirement_hook(self.leg_start[leg] + pos, hpm, self.floor[rows])
-            required = required + np.asarray(extra, dtype=float)
+            required = required + self._extra(required, self.leg_start[leg] + pos, hpm, self.floor[rows])
         return required
+
+    def _extra(self, required, position, hpm, floor):
+        """The hook's extra height, asked only where the pure requirement is defined: a flight
+        still too far out for a final-glide table (NaN) needs nothing from it."""
+        asked = np.isfinite(required)
+        if asked.all():
+            return np.asarray(self.requirement_hook(position, hpm, floor), dtype=float)
+        extra = np.zeros(required.shape)
+        if asked.any():
+            extra[asked] = self.requirement_hook(position[asked], hpm[asked], floor[asked])
+        return extra
 
     def _final_glide_bound(self):
         """A lower bound [m/m] of the final glide's height used per metre, any leg, setting and density.

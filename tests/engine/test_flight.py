@@ -220,6 +220,25 @@ def test_requirement_hook_raises_the_final_glide_by_its_extra():
     assert flown.leg_arrival_height_m[0, -1] == pytest.approx(400.0 + 120.0, abs=1e-6)
 
 
+def test_requirement_hook_is_asked_only_for_flights_with_a_final_glide_table():
+    # The hook (an elevation model, costly per question) is asked only where the pure
+    # requirement is defined: flights still too far out for a final-glide table (NaN) are
+    # not asked, and a batch still gives each flight what it gets alone.
+    day = _varied_flights(12, seed=3)
+    asked = []
+
+    def hook(at, per_metre, floor):
+        asked.append(np.asarray(per_metre).copy())
+        return 40.0 + 0.001 * np.asarray(at)  # grows along the path, like a ridge near the finish
+
+    batch = fly(TRIANGLE, day, requirement=hook)
+    assert asked and all(np.isfinite(table).all() for table in asked)
+    columns = day.columns()
+    for i in range(12):
+        one = dataclasses.replace(day, **{name: columns[name][i] for name in Flights._PER_FLIGHT})
+        _assert_same(batch, fly(TRIANGLE, one, requirement=hook), i)
+
+
 def test_thermal_strength_goes_through_the_circling_model():
     # With a strength profile, each climb is the circling model's achieved climb for this
     # glider (grid-interpolated; the achieved climb is smooth in strength, 0.005 m/s).
