@@ -693,27 +693,23 @@ def _with_safety(plan: Plan, hook, model) -> Plan:
 
 def safety_cautions(plan: Plan) -> list[str]:
     """The terrain and landable cautions of a plan, metric (wording from
-    :mod:`glidetask.formats.safety_report`, the one source for every output)."""
-    from glidetask.formats import safety_report
+    :mod:`glidetask.cautions`, the one source for every output)."""
     from glidetask.units import METRIC
 
     out: list[str] = []
     if plan.terrain_source is not None:
         if plan.terrain is not None:
-            out += safety_report.terrain_cautions(plan.terrain, METRIC)
+            out += caution_text.terrain_cautions(plan.terrain, METRIC)
         else:
-            out += list(caution_text.TERRAIN)
-            out.append("The final glide was not checked over the terrain: the plan has no final glide.")
+            out += [*caution_text.TERRAIN, caution_text.NO_FINAL_GLIDE_TO_CHECK]
         path = plan.terrain_path
         if path is not None and path.profile.covered_share < 1.0:
-            stretches = ", ".join(f"{a / 1000:.1f} to {b / 1000:.1f} km" for a, b in path.profile.uncovered_ranges())
-            out.append(f"The terrain model {plan.terrain_source} does not cover "
-                       f"{100.0 * (1.0 - path.profile.covered_share):.0f}% of the planned path ({stretches}): "
-                       f"the heights needed there do not allow for the terrain.")
+            out.append(caution_text.path_not_covered(plan.terrain_source, path.profile.covered_share,
+                                                     path.profile.uncovered_ranges(), METRIC))
     if plan.landables is not None:
-        out += safety_report.landables_cautions(plan.landables, METRIC)
+        out += caution_text.landables_cautions(plan.landables, METRIC)
     elif plan.scenario.turnpoints:
-        out.append("No turnpoint is marked landable: field coverage along the task was not checked.")
+        out.append(caution_text.NO_LANDABLES)
     return out
 
 

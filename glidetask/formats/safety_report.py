@@ -2,9 +2,9 @@
 
 JSON objects (shared/CONTRACT.md 5.3 ``terrain`` and ``landables``, with extra keys),
 readable sections for the text plan and the ``glide`` command, Markdown sections for the
-pre-flight briefing, and the cautions that go with them. Everything here formats results
-of :mod:`glidetask.engine.terrain` and :mod:`glidetask.engine.reach`; nothing is computed
-again.
+pre-flight briefing, and the cautions that go with them (worded in :mod:`glidetask.cautions`,
+the one source the plan's own cautions come from too). Everything here formats results of
+:mod:`glidetask.engine.terrain` and :mod:`glidetask.engine.reach`; nothing is computed again.
 """
 
 from __future__ import annotations
@@ -14,13 +14,14 @@ from typing import Sequence
 
 import numpy as np
 
-from glidetask import cautions
+from glidetask.cautions import SHOWN_SHORTFALL_M, compass, landables_cautions, place, terrain_cautions
 from glidetask.units import UnitSystem
 
-_COMPASS = ("N", "NNE", "NE", "ENE", "E", "ESE", "SE", "SSE", "S", "SSW", "SW", "WSW", "W", "WNW", "NW", "NNW")
+__all__ = ["compass", "landables_cautions", "landables_markdown", "landables_text", "landables_to_dict",
+           "terrain_cautions", "terrain_markdown", "terrain_profile_ascii", "terrain_text", "terrain_to_dict"]
+
 _GAP_REASONS = {"range": "no field within a glide", "terrain": "terrain in the way",
                 "unknown": "terrain model does not cover the glides"}
-_SHOWN_SHORTFALL_M = 0.5  # a height missing below this rounds to nothing on screen [m]
 
 
 def _num(value):
@@ -34,11 +35,6 @@ def _num(value):
 def _km(metres):
     value = _num(metres)
     return None if value is None else value / 1000.0
-
-
-def compass(bearing_deg: float) -> str:
-    """The 16-point compass name of a bearing [deg true]."""
-    return _COMPASS[int(((bearing_deg % 360.0) + 11.25) // 22.5) % 16]
 
 
 def _leg_label(leg: int, leg_names: Sequence | None) -> str:
@@ -124,54 +120,7 @@ def landables_to_dict(c, leg_names: Sequence | None = None) -> dict:
     }
 
 
-# ---------------------------------------------------------------- cautions
-
-
-def terrain_cautions(t, units: UnitSystem) -> list[str]:
-    """The terrain cautions, general and for this glide (for text, JSON and briefing)."""
-    out = list(cautions.TERRAIN)
-    if t.covered_share < 1.0:
-        stretches = ", ".join(f"{units.fmt_distance(a)} to {units.fmt_distance(b)}" for a, b in t.uncovered)
-        model = f"The terrain model {t.source}" if t.source else "The terrain model"
-        out.append(f"{model} does not cover {100.0 * (1.0 - t.covered_share):.0f}% of the "
-                   f"final glide ({stretches}): clearance there is unknown, not checked.")
-    if t.shortfall_m >= _SHOWN_SHORTFALL_M:
-        out.append(f"The glide does not clear the terrain by {units.fmt_height(t.clearance_m)}: it needs "
-                   f"{units.fmt_height(t.shortfall_m)} more height ({units.fmt_height(t.required_start_m)}).")
-    elif t.raised_by_m > 0.0 and t.obstacle is not None:
-        out.append(f"Terrain raises the final-glide height by {units.fmt_height(t.raised_by_m)}: "
-                   f"{_where(t.obstacle, units)} needs {units.fmt_height(t.obstacle.needed_height_m)}.")
-    return out
-
-
-def landables_cautions(c, units: UnitSystem) -> list[str]:
-    """The landable-field cautions, general and for this coverage."""
-    out = list(cautions.LANDABLES)
-    if c.landable_count == 0:
-        out.append("No turnpoint is marked landable: field coverage along the task was not checked.")
-    elif c.gaps:
-        length = sum(b - a for a, b in c.gaps)
-        out.append(f"No landable field is in reach from the band bottom ({units.fmt_height(c.band_bottom_m)}) on "
-                   f"{len(c.gaps)} stretch{'es' if len(c.gaps) != 1 else ''} of the task "
-                   f"({units.fmt_distance(length)} in all): stay higher there or plan where to land.")
-    if any(parts["unknown"] > 0.0 for parts in c.gap_breakdown()):
-        out.append("The terrain model does not cover some glides to fields: those fields were not counted as in reach.")
-    return out
-
-
 # ---------------------------------------------------------------- text
-
-
-def _where(point, units: UnitSystem) -> str:
-    """``"terrain of 1180 m at 287.3 km (4.1 km NNE of Orsby)"``."""
-    text = f"terrain of {units.fmt_height(point.elevation_m)} at {units.fmt_distance(point.at_m)}"
-    if point.near is not None:
-        if point.near_distance_m < 500.0:
-            text += f" (at {point.near})"
-        else:
-            text += (f" ({units.fmt_distance(point.near_distance_m)} {compass(point.near_bearing_deg)}"
-                     f" of {point.near})")
-    return text
 
 
 def _terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
@@ -185,15 +134,15 @@ def _terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
     else:
         verdict = "NOT CHECKED EVERYWHERE: the terrain model does not cover all of the glide"
     facts = [("verdict", verdict),
-             ("least clearance", f"{units.fmt_height(t.min_clearance_m)} over {_where(t.lowest, units)}")]
+             ("least clearance", f"{units.fmt_height(t.min_clearance_m)} over {place(t.lowest, units)}")]
     if t.raised_by_m > 0.0 and t.obstacle is not None:
         facts.append(("terrain demands", f"{units.fmt_height(t.required_start_m)} at the start, "
                                          f"{units.fmt_height(t.raised_by_m)} more than the arrival alone: "
-                                         f"decided by {_where(t.obstacle, units)}"))
+                                         f"decided by {place(t.obstacle, units)}"))
     else:
         facts.append(("terrain demands", f"nothing beyond the arrival margin "
                                          f"({units.fmt_height(t.required_start_m)} at the start)"))
-    if t.shortfall_m >= _SHOWN_SHORTFALL_M:
+    if t.shortfall_m >= SHOWN_SHORTFALL_M:
         facts.append(("height missing", f"{units.fmt_height(t.shortfall_m)} "
                                         f"(starting at {units.fmt_height(t.start_height_m)})"))
     missing = ", ".join(f"{units.fmt_distance(a)} to {units.fmt_distance(b)}" for a, b in t.uncovered)

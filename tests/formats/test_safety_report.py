@@ -1,4 +1,5 @@
-"""The safety report: contract JSON objects, text and Markdown sections, cautions.
+"""The safety report: contract JSON objects, text and Markdown sections, and the cautions
+that go with them (worded in glidetask.cautions, which the plan itself uses too).
 
 The results rendered are built by the engine from hand-computable cases (a triangular
 ridge under a 1:40 glide, fields on a meridian), so every number shown can be checked.
@@ -129,14 +130,14 @@ def test_the_obstacle_is_placed_from_the_nearest_turnpoint_with_a_compass_point(
     # Source: GeographicLib for distance and bearing from the landmark to the crest.
     crest = int(np.argmax(RIDGE))
     line = Geodesic.WGS84.Inverse(46.15, -33.02, LATS[crest], LONS[crest])
-    assert f"{line['s12'] / 1000:.1f} km {report.compass(line['azi1'])} of Orsby Gliding Field" in text
+    assert f"{line['s12'] / 1000:.1f} km {cautions.compass(line['azi1'])} of Orsby Gliding Field" in text
 
 
 @pytest.mark.parametrize("bearing, name", [(0.0, "N"), (11.0, "N"), (11.3, "NNE"), (45.0, "NE"), (180.0, "S"),
                                            (259.0, "W"), (348.8, "N"), (-90.0, "W"), (337.5, "NNW")])
 def test_compass_points(bearing, name):
     # Source: the 16-point compass rose, 22.5 deg per point centred on each (common practice).
-    assert report.compass(bearing) == name
+    assert cautions.compass(bearing) == name
 
 
 def test_landables_text_lists_gaps_and_alternates_per_leg():
@@ -181,13 +182,31 @@ def test_briefing_sections_carry_tables_profile_and_cautions():
 def test_cautions_name_partial_coverage_raised_heights_and_gaps():
     partial = RIDGE.copy()
     partial[180:] = np.nan
-    texts = report.terrain_cautions(ridge_check(terrain=partial), METRIC)
+    texts = cautions.terrain_cautions(ridge_check(terrain=partial), METRIC)
     assert texts[:len(cautions.TERRAIN)] == list(cautions.TERRAIN)
     assert any("does not cover" in t and "unknown" in t for t in texts)
-    assert any("raises the final-glide height by 100 m" in t for t in report.terrain_cautions(ridge_check(), METRIC))
-    gaps = report.landables_cautions(fields_coverage(), METRIC)
+    raised = cautions.terrain_cautions(ridge_check(), METRIC)
+    assert any("raises the final-glide height by 100 m" in t for t in raised)
+    gaps = cautions.landables_cautions(fields_coverage(), METRIC)
     assert gaps[:len(cautions.LANDABLES)] == list(cautions.LANDABLES)
     assert any("2 stretches" in t for t in gaps)
+
+
+def test_the_report_words_its_cautions_from_the_one_source():
+    # The text, JSON and briefing (here) and the plan (glidetask.engine.planner) take the same
+    # functions from glidetask.cautions, so their wording cannot drift apart.
+    assert report.terrain_cautions is cautions.terrain_cautions
+    assert report.landables_cautions is cautions.landables_cautions
+    assert report.compass is cautions.compass
+
+
+def test_a_partly_covered_path_is_worded_in_the_readers_units():
+    # By hand: 40 km of 160 km uncovered is 25 %; 200 km = 107.99 NM, 240 km = 129.59 NM
+    # Source: 1 NM = 1852 m exactly (international nautical mile).
+    text = cautions.path_not_covered("terrain.tif", 0.75, [(200_000.0, 240_000.0)], AVIATION)
+    assert text.startswith("The terrain model terrain.tif does not cover 25% of the planned path")
+    assert "(108.0 NM to 129.6 NM)" in text
+    assert cautions.path_not_covered(None, 0.75, [(0.0, 1000.0)], METRIC).startswith("The terrain model does")
 
 
 def test_no_landables_is_said_not_hidden():
@@ -197,5 +216,5 @@ def test_no_landables_is_said_not_hidden():
     lons = [line.Position(x)["lon2"] for x in s]
     empty = coverage(lats, lons, s, 0, [], POLAR, Wind(), 1000.0, 200.0)
     assert "no turnpoint is marked landable" in report.landables_text(empty, METRIC)
-    assert any("No turnpoint is marked landable" in t for t in report.landables_cautions(empty, METRIC))
+    assert cautions.NO_LANDABLES in cautions.landables_cautions(empty, METRIC)
     assert math.isclose(report.landables_to_dict(empty)["coverage_percent"], 0.0)
