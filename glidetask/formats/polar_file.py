@@ -16,13 +16,12 @@ Public helpers:
 from __future__ import annotations
 
 import math
-import re
-import tomllib
 from pathlib import Path
 from typing import Any
 
 from glidetask.engine.polar import PolarSpec, fit_quadratic
 from glidetask.errors import InputError, Problem
+from glidetask.formats.toml_reader import TomlReader, is_number, read_toml
 
 KMH = 1000.0 / 3600.0  # m/s per km/h
 DEFAULT_PILOT_ALLOWANCE_KG = 90.0  # empty mass defaults to reference mass minus this
@@ -32,60 +31,7 @@ GLIDER_KEYS = ("label", "wing_area_m2", "reference_mass_kg", "empty_mass_kg", "m
 POLAR_KEYS = ("points",)
 
 
-def _is_number(value: Any) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool)
-
-
-class _Checker:
-    """Reads typed values from the document, noting a problem for each bad one."""
-
-    def __init__(self, file: str):
-        self.file = file
-        self.problems: list[Problem] = []
-
-    def add(self, where: str, what: str) -> None:
-        self.problems.append(Problem(self.file, where, what))
-
-    def table(self, document: dict, name: str) -> dict | None:
-        value = document.get(name)
-        if value is None:
-            self.add(f"[{name}]", "missing table")
-            return None
-        if not isinstance(value, dict):
-            self.add(f"[{name}]", f"must be a table, got {type(value).__name__}")
-            return None
-        return value
-
-    def unknown_keys(self, table: dict, name: str, known: tuple[str, ...]) -> None:
-        for key in table:
-            if key not in known:
-                self.add(f"[{name}] {key}", f"unknown key (expected one of: {', '.join(known)})")
-
-    def number(self, table: dict, section: str, key: str, *, required: bool = True,
-               positive: bool = False, minimum: float | None = None) -> float | None:
-        where = f"[{section}] {key}"
-        if key not in table:
-            if required:
-                self.add(where, "missing key")
-            return None
-        value = table[key]
-        if not _is_number(value):
-            self.add(where, f"must be a number, got {value!r}")
-            return None
-        value = float(value)
-        if not math.isfinite(value):
-            self.add(where, f"must be a finite number, got {value!r}")
-            return None
-        if positive and value <= 0.0:
-            self.add(where, f"must be greater than 0, got {value:g}")
-            return None
-        if minimum is not None and value < minimum:
-            self.add(where, f"must be at least {minimum:g}, got {value:g}")
-            return None
-        return value
-
-
-def _points(checker: _Checker, polar: dict, min_kmh: float | None, vne_kmh: float | None):
+def _points(checker: TomlReader, polar: dict, min_kmh: float | None, vne_kmh: float | None):
     """The ``[polar] points`` as (speed km/h, sink m/s) pairs, each one checked."""
     where = "[polar] points"
     if "points" not in polar:
@@ -100,7 +46,7 @@ def _points(checker: _Checker, polar: dict, min_kmh: float | None, vne_kmh: floa
     points, ok = [], True
     for number, point in enumerate(raw, start=1):
         here = f"{where}[{number}]"
-        if not (isinstance(point, list) and len(point) == 2 and all(_is_number(x) for x in point)):
+        if not (isinstance(point, list) and len(point) == 2 and all(is_number(x) for x in point)):
             checker.add(here, f"must be a pair [IAS km/h, sink m/s] of numbers, got {point!r}")
             ok = False
             continue
@@ -123,7 +69,7 @@ def _points(checker: _Checker, polar: dict, min_kmh: float | None, vne_kmh: floa
     return points if ok and len(points) >= 3 else None
 
 
-def _fit_problems(checker: _Checker, points, min_kmh: float | None, vne_kmh: float | None) -> None:
+def _fit_problems(checker: TomlReader, points, min_kmh: float | None, vne_kmh: float | None) -> None:
     """An impossible fitted polar: curving the wrong way, or no sink somewhere in range
     (the valid speed range, or the points' own range if the limits are unusable)."""
     a, b, c, _ = fit_quadratic([s * KMH for s, _ in points], [w for _, w in points])
@@ -159,36 +105,36 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
     problems : list of Problem
         Every problem found (empty if ``spec`` is not None).
     """
-    checker = _Checker(str(file))
+    checker = TomlReader(str(file))
     for key in document:
         if key not in ("glider", "polar"):
             checker.add(key, "unknown table or key (expected [glider] and [polar])")
-    glider = checker.table(document, "glider")
-    polar = checker.table(document, "polar")
+    glider = checker.table(document, "glider", required=True)
+    polar = checker.table(document, "polar", required=True)
     values: dict[str, Any] = {}
     if glider is not None:
-        checker.unknown_keys(glider, "glider", GLIDER_KEYS)
+        checker.unknown(glider, "[glider]", GLIDER_KEYS)
         label = glider.get("label", Path(file).stem)
         if not isinstance(label, str):
             checker.add("[glider] label", f"must be text, got {label!r}")
         values["label"] = str(label)
         for key in ("wing_area_m2", "reference_mass_kg", "vne_kmh", "min_speed_kmh"):
-            values[key] = checker.number(glider, "glider", key, positive=True)
-        values["empty_mass_kg"] = checker.number(glider, "glider", "empty_mass_kg", required=False, positive=True)
-        values["max_ballast_kg"] = checker.number(glider, "glider", "max_ballast_kg", required=False, minimum=0.0)
-        values["max_mass_kg"] = checker.number(glider, "glider", "max_mass_kg", required=False, positive=True)
+            values[key] = checker.number(glider, "[glider]", key, required=True, positive=True)
+        values["empty_mass_kg"] = checker.number(glider, "[glider]", "empty_mass_kg", positive=True)
+        values["max_ballast_kg"] = checker.number(glider, "[glider]", "max_ballast_kg", low=0.0)
+        values["max_mass_kg"] = checker.number(glider, "[glider]", "max_mass_kg", positive=True)
         _limit_problems(checker, glider, values)
     min_kmh, vne_kmh = values.get("min_speed_kmh"), values.get("vne_kmh")
     if min_kmh is not None and vne_kmh is not None and min_kmh >= vne_kmh:
         min_kmh = vne_kmh = None  # already reported; the points cannot be range-checked
     points = None
     if polar is not None:
-        checker.unknown_keys(polar, "polar", POLAR_KEYS)
+        checker.unknown(polar, "[polar]", POLAR_KEYS)
         points = _points(checker, polar, min_kmh, vne_kmh)
         if points is not None:
             _fit_problems(checker, points, min_kmh, vne_kmh)
     if checker.problems or glider is None or points is None:
-        return None, checker.problems
+        return None, checker.problems.problems
     return PolarSpec(
         label=values["label"],
         wing_area_m2=values["wing_area_m2"],
@@ -202,7 +148,7 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
     ), []
 
 
-def _limit_problems(checker: _Checker, glider: dict, values: dict[str, Any]) -> None:
+def _limit_problems(checker: TomlReader, glider: dict, values: dict[str, Any]) -> None:
     """Defaults and cross-checks of the masses and speed limits (fills ``values``)."""
     reference = values["reference_mass_kg"]
     if "empty_mass_kg" not in glider and reference is not None:
@@ -222,33 +168,10 @@ def _limit_problems(checker: _Checker, glider: dict, values: dict[str, Any]) -> 
         checker.add("[glider] min_speed_kmh", f"must be below vne_kmh ({high:g}), got {low:g}")
 
 
-_TOML_PLACE = re.compile(r"\s*\(at line (\d+), column (\d+)\)\s*$")
-
-
-def _parse(path: Path, file: str) -> tuple[dict | None, list[Problem]]:
-    try:
-        text = path.read_bytes().decode("utf-8")
-    except OSError as error:
-        return None, [Problem(file, "file", f"cannot read it: {error.strerror or error}")]
-    except UnicodeDecodeError:
-        return None, [Problem(file, "file", "is not UTF-8 text")]
-    try:
-        return tomllib.loads(text), []
-    except tomllib.TOMLDecodeError as error:
-        message = str(error)
-        place = _TOML_PLACE.search(message)
-        if place:
-            where = f"line {place.group(1)}"
-            what = f"TOML syntax error: {message[:place.start()]} (column {place.group(2)})"
-        else:
-            where, what = "file", f"TOML syntax error: {message}"
-        return None, [Problem(file, where, what)]
-
-
 def read_polar_spec(path: str | Path) -> tuple[PolarSpec | None, list[Problem]]:
     """Read and validate a polar file; ``(spec, [])`` or ``(None, problems)``."""
     file = str(path)
-    document, problems = _parse(Path(path), file)
+    document, problems = read_toml(Path(path), file)
     if document is None:
         return None, problems
     return polar_problems(document, file)

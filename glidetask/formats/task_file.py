@@ -28,15 +28,15 @@ import difflib
 import json
 import math
 import os
-import tomllib
 from pathlib import Path
 from typing import Any
 
 from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
-from glidetask.errors import InputError, ProblemCollector
+from glidetask.errors import InputError
 from glidetask.formats.atomic import write_atomic
+from glidetask.formats.toml_reader import TomlReader, is_number, read_toml, show
 from glidetask.units import KMH, format_clock, parse_clock
 
 TABLES = ("task", "glider", "day", "safety", "terrain")
@@ -64,66 +64,8 @@ _ZONE_SIZE_KEYS = ("length_km", "radius_km", "angle_deg", "cylinder_radius_km", 
                    "radial_from_deg", "radial_to_deg")
 
 
-def _is_number(value: Any) -> bool:
-    return isinstance(value, (int, float)) and not isinstance(value, bool)
-
-
-class _Reader:
-    """Typed access to the TOML values, collecting a problem for each bad one."""
-
-    def __init__(self, file: str):
-        self.problems = ProblemCollector(file)
-
-    def add(self, where: str, what: str) -> None:
-        self.problems.add(where, what)
-
-    def table(self, document: dict, name: str, *, required: bool) -> dict | None:
-        value = document.get(name)
-        if value is None:
-            if required:
-                self.add(f"[{name}]", "missing table")
-            return None
-        if not isinstance(value, dict):
-            self.add(f"[{name}]", f"must be a table, got {type(value).__name__}")
-            return None
-        return value
-
-    def unknown(self, table: dict, where: str, known: tuple[str, ...]) -> None:
-        for key in table:
-            if key not in known:
-                self.add(f"{where} {key}", f"unknown key (expected one of: {', '.join(known)})")
-
-    def number(self, table: dict, where: str, key: str, *, required: bool = False, default=None,
-               low: float | None = None, high: float | None = None, positive: bool = False):
-        here = f"{where} {key}"
-        if key not in table:
-            if required:
-                self.add(here, "missing key")
-            return default
-        value = table[key]
-        if not _is_number(value) or not math.isfinite(value):
-            self.add(here, f"must be a finite number, got {_show(value)}")
-            return None
-        value = float(value)
-        if positive and value <= 0.0:
-            self.add(here, f"must be greater than 0, got {value:g}")
-            return None
-        if (low is not None and value < low) or (high is not None and value > high):
-            self.add(here, f"must be in [{low:g}, {high:g}], got {value:g}")
-            return None
-        return value
-
-    def text(self, table: dict, where: str, key: str, *, required: bool = False, default=None):
-        here = f"{where} {key}"
-        if key not in table:
-            if required:
-                self.add(here, "missing key")
-            return default
-        value = table[key]
-        if not isinstance(value, str) or not value.strip():
-            self.add(here, f"must be non-empty text, got {_show(value)}")
-            return None
-        return value.strip()
+class _Reader(TomlReader):
+    """Typed access to the task file's values, collecting a problem for each bad one."""
 
     def clock(self, table: dict, where: str, key: str, *, required: bool = False):
         value = self.text(table, where, key, required=required)
@@ -134,16 +76,6 @@ class _Reader:
         except ValueError:
             self.add(f"{where} {key}", f"expected a local time as HH:MM, got {value!r}")
             return None
-
-
-def _show(value: Any) -> str:
-    if isinstance(value, str):
-        return repr(value)
-    if isinstance(value, dict):
-        return "a table"
-    if isinstance(value, list):
-        return "a list"
-    return json.dumps(value) if isinstance(value, (bool, int, float)) else repr(value)
 
 
 def _a(word: str) -> str:
@@ -190,7 +122,7 @@ def _zone(reader: _Reader, entry: dict, where: str, task_kind: str, role: str) -
     """The zone of one ``[[task.points]]`` entry, or None after reporting its problems."""
     name = entry.get("zone")
     if not isinstance(name, str):
-        reader.add(f"{where} zone", "missing key" if name is None else f"must be text, got {_show(name)}")
+        reader.add(f"{where} zone", "missing key" if name is None else f"must be text, got {show(name)}")
         return None
     name = name.strip().lower()
     if name.startswith("area_"):
@@ -342,13 +274,13 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
     where = f"[day] {key}"
     raw = table[key]
     if not isinstance(raw, list) or not raw:
-        reader.add(where, f"must be a list of [\"HH:MM\", value] pairs, got {_show(raw)}")
+        reader.add(where, f"must be a list of [\"HH:MM\", value] pairs, got {show(raw)}")
         return None
     times, values, ok = [], [], True
     for number, pair in enumerate(raw, start=1):
         here = f"{where}[{number}]"
-        if not (isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str) and _is_number(pair[1])):
-            reader.add(here, f"must be a pair [\"HH:MM\", m/s], got {_show(pair)}")
+        if not (isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str) and is_number(pair[1])):
+            reader.add(here, f"must be a pair [\"HH:MM\", m/s], got {show(pair)}")
             ok = False
             continue
         try:
@@ -374,7 +306,7 @@ def _wind(reader: _Reader, table: dict) -> Wind | None:
     if raw is None:
         return Wind()
     if not isinstance(raw, dict):
-        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }}, got {_show(raw)}")
+        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }}, got {show(raw)}")
         return None
     reader.unknown(raw, "[day] wind", ("from_deg", "speed_kmh"))
     direction = reader.number(raw, "[day] wind", "from_deg", required=True, low=0.0, high=360.0)
@@ -451,23 +383,10 @@ def _terrain(reader: _Reader, table: dict | None, base: Path) -> str | None:
 
 
 def _parse_toml(path: Path, file: str) -> dict:
-    try:
-        text = path.read_bytes().decode("utf-8")
-    except FileNotFoundError:
-        raise InputError.one(file, "file", "no such file") from None
-    except UnicodeDecodeError:
-        raise InputError.one(file, "file", "is not UTF-8 text") from None
-    except OSError as error:
-        raise InputError.one(file, "file", f"cannot read it: {error.strerror or error}") from None
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as error:
-        message = str(error)
-        marker = message.rfind(" (at line ")
-        if marker >= 0:
-            line = message[marker + len(" (at line "):].split(",")[0]
-            raise InputError.one(file, f"line {line}", f"TOML syntax error: {message[:marker]}") from None
-        raise InputError.one(file, "file", f"TOML syntax error: {message}") from None
+    document, problems = read_toml(path, file)
+    if document is None:
+        raise InputError(problems)
+    return document
 
 
 def load_scenario(path: str | os.PathLike) -> Scenario:

@@ -1,0 +1,121 @@
+"""Shared reading of our TOML files (polars and tasks): parsing with the place of a syntax
+error, and typed access to values that notes a problem for each bad one and keeps going,
+so that a pilot can fix a whole file in one go."""
+
+from __future__ import annotations
+
+import json
+import math
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from glidetask.errors import Problem, ProblemCollector
+
+
+def is_number(value: Any) -> bool:
+    """A TOML integer or float (TOML booleans are not numbers)."""
+    return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+def show(value: Any) -> str:
+    """A value as the user wrote it, for messages."""
+    if isinstance(value, str):
+        return repr(value)
+    if isinstance(value, dict):
+        return "a table"
+    if isinstance(value, list):
+        return "a list"
+    return json.dumps(value) if isinstance(value, (bool, int, float)) else repr(value)
+
+
+def read_toml(path: Path, file: str) -> tuple[dict | None, list[Problem]]:
+    """``(document, [])``, or ``(None, [problem])`` for an unreadable file or a syntax error
+    (placed at its line, as :mod:`tomllib` reports it)."""
+    try:
+        text = path.read_bytes().decode("utf-8")
+    except FileNotFoundError:
+        return None, [Problem(file, "file", "no such file")]
+    except UnicodeDecodeError:
+        return None, [Problem(file, "file", "is not UTF-8 text")]
+    except OSError as error:
+        return None, [Problem(file, "file", f"cannot read it: {error.strerror or error}")]
+    try:
+        return tomllib.loads(text), []
+    except tomllib.TOMLDecodeError as error:
+        message = str(error)
+        marker = message.rfind(" (at line ")
+        if marker < 0:
+            return None, [Problem(file, "file", f"TOML syntax error: {message}")]
+        line, _, column = message[marker + len(" (at line "):].rstrip(")").partition(", column ")
+        return None, [Problem(file, f"line {line}", f"TOML syntax error: {message[:marker]} (column {column})")]
+
+
+class TomlReader:
+    """Typed access to a parsed TOML document, collecting a problem for each bad value.
+
+    ``where`` arguments are the key path of the table (``"[glider]"``, ``"[[task.points]] 3"``);
+    each problem's place is that path and the key.
+    """
+
+    def __init__(self, file: str):
+        self.problems = ProblemCollector(file)
+
+    def add(self, where: str, what: str) -> None:
+        self.problems.add(where, what)
+
+    def table(self, document: dict, name: str, *, required: bool) -> dict | None:
+        value = document.get(name)
+        if value is None:
+            if required:
+                self.add(f"[{name}]", "missing table")
+            return None
+        if not isinstance(value, dict):
+            self.add(f"[{name}]", f"must be a table, got {type(value).__name__}")
+            return None
+        return value
+
+    def unknown(self, table: dict, where: str, known: tuple[str, ...]) -> None:
+        for key in table:
+            if key not in known:
+                self.add(f"{where} {key}", f"unknown key (expected one of: {', '.join(known)})")
+
+    def number(self, table: dict, where: str, key: str, *, required: bool = False, default=None,
+               positive: bool = False, low: float | None = None, high: float | None = None):
+        """A finite float, or ``default`` when absent; None (with a problem) when bad."""
+        here = f"{where} {key}"
+        if key not in table:
+            if required:
+                self.add(here, "missing key")
+            return default
+        value = table[key]
+        if not is_number(value):
+            self.add(here, f"must be a number, got {show(value)}")
+            return None
+        value = float(value)
+        if not math.isfinite(value):
+            self.add(here, f"must be a finite number, got {show(value)}")
+            return None
+        if positive and value <= 0.0:
+            self.add(here, f"must be greater than 0, got {value:g}")
+            return None
+        if low is not None and high is not None and not low <= value <= high:
+            self.add(here, f"must be in [{low:g}, {high:g}], got {value:g}")
+            return None
+        if low is not None and high is None and value < low:
+            self.add(here, f"must be at least {low:g}, got {value:g}")
+            return None
+        return value
+
+    def text(self, table: dict, where: str, key: str, *, required: bool = False, default=None):
+        """Non-empty text (stripped), or ``default`` when absent; None (with a problem) when bad."""
+        here = f"{where} {key}"
+        if key not in table:
+            if required:
+                self.add(here, "missing key")
+            return default
+        value = table[key]
+        if not isinstance(value, str) or not value.strip():
+            self.add(here, f"must be non-empty text, got {show(value)}")
+            return None
+        return value.strip()
