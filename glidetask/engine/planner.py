@@ -168,7 +168,8 @@ class Plan:
         :class:`glidetask.engine.terrain.PathTerrain` when the task has a model).
     terrain_source : str or None
         The elevation model's file when the task has one (even when no final glide
-        could be checked).
+        could be checked), as the task names it: relative to the task file
+        (:func:`shown_terrain_source`); ``terrain.source`` is the same.
     """
 
     scenario: Scenario
@@ -678,15 +679,42 @@ def landable_coverage(scenario: Scenario, path, model=None):
     return result
 
 
+def shown_terrain_source(scenario: Scenario) -> str | None:
+    """The elevation model's file as the task names it, for pilots and scripts; None without one.
+
+    Relative to the task file's folder (POSIX separators), the form task files use and the
+    one a saved task file writes, so ``terrain.tif`` for a model beside the task; the whole
+    path only when no relative path leads there (another drive). Without a task file (a
+    scenario built in memory) the file name alone. The absolute path stays in
+    ``scenario.terrain_file``.
+    """
+    import os
+    from pathlib import Path
+
+    if not scenario.terrain_file:
+        return None
+    target = os.path.abspath(scenario.terrain_file)
+    if not scenario.source:
+        return os.path.basename(target)
+    folder = os.path.realpath(os.path.dirname(os.path.abspath(scenario.source)))
+    try:
+        return Path(os.path.relpath(target, folder)).as_posix()
+    except ValueError:  # on another drive
+        return Path(target).as_posix()
+
+
 def _with_safety(plan: Plan, hook, model) -> Plan:
-    """The plan with its terrain check, landable coverage and their cautions."""
+    """The plan with its terrain check, landable coverage and their cautions; the model named
+    as the task names it (:func:`shown_terrain_source`) wherever the plan shows it."""
     terrain = None
+    source = None if model is None else shown_terrain_source(plan.scenario)
     if hasattr(hook, "final_glide") and math.isfinite(plan.final_glide_from_m):
         landmarks = plan.scenario.turnpoints or tuple(p.turnpoint for p in plan.scenario.task.points)
         terrain = hook.final_glide(plan.final_glide_from_m, final_glide_per_metre(plan.scenario, plan.path, plan.flown),
                                    plan.arrival_floor_m, start_height_m=plan.final_glide_height_m, landmarks=landmarks)
+        terrain = dataclasses.replace(terrain, source=source)
     plan = dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
-                               requirement=hook, terrain_source=None if model is None else model.source)
+                               requirement=hook, terrain_source=source)
     extra = [text for text in safety_cautions(plan) if text not in plan.cautions]
     return dataclasses.replace(plan, cautions=plan.cautions + tuple(dict.fromkeys(extra)))
 

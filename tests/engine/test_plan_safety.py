@@ -9,6 +9,7 @@ section 3), ISO 2533 and an independent geodesic library (geographiclib).
 from __future__ import annotations
 
 import dataclasses
+import json
 import math
 
 import numpy as np
@@ -180,6 +181,47 @@ def test_the_ridge_is_in_the_json_and_the_cautions(ridge):
     assert terrain["raised_by_m"] == pytest.approx(p.terrain.raised_by_m, abs=0.05)  # JSON: decimetres
     assert any("Terrain raises the final-glide height" in c for c in data["cautions"])
     assert cautions.TERRAIN[0] in data["cautions"]
+
+
+def test_the_model_is_named_as_the_task_names_it_not_by_its_whole_path(tmp_path):
+    # A task in tasks/ naming ../terrain/dem.tif: plan, JSON, text and briefing all say
+    # "../terrain/dem.tif" (relative to the task file, as task files name their files:
+    # shared/CONTRACT.md section 2), never the absolute path of this machine.
+    from glidetask.formats.briefing import plan_to_markdown
+    from glidetask.formats.safety_report import terrain_text
+    from glidetask.units import METRIC
+
+    (tmp_path / "tasks").mkdir()
+    (tmp_path / "terrain").mkdir()
+    task = north_and_back_task(60e3, 30e3)
+    tif, _ = write_latitude_profile(tmp_path / "terrain" / "dem.tif", [HOME[0] - 0.1, HOME[0] + 1.0],
+                                    [GROUND, GROUND])
+    source = str(tmp_path / "tasks" / "north-and-back.toml")
+    p = plan(dataclasses.replace(scenario(task, tif), source=source))
+    assert p.terrain_source == "../terrain/dem.tif" and p.terrain.source == p.terrain_source
+    assert p.scenario.terrain_file == tif  # the engine still reads the file by its whole path
+    data = plan_to_dict(p)
+    assert data["terrain"]["source"] == "../terrain/dem.tif"
+    assert "(model ../terrain/dem.tif)" in terrain_text(p.terrain, METRIC)
+    briefing = plan_to_markdown(p)
+    assert "`../terrain/dem.tif`" in briefing
+    for shown in (json.dumps(data), briefing, terrain_text(p.terrain, METRIC), *p.cautions):
+        assert str(tmp_path) not in shown
+
+
+def test_a_model_beside_the_task_is_its_file_name_and_without_a_task_file_too(tmp_path, demo_dir):
+    from glidetask.engine.planner import shown_terrain_source
+    from glidetask.formats.task_file import load_scenario
+
+    demo = load_scenario(demo_dir / "vardmoor-triangle-300.toml")  # [terrain] file = "terrain.tif"
+    assert shown_terrain_source(demo) == "terrain.tif"
+    assert shown_terrain_source(dataclasses.replace(demo, source=None)) == "terrain.tif"
+    assert shown_terrain_source(dataclasses.replace(demo, terrain_file=None)) is None
+    uncovered = scenario(north_and_back_task(60e3, 30e3), None)
+    tif, _ = write_latitude_profile(tmp_path / "partial.tif", [HOME[0] - 0.1, HOME[0] + 0.3], [GROUND, GROUND])
+    p = plan(dataclasses.replace(uncovered, terrain_file=tif, source=str(tmp_path / "task.toml")))
+    caution = next(c for c in p.cautions if "of the planned path" in c)
+    assert caution.startswith("The terrain model partial.tif does not cover")
 
 
 def test_flat_ground_below_the_glide_changes_nothing(tmp_path):
