@@ -286,6 +286,8 @@ SearchHook = Callable[[np.ndarray, np.ndarray], np.ndarray]
 #: ahead is the floor plus the table integrated from ``x`` to the finish. For a terrain check:
 #: the largest (terrain + clearance - pure requirement) over the path ahead, or 0. That
 #: never grows along the path, so using its value at a segment's start is conservative.
+#: The core asks only for positions whose pure requirement is defined (a flight still too
+#: far out for a final-glide table is not asked).
 RequirementHook = Callable[[np.ndarray, np.ndarray, np.ndarray], np.ndarray]
 
 
