@@ -110,39 +110,13 @@ def planned_route(scenario: Scenario, path=None, requirement=TASK_TERRAIN):
 
     if path is None:
         planned = planner.plan(scenario)
-        return planned.path, only_where_defined(planned.requirement)
+        return planned.path, planned.requirement
     if isinstance(requirement, str):
         if requirement != TASK_TERRAIN:
             raise ValueError(f"requirement must be a hook, None or {TASK_TERRAIN!r}")
         model = planner.load_terrain_for(scenario)
         requirement = None if model is None else planner.terrain_requirement(model)(scenario, path)
-    return path, only_where_defined(requirement)
-
-
-def only_where_defined(hook):
-    """The requirement hook asked only for the flights that have a final-glide table.
-
-    The flight core asks for the extra height of every flight it moves, also of those
-    still too far out to have a final-glide table (NaN heights per metre), whose
-    requirement is NaN whatever the hook adds. Over an elevation model each question
-    costs the whole path's samples, so for thousands of flights this halves the work; the
-    flights that have a table get exactly the hook's own answer.
-    """
-    if hook is None:
-        return None
-
-    def requirement(position_m, height_per_metre, floor_m):
-        per_metre = np.asarray(height_per_metre, dtype=float)
-        rows = np.all(np.isfinite(per_metre), axis=-1)
-        extra = np.zeros(np.shape(position_m))
-        if rows.any():
-            extra[rows] = hook(np.asarray(position_m)[rows], per_metre[rows], np.asarray(floor_m)[rows])
-        return extra
-
-    return requirement
-
-
-# ---------------------------------------------------------------- climb and ballast
+    return path, requirement
 
 
 def _band_polar(scenario: Scenario, ballast_kg):

@@ -226,8 +226,10 @@ def _allowance(task):
 def test_optimized_between_nominal_and_nominal_minus_allowances(task):
     nominal = nominal_distance_m(task)
     path = optimized_path(task)
-    assert path.total_m <= nominal + 1e-6  # the centres are a path through every zone
-    assert path.total_m >= nominal - _allowance(task) - 1e-6
+    # Tolerance 1 mm: rounding in the geodesic sums (pyproj's inverse is good to ~15 nm per
+    # leg, Karney 2013) and in the optimiser's refinement, far inside the 5 m it must keep.
+    assert path.total_m <= nominal + 1e-3  # the centres are a path through every zone
+    assert path.total_m >= nominal - _allowance(task) - 1e-3
     _assert_on_zones(task, path.lats, path.lons)
 
 
