@@ -1,13 +1,18 @@
 """The Task and Day views against the planner: change the day or the glider, read the legs.
 
-Expected figures come from the engine itself (``engine.planner.plan`` on the same edited
-scenario, put in contract form by ``formats.plan_json``) and are formatted through
-``glidetask.units``: the UI must show exactly what the plan says.
+Expected figures come from ``glidetask plan``'s own text (the command run as a process for
+the demo task, its text renderer for an edited scenario): the UI must show exactly the
+figures the command line prints for the same task.
 """
 
 from __future__ import annotations
 
 from dataclasses import replace
+
+import os
+import subprocess
+import sys
+from pathlib import Path
 
 import pytest
 from conftest import settle, text_of
@@ -15,16 +20,9 @@ from conftest import settle, text_of
 from glidetask import paths
 from glidetask.engine.scenario import Wind
 from glidetask.tui.app import make_app
-from glidetask.units import AVIATION, KMH, METRIC
+from glidetask.units import KMH
 
 pytest.importorskip("glidetask.engine.planner")
-
-
-def expected_summary(scenario):
-    from glidetask.engine.planner import plan
-    from glidetask.formats.plan_json import plan_to_dict
-
-    return plan_to_dict(plan(scenario))
 
 
 async def type_into(pilot, field_id: str, text: str) -> None:
@@ -33,16 +31,49 @@ async def type_into(pilot, field_id: str, text: str) -> None:
     await settle(pilot)
 
 
-def assert_legs_match(table, summary, units) -> None:
-    assert table.row_count == len(summary["legs"])
-    for row, leg in enumerate(summary["legs"]):
-        assert table.cell(row, "distance_km") == units.fmt_distance(leg["distance_km"] * 1000.0).split()[0]
-        assert table.cell(row, "cruise_speed_kmh") == units.fmt_speed(leg["cruise_speed_kmh"] * KMH).split()[0]
-        assert table.cell(row, "airspeed_kmh") == units.fmt_speed(leg["airspeed_kmh"] * KMH).split()[0]
-        assert table.cell(row, "required_height_m") == units.fmt_height(leg["required_height_m"]).split()[0]
-        assert table.cell(row, "arrival_height_m") == units.fmt_height(leg["arrival_height_m"]).split()[0]
-        assert table.cell(row, "climb_ms") == units.fmt_vertical(leg["climb_ms"]).split()[0]
-        assert table.cell(row, "time_s") == f"{int(round(leg['time_s'] / 60)) // 60}:{int(round(leg['time_s'] / 60)) % 60:02d}"
+# the columns of ``glidetask plan``'s legs table, right to left of the leg's name
+CLI_COLUMNS = ("distance_km", "course_deg", "climb_ms", "mc_ms", "airspeed_kmh", "heading_deg",
+               "glide_ground_speed_kmh", "cruise_speed_kmh", "time_s", "required_height_m", "arrival_height_m")
+
+
+def legs_of_plan_text(text: str) -> list[dict[str, str]]:
+    """The legs table of ``glidetask plan``'s text output, cell by cell."""
+    lines = text.splitlines()
+    start = next(i for i, line in enumerate(lines) if line.split()[:2] == ["Leg", "Dist"]) + 2
+    legs = []
+    for line in lines[start:]:
+        words = line.split()
+        if not words or not words[0].isdigit():
+            break
+        if words[-1] == "FG":
+            words.pop()
+        cells = ["–" if w == "-" else "000" if w == "360" else w for w in words[-len(CLI_COLUMNS):]]
+        legs.append(dict(zip(CLI_COLUMNS, cells)))
+    return legs
+
+
+def cli_legs(task: Path, units: str = "metric", *options: str) -> list[dict[str, str]]:
+    """``glidetask plan TASK --units UNITS OPTIONS`` run as a process: its legs."""
+    root = Path(__file__).resolve().parents[2]
+    result = subprocess.run([sys.executable, "-m", "glidetask", "plan", str(task), "--units", units, *options],
+                            capture_output=True, text=True, check=True, cwd=root,
+                            env={**os.environ, "PYTHONPATH": str(root)})
+    return legs_of_plan_text(result.stdout)
+
+
+def text_legs(scenario, units: str = "metric") -> list[dict[str, str]]:
+    """The legs ``glidetask plan``'s text renderer prints for an edited scenario."""
+    from glidetask.commands.plan import plan_text
+    from glidetask.engine.planner import plan
+
+    return legs_of_plan_text(plan_text(plan(scenario), units))
+
+
+def assert_legs_match(table, legs: list[dict[str, str]]) -> None:
+    assert legs and table.row_count == len(legs)
+    for row, leg in enumerate(legs):
+        for key, expected in leg.items():
+            assert table.cell(row, key) == expected, (row, key)
 
 
 async def test_demo_legs_are_the_plans_legs(acknowledged):
@@ -50,7 +81,7 @@ async def test_demo_legs_are_the_plans_legs(acknowledged):
     async with app.run_test(size=(120, 40)) as pilot:
         await settle(pilot)
         assert app.plan is not None
-        assert_legs_match(app.screen.query_one("#legs-table"), expected_summary(app.scenario), METRIC)
+        assert_legs_match(app.screen.query_one("#legs-table"), cli_legs(paths.demo_task()))
 
 
 async def test_wind_change_in_the_day_view_replans_the_legs(acknowledged):
@@ -65,7 +96,7 @@ async def test_wind_change_in_the_day_view_replans_the_legs(acknowledged):
         assert app.scenario.day.wind == Wind(300.0, 30.0 * KMH)
         await pilot.press("1")
         await settle(pilot)
-        assert_legs_match(app.screen.query_one("#legs-table"), expected_summary(app.scenario), METRIC)
+        assert_legs_match(app.screen.query_one("#legs-table"), cli_legs(paths.demo_task(), "metric", "--wind", "300/30"))
 
 
 async def test_ballast_change_replans_in_aviation_units(acknowledged):
@@ -79,7 +110,8 @@ async def test_ballast_change_replans_in_aviation_units(acknowledged):
         await settle(pilot)
         edited = app.scenario
         assert edited.glider.ballast_kg == 0.0
-        assert_legs_match(app.screen.query_one("#legs-table"), expected_summary(edited), AVIATION)
+        assert_legs_match(app.screen.query_one("#legs-table"),
+                          cli_legs(paths.demo_task(), "aviation", "--ballast-kg", "0"))
 
 
 async def test_invalid_band_is_refused_and_the_last_good_plan_kept(acknowledged):
@@ -99,7 +131,7 @@ async def test_invalid_band_is_refused_and_the_last_good_plan_kept(acknowledged)
         await pilot.press("1")
         await settle(pilot)
         assert "last good plan" in text_of(app.screen.query_one("#plan-totals"))
-        assert_legs_match(app.screen.query_one("#legs-table"), good_plan.summary, METRIC)
+        assert_legs_match(app.screen.query_one("#legs-table"), text_legs(good_plan.scenario))
         await pilot.press("3")
         await settle(pilot)
         app.screen.query_one("#day-band_top_m").value = "2800"  # now the refused bottom fits
@@ -127,18 +159,28 @@ async def test_lift_profile_edit_replans(acknowledged):
         assert climb.values[1] == 3.0 and climb.values[0] == before.values[0]
         await pilot.press("1")
         await settle(pilot)
-        assert_legs_match(app.screen.query_one("#legs-table"), expected_summary(app.scenario), METRIC)
+        assert_legs_match(app.screen.query_one("#legs-table"), text_legs(app.scenario))
 
 
-async def test_totals_show_the_finish_and_the_final_glide(acknowledged):
-    app = make_app(paths.demo_task())
-    async with app.run_test(size=(120, 40)) as pilot:
-        await settle(pilot)
-        summary = expected_summary(app.scenario)
-        text = text_of(app.screen.query_one("#plan-totals"))
-        assert summary["finish_time"] in text
-        assert METRIC.fmt_distance(summary["final_glide"]["from_km"] * 1000.0) in text
-        assert METRIC.fmt_height(summary["final_glide"]["start_height_m"]) in text
+async def test_totals_show_what_glidetask_plan_prints(acknowledged):
+    root = Path(__file__).resolve().parents[2]
+    for units in ("metric", "aviation"):
+        printed = subprocess.run([sys.executable, "-m", "glidetask", "plan", str(paths.demo_task()), "--units", units],
+                                 capture_output=True, text=True, check=True, cwd=root,
+                                 env={**os.environ, "PYTHONPATH": str(root)}).stdout
+        total = next(line for line in printed.splitlines() if line.startswith("Total "))
+        final = next(line for line in printed.splitlines() if line.startswith("Final "))
+        # "Total     2:57 for 313.9 km at 106 km/h task speed; finish 15:12"
+        words = total.split()
+        duration, distance, speed, finish = words[1], " ".join(words[3:5]), " ".join(words[6:8]), words[-1]
+        app = make_app(paths.demo_task(), units)
+        async with app.run_test(size=(120, 40)) as pilot:
+            await settle(pilot)
+            text = " ".join(text_of(app.screen.query_one("#plan-totals")).split())
+        for figure in (duration, distance, speed, finish):
+            assert figure in text, (figure, text)
+        # "Final     glide from 287.5 km (26.4 km out) at 1279 m, MacCready 2.0 m/s"
+        assert " ".join(final.split()[1:]) in text, (final, text)
 
 
 def test_demo_task_is_the_default(acknowledged):

@@ -1,28 +1,35 @@
-"""The legs of the plan, one row per leg, in the units on screen (contract 5.3 fields)."""
+"""The legs of the plan, one row per leg, in the units on screen (contract 5.3 fields).
+
+The cells are made from the plan's own SI figures (``engine.planner.LegPlan``), rounded
+once by :mod:`glidetask.units` as ``glidetask plan`` rounds them, never from the rounded
+JSON form (rounding twice can move a figure by one).
+"""
 
 from __future__ import annotations
+
+import math
 
 from rich.text import Text
 from textual.widgets import DataTable
 
 from glidetask.tui import display
-from glidetask.tui.contract import si
 from glidetask.units import UnitSystem
 
-COLUMNS = (  # key, header (unit appended from the unit system), kind
-    ("leg", "Leg", None),
-    ("distance_km", "Dist", "distance"),
-    ("course_deg", "Crs°", "degrees"),
-    ("climb_ms", "Climb", "vertical"),
-    ("mc_ms", "MC", "vertical"),
-    ("airspeed_kmh", "Fly", "speed"),
-    ("heading_deg", "Hdg°", "degrees"),
-    ("glide_ground_speed_kmh", "GS", "speed"),
-    ("cruise_speed_kmh", "Cruise", "speed"),
-    ("time_s", "Time", "duration"),
-    ("required_height_m", "Need", "height"),
-    ("arrival_height_m", "Arrive", "height"),
+COLUMNS = (  # key (the contract's name), LegPlan attribute, header, kind
+    ("leg", None, "Leg", None),
+    ("distance_km", "distance_m", "Dist", "distance"),
+    ("course_deg", "course_deg", "Crs", "degrees"),
+    ("climb_ms", "climb_ms", "Climb", "vertical"),
+    ("mc_ms", "mc_ms", "MC", "vertical"),
+    ("airspeed_kmh", "airspeed_ms", "Fly", "speed"),
+    ("heading_deg", "heading_deg", "Hdg", "degrees"),
+    ("glide_ground_speed_kmh", "glide_ground_speed_ms", "GS", "speed"),
+    ("cruise_speed_kmh", "cruise_speed_ms", "Avg", "speed"),
+    ("time_s", "time_s", "Time", "duration"),
+    ("required_height_m", "required_height_m", "Need", "height"),
+    ("arrival_height_m", "arrival_height_m", "Arrive", "height"),
 )
+LEGEND = "◆ final glide starts · Fly, Hdg, GS: in the glides · Avg: with climbs · Need: to glide home from the leg's start"
 
 
 def cell_text(kind: str | None, value, units: UnitSystem) -> str:
@@ -41,37 +48,51 @@ def cell_text(kind: str | None, value, units: UnitSystem) -> str:
     return str(value)
 
 
-def header(label: str, kind: str | None, units: UnitSystem) -> str:
-    unit = {"distance": units.distance_label, "speed": units.speed_label, "vertical": units.vertical_label,
-            "height": units.height_label}.get(kind)
-    return f"{label} {unit}" if unit else label
+def unit_of(kind: str | None, units: UnitSystem) -> str:
+    return {"distance": units.distance_label, "speed": units.speed_label, "vertical": units.vertical_label,
+            "height": units.height_label, "degrees": "°", "duration": "h:mm"}.get(kind, "")
+
+
+def header(label: str, kind: str | None, units: UnitSystem) -> Text:
+    """Two lines, the name over its unit, as in ``glidetask plan``'s table."""
+    return Text(f"{label}\n{unit_of(kind, units)}", justify="left" if kind is None else "right")
+
+
+def final_glide_leg(legs, final_from_m: float | None) -> int | None:
+    """The index of the leg on which the final glide starts (None without one)."""
+    if final_from_m is None or not math.isfinite(final_from_m):
+        return None
+    start = 0.0
+    for index, leg in enumerate(legs):
+        if start <= final_from_m < start + leg.distance_m:
+            return index
+        start += leg.distance_m
+    return len(legs) - 1 if legs and final_from_m >= start - 1e-6 else None
 
 
 class LegsTable(DataTable):
     """Legs of the plan; the leg where the final glide starts is marked ◆."""
 
     def __init__(self, **kwargs):
-        super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
+        super().__init__(cursor_type="row", zebra_stripes=True, header_height=2, **kwargs)
 
-    def show(self, summary: dict | None, units: UnitSystem, codes: dict[str, str] | None = None) -> None:
-        """Fill the table; ``codes`` maps turnpoint names to short codes for the Leg column."""
+    def show(self, plan, units: UnitSystem, codes: dict[str, str] | None = None) -> None:
+        """Fill the table from an ``engine.planner.Plan`` (None: headers only); ``codes``
+        maps turnpoint names to short codes for the Leg column."""
         codes = codes or {}
         self.clear(columns=True)
-        for key, label, kind in COLUMNS:
+        for key, _, label, kind in COLUMNS:
             self.add_column(header(label, kind, units), key=key)
-        if summary is None:
+        if plan is None:
             return
-        final_from_m = si(summary.get("final_glide") or {}, "from_km")
-        start_m = 0.0
-        for index, leg in enumerate(summary["legs"], start=1):
-            length = si(leg, "distance_km") or 0.0
-            mark = "◆" if final_from_m is not None and start_m <= final_from_m < start_m + length else " "
-            start, end = (codes.get(leg[k]) or leg[k][:8] for k in ("from", "to"))
-            cells = [Text(f"{mark}{index} {start}→{end}", no_wrap=True)]
-            for key, _, kind in COLUMNS[1:]:
-                cells.append(Text(cell_text(kind, si(leg, key), units), justify="right"))
-            self.add_row(*cells, key=f"leg-{index}")
-            start_m += length
+        marked = final_glide_leg(plan.legs, plan.final_glide_from_m)
+        for index, leg in enumerate(plan.legs):
+            mark = "◆" if index == marked else " "
+            start, end = (codes.get(name) or name[:8] for name in (leg.from_name, leg.to_name))
+            cells = [Text(f"{mark}{index + 1} {start}→{end}", no_wrap=True)]
+            for _, attribute, _, kind in COLUMNS[1:]:
+                cells.append(Text(cell_text(kind, getattr(leg, attribute), units), justify="right"))
+            self.add_row(*cells, key=f"leg-{index + 1}")
 
     def cell(self, row: int, key: str) -> str:
         """The text in leg ``row`` (0-based), column ``key`` (for tests and screen readers)."""

@@ -1,71 +1,79 @@
-"""Totals of the plan: distance, time, speed, finish, where the final glide starts."""
+"""Totals of the plan: distance, time, speed, finish, where the final glide starts.
+
+Figures come from the plan's SI values (``engine.planner.Plan``), rounded once through
+:mod:`glidetask.units` as ``glidetask plan`` rounds them.
+"""
 
 from __future__ import annotations
 
+import math
+
+from rich.console import Group
 from rich.table import Table
 from rich.text import Text
 from textual.widgets import Static
 
 from glidetask import cautions
 from glidetask.tui import display
-from glidetask.tui.contract import si
 from glidetask.units import UnitSystem
 
+LABEL = "dim"
+WARNING = "bold #e0b15a"
+ALARM = "bold #e06c5a"
 
-def final_glide_text(summary: dict, units: UnitSystem) -> str:
-    """Where the final glide starts: along the task, and how far out from the finish."""
-    start = si(summary.get("final_glide") or {}, "from_km")
-    if start is None:
-        return display.DASH
-    total = sum(si(leg, "distance_km") or 0.0 for leg in summary["legs"])
-    return (f"{display.with_unit(display.distance(units, start), units.distance_label)} "
-            f"({display.distance(units, max(total - start, 0.0))} out)")
+
+def _distance(units: UnitSystem, metres) -> str:
+    return display.with_unit(display.distance(units, metres), units.distance_label)
+
+
+def final_glide_text(plan, units: UnitSystem) -> str:
+    """Where the final glide starts, how far out, how high and at which setting."""
+    start = plan.final_glide_from_m
+    if start is None or not math.isfinite(start):
+        return "none: the plan does not reach a final glide"
+    out = max(plan.planned_distance_m - start, 0.0)
+    return (f"from {_distance(units, start)} ({_distance(units, out)} out) at "
+            f"{display.with_unit(display.height(units, plan.final_glide_height_m), units.height_label)}, "
+            f"MacCready {display.with_unit(display.vertical(units, plan.final_glide_mc_ms), units.vertical_label)}")
+
+
+def particular_cautions(plan) -> list[str]:
+    """The plan's own cautions (the general, terrain and landable wording is always on screen)."""
+    known = set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES)
+    return [c for c in plan.cautions if c not in known]
 
 
 class PlanTotals(Static):
     """A compact block of the plan's totals and any caution particular to this plan."""
 
-    def show(self, summary: dict | None, units: UnitSystem, *, stale: bool = False) -> None:
-        if summary is None:
+    def show(self, plan, units: UnitSystem, *, stale: bool = False) -> None:
+        if plan is None:
             self.update(Text("planning …", style="dim"))
             return
-        task = summary["task"]
-        grid = Table.grid(padding=(0, 1), expand=True)
-        for _ in range(4):
-            grid.add_column(style="dim", no_wrap=True)
-            grid.add_column(no_wrap=True)
-        fg = summary.get("final_glide") or {}
-        finished = summary.get("finished", False)
-        finish = summary.get("finish_time") or "–"
-        grid.add_row(
-            "Task", display.with_unit(display.distance(units, si(task, "optimized_distance_km")), units.distance_label),
-            "Time", display.duration(summary.get("total_time_s")),
-            "Speed", display.with_unit(display.speed(units, si(summary, "task_speed_kmh")), units.speed_label),
-            "Finish", Text(finish if finished else "not home", style="" if finished else "bold red"),
-        )
-        grid.add_row(
-            "Nominal", display.with_unit(display.distance(units, si(task, "nominal_distance_km")), units.distance_label),
-            "Final glide at", final_glide_text(summary, units),
-            "at", display.with_unit(display.height(units, fg.get("start_height_m")), units.height_label),
-            "MC", display.with_unit(display.vertical(units, fg.get("mc_ms")), units.vertical_label),
-        )
-        if task.get("kind") == "area":
-            grid.add_row(
-                "Area min", display.with_unit(display.distance(units, si(task, "min_distance_km")), units.distance_label),
-                "max", display.with_unit(display.distance(units, si(task, "max_distance_km")), units.distance_label),
-                "target", display.with_unit(display.distance(units, si(task, "target_distance_km")), units.distance_label),
-                "min time", display.duration(task.get("min_time_s")),
-            )
-        if not finished and summary.get("landout_km") is not None:
-            grid.add_row("Lands out", Text(display.with_unit(display.distance(units, si(summary, "landout_km")),
-                                                             units.distance_label), style="bold red"), "", "", "", "", "", "")
-        known = set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES)
-        particular = [c for c in summary.get("cautions", []) if c not in known]
+        grid = Table.grid(padding=(0, 1))
+        for _ in range(3):
+            grid.add_column(style=LABEL, no_wrap=True)
+            grid.add_column(no_wrap=True, min_width=10)
+        finish = (Text(display.clock(plan.finish_time_s)) if plan.finished
+                  else Text("not home", style=ALARM))
+        grid.add_row("Task", _distance(units, plan.optimized_distance_m),
+                     "Time", display.duration(plan.total_time_s), "Finish", finish)
+        grid.add_row("Nominal", _distance(units, plan.nominal_distance_m),
+                     "Speed", display.with_unit(display.speed(units, plan.task_speed_ms), units.speed_label), "", "")
+        area = plan.area
+        if area is not None:
+            grid.add_row("Planned", _distance(units, area.target_distance_m),
+                         "Min time", display.duration(area.min_time_s), "", "")
         parts: list = [grid]
-        for text in particular:
-            parts.append(Text(f"⚠ {text}", style="bold #e0b15a"))
+        if area is not None:
+            parts.append(Text.assemble(("Areas allow ", LABEL), _distance(units, area.min_distance_m),
+                                       (" to ", LABEL), _distance(units, area.max_distance_m)))
+        parts.append(Text.assemble(("Final glide ", LABEL), final_glide_text(plan, units)))
+        if not plan.finished and plan.landout_m is not None and math.isfinite(plan.landout_m):
+            parts.append(Text(f"Ends short {_distance(units, plan.landout_m)} along the task: {plan.reason}",
+                              style=ALARM))
+        for text in particular_cautions(plan):
+            parts.append(Text(f"⚠ {text}", style=WARNING))
         if stale:
-            parts.append(Text("showing the last good plan: the inputs above are not yet valid", style="bold red"))
-        from rich.console import Group
-
+            parts.append(Text("showing the last good plan: the inputs above are not yet valid", style=ALARM))
         self.update(Group(*parts))
