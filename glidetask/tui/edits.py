@@ -31,6 +31,7 @@ class FieldSpec:
     minimum: float | None = None  # SI
     maximum: float | None = None  # SI
     optional: bool = False  # empty text means "not set" (None)
+    label: str = ""  # the field's name on screen
 
     @property
     def id(self) -> str:
@@ -44,23 +45,26 @@ class FieldSpec:
 FIELDS: dict[str, FieldSpec] = {
     spec.id: spec
     for spec in (
-        FieldSpec("glider", "pilot_kg", "mass", 40.0, 250.0),
-        FieldSpec("glider", "ballast_kg", "mass", 0.0, None),
-        FieldSpec("glider", "bugs_percent", "percent", 0.0, 100.0),
-        FieldSpec("day", "wind", "wind"),
-        FieldSpec("day", "start_time", "clock"),
-        FieldSpec("day", "start_height_m", "height", 0.0, 9000.0, optional=True),
-        FieldSpec("day", "band_top_m", "height", 0.0, 9000.0),
-        FieldSpec("day", "band_bottom_m", "height", 0.0, 9000.0),
-        FieldSpec("day", "lift_ends", "clock"),
-        FieldSpec("day", "glide_airmass_ms", "vertical", -5.0, 5.0),
-        FieldSpec("day", "isa_deviation_c", "celsius", -40.0, 40.0),
-        FieldSpec("day", "mc_ms", "vertical", 0.0, 10.0, optional=True),
-        FieldSpec("safety", "arrival_margin_m", "height", 0.0, 2000.0),
-        FieldSpec("safety", "terrain_clearance_m", "height", 0.0, 2000.0),
-        FieldSpec("safety", "final_glide_mc_ms", "vertical", 0.0, 10.0, optional=True),
+        FieldSpec("glider", "pilot_kg", "mass", 40.0, 250.0, label="Pilot + parachute"),
+        FieldSpec("glider", "ballast_kg", "mass", 0.0, None, label="Water ballast"),
+        FieldSpec("glider", "bugs_percent", "percent", 0.0, 100.0, label="Bugs (sink +)"),
+        FieldSpec("day", "wind", "wind", label="Wind from/speed"),
+        FieldSpec("day", "start_time", "clock", label="Start"),
+        FieldSpec("day", "start_height_m", "height", 0.0, 9000.0, optional=True, label="Start height"),
+        FieldSpec("day", "band_top_m", "height", 0.0, 9000.0, label="Band top"),
+        FieldSpec("day", "band_bottom_m", "height", 0.0, 9000.0, label="Band bottom"),
+        FieldSpec("day", "lift_ends", "clock", label="Lift ends"),
+        FieldSpec("day", "glide_airmass_ms", "vertical", -5.0, 5.0, label="Air in glides (+up)"),
+        FieldSpec("day", "isa_deviation_c", "celsius", -40.0, 40.0, label="ISA deviation"),
+        FieldSpec("day", "mc_ms", "vertical", 0.0, 10.0, optional=True, label="MacCready (fixed)"),
+        FieldSpec("safety", "arrival_margin_m", "height", 0.0, 2000.0, label="Arrival margin"),
+        FieldSpec("safety", "terrain_clearance_m", "height", 0.0, 2000.0, label="Terrain clearance"),
+        FieldSpec("safety", "final_glide_mc_ms", "vertical", 0.0, 10.0, optional=True, label="Final-glide MC"),
     )
 }
+# what the pilot sees for a part of the scenario that is not a single field
+PLACES = {"[day] climb_ms": "Lift through the day", "[day] thermal_strength_ms": "Lift through the day",
+          "[task]": "Task points"}
 
 _WHERE = re.compile(r"\[(\w+)\]\s*([\w.]+)")
 
@@ -74,6 +78,18 @@ def field_for_where(where: str) -> str | None:
     aliases = {"start_time": "start_time", "lift_ends": "lift_ends", "wind": "wind"}
     candidate = f"{section}-{aliases.get(key, key)}"
     return candidate if candidate in FIELDS else None
+
+
+def where_on_screen(where: str) -> str:
+    """A problem's ``where`` in the words on screen: ``"[glider] ballast_kg"`` -> ``"Water
+    ballast"``, ``"[day] climb_ms row 2"`` -> ``"Lift through the day row 2"``."""
+    field = field_for_where(where)
+    if field is not None:
+        return FIELDS[field].label or where
+    for prefix, label in PLACES.items():
+        if (where or "").startswith(prefix):
+            return label + where[len(prefix):]
+    return where
 
 
 def _fail(spec: FieldSpec, what: str) -> InputError:

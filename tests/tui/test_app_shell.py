@@ -147,3 +147,37 @@ async def test_views_are_in_the_command_palette(synthetic, acknowledged):
         await pilot.press("enter")
         await settle(pilot)
         assert app.current_mode == "safety"
+
+
+async def test_a_refused_field_is_named_as_on_screen(synthetic, acknowledged):
+    app = make_app(scenario=synthetic, compute_on_start=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.press("2")
+        await settle(pilot)
+        await pilot.click("#glider-ballast_kg")
+        await pilot.press("home", "ctrl+k")
+        await settle(pilot)
+        status = str(app.screen.query_one("#status-line").render())
+        assert "Water ballast: a value is needed" in status
+        assert "ballast_kg" not in status  # the task file's key is not the pilot's word
+
+
+async def test_escape_hint_shows_only_while_a_field_has_the_keys(synthetic, acknowledged):
+    def footer_keys(app) -> set[str]:
+        return {binding.action for (_, binding, enabled, _) in app.screen.active_bindings.values() if enabled}
+
+    app = make_app(scenario=synthetic, compute_on_start=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await pilot.press("2")
+        await settle(pilot)
+        assert "leave_field" not in footer_keys(app)
+        await pilot.click("#glider-pilot_kg")
+        await pilot.pause()
+        assert "leave_field" in footer_keys(app)
+        await pilot.press("escape")
+        await pilot.pause()
+        assert app.focused is None or app.focused.id != "glider-pilot_kg"
+        assert "leave_field" not in footer_keys(app)
+        await pilot.press("3")  # the view keys work again
+        await pilot.pause()
+        assert app.current_mode == "day"

@@ -48,7 +48,7 @@ async def test_compare_table_is_the_engines_sweep(synthetic, acknowledged):
         sweep = ballast_sweep(synthetic)
         table = app.screen.query_one("#sweep-table")
         assert table.row_count == 10 and table.ordered_columns[1].label.plain.strip() == "0"
-        assert len(table.columns) == 1 + len(sweep.ballast_kg) >= 20
+        assert len(table.columns) == 2 + len(sweep.ballast_kg)  # strength, every ballast, the best
         for i, strength in enumerate(sweep.thermal_strength_ms):
             assert cell(table, i, 0) == f"{strength:.1f} m/s"
             for j, ballast in enumerate(sweep.ballast_kg):
@@ -57,8 +57,24 @@ async def test_compare_table_is_the_engines_sweep(synthetic, acknowledged):
                 if ballast == sweep.best_ballast_kg[i]:
                     expected = "*" + expected  # the best ballast per strength is marked
                 assert cell(table, i, j + 1) == expected
+            best = sweep.best_ballast_kg[i]
+            assert cell(table, i, len(sweep.ballast_kg) + 1) == (f"{best:.0f}" if np.isfinite(best) else display.DASH)
         assert sweep_verdict(sweep, METRIC) in summary_text(app)
         assert cautions.COMPACT in str(app.screen.query_one("#caution-bar").render())
+
+
+async def test_compare_table_fits_80_columns_and_keeps_full_tanks_and_the_best(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await open_view(pilot, "6")
+        sweep = ballast_sweep(synthetic)
+        table = app.screen.query_one("#sweep-table")
+        assert table.virtual_size.width <= table.size.width  # no sideways scrolling
+        shown = [float(c.label.plain) for c in table.ordered_columns[1:-1]]
+        assert 2 < len(shown) < len(sweep.ballast_kg)
+        assert shown[0] == 0.0 and shown[-1] == round(float(sweep.ballast_kg[-1]))  # empty and full tanks
+        for i, best in enumerate(sweep.best_ballast_kg):
+            assert cell(table, i, len(shown) + 1) == (f"{best:.0f}" if np.isfinite(best) else display.DASH)
 
 
 async def test_compare_follows_the_units_switch(synthetic, acknowledged):

@@ -5,6 +5,9 @@ widgets from :meth:`compose_body`. It reacts to the app's state through
 :meth:`show_scenario`, :meth:`show_plan` and :meth:`show_units` (called once at mount
 and whenever the app's reactives change) and highlights the fields the app reports as
 invalid.
+
+Textual calls the ``on_mount`` and ``on_resize`` of every class along the MRO, the base's
+after the subclass's: a view's own handlers do not call ``super()``.
 """
 
 from __future__ import annotations
@@ -77,6 +80,17 @@ class ViewScreen(Screen):
         if self.app.scenario is not None:
             self.show_scenario(self.app.scenario)
         self.show_plan(self.app.plan)
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        if action == "leave_field":  # the key hint only while a field has the keys
+            return isinstance(self.focused, Input)
+        return True
+
+    def on_descendant_focus(self, _event) -> None:
+        self.refresh_bindings()
+
+    def on_descendant_blur(self, _event) -> None:
+        self.refresh_bindings()
 
     def action_leave_field(self) -> None:
         if isinstance(self.focused, Input):

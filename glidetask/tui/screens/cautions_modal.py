@@ -27,9 +27,23 @@ class CautionsModal(ModalScreen[bool]):
             with VerticalScroll(id="cautions-text"):
                 yield Static("\n\n".join(lines), markup=False)
             yield Button("I have read this", id="cautions-ok", variant="warning")
+            yield Static("enter: I have read this · ↑↓: scroll", id="cautions-hint", markup=False)
+
+    # rows the panel needs besides the text: border 2, padding 2, heading 2, button 4, hint 1
+    FRAME_ROWS = 11
 
     def on_mount(self) -> None:
         self.query_one("#cautions-ok", Button).focus()
+
+    def on_resize(self, event) -> None:
+        # the button and its hint stay on screen however short the terminal: the text scrolls
+        self.query_one("#cautions-text").styles.max_height = max(3, min(24, int(event.size.height * 0.9) - self.FRAME_ROWS))
+
+    def key_up(self) -> None:
+        self.query_one("#cautions-text").scroll_up()
+
+    def key_down(self) -> None:
+        self.query_one("#cautions-text").scroll_down()
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         event.stop()

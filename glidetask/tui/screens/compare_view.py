@@ -49,11 +49,10 @@ class CompareView(ViewScreen):
             yield Static(id="sweep-summary", classes="panel")
 
     def on_mount(self) -> None:
-        self.query_one("#sweep-panel").border_title = "Task time (h:mm) by thermal strength and water ballast (kg)"
+        self.query_one("#sweep-panel").border_title = "Task time (h:mm) by thermal strength and water ballast (kg), best ballast"
         self.query_one("#sweep-plot").border_title = "Task time against ballast"
         self.query_one("#sweep-summary").border_title = "Should I fill the tanks?"
         self._show_parts(False)
-        super().on_mount()
 
     def _show_parts(self, ready: bool) -> None:
         self.query_one("#compare-waiting").display = not ready
@@ -100,6 +99,9 @@ class CompareView(ViewScreen):
     def show_units(self) -> None:
         self._draw()
 
+    def on_resize(self, event) -> None:
+        self._draw()  # the table shows as many ballast columns as fit
+
     def _draw(self) -> None:
         if self.sweep is None:
             return
@@ -107,7 +109,7 @@ class CompareView(ViewScreen):
 
         units, sweep = self.app.units, self.sweep
         self._show_parts(True)
-        self.query_one(SweepTable).show(sweep, units)
+        self.query_one(SweepTable).show(sweep, units, width=self.size.width - 4)
         self.query_one(SweepPlot).show(sweep, units)
         lines = [Text(sweep_verdict(sweep, units), style="bold #8cc66d"), Text(""),
                  Text(forecast_line(sweep, units)), Text(""),

@@ -11,25 +11,25 @@ from glidetask.tui.widgets.day_plot import DayPlot
 from glidetask.tui.widgets.form_field import FormField
 from glidetask.tui.widgets.profile_editor import ProfileEditor
 
-# (panel id, title, ((field id, label, unit kind, placeholder), ...))
+# (panel id, title, ((field id, unit kind, placeholder), ...)); labels from edits.FIELDS
 PANELS = (
     ("day-air", "Air", (
-        ("day-wind", "Wind from/speed", "speed", "270/20"),
-        ("day-band_top_m", "Band top", "height", ""),
-        ("day-band_bottom_m", "Band bottom", "height", ""),
-        ("day-start_height_m", "Start height", "height", "band top"),
-        ("day-glide_airmass_ms", "Air in glides (+up)", "vertical", "0"),
-        ("day-isa_deviation_c", "ISA deviation", "celsius", "0"),
+        ("day-wind", "speed", "270/20"),
+        ("day-band_top_m", "height", ""),
+        ("day-band_bottom_m", "height", ""),
+        ("day-start_height_m", "height", "band top"),
+        ("day-glide_airmass_ms", "vertical", "0"),
+        ("day-isa_deviation_c", "celsius", "0"),
     )),
     ("day-times", "Times", (
-        ("day-start_time", "Start", "clock", "HH:MM"),
-        ("day-lift_ends", "Lift ends", "clock", "HH:MM"),
+        ("day-start_time", "clock", "HH:MM"),
+        ("day-lift_ends", "clock", "HH:MM"),
     )),
     ("day-margins", "MacCready and margins", (
-        ("day-mc_ms", "MacCready (fixed)", "vertical", "= climb"),
-        ("safety-arrival_margin_m", "Arrival margin", "height", ""),
-        ("safety-terrain_clearance_m", "Terrain clearance", "height", ""),
-        ("safety-final_glide_mc_ms", "Final-glide MC", "vertical", "= cruise"),
+        ("day-mc_ms", "vertical", "= climb"),
+        ("safety-arrival_margin_m", "height", ""),
+        ("safety-terrain_clearance_m", "height", ""),
+        ("safety-final_glide_mc_ms", "vertical", "= cruise"),
     )),
 )
 
@@ -48,8 +48,9 @@ class DayView(ViewScreen):
         with VerticalScroll(id="day-left"):
             for panel_id, _, fields in PANELS:
                 with Vertical(id=panel_id, classes="panel day-panel"):
-                    for field_id, label, kind, placeholder in fields:
-                        yield FormField(field_id, label, unit_label(kind, self.app.units), placeholder=placeholder)
+                    for field_id, kind, placeholder in fields:
+                        yield FormField(field_id, edits.FIELDS[field_id].label, unit_label(kind, self.app.units),
+                                        placeholder=placeholder)
         with Vertical(id="day-right"):
             yield ProfileEditor(id="profile-editor", classes="panel")
             yield DayPlot(id="day-plot", classes="panel")
@@ -59,12 +60,11 @@ class DayView(ViewScreen):
             self.query_one(f"#{panel_id}").border_title = title
         self.query_one("#profile-editor").border_title = "Lift through the day"
         self.query_one("#day-plot").border_title = "The day"
-        super().on_mount()
 
     def show_scenario(self, scenario, *, force: bool = False) -> None:
         units = self.app.units
         for _, _, fields in PANELS:
-            for field_id, _, kind, _ in fields:
+            for field_id, kind, _ in fields:
                 self.query_one(f"#{field_id}").parent.show(edits.field_text(scenario, field_id, units),
                                                            unit_label(kind, units), force=force)
         self.query_one(ProfileEditor).show(scenario.day, units)

@@ -58,10 +58,9 @@ class GlideView(ViewScreen):
         yield TerrainProfile(id="terrain-profile", classes="panel")
 
     def on_mount(self) -> None:
-        self.query_one("#glide-inputs").border_title = "Final glide from … to …"
+        self.query_one("#glide-inputs").border_title = "Glide from, to, how high"
         self.query_one("#glide-verdict").border_title = "Verdict"
         self.query_one("#terrain-profile").border_title = "Terrain under the glide"
-        super().on_mount()
 
     # ------------------------------------------------------------ defaults and inputs
 

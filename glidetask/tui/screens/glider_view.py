@@ -13,9 +13,8 @@ from glidetask.tui.widgets.glider_figures import GliderFigures
 from glidetask.tui.widgets.polar_plot import PolarPlot
 from glidetask.tui.widgets.stf_card import SpeedToFlyCard
 
-LOADING_FIELDS = (("glider-pilot_kg", "Pilot + parachute", "kg"),
-                  ("glider-ballast_kg", "Water ballast", "kg"),
-                  ("glider-bugs_percent", "Bugs (sink +)", "%"))
+LOADING_FIELDS = tuple((field_id, edits.FIELDS[field_id].label, unit) for field_id, unit in
+                       (("glider-pilot_kg", "kg"), ("glider-ballast_kg", "kg"), ("glider-bugs_percent", "%")))
 ALTITUDE_FIELD = "view-altitude"
 
 
@@ -45,7 +44,6 @@ class GliderView(ViewScreen):
         self.query_one("#glider-figures").border_title = "Figures"
         self.query_one("#polar-plot").border_title = "Polar: reference and this flight"
         self.query_one("#stf-card").border_title = "Speed to fly, still air"
-        super().on_mount()
 
     def show_scenario(self, scenario, *, force: bool = False) -> None:
         units = self.app.units

@@ -68,6 +68,7 @@ class OddsView(ViewScreen):
     #odds-bars { height: auto; }
     #odds-assumptions { height: auto; color: $text-muted; }
     #odds-right { width: 1fr; }
+    OddsView.-narrow #odds-left { width: 44; }
     #odds-table { height: auto; }
     #landouts-table { height: auto; max-height: 16; }
     #finish-plot { height: 1fr; min-height: 8; }
@@ -104,7 +105,6 @@ class OddsView(ViewScreen):
         self._field("odds-runs").show(str(self.runs), force=True)
         self._field("odds-seed").show(str(self.seed), force=True)
         self._show_parts(False)
-        super().on_mount()
 
     def _show_parts(self, ready: bool) -> None:
         self.query_one("#odds-waiting").display = not ready
@@ -201,7 +201,9 @@ class OddsView(ViewScreen):
         self.query_one("#odds-bars").border_subtitle = f"{odds.runs} days · seed {odds.seed}"
         self.query_one(ProbabilityBars).show(odds)
         self.query_one(OddsTable).show(odds)
-        self.query_one(LandoutsTable).show(odds)
+        scenario = self.app.scenario
+        codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
+        self.query_one(LandoutsTable).show(odds, codes)
         self.query_one(FinishPlot).show(odds)
         text = Text(assumption_text(odds, self.app.units) + ".")
         text.append("\nPlanning assumptions of glidetask, not a forecast. The same days for each ballast.",

@@ -44,7 +44,6 @@ class SafetyView(ViewScreen):
         self.query_one("#gaps-table").border_title = "Gaps (no field in reach)"
         self.query_one("#alternates-table").border_title = "Nearest reachable field per leg"
         self.query_one("#terrain-summary").border_title = "Final glide over the terrain"
-        super().on_mount()
 
     def show_plan(self, outcome) -> None:
         summary = outcome.summary if outcome is not None else None

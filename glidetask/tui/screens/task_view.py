@@ -10,10 +10,11 @@ from textual.containers import Horizontal, Vertical
 
 from glidetask.tui import messages, task_edits
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.legs_table import LegsTable
+from glidetask.tui.widgets.legs_table import LEGEND, LegsTable
 from glidetask.tui.widgets.plan_totals import PlanTotals
 from glidetask.tui.widgets.points_table import PointsTable, role
 from glidetask.tui.widgets.task_sketch import TaskSketch
+from glidetask.tui.widgets.view_bar import NARROW
 
 
 def point_along(lats, lons, distance_m: float) -> tuple[float, float] | None:
@@ -34,6 +35,7 @@ class TaskView(ViewScreen):
     """Legs, totals, points (editable) and the sketch."""
 
     VIEW = "task"
+    _compact = False  # a narrow screen: the points table leaves out codes and elevations
 
     def compose_body(self) -> ComposeResult:
         yield LegsTable(id="legs-table", classes="panel")
@@ -45,29 +47,36 @@ class TaskView(ViewScreen):
 
     def on_mount(self) -> None:
         self.query_one("#legs-table").border_title = "Legs"
+        self.query_one("#legs-table").border_subtitle = LEGEND
         self.query_one("#plan-totals").border_title = "Plan"
         self.query_one("#points-table").border_title = "Task points"
         self.query_one("#points-table").border_subtitle = "a add · r replace · x remove · ⇧↑↓ move · z zone"
         self.query_one("#sketch-panel").border_title = "Sketch"
-        super().on_mount()
         self.query_one(LegsTable).show(None, self.app.units)
         # a refused input marks the plan on screen as the last good one
         self.watch(self.app, "invalid_fields", lambda _: self.show_plan(self.app.plan), init=False)
 
     # ------------------------------------------------------------ showing
 
+    def on_resize(self, event) -> None:
+        compact = event.size.width < NARROW
+        if compact != self._compact:
+            self._compact = compact
+            if self.app.scenario is not None:
+                self.query_one(PointsTable).show(self.app.scenario.task, self.app.units, compact=compact)
+
     def show_scenario(self, scenario) -> None:
-        self.query_one(PointsTable).show(scenario.task, self.app.units)
+        self.query_one(PointsTable).show(scenario.task, self.app.units, compact=self._compact)
         self.query_one("#points-table").border_title = f"Task points · {scenario.task.name} ({scenario.task.kind})"
         self._draw_sketch()
 
     def show_plan(self, outcome) -> None:
         units = self.app.units
-        summary = outcome.summary if outcome is not None else None
+        plan = outcome.plan if outcome is not None else None
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(LegsTable).show(summary, units, codes)
-        self.query_one(PlanTotals).show(summary, units, stale=bool(self.app.invalid_fields))
+        self.query_one(LegsTable).show(plan, units, codes)
+        self.query_one(PlanTotals).show(plan, units, stale=bool(self.app.invalid_fields))
         self._draw_sketch()
 
     def _draw_sketch(self) -> None:
@@ -81,9 +90,9 @@ class TaskView(ViewScreen):
             plan_path = getattr(outcome.plan, "path", None)
             if plan_path is not None:
                 path = (plan_path.lats, plan_path.lons)
-                from_km = (outcome.summary.get("final_glide") or {}).get("from_km")
-                if from_km is not None:
-                    final_at = point_along(plan_path.lats, plan_path.lons, from_km * 1000.0)
+                from_m = outcome.plan.final_glide_from_m
+                if from_m is not None and from_m == from_m:
+                    final_at = point_along(plan_path.lats, plan_path.lons, from_m)
         landables = [t for t in scenario.turnpoints if t.landable]
         try:
             sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at)

@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 from textual_plotext import PlotextPlot
 
+from glidetask.tui.plot_ticks import clock_ticks, nice_ticks, number_labels
 from glidetask.units import UnitSystem
 
 
@@ -29,7 +30,12 @@ class DayPlot(PlotextPlot):
         plt.vline(day.lift_ends_s / 3600.0, "red")
         if finish_s is not None:
             plt.vline(finish_s / 3600.0, "orange")
-        plt.xlabel("hour (local)  green start · red lift ends · orange planned finish")
+        hours, labels = clock_ticks(first, last)
+        plt.xticks(hours, labels)
+        top = max(float(np.nanmax(values)) * 1.15, 0.5)
+        y_ticks = nice_ticks(0.0, top, 5)
+        plt.yticks(y_ticks, number_labels(y_ticks))
+        plt.xlabel("local time · green start · red lift ends · orange planned finish")
         plt.ylabel(units.vertical_label)
-        plt.ylim(0, max(float(np.nanmax(values)) * 1.15, 0.5))
+        plt.ylim(0, top)
         self.refresh()

@@ -29,22 +29,22 @@ class GlideVerdict(Static):
         grid = Table.grid(padding=(0, 2))
         grid.add_column(style="dim")
         grid.add_column(justify="right")
-        rows = (
+        rows = (  # what decides the glide first: on a small screen the rest scrolls
             ("Required height", display.with_unit(display.height(u, glide.required_height_m), u.height_label)),
             ("Margin", display.with_unit(display.height(u, glide.margin_m), u.height_label)),
+            ("MacCready to arrive", display.with_unit(display.vertical(u, glide.mc_to_arrive_ms), u.vertical_label)
+             if glide.mc_to_arrive_ms == glide.mc_to_arrive_ms else "not even at 0"),
+            ("L/D required", display.ratio(glide.ld_required, 1)),
+            ("L/D achievable", display.ratio(glide.ld_achievable, 1)),
             ("Speed to fly (TAS)", display.with_unit(display.speed(u, glide.speed_to_fly_ms), u.speed_label)),
             ("Ground speed", display.with_unit(display.speed(u, glide.ground_speed_ms), u.speed_label)),
             ("Heading", display.degrees(glide.heading_deg) + "°"),
             ("Time", display.duration(glide.time_s)),
-            ("L/D required", display.ratio(glide.ld_required, 1)),
-            ("L/D achievable", display.ratio(glide.ld_achievable, 1)),
-            ("MacCready to arrive", display.with_unit(display.vertical(u, glide.mc_to_arrive_ms), u.vertical_label)
-             if glide.mc_to_arrive_ms == glide.mc_to_arrive_ms else "not even at 0"),
             ("Polar density at", display.with_unit(display.height(u, answer.altitude_m), u.height_label)),
         )
         for label, value in rows:
             grid.add_row(label, value)
-        parts = [verdict_text(float(glide.margin_m), units), Text(""), grid]
+        parts = [verdict_text(float(glide.margin_m), units), grid]
         terrain = answer.terrain
         if terrain is not None:
             parts.append(Text(""))

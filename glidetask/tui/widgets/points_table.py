@@ -37,17 +37,23 @@ class PointsTable(DataTable):
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
-    def show(self, task, units: UnitSystem) -> None:
+    def show(self, task, units: UnitSystem, *, compact: bool = False) -> None:
+        """Fill the table; ``compact`` (a narrow screen) leaves out the codes and elevations."""
         row = self.cursor_row
         self.clear(columns=True)
-        for key, label in (("role", "Point"), ("name", "Turnpoint"), ("zone", "Zone"), ("elevation", f"Elev {units.height_label}")):
+        columns = [("role", "Point"), ("name", "Turnpoint"), ("zone", "Zone")]
+        if not compact:
+            columns.append(("elevation", f"Elev {units.height_label}"))
+        for key, label in columns:
             self.add_column(label, key=key)
         count = len(task.points)
         for index, point in enumerate(task.points):
             turnpoint = point.turnpoint
-            name = turnpoint.name + (f" ({turnpoint.code})" if turnpoint.code else "")
-            self.add_row(role(index, count), name, display.zone_text(point.zone, units),
-                         Text(display.height(units, turnpoint.elevation_m), justify="right"), key=f"point-{index}")
+            name = turnpoint.name + (f" ({turnpoint.code})" if turnpoint.code and not compact else "")
+            cells = [role(index, count), name, display.zone_text(point.zone, units)]
+            if not compact:
+                cells.append(Text(display.height(units, turnpoint.elevation_m), justify="right"))
+            self.add_row(*cells, key=f"point-{index}")
         if count:
             self.move_cursor(row=min(max(row, 0), count - 1), animate=False)
 

@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 from textual_plotext import PlotextPlot
 
+from glidetask.tui.plot_ticks import nice_ticks, number_labels
 from glidetask.units import UnitSystem
 
 
@@ -15,13 +16,21 @@ class PolarPlot(PlotextPlot):
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
+        xs, ys = [], []
         for polar, label, colour in ((reference, "reference", "gray"), (current, "this flight", "cyan")):
             speeds = np.linspace(float(polar.min_speed_ms), float(polar.vne_ms), 60)
-            plt.plot(units.speed(speeds), -units.vertical(np.asarray(polar.sink(speeds))),
-                     label=label, color=colour, marker="braille")
+            x, y = units.speed(speeds), -units.vertical(np.asarray(polar.sink(speeds)))
+            plt.plot(x, y, label=label, color=colour, marker="braille")
+            xs += [float(x.min()), float(x.max())]
+            ys += [float(y.min()), float(y.max())]
         best = float(current.best_ld_speed_ms)
         plt.scatter([units.speed(best)], [-units.vertical(float(current.sink(best)))], color="orange",
                     marker="●", label="best glide")
+        x_ticks = nice_ticks(min(xs), max(xs))
+        plt.xticks(x_ticks, number_labels(x_ticks))
+        # sink is drawn downward (as a polar is drawn) and labelled as the positive rate it is
+        y_ticks = nice_ticks(min(ys), max(ys), 6)
+        plt.yticks(y_ticks, number_labels([abs(t) for t in y_ticks]))
         plt.xlabel(f"airspeed ({units.speed_label} TAS)")
-        plt.ylabel(f"sink ({units.vertical_label})")
+        plt.ylabel(f"sink ↓ ({units.vertical_label})")
         self.refresh()

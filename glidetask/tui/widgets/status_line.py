@@ -18,8 +18,10 @@ class StatusLine(Static):
         problems = getattr(self.app, "problems", ())
         self.set_class(bool(problems), "-error")
         if problems:
-            lines = [f"✗ {p.where}: {p.what}" if p.file in ("input", "plan") else f"✗ {p.file}: {p.where}: {p.what}"
-                     for p in problems]
+            from glidetask.tui.edits import where_on_screen
+
+            lines = [f"✗ {where_on_screen(p.where)}: {p.what}" if p.file in ("input", "plan")
+                     else f"✗ {p.file}: {p.where}: {p.what}" for p in problems]
             self.update(Text("\n".join(lines[:3]) + (f"\n  … and {len(lines) - 3} more" if len(lines) > 3 else "")))
         else:
             self.update(Text(getattr(self.app, "notice", "")))

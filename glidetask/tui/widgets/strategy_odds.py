@@ -10,6 +10,7 @@ from textual_plotext import PlotextPlot
 
 from glidetask.formats.strategy_report import probability_bar, reason_words
 from glidetask.tui import display
+from glidetask.tui.plot_ticks import duration_ticks
 
 BAR_WIDTH = 24
 PLOT_COLOURS = ("cyan", "green", "orange", "magenta", "red")
@@ -28,14 +29,24 @@ class ProbabilityBars(Static):
     ProbabilityBars { height: auto; }
     """
 
+    odds = None
+
+    def on_resize(self) -> None:
+        if self.odds is not None:
+            self.show(self.odds)
+
     def show(self, odds) -> None:
+        self.odds = odds
+        # "1234 kg " bar " 100.0 % ± 0.1": the bar takes what the figures leave
+        width = self.content_size.width
+        bar = BAR_WIDTH if not width else max(6, min(BAR_WIDTH, width - 22))
         text = Text()
         for index, choice in enumerate(odds.choices):
             p = choice.finish_probability
             if index:
                 text.append("\n")
             text.append(f"{choice.ballast_kg:>4.0f} kg ")
-            text.append(probability_bar(p, BAR_WIDTH), style=odds_style(p))
+            text.append(probability_bar(p, bar), style=odds_style(p))
             text.append(f" {100 * p:5.1f} %", style="bold")
             text.append(f" ± {100 * choice.finish_probability_se:.1f}", style="dim")
         self.update(text)
@@ -54,8 +65,8 @@ class OddsTable(DataTable):
 
     def show(self, odds) -> None:
         self.clear(columns=True)
-        for key, label in (("ballast", "Ballast kg"), ("finish", "Finish %"), ("se", "± %"), ("p10", "10 %"),
-                           ("p50", "50 %"), ("p90", "90 %"), ("forecast", "Forecast day")):
+        for key, label in (("ballast", "Water kg"), ("finish", "Finish %"), ("se", "± %"), ("p10", "10 %"),
+                           ("p50", "50 %"), ("p90", "90 %"), ("forecast", "Forecast")):
             self.add_column(label, key=key)
         for index, c in enumerate(odds.choices):
             p10, p50, p90 = (display.duration(t) for t in c.task_time_s)
@@ -75,13 +86,15 @@ class LandoutsTable(DataTable):
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
-    def show(self, odds) -> None:
+    def show(self, odds, codes: dict[str, str] | None = None) -> None:
+        """Fill the table; ``codes`` maps turnpoint names to short codes for the Leg column."""
+        codes = codes or {}
         self.clear(columns=True)
         self.add_column("Leg", key="leg")
         for index, c in enumerate(odds.choices):
             self.add_column(f"{c.ballast_kg:.0f} kg", key=f"choice-{index}")
         for i, (start, end) in enumerate(odds.legs):
-            self.add_row(f"{i + 1} {start} > {end}",
+            self.add_row(f"{i + 1} {codes.get(start) or start}→{codes.get(end) or end}",
                          *(Text(str(c.landouts_by_leg[i]), justify="right") for c in odds.choices), key=f"leg-{i}")
         reasons = sorted({key for c in odds.choices for key, _ in c.landouts_by_reason})
         for key in reasons:
@@ -98,14 +111,20 @@ class FinishPlot(PlotextPlot):
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
+        hours = []
         for colour, choice in zip(PLOT_COLOURS, odds.choices):
             times = np.asarray(choice.finish_times_s) / 3600.0
             if times.size < 2:
                 continue
+            hours += [float(times.min()), float(times.max())]
             share = 100.0 * np.arange(1, times.size + 1) / choice.runs
             step = max(times.size // 200, 1)  # a few hundred points draw the same curve
             plt.plot(times[::step], share[::step], color=colour, marker="braille", label=f"{choice.ballast_kg:.0f} kg")
-        plt.xlabel("task time (h)")
+        if hours:
+            ticks, labels = duration_ticks(min(hours), max(hours), 4)
+            plt.xticks(ticks, labels)
+        plt.yticks([0, 25, 50, 75, 100], ["0", "25", "50", "75", "100"])
+        plt.xlabel("task time (h:mm)")
         plt.ylabel("finished (%)")
         plt.ylim(0, 100)
         self.refresh()

@@ -11,6 +11,7 @@ from textual.widgets import DataTable
 from textual_plotext import PlotextPlot
 
 from glidetask.tui import display
+from glidetask.tui.plot_ticks import duration_ticks, nice_ticks, number_labels
 from glidetask.units import UnitSystem
 
 # Cell backgrounds from the row's fastest (green) through amber to red at SLOWEST_SHARE slower.
@@ -34,9 +35,27 @@ def strength_label(units: UnitSystem, strength_ms: float) -> str:
     return f"{units.vertical(strength_ms):.1f} {units.vertical_label}"
 
 
+CELL = 5  # characters of a time column
+LABEL = 8  # the strength column
+
+
+def shown_columns(count: int, width: int | None) -> list[int]:
+    """Which of ``count`` ballast columns fit in ``width`` characters (every one if None):
+    evenly every second, third, ... and always the last (full tanks)."""
+    if width is None:
+        return list(range(count))
+    room = max((width - LABEL - 2 * CELL) // CELL, 2)
+    stride = max(1, -(-count // room))
+    picked = list(range(0, count, stride))
+    if picked[-1] != count - 1:
+        picked.append(count - 1)
+    return picked
+
+
 class SweepTable(DataTable):
     """Task time (H:MM) by thermal strength (rows) and water ballast (columns, kg); each
-    row coloured from its fastest time, the best ballast marked ``*`` on green."""
+    row coloured from its fastest time, the best ballast marked ``*`` on green and named
+    in the last column (on a narrow screen only every second or third ballast is shown)."""
 
     DEFAULT_CSS = """
     SweepTable { height: auto; max-height: 14; }
@@ -45,17 +64,23 @@ class SweepTable(DataTable):
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", cell_padding=0, zebra_stripes=False, **kwargs)
 
-    def show(self, sweep, units: UnitSystem) -> None:
+    def show(self, sweep, units: UnitSystem, width: int | None = None) -> None:
+        """Fill the table; ``width``: the characters available (None: every column)."""
         self.clear(columns=True)
+        columns = shown_columns(len(sweep.ballast_kg), width)
         self.add_column(Text("thermal ", justify="left"), key="strength")
-        for j, ballast in enumerate(sweep.ballast_kg):
-            self.add_column(Text(f"{ballast:.0f}".rjust(5), justify="right"), key=f"b{j}")
+        for j in columns:
+            self.add_column(Text(f"{sweep.ballast_kg[j]:.0f}".rjust(CELL), justify="right"), key=f"b{j}")
+        self.add_column(Text(" best".rjust(CELL + 1), justify="right"), key="best")
         for i, strength in enumerate(sweep.thermal_strength_ms):
             row = sweep.task_time_s[i]
             fastest = np.nanmin(row) if np.isfinite(row).any() else math.nan
             cells = [Text(strength_label(units, strength) + " ")]
-            for j, time in enumerate(row):
-                cells.append(self._cell(time, fastest, sweep.ballast_kg[j] == sweep.best_ballast_kg[i]))
+            for j in columns:
+                cells.append(self._cell(row[j], fastest, sweep.ballast_kg[j] == sweep.best_ballast_kg[i]))
+            best = sweep.best_ballast_kg[i]
+            cells.append(Text((f"{best:.0f}" if math.isfinite(best) else display.DASH).rjust(CELL + 1),
+                              justify="right", style="bold"))
             self.add_row(*cells, key=f"s{i}")
 
     @staticmethod
@@ -86,14 +111,21 @@ class SweepPlot(PlotextPlot):
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
+        hours = []
         for colour, i in zip(PLOT_COLOURS, plotted_strengths(sweep)):
             row = sweep.task_time_s[i]
             finite = np.isfinite(row)
+            hours += [float(row[finite].min()) / 3600.0, float(row[finite].max()) / 3600.0]
             plt.plot(sweep.ballast_kg[finite], row[finite] / 3600.0, color=colour, marker="braille",
                      label=strength_label(units, sweep.thermal_strength_ms[i]))
             best = sweep.best_ballast_kg[i]
             if math.isfinite(best):
                 plt.scatter([best], [row[sweep.ballast_kg == best][0] / 3600.0], color=colour, marker="●")
+        if hours:
+            ticks, labels = duration_ticks(min(hours), max(hours), 4)
+            plt.yticks(ticks, labels)
+        x_ticks = nice_ticks(float(np.min(sweep.ballast_kg)), float(np.max(sweep.ballast_kg)), 4)
+        plt.xticks(x_ticks, number_labels(x_ticks))
         plt.xlabel("water ballast (kg)  ● best")
-        plt.ylabel("task time (h)")
+        plt.ylabel("task time (h:mm)")
         self.refresh()

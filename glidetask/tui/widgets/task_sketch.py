@@ -27,6 +27,16 @@ def _nice_step(length: float) -> float:
     return max(step * power for step in (1, 2, 5) if step * power <= length)
 
 
+def scale_bar(units: UnitSystem, longest_m: float) -> tuple[float, str]:
+    """A scale bar of a round length in the units on screen (``50 km``, ``20 NM``), not
+    longer than ``longest_m``: its length [m] and its label."""
+    step = _nice_step(units.distance(longest_m))
+    return step * units.distance_m, f"{step:g} {units.distance_label}"
+
+
+MIN_WIDTH_WITH_LANDABLES, MIN_HEIGHT_WITH_LANDABLES = 30, 10
+
+
 class TaskSketch(Widget):
     """Draws a :class:`~glidetask.tui.sketch_geometry.Sketch` to fit the widget, north up."""
 
@@ -56,7 +66,9 @@ class TaskSketch(Widget):
         def to_dots(x, y):
             return x_off + (x - xmin) / scale, y_off + (ymax - y) / scale
 
-        for x, y in self.sketch.landables:
+        # a small sketch shows the task only: a field every few cells would drown the legs
+        landables = self.sketch.landables if width >= MIN_WIDTH_WITH_LANDABLES and height >= MIN_HEIGHT_WITH_LANDABLES else ()
+        for x, y in landables:
             dx, dy = to_dots(x, y)
             for ox, oy in ((0, 0), (1, 0), (0, 1), (1, 1)):
                 canvas.dot(int(dx) + ox, int(dy) + oy, "landable")
@@ -74,8 +86,8 @@ class TaskSketch(Widget):
             canvas.label(dx, dy, label, "bold reverse #5fb3a1")
         canvas.label(0, 0, "N↑", "bold")
         if self.units is not None:
-            bar_m = _nice_step(scale * canvas.dot_width / 4.0 * 2)
+            bar_m, bar_text = scale_bar(self.units, scale * canvas.dot_width / 2.0)
             cells = max(1, int(round(bar_m / scale / 2)))
-            text = f"├{'─' * max(cells - 2, 0)}┤ {self.units.distance(bar_m):g} {self.units.distance_label}"
+            text = f"├{'─' * max(cells - 2, 0)}┤ {bar_text}"
             canvas.label(0, canvas.dot_height - 1, text, "dim")
         return canvas.render(LAYER_STYLES, LAYER_ORDER)

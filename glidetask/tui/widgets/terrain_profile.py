@@ -5,6 +5,7 @@ from __future__ import annotations
 import numpy as np
 from textual_plotext import PlotextPlot
 
+from glidetask.tui.plot_ticks import nice_ticks, number_labels
 from glidetask.units import UnitSystem
 
 
@@ -21,11 +22,25 @@ class TerrainProfile(PlotextPlot):
             return
         x = units.distance(np.asarray(check.distance_m, dtype=float))
         terrain = np.asarray(check.terrain_m, dtype=float)
+        glide = np.asarray(check.glide_m, dtype=float)
         known = np.isfinite(terrain)
         plt.plot(x[known], units.height(terrain[known]), label="terrain", color="orange", marker="braille")
         plt.plot(x[known], units.height(terrain[known] + check.clearance_m), label="+ clearance", color="red",
                  marker="braille")
-        plt.plot(x, units.height(np.asarray(check.glide_m, dtype=float)), label="glide", color="cyan", marker="braille")
+        # a glide that ends below the ground is drawn down to a little under the lowest terrain,
+        # not to wherever its line would go: the ground stays readable
+        ground = terrain[known]
+        floor = float(np.min(ground)) if ground.size else float(np.nanmin(glide))
+        top = float(np.nanmax([np.nanmax(glide), np.max(ground + check.clearance_m) if ground.size else floor]))
+        low = floor - 0.1 * max(top - floor, 1.0)
+        seen = glide >= low
+        plt.plot(x[seen], units.height(glide[seen]), label="glide", color="cyan", marker="braille")
+        y_low, y_high = units.height(low), units.height(top)
+        y_ticks = nice_ticks(y_low, y_high, 4)
+        plt.ylim(y_low, y_high)
+        plt.yticks(y_ticks, number_labels(y_ticks))
+        x_ticks = nice_ticks(float(x.min()), float(x.max()), 4)
+        plt.xticks(x_ticks, number_labels(x_ticks))
         plt.xlabel(f"distance ({units.distance_label})")
         plt.ylabel(units.height_label)
         self.refresh()

@@ -9,12 +9,18 @@ from textual.widgets import Label
 from glidetask.tui import messages
 
 
+NARROW = 100  # columns below which the bar drops the task's name and the tabs' padding
+
+
 class ViewTab(Label):
     """One view's name with its key; a click shows the view."""
 
     def __init__(self, view: str, text: str, active: bool):
-        super().__init__(text, classes="view-tab -active" if active else "view-tab", markup=False)
-        self.view = view
+        super().__init__(f" {text} ", classes="view-tab -active" if active else "view-tab", markup=False)
+        self.view, self.text = view, text
+
+    def fit(self, narrow: bool) -> None:
+        self.update(f"{self.text} " if narrow else f" {self.text} ")
 
     def on_click(self) -> None:
         self.post_message(messages.ViewRequested(self.view))
@@ -31,7 +37,7 @@ class ViewBar(Horizontal):
         from glidetask.tui.app import VIEWS
 
         for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1):
-            yield ViewTab(name, f" {index} {title} ", name == self.active_view)
+            yield ViewTab(name, f"{index} {title}", name == self.active_view)
         yield Label("", id="view-bar-task", markup=False)
 
     def on_mount(self) -> None:
@@ -39,10 +45,19 @@ class ViewBar(Horizontal):
             self.watch(self.app, name, self._refresh_label, init=False)
         self._refresh_label()
 
+    def on_resize(self, event) -> None:
+        narrow = event.size.width < NARROW
+        for tab in self.query(ViewTab):
+            tab.fit(narrow)
+        self._refresh_label()
+
     def _refresh_label(self, _value=None) -> None:
+        """Task name (wide screens only), unsaved mark ●, planning mark ⟳, units."""
         app = self.app
         scenario = getattr(app, "scenario", None)
         name = scenario.task.name if scenario is not None else "no task"
+        if self.size.width and self.size.width < NARROW:
+            name = ""  # the Task view's points panel names the task
         mark = " ●" if getattr(app, "dirty", False) else ""
         busy = " ⟳" if getattr(app, "busy", False) else ""
         self.query_one("#view-bar-task", Label).update(f"{name}{mark}{busy}  {app.units.name} ")
