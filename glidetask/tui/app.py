@@ -289,19 +289,31 @@ class GlideTaskApp(App[int]):
     def action_save(self) -> None:
         if self.session is None:
             return
-        if self.session.path is None:
+        if self.session.path is None or is_bundled(self.session.path):
             self.action_save_as()
         else:
             self._save_to(self.session.path)
 
-    def action_save_as(self) -> None:
+    def action_save_as(self, then_quit: bool = False) -> None:
         from glidetask.tui.screens.path_modal import PathModal
 
         if self.session is None:
             return
-        start = str(self.session.path or "task.toml")
-        self.push_screen(PathModal("Save the task as", start, action="Save"),
-                         lambda path: path and self._save_to(Path(path).expanduser()))
+        path = self.session.path
+        title, hint = "Save the task as", ""
+        if path is None:
+            start = str(Path.cwd() / "task.toml")
+        elif is_bundled(path):  # the bundled demo stays as shipped: the pilot saves a copy
+            start = str(Path.cwd() / path.name)
+            title, hint = "Save your copy of the demo task as", "the bundled demo stays as it is · enter: save · esc: cancel"
+        else:
+            start = str(path)
+
+        def chosen(answer: str | None) -> None:
+            if answer and self._save_to(Path(answer).expanduser()) and then_quit:
+                self.exit(0)
+
+        self.push_screen(PathModal(title, start, action="Save", hint=hint), chosen)
 
     def _save_to(self, path: Path) -> bool:
         from glidetask.tui import recompute
@@ -325,7 +337,7 @@ class GlideTaskApp(App[int]):
         if self.session is None or self.plan is None:
             self.notice = "nothing to export yet: the plan is not ready"
             return
-        self.push_screen(ExportModal(self.session.path))
+        self.push_screen(ExportModal(export_base(self.session.path)))
 
     # ------------------------------------------------------------ quitting
 
@@ -340,14 +352,31 @@ class GlideTaskApp(App[int]):
     def _quit_chosen(self, choice: str | None) -> None:
         if choice == "discard":
             self.exit(0)
-        elif choice == "save" and self.session.path is not None:
+        elif choice == "save" and self.session.path is not None and not is_bundled(self.session.path):
             if self._save_to(self.session.path):
                 self.exit(0)
         elif choice == "save":
-            from glidetask.tui.screens.path_modal import PathModal
+            self.action_save_as(then_quit=True)
 
-            self.push_screen(PathModal("Save the task as", "task.toml", action="Save"),
-                             lambda path: path and self._save_to(Path(path).expanduser()) and self.exit(0))
+
+def is_bundled(path: Path) -> bool:
+    """True for a file of the bundled demo data (never overwritten: it may not even be writable)."""
+    from glidetask import paths
+
+    try:
+        return Path(path).resolve().is_relative_to(paths.demo_tasks_dir().resolve())
+    except OSError:
+        return False
+
+
+def export_base(task_path: Path | None) -> Path:
+    """Where exports go by default, without suffix: beside the task file, or in the current
+    folder for the bundled demo and a task never saved."""
+    if task_path is None:
+        return Path.cwd() / "plan"
+    if is_bundled(task_path):
+        return Path.cwd() / task_path.stem
+    return task_path.with_suffix("")
 
 
 def make_app(task_path: str | Path | None = None, units: str = "metric", *,

@@ -91,3 +91,53 @@ async def test_a_bad_task_file_is_reported_in_the_app(tmp_path, acknowledged):
         assert all(str(bad) in p.file or p.file.endswith("bad.toml") for p in app.problems)
         status = str(app.screen.query_one("#status-line").render())
         assert "bad.toml" in status
+
+
+async def test_saving_the_bundled_demo_saves_a_copy_and_leaves_the_demo_alone(tmp_path, monkeypatch, acknowledged):
+    from glidetask import paths
+
+    monkeypatch.chdir(tmp_path)
+    bundled = paths.demo_task()
+    shipped = bundled.read_bytes()
+    app = make_app()
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("2")
+        await settle(pilot)
+        await type_into(pilot, "glider-ballast_kg", "40")
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        field = app.screen.query_one("#path-input")  # asked where, not written over the demo
+        assert field.value == str(tmp_path / bundled.name)
+        await pilot.press("enter")
+        await settle(pilot)
+        assert app.task_path == tmp_path / bundled.name and not app.dirty
+        await pilot.press("ctrl+e")
+        await pilot.pause()
+        assert app.screen.query_one("#export-path").value.startswith(str(tmp_path))
+    assert bundled.read_bytes() == shipped
+    copy = load_scenario(tmp_path / bundled.name)  # its turnpoints and polar still found
+    assert copy.glider.ballast_kg == 40.0 and copy.task.name == "Vardmoor 300 km triangle"
+
+
+async def test_quitting_with_changes_to_the_demo_saves_a_copy(tmp_path, monkeypatch, acknowledged):
+    from glidetask import paths
+
+    monkeypatch.chdir(tmp_path)
+    shipped = paths.demo_task().read_bytes()
+    app = make_app()
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("2")
+        await settle(pilot)
+        await type_into(pilot, "glider-bugs_percent", "10")
+        await pilot.press("ctrl+q")
+        await pilot.pause()
+        await pilot.press("s")
+        await pilot.pause()
+        app.screen.query_one("#path-input").value = str(tmp_path / "mine.toml")
+        await pilot.press("enter")
+        await settle(pilot)
+    assert app.return_code == 0
+    assert paths.demo_task().read_bytes() == shipped
+    assert load_scenario(tmp_path / "mine.toml").glider.bugs_percent == 10.0

@@ -18,9 +18,10 @@ class ExportModal(ModalScreen):
 
     BINDINGS = [("escape", "cancel", "Cancel")]
 
-    def __init__(self, task_path: Path | None):
+    def __init__(self, base: Path):
+        """``base``: the path of the files to write, without suffix (``…/vardmoor`` gives
+        ``…/vardmoor-briefing.md``)."""
         super().__init__(classes="path-modal", id="export-modal")
-        base = task_path.with_suffix("") if task_path else Path("plan")
         self.base = str(base)
 
     def compose(self) -> ComposeResult:
