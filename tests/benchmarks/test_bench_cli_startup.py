@@ -9,18 +9,10 @@ JSON is checked.
 from __future__ import annotations
 
 import json
-import os
-import statistics
-import subprocess
-import sys
-import time
-from pathlib import Path
 
 import pytest
+from wholeprocess import ROOT, bench_against_baseline
 
-ROOT = Path(__file__).resolve().parents[2]
-ROUNDS = 7
-BASELINE = ["-c", "import numpy, scipy.optimize, pyproj"]
 COMMANDS = {
     "polar": ["-m", "glidetask", "polar", str(ROOT / "polars" / "racing-15m.toml"), "--ballast-kg", "100", "--json"],
     "glide": ["-m", "glidetask", "glide", "--polar", str(ROOT / "polars" / "club.toml"), "--distance-km", "40",
@@ -28,32 +20,9 @@ COMMANDS = {
 }
 
 
-def _run(argv: list[str]) -> str:
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    result = subprocess.run([sys.executable, *argv], cwd=ROOT, env=env, capture_output=True, text=True,
-                            timeout=120, check=True)
-    return result.stdout
-
-
-def _median_seconds(argv: list[str], rounds: int) -> float:
-    times = []
-    for _ in range(rounds):
-        start = time.perf_counter()
-        _run(argv)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
-
-
 @pytest.mark.parametrize("command", sorted(COMMANDS))
 def test_bench_cli_startup(benchmark, command):
     argv = COMMANDS[command]
-    if benchmark.disabled:
-        output = benchmark(_run, argv)
-    else:
-        _run(BASELINE)  # warm the file cache for both
-        baseline = _median_seconds(BASELINE, ROUNDS)
-        output = benchmark.pedantic(_run, args=(argv,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
-        median = benchmark.stats.stats.median
-        benchmark.extra_info.update(baseline_s=baseline, command_s=median, ratio_to_baseline=median / baseline)
+    output = bench_against_baseline(benchmark, argv, budget_ratio=1.5)
     data = json.loads(output)
     assert data["cautions"]

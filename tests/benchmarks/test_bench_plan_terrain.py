@@ -15,41 +15,19 @@ In the normal run (benchmarks disabled) each runs once and its result is checked
 from __future__ import annotations
 
 import json
-import os
 import re
-import statistics
-import subprocess
-import sys
-import time
 from pathlib import Path
 
 import pytest
+from wholeprocess import ROOT, bench_against_baseline
 
 from glidetask.engine.planner import plan
 from glidetask.engine.scenario import Wind
 from glidetask.formats.task_file import load_scenario
 
-ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "demo_tasks"
 TRIANGLE = DEMO / "vardmoor-triangle-300.toml"
-ROUNDS = 7
-BASELINE = ["-c", "import numpy, scipy.optimize, pyproj"]
 WITH_RASTERIO = ["-c", "import numpy, scipy.optimize, pyproj, rasterio"]
-
-
-def _run(argv: list[str]) -> str:
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    return subprocess.run([sys.executable, *argv], cwd=ROOT, env=env, capture_output=True, text=True,
-                          timeout=120, check=True).stdout
-
-
-def _median_seconds(argv: list[str], rounds: int) -> float:
-    times = []
-    for _ in range(rounds):
-        start = time.perf_counter()
-        _run(argv)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
 
 
 def _without_terrain(folder: Path) -> Path:
@@ -68,16 +46,7 @@ def _without_terrain(folder: Path) -> Path:
 def test_bench_plan_command(benchmark, tmp_path, terrain, budget):
     task = TRIANGLE if terrain else _without_terrain(tmp_path)
     argv = ["-m", "glidetask", "plan", str(task), "--json"]
-    if benchmark.disabled:
-        output = benchmark(_run, argv)
-    else:
-        _run(BASELINE)  # warm the file cache for all
-        baseline = _median_seconds(BASELINE, ROUNDS)
-        rasterio_s = _median_seconds(WITH_RASTERIO, ROUNDS)
-        output = benchmark.pedantic(_run, args=(argv,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
-        median = benchmark.stats.stats.median
-        benchmark.extra_info.update(baseline_s=baseline, command_s=median, ratio_to_baseline=median / baseline,
-                                    budget_ratio=budget, rasterio_import_ratio=rasterio_s / baseline)
+    output = bench_against_baseline(benchmark, argv, budget_ratio=budget, other_baselines={"rasterio_import": WITH_RASTERIO})
     data = json.loads(output)
     assert data["finished"] and data["landables"]["by_leg"] and data["sensitivity"]["rows"]
     assert ("terrain" in data) is terrain

@@ -13,15 +13,11 @@ from __future__ import annotations
 
 import dataclasses
 import json
-import os
-import statistics
-import subprocess
-import sys
-import time
 from pathlib import Path
 
 import numpy as np
 import pytest
+from wholeprocess import ROOT, bench_against_baseline
 
 from glidetask.engine.flight import Course, fly
 from glidetask.engine.planner import course_for, flights_for, plan
@@ -30,10 +26,7 @@ from glidetask.engine.task import Task, TaskPoint, optimized_path
 from glidetask.engine.zones import Zone
 from glidetask.formats.task_file import load_scenario
 
-ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "demo_tasks"
-ROUNDS = 7
-BASELINE = ["-c", "import numpy, scipy.optimize, pyproj"]
 SIX_LEGS = ("VAR", "Skarren Mast", "Tarnley Field", "Dunhallow Lea", "Greyholt Field", "Vard Cross", "VAR")
 TEN_LEGS = ("VAR", "Yarnsby", "Skarren Mast", "Tarnley Field", "Crowsend Field", "Dunhallow Lea", "Glimmer Lake",
             "Greyholt Field", "Vard Cross", "Skarren Top", "VAR")
@@ -67,33 +60,10 @@ def test_bench_plan_ten_legs(benchmark, tmp_path):
                                     distance_km=result.planned_distance_m / 1000.0)
 
 
-def _run(argv: list[str]) -> str:
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    return subprocess.run([sys.executable, *argv], cwd=ROOT, env=env, capture_output=True, text=True,
-                          timeout=120, check=True).stdout
-
-
-def _median_seconds(argv: list[str], rounds: int) -> float:
-    times = []
-    for _ in range(rounds):
-        start = time.perf_counter()
-        _run(argv)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
-
-
 def test_bench_plan_command_six_legs(benchmark, tmp_path):
     task = _task_file(tmp_path, SIX_LEGS, "six-legs")
     argv = ["-m", "glidetask", "plan", str(task), "--json"]
-    if benchmark.disabled:
-        output = benchmark(_run, argv)
-    else:
-        _run(BASELINE)  # warm the file cache for both
-        baseline = _median_seconds(BASELINE, ROUNDS)
-        output = benchmark.pedantic(_run, args=(argv,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
-        median = benchmark.stats.stats.median
-        benchmark.extra_info.update(baseline_s=baseline, command_s=median, ratio_to_baseline=median / baseline,
-                                    budget_ratio=1.6)
+    output = bench_against_baseline(benchmark, argv, budget_ratio=1.6)
     data = json.loads(output)
     assert len(data["legs"]) == 6 and data["finished"]
 

@@ -11,51 +11,19 @@ once and its output is checked.
 from __future__ import annotations
 
 import json
-import os
-import statistics
-import subprocess
-import sys
-import time
-from pathlib import Path
 
 import pytest
+from wholeprocess import ROOT, bench_against_baseline
 
-ROOT = Path(__file__).resolve().parents[2]
 TRIANGLE = ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"
-ROUNDS = 7
-BASELINE = ["-c", "import numpy, scipy.optimize, pyproj"]
 SWEEP = ["-m", "glidetask", "sweep", str(TRIANGLE), "--json"]
 SWEEP_BUDGET_RATIO = 2.5
 SIMULATION_RUNS = 10_000
 SIMULATION_BUDGET_S = 2.0
 
 
-def _run(argv: list[str]) -> str:
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    result = subprocess.run([sys.executable, *argv], cwd=ROOT, env=env, capture_output=True, text=True,
-                            timeout=120, check=True)
-    return result.stdout
-
-
-def _median_seconds(argv: list[str], rounds: int) -> float:
-    times = []
-    for _ in range(rounds):
-        start = time.perf_counter()
-        _run(argv)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
-
-
 def test_bench_sweep_whole_process(benchmark):
-    if benchmark.disabled:
-        output = benchmark(_run, SWEEP)
-    else:
-        _run(BASELINE)  # warm the file cache
-        baseline = _median_seconds(BASELINE, ROUNDS)
-        output = benchmark.pedantic(_run, args=(SWEEP,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
-        median = benchmark.stats.stats.median
-        benchmark.extra_info.update(baseline_s=baseline, command_s=median, ratio_to_baseline=median / baseline,
-                                    budget_ratio=SWEEP_BUDGET_RATIO)
+    output = bench_against_baseline(benchmark, SWEEP, budget_ratio=SWEEP_BUDGET_RATIO)
     data = json.loads(output)
     assert len(data["ballast_kg"]) >= 19 and len(data["thermal_strength_ms"]) == 10
 

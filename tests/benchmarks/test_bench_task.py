@@ -12,22 +12,15 @@ from __future__ import annotations
 
 import json
 import math
-import os
-import statistics
-import subprocess
-import sys
-import time
 from pathlib import Path
 
 import pytest
+from wholeprocess import ROOT, bench_against_baseline
 
 from glidetask.engine import task as task_module
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, nominal_distance_m, optimized_path
 from glidetask.engine.zones import Zone
 
-ROOT = Path(__file__).resolve().parents[2]
-BASELINE = ["-c", "import numpy, scipy.optimize, pyproj"]
-ROUNDS = 5
 BIG_FILE_POINTS = 50_000
 
 
@@ -69,35 +62,11 @@ def _big_geojson(path: Path) -> None:
     path.write_text(json.dumps({"type": "FeatureCollection", "features": features}))
 
 
-def _run(argv: list[str]) -> str:
-    env = {**os.environ, "PYTHONPATH": str(ROOT)}
-    result = subprocess.run([sys.executable, *argv], cwd=ROOT, env=env, capture_output=True, text=True,
-                            timeout=120, check=True)
-    return result.stdout
-
-
-def _median_seconds(argv: list[str], rounds: int) -> float:
-    times = []
-    for _ in range(rounds):
-        start = time.perf_counter()
-        _run(argv)
-        times.append(time.perf_counter() - start)
-    return statistics.median(times)
-
-
 def test_bench_check_big_turnpoint_file(benchmark, tmp_path):
     path = tmp_path / "big.geojson"
     _big_geojson(path)
     argv = ["-m", "glidetask", "check", str(path), "--json"]
-    if benchmark.disabled:
-        output = benchmark(_run, argv)
-    else:
-        _run(BASELINE)  # warm the file cache for both
-        baseline = _median_seconds(BASELINE, ROUNDS)
-        output = benchmark.pedantic(_run, args=(argv,), rounds=ROUNDS, iterations=1, warmup_rounds=1)
-        median = benchmark.stats.stats.median
-        benchmark.extra_info.update(baseline_s=baseline, command_s=median, ratio_to_baseline=median / baseline,
-                                    budget_ratio=2.5)
+    output = bench_against_baseline(benchmark, argv, budget_ratio=2.5)
     (result,) = json.loads(output)
     assert result["ok"] and result["count"] == BIG_FILE_POINTS
     assert result["landable"] == BIG_FILE_POINTS // 4
