@@ -225,4 +225,5 @@ class GlideView(ViewScreen):
     def _show_answer(self, answer) -> None:
         self.answer = answer
         self.query_one(GlideVerdict).show(answer, self.app.units)
-        self.query_one(TerrainProfile).show(answer.terrain, self.app.units)
+        self.query_one(TerrainProfile).show(answer.terrain, self.app.units,
+                                            answer.terrain_note or "needs a terrain model and a glide between two turnpoints")

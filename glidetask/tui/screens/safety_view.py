@@ -1,5 +1,6 @@
-"""The Safety view: landable coverage along the task, alternates per leg, and the
-final glide's clearance over the terrain, as the plan reports them (contract 5.3)."""
+"""The Safety view: landable coverage along the task, alternates per leg, and the final
+glide over the terrain, from the plan's own results (``Plan.landables``, ``Plan.terrain``)
+in the words and rounding of ``glidetask plan`` (:mod:`glidetask.formats.safety_report`)."""
 
 from __future__ import annotations
 
@@ -11,15 +12,15 @@ from textual.widgets import DataTable, Static
 
 from glidetask import cautions
 from glidetask.tui import display
-from glidetask.tui.contract import si
 from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.coverage_strip import CoverageStrip
 from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.terrain_profile import TerrainProfile
 
-NEEDS = ("Safety shows what the plan reports about landable fields and terrain. This plan has no "
-         "such report yet: mark fields `landable = true` in the turnpoint file, add a [terrain] "
-         "file to the task, and use a planner that reports `landables` and `terrain` "
-         "(contract section 5.3).")
+NEEDS = ("Safety shows the landable fields in reach along the task and the final glide over the "
+         "terrain. This task has neither: mark fields `landable = true` in the turnpoint file and "
+         "name an elevation model in the task's [terrain] section.")
+GOOD, DOUBT, BAD = "bold #8cc66d", "bold #e0b15a", "bold #e06c5a"
 
 
 class SafetyView(ViewScreen):
@@ -35,72 +36,96 @@ class SafetyView(ViewScreen):
         with Horizontal(id="safety-tables"):
             yield DataTable(id="gaps-table", classes="panel", cursor_type="row", zebra_stripes=True)
             yield DataTable(id="alternates-table", classes="panel", cursor_type="row", zebra_stripes=True)
-        yield Static(id="terrain-summary", classes="panel")
+        with Horizontal(id="safety-terrain"):
+            yield Static(id="terrain-summary", classes="panel")
+            yield TerrainProfile(id="safety-profile", classes="panel")
         yield Static("\n".join(f"⚠ {c}" for c in (*cautions.TERRAIN, *cautions.LANDABLES)), id="safety-cautions",
                      markup=False)
 
     def on_mount(self) -> None:
         self.query_one("#coverage-panel").border_title = "Landable fields in reach from the band bottom"
-        self.query_one("#gaps-table").border_title = "Gaps (no field in reach)"
-        self.query_one("#alternates-table").border_title = "Nearest reachable field per leg"
+        self.query_one("#gaps-table").border_title = "Gaps: no field in reach"
+        self.query_one("#alternates-table").border_title = "Fields in reach, leg by leg"
         self.query_one("#terrain-summary").border_title = "Final glide over the terrain"
+        self.query_one("#safety-profile").border_title = "The planned final glide"
 
     def show_plan(self, outcome) -> None:
-        summary = outcome.summary if outcome is not None else None
-        has_report = summary is not None and (summary.get("landables") or summary.get("terrain"))
+        plan = outcome.plan if outcome is not None else None
+        has_report = plan is not None and (plan.landables is not None or plan.terrain_source is not None)
         self.query_one("#safety-needs").display = not has_report
-        for widget_id in ("#coverage-panel", "#safety-tables", "#terrain-summary"):
+        for widget_id in ("#coverage-panel", "#safety-tables", "#safety-terrain"):
             self.query_one(widget_id).display = bool(has_report)
         if not has_report:
             return
-        self._show_landables(summary)
-        self._show_terrain(summary)
+        self._show_landables(plan)
+        self._show_terrain(plan)
 
-    def _show_landables(self, summary: dict) -> None:
-        units = self.app.units
-        landables = summary.get("landables") or {}
-        coverage = landables.get("coverage_percent")
-        gaps = landables.get("gaps", [])
-        text = Text()
-        if coverage is None:
-            text.append("no landable fields in the turnpoint file", style="dim")
-        else:
-            style = "bold #8cc66d" if not gaps else "bold #e0b15a"
-            text.append(f"{coverage:.0f}% of the task has a landable field in reach", style=style)
-            text.append(f" · {len(gaps)} gap{'s' if len(gaps) != 1 else ''}", style=style)
-        self.query_one("#coverage-summary", Static).update(text)
-        self.query_one(CoverageStrip).show(summary)
-        d = units.distance_label
-        table = self.query_one("#gaps-table", DataTable)
-        table.clear(columns=True)
-        for key, label in (("from", f"From {d}"), ("to", f"To {d}"), ("length", f"Length {d}")):
-            table.add_column(label, key=key)
-        for index, gap in enumerate(gaps):
-            start, end = si(gap, "from_km"), si(gap, "to_km")
-            table.add_row(*(Text(display.distance(units, v), justify="right") for v in (start, end, end - start)),
-                          key=f"gap-{index}")
+    # ------------------------------------------------------------ landables
+
+    def _codes(self) -> dict[str, str]:
+        scenario = self.app.scenario
+        return {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
+
+    def _show_landables(self, plan) -> None:
+        from glidetask.formats.safety_report import _gap_whys
+
+        units, c = self.app.units, plan.landables
+        summary = self.query_one("#coverage-summary", Static)
+        gaps_table = self.query_one("#gaps-table", DataTable)
         alternates = self.query_one("#alternates-table", DataTable)
+        gaps_table.clear(columns=True)
         alternates.clear(columns=True)
-        for key, label in (("leg", "Leg"), ("nearest", "Field"), ("distance", f"Off track {d}")):
+        if c is None or c.landable_count == 0:
+            summary.update(Text("no turnpoint is marked landable: coverage not checked", style="dim"))
+            self.query_one(CoverageStrip).show(None)
+            return
+        terrain = f", clearing terrain by {units.fmt_height(c.clearance_m)}" if c.terrain_checked else ""
+        summary.update(Text.assemble(
+            (f"{c.coverage_percent:.0f}% of the task has a field in reach", GOOD if not c.gaps else DOUBT),
+            (f" · {len(c.gaps)} gap{'s' if len(c.gaps) != 1 else ''}", GOOD if not c.gaps else DOUBT),
+            (f"  from {units.fmt_height(c.band_bottom_m)} at MacCready 0, arriving "
+             f"{units.fmt_height(c.margin_m)} above the field{terrain}", "dim")))
+        self.query_one(CoverageStrip).show_coverage([leg.distance_m for leg in plan.legs], c.gaps)
+        d = units.distance_label
+        for key, label in (("from", f"From {d}"), ("to", f"To {d}"), ("length", f"Length {d}"), ("why", "Why")):
+            gaps_table.add_column(label, key=key)
+        for index, ((start, end), why) in enumerate(zip(c.gaps, _gap_whys(c, units))):
+            gaps_table.add_row(*(Text(display.distance(units, v), justify="right") for v in (start, end, end - start)),
+                               why, key=f"gap-{index}")
+        codes = self._codes()
+        for key, label in (("leg", "Leg"), ("nearest", "Nearest"), ("distance", f"Off track {d}"), ("also", "Also")):
             alternates.add_column(label, key=key)
-        for index, entry in enumerate(landables.get("by_leg", [])):
-            alternates.add_row(str(entry.get("leg")), entry.get("nearest") or "none in reach",
-                               Text(display.distance(units, si(entry, "distance_km")), justify="right"),
+        for index, entry in enumerate(c.by_leg):
+            start, end = plan.legs[entry.leg].from_name, plan.legs[entry.leg].to_name
+            leg = f"{entry.leg + 1} {codes.get(start) or start}→{codes.get(end) or end}"
+            also = ", ".join(f"{name} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
+            alternates.add_row(leg, entry.nearest or Text("none in reach", style=BAD),
+                               Text(display.distance(units, entry.distance_m), justify="right"), also,
                                key=f"alt-{index}")
 
-    def _show_terrain(self, summary: dict) -> None:
+    # ------------------------------------------------------------ terrain
+
+    def _show_terrain(self, plan) -> None:
+        from glidetask.formats.safety_report import _terrain_facts
+
         units = self.app.units
-        terrain = summary.get("terrain")
         widget = self.query_one("#terrain-summary", Static)
-        if not terrain:
-            widget.update(Text("no terrain model in this task ([terrain] file)", style="dim"))
+        profile = self.query_one(TerrainProfile)
+        source = plan.terrain_source
+        if source is None:
+            widget.update(Text("no elevation model in this task ([terrain] file)", style="dim"))
+            profile.show(None, units, "no elevation model in this task")
             return
-        ok = terrain.get("ok")
-        clearance = terrain.get("final_glide_min_clearance_m")
-        at = si(terrain, "at_km")
-        lines = [Text(("✓ clears the terrain" if ok else "✗ does not clear the terrain (or the model does not cover it)"),
-                      style="bold #8cc66d" if ok else "bold #e06c5a"),
-                 Text(f"least clearance {display.with_unit(display.height(units, clearance), units.height_label)}"
-                      f" at {display.with_unit(display.distance(units, at), units.distance_label)} along the task"),
-                 Text(f"model: {terrain.get('source', '')}", style="dim")]
+        terrain = plan.terrain
+        if terrain is None:
+            widget.update(Group(Text("not checked: the plan has no final glide", style=DOUBT),
+                                Text(f"model {source}", style="dim")))
+            profile.show(None, units, "no final glide in this plan")
+            return
+        lines = []
+        for label, text in _terrain_facts(terrain, units):
+            style = "" if label != "verdict" else GOOD if terrain.ok else BAD
+            lines.append(Text.assemble((f"{label:<16}", "dim"), (text, style)))
+        lines.append(Text(f"model {source}", style="dim"))
         widget.update(Group(*lines))
+        profile.show(terrain, units)

@@ -20,12 +20,21 @@ class CoverageStrip(Widget):
         self.legs_m: list[float] = []
 
     def show(self, summary: dict | None) -> None:
+        """From the plan's contract form (None: nothing to draw)."""
         if summary is None or not summary.get("landables"):
+            self.show_coverage(None, ())
+        else:
+            self.show_coverage([si(leg, "distance_km") or 0.0 for leg in summary["legs"]],
+                               [(si(g, "from_km"), si(g, "to_km")) for g in summary["landables"].get("gaps", [])])
+
+    def show_coverage(self, legs_m, gaps) -> None:
+        """Legs' lengths [m] (None: nothing to draw) and the gaps as ``(from_m, to_m)`` along the task."""
+        if legs_m is None:
             self.total_m = None
         else:
-            self.legs_m = [si(leg, "distance_km") or 0.0 for leg in summary["legs"]]
+            self.legs_m = [float(length) for length in legs_m]
             self.total_m = sum(self.legs_m)
-            self.gaps = [(si(g, "from_km"), si(g, "to_km")) for g in summary["landables"].get("gaps", [])]
+            self.gaps = [(float(a), float(b)) for a, b in gaps]
         self.refresh()
 
     def render(self) -> Text:

@@ -12,12 +12,13 @@ from glidetask.units import UnitSystem
 class TerrainProfile(PlotextPlot):
     """Terrain (brown), the glide line (cyan) and terrain plus clearance (red dots)."""
 
-    def show(self, check, units: UnitSystem) -> None:
+    def show(self, check, units: UnitSystem, note: str = "") -> None:
+        """Draw ``check`` (an ``engine.terrain.FinalGlideTerrain``); None: ``note`` instead."""
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
         if check is None:
-            plt.title("terrain profile: needs a terrain model and a glide between two turnpoints")
+            plt.title(note or "no terrain under this glide")
             self.refresh()
             return
         x = units.distance(np.asarray(check.distance_m, dtype=float))
