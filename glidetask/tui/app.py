@@ -284,7 +284,7 @@ class GlideTaskApp(App[int]):
         self.busy = True
         self.notice = f"opening {path.name} …"
         self._generation += 1
-        self.open_and_plan(path.expanduser(), self._generation)
+        self.open_and_plan(path.expanduser().absolute(), self._generation)
 
     def action_save(self) -> None:
         if self.session is None:
@@ -310,7 +310,7 @@ class GlideTaskApp(App[int]):
             start = str(path)
 
         def chosen(answer: str | None) -> None:
-            if answer and self._save_to(Path(answer).expanduser()) and then_quit:
+            if answer and self._save_to(Path(answer).expanduser().absolute()) and then_quit:
                 self.exit(0)
 
         self.push_screen(PathModal(title, start, action="Save", hint=hint), chosen)

@@ -141,3 +141,17 @@ async def test_quitting_with_changes_to_the_demo_saves_a_copy(tmp_path, monkeypa
     assert app.return_code == 0
     assert paths.demo_task().read_bytes() == shipped
     assert load_scenario(tmp_path / "mine.toml").glider.bugs_percent == 10.0
+
+
+async def test_typing_in_the_open_dialog_adds_to_the_folder_given(demo_copy, acknowledged):
+    app = make_app(demo_copy)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("ctrl+o")
+        await pilot.pause()
+        field = app.screen.query_one("#path-input")
+        assert field.value == str(demo_copy.parent) + "/"
+        await pilot.press(*"vardmoor-out-and-return.toml", "enter")
+        await settle(pilot)
+        assert app.task_path == demo_copy.parent / "vardmoor-out-and-return.toml"
+        assert app.task_path.is_absolute()

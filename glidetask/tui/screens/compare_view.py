@@ -20,6 +20,8 @@ from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.needs_engine import NeedsNotice
 from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
 
+CLIMB_NOTE = ("The Task view keeps the day's achieved climbs whatever the ballast; here each loading climbs "
+              "as it circles in thermals of the strength the climbs imply, so water slows the climbs.")
 WAITING = "Compare shows the task time for every water ballast against thermal strength, once the plan is ready."
 
 
@@ -117,4 +119,7 @@ class CompareView(ViewScreen):
                       f"times averaged over where the climbs fall ({sweep.phases} positions). The best is the "
                       "lightest ballast within 0.2 % of the fastest.", style="dim")]
         lines += [Text(f"⚠ {note}", style="#e0b15a") for note in sweep.notes]
+        scenario = self.app.scenario
+        if scenario is not None and scenario.day.climb is not None:
+            lines.append(Text(CLIMB_NOTE, style="dim"))
         self.query_one("#sweep-summary", Static).update(Group(*lines))

@@ -30,8 +30,8 @@ class ExportModal(ModalScreen):
             with RadioSet(id="export-format"):
                 for index, (suffix, name) in enumerate(FORMATS.items()):
                     yield RadioButton(f"{name}  ({suffix})", value=index == 1, id=f"export-{suffix[1:]}")
-            yield Input(self.base + "-briefing.md", id="export-path", suggester=PathSuggester())
-            yield Static("enter: write   esc: cancel   (files are written whole or not at all)",
+            yield Input(self.base + "-briefing.md", id="export-path", suggester=PathSuggester(), select_on_focus=False)
+            yield Static("enter: write   shift+tab: choose the format   esc: cancel\n(files are written whole or not at all)",
                          classes="path-hint", markup=False)
             yield Static("", id="export-error", markup=False)
 

@@ -210,4 +210,9 @@ class OddsView(ViewScreen):
                     style="italic")
         for note in odds.notes[1:]:
             text.append(f"\n⚠ {note}", style="#e0b15a")
+        scenario = self.app.scenario
+        if scenario is not None and scenario.day.climb is not None:
+            from glidetask.tui.screens.compare_view import CLIMB_NOTE
+
+            text.append("\n" + CLIMB_NOTE, style="dim")
         self.query_one("#odds-assumptions", Static).update(text)

@@ -44,7 +44,8 @@ class PathModal(ModalScreen[str | None]):
     def compose(self) -> ComposeResult:
         with Vertical(classes="path-panel"):
             yield Label(self.title_text, classes="path-title", markup=False)
-            yield Input(self.start, id="path-input", suggester=PathSuggester())
+            # the cursor after the folder given, nothing selected: typing adds to it
+            yield Input(self.start, id="path-input", suggester=PathSuggester(), select_on_focus=False)
             yield Static(self.hint or f"enter: {self.action_name.lower()}   →: complete   esc: cancel",
                          classes="path-hint", markup=False)
 
