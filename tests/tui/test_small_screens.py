@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import pytest
 from conftest import settle, text_of
 
 from glidetask import cautions
@@ -31,15 +32,16 @@ async def test_first_start_notice_keeps_its_button_on_an_80x24_screen(synthetic,
         assert app.screen.id != "cautions-modal"
 
 
-async def test_view_bar_keeps_units_and_the_unsaved_mark_at_80_columns(synthetic, acknowledged):
+@pytest.mark.parametrize("width", [80, 100, 104])
+async def test_view_bar_keeps_units_and_the_unsaved_mark(synthetic, acknowledged, width):
     app = make_app(scenario=synthetic, compute_on_start=False, units="aviation")
-    async with app.run_test(size=(80, 24)) as pilot:
+    async with app.run_test(size=(width, 24)) as pilot:
         await settle(pilot)
         app.dirty = True
         await pilot.pause()
-        label = app.screen.query_one("#view-bar-task")
+        label = app.screen.query_one("#view-bar-state")
         assert "aviation" in str(label.render()) and "●" in str(label.render())
-        assert inside_screen(app, label)
+        assert inside_screen(app, label) and label.region.width >= len("●  aviation")
         tabs = list(app.screen.query(".view-tab"))
         assert len(tabs) == 7 and all(inside_screen(app, tab) for tab in tabs)
 

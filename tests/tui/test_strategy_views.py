@@ -1,6 +1,5 @@
-"""The Compare and Odds views against the engine (Pilot tests), and their snapshots at
-120x40 with the demo data (layout and drawing; the numbers are asserted in the Pilot tests).
-Review a snapshot diff before ``--snapshot-update``."""
+"""The Compare and Odds views against the engine (Pilot tests); their snapshots are taken
+with every other view's in test_snapshots.py."""
 
 from __future__ import annotations
 
@@ -186,29 +185,3 @@ async def test_odds_follow_the_units_switch(synthetic, acknowledged):
         # Source: 8 km/h / 1.852 = 4.3 kt; 2 km / 1852 m = 1.1 NM (contract section 6)
         text = str(app.screen.query_one("#odds-assumptions").content)
         assert "4 kt" in text and "1.1 NM" in text
-
-
-# ---------------------------------------------------------------- snapshots
-
-
-def demo_app():
-    return make_app(show_cautions=False)
-
-
-def showing(view_key: str):
-    async def run_before(pilot) -> None:
-        await open_view(pilot, view_key)
-        for field in pilot.app.screen.query("Input"):
-            field.cursor_blink = False
-        pilot.app.notice = ""  # the plan's timing would change from run to run
-        await settle(pilot)
-
-    return run_before
-
-
-def test_compare_view_snapshot(snap_compare, acknowledged):
-    assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing("6"))
-
-
-def test_odds_view_snapshot(snap_compare, acknowledged):
-    assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing("7"))

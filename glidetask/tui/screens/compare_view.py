@@ -20,8 +20,8 @@ from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.needs_engine import NeedsNotice
 from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
 
-CLIMB_NOTE = ("The Task view keeps the day's achieved climbs whatever the ballast; here each loading climbs "
-              "as it circles in thermals of the strength the climbs imply, so water slows the climbs.")
+CLIMB_NOTE = ("Here each loading climbs as it would circle in the thermals the day's climbs imply; "
+              "the Task view keeps the day's climbs whatever the ballast.")
 WAITING = "Compare shows the task time for every water ballast against thermal strength, once the plan is ready."
 
 
@@ -33,7 +33,7 @@ class CompareView(ViewScreen):
     #sweep-panel { height: auto; }
     #compare-bottom { height: 1fr; min-height: 10; }
     #sweep-plot { width: 1fr; height: 1fr; }
-    #sweep-summary { width: 46; height: 1fr; }
+    #sweep-summary { width: 46; height: 1fr; overflow-y: auto; }
     """
 
     def __init__(self):

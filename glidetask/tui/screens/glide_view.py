@@ -118,7 +118,7 @@ class GlideView(ViewScreen):
         if origin is not None and goal is not None:
             length, azimuth, _ = geodesy.inverse(origin.lat, origin.lon, goal.lat, goal.lon)
             defaults["glide-distance"] = display.number(units.distance(float(length)), 1)
-            defaults["glide-course"] = display.number(float(azimuth) % 360.0, 0)
+            defaults["glide-course"] = display.degrees(float(azimuth))
         defaults.setdefault("glide-distance", "30")
         defaults.setdefault("glide-course", "0")
         defaults.setdefault("glide-elevation", "0")

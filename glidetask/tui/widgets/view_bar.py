@@ -38,7 +38,8 @@ class ViewBar(Horizontal):
 
         for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1):
             yield ViewTab(name, f"{index} {title}", name == self.active_view)
-        yield Label("", id="view-bar-task", markup=False)
+        yield Label("", id="view-bar-task", markup=False)  # the task's name gives way first
+        yield Label("", id="view-bar-state", markup=False)  # unsaved, planning, units: always shown
 
     def on_mount(self) -> None:
         for name in ("scenario", "dirty", "units", "busy", "task_path"):
@@ -60,4 +61,5 @@ class ViewBar(Horizontal):
             name = ""  # the Task view's points panel names the task
         mark = " ●" if getattr(app, "dirty", False) else ""
         busy = " ⟳" if getattr(app, "busy", False) else ""
-        self.query_one("#view-bar-task", Label).update(f"{name}{mark}{busy}  {app.units.name} ")
+        self.query_one("#view-bar-task", Label).update(name)
+        self.query_one("#view-bar-state", Label).update(f"{mark}{busy}  {app.units.name} ")
