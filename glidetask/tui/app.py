@@ -173,7 +173,9 @@ class GlideTaskApp(App[int]):
         fields.update(f for f in (field_for_where(p.where) for p in problems) if f)
         if extra_field:
             fields.add(extra_field)
-        self.problems = problems
+        if problems != self.problems:  # unchanged: the status line need not redraw
+            self.problems = problems
+        # always set: the views mark the fields again (an Input's own check clears the mark as it is typed in)
         self.invalid_fields = frozenset(fields)
 
     def request_plan(self) -> None:

@@ -6,6 +6,7 @@ shapes near it are undistorted at task scale.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -31,8 +32,10 @@ class Sketch:
         return min(xs), max(xs), min(ys), max(ys)
 
 
+@lru_cache(maxsize=8)
 def local_projection(centre_lat: float, centre_lon: float):
-    """A transformer from (lon, lat) [deg] to azimuthal-equidistant (x, y) [m] about the centre."""
+    """A transformer from (lon, lat) [deg] to azimuthal-equidistant (x, y) [m] about the centre
+    (kept: making one takes milliseconds, and every edit redraws the sketch of the same task)."""
     from pyproj import Transformer
 
     return Transformer.from_crs(

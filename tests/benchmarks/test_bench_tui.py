@@ -99,3 +99,52 @@ def test_bench_edit_recompute(benchmark):
     assert outcome.summary["legs"]
     if not benchmark.disabled:
         benchmark.extra_info.update(budget_s=EDIT_BUDGET_S, median_s=benchmark.stats.stats.median)
+
+
+TYPING_PAUSE_S = 0.25  # between edits: a pilot's typing pace (the previous frame is painted)
+
+
+def _edit_to_screen_s(edits: int) -> list[float]:
+    """Type a ballast into the running app (headless, 120x40, Task view) ``edits`` times and
+    time each from the keystroke's message to the new plan's figures set in the views (the
+    legs table, the totals, the sketch); the terminal paints them at its next frame."""
+    import asyncio
+
+    from glidetask.tui import messages
+    from glidetask.tui.app import make_app
+
+    async def measure() -> list[float]:
+        app = make_app(show_cautions=False)
+        shown = asyncio.Event()
+        async with app.run_test(size=(120, 40)) as pilot:
+            while app.plan is None or app.busy:
+                await pilot.pause(0.05)
+            await pilot.pause(0.5)  # the first plan's redraw done
+            # the views watch the plan first: this runs once they have drawn it
+            app.watch(app, "plan", lambda _plan: shown.set(), init=False)
+            latencies, before = [], app.plan
+            for index in range(edits):
+                await pilot.pause(TYPING_PAUSE_S)
+                shown.clear()
+                started = time.perf_counter()
+                app.post_message(messages.FieldEdited("glider-ballast_kg", str(40 + 10 * (index % 8))))
+                await shown.wait()
+                latencies.append(time.perf_counter() - started)
+            assert app.plan is not before
+            legs = app.screen.query_one("#legs-table")
+            assert legs.row_count == len(app.plan.plan.legs)
+        return latencies
+
+    return asyncio.run(measure())
+
+
+def test_bench_edit_to_screen(benchmark, tmp_path, monkeypatch):
+    """An edit's whole path in the app: message, session, worker plan, the views' redraw."""
+    pytest.importorskip("glidetask.engine.planner")
+    monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path))
+    if benchmark.disabled:
+        assert len(benchmark(_edit_to_screen_s, 2)) == 2
+        return
+    latencies = benchmark.pedantic(_edit_to_screen_s, args=(20,), rounds=1, iterations=1)
+    benchmark.extra_info.update(budget_s=EDIT_BUDGET_S, median_s=statistics.median(latencies),
+                                worst_s=max(latencies))

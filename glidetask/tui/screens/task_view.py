@@ -36,6 +36,8 @@ class TaskView(ViewScreen):
 
     VIEW = "task"
     _compact = False  # a narrow screen: the points table leaves out codes and elevations
+    _stale = False  # the totals say the plan on screen is the last good one
+    _shown = None  # what the points table and the sketch show: (task, turnpoints, units, compact)
 
     def compose_body(self) -> ComposeResult:
         yield LegsTable(id="legs-table", classes="panel")
@@ -54,7 +56,7 @@ class TaskView(ViewScreen):
         self.query_one("#sketch-panel").border_title = "Sketch"
         self.query_one(LegsTable).show(None, self.app.units)
         # a refused input marks the plan on screen as the last good one
-        self.watch(self.app, "invalid_fields", lambda _: self.show_plan(self.app.plan), init=False)
+        self.watch(self.app, "invalid_fields", self._stale_changed, init=False)
 
     # ------------------------------------------------------------ showing
 
@@ -63,12 +65,22 @@ class TaskView(ViewScreen):
         if compact != self._compact:
             self._compact = compact
             if self.app.scenario is not None:
-                self.query_one(PointsTable).show(self.app.scenario.task, self.app.units, compact=compact)
+                self.show_scenario(self.app.scenario)
 
     def show_scenario(self, scenario) -> None:
+        shown = (scenario.task, scenario.turnpoints, self.app.units, self._compact)
+        if shown == self._shown:
+            return  # the glider or the day changed: the points and the sketch wait for the plan
+        self._shown = shown
         self.query_one(PointsTable).show(scenario.task, self.app.units, compact=self._compact)
         self.query_one("#points-table").border_title = f"Task points · {scenario.task.name} ({scenario.task.kind})"
         self._draw_sketch()
+
+    def _stale_changed(self, invalid) -> None:
+        if bool(invalid) != self._stale:
+            self.query_one(PlanTotals).show(self.app.plan.plan if self.app.plan else None, self.app.units,
+                                            stale=bool(invalid))
+            self._stale = bool(invalid)
 
     def show_plan(self, outcome) -> None:
         units = self.app.units
@@ -76,7 +88,8 @@ class TaskView(ViewScreen):
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
         self.query_one(LegsTable).show(plan, units, codes)
-        self.query_one(PlanTotals).show(plan, units, stale=bool(self.app.invalid_fields))
+        self._stale = bool(self.app.invalid_fields)
+        self.query_one(PlanTotals).show(plan, units, stale=self._stale)
         self._draw_sketch()
 
     def _draw_sketch(self) -> None:

@@ -75,14 +75,19 @@ class LegsTable(DataTable):
 
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, header_height=2, **kwargs)
+        self._units: UnitSystem | None = None  # the unit system of the headers shown
 
     def show(self, plan, units: UnitSystem, codes: dict[str, str] | None = None) -> None:
         """Fill the table from an ``engine.planner.Plan`` (None: headers only); ``codes``
         maps turnpoint names to short codes for the Leg column."""
         codes = codes or {}
-        self.clear(columns=True)
-        for key, _, label, kind in COLUMNS:
-            self.add_column(header(label, kind, units), key=key)
+        if self._units is units:
+            self.clear()  # rows only: the columns stay, and with them the layout
+        else:
+            self.clear(columns=True)
+            for key, _, label, kind in COLUMNS:
+                self.add_column(header(label, kind, units), key=key)
+            self._units = units
         if plan is None:
             return
         marked = final_glide_leg(plan.legs, plan.final_glide_from_m)
