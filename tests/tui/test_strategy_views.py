@@ -107,6 +107,26 @@ async def test_compare_is_computed_again_for_a_new_plan(synthetic, acknowledged)
         assert np.array_equal(after.task_time_s[finite], expected.task_time_s[finite])
 
 
+async def test_a_hidden_compare_view_waits_and_catches_up_when_shown(synthetic, acknowledged):
+    app = make_app(scenario=synthetic)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await open_view(pilot, "6")
+        compare, before = app.screen, app.screen.sweep
+        await pilot.press("1")
+        await settle(pilot)
+        stronger_wind = Wind(270.0, 35 * KMH)
+        app.post_message(messages.ScenarioEdit(
+            lambda s: dataclasses.replace(s, day=dataclasses.replace(s.day, wind=stronger_wind)), "wind"))
+        await settle(pilot)
+        await settle(pilot)
+        assert compare.sweep is before  # no sweep while the Task view is shown
+        await open_view(pilot, "6")
+        assert app.screen is compare and compare.sweep is not before
+        expected = ballast_sweep(app.scenario)
+        finite = np.isfinite(expected.task_time_s)
+        assert np.array_equal(compare.sweep.task_time_s[finite], expected.task_time_s[finite])
+
+
 # ---------------------------------------------------------------- Odds
 
 

@@ -50,15 +50,43 @@ class ViewScreen(Screen):
         self.set_class(event.size.height < 32, "-short")
         self.set_class(event.size.width < 100, "-narrow")
 
+    # A view put aside (another view is shown) catches up when it is shown again: a hidden
+    # view never competes with the plan for the processor (the ballast sweep, the simulated
+    # days). A view under a dialog is still on screen and keeps up.
+    _pending: frozenset[str] = frozenset()
+
+    def _on_screen(self) -> bool:
+        return self in self.app.screen_stack
+
     def _scenario_changed(self, scenario) -> None:
-        if scenario is not None:
+        if scenario is None:
+            return
+        if self._on_screen():
             self.show_scenario(scenario)
+        else:
+            self._pending = self._pending | {"scenario"}
 
     def _plan_changed(self, plan) -> None:
-        self.show_plan(plan)
+        if self._on_screen():
+            self.show_plan(plan)
+        else:
+            self._pending = self._pending | {"plan"}
 
     def _units_changed(self, _units) -> None:
-        self.show_units()
+        if self._on_screen():
+            self.show_units()
+        else:
+            self._pending = self._pending | {"units"}
+
+    def on_screen_resume(self) -> None:
+        pending, self._pending = self._pending, frozenset()
+        if "units" in pending:
+            self.show_units()
+            return
+        if "scenario" in pending and self.app.scenario is not None:
+            self.show_scenario(self.app.scenario)
+        if "plan" in pending:
+            self.show_plan(self.app.plan)
 
     def _highlight_fields(self, invalid: frozenset[str]) -> None:
         for widget in self.query(".-invalid"):
