@@ -96,3 +96,13 @@ async def test_a_zone_that_makes_no_sense_stays_in_the_dialog(synthetic, acknowl
         await pilot.press("escape")
         await settle(pilot)
         assert app.scenario.task.points[1].zone.radius_m == 500.0
+
+
+async def test_the_points_table_has_the_keys_when_the_task_view_opens(synthetic, acknowledged):
+    app = make_app(scenario=synthetic, compute_on_start=False)
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        assert app.focused is app.screen.query_one("#points-table")
+        await pilot.press("down", "z")  # the zone of the first turn, with no click first
+        await pilot.pause()
+        assert app.screen.__class__.__name__ == "ZoneModal"

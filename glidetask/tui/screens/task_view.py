@@ -35,6 +35,7 @@ class TaskView(ViewScreen):
     """Legs, totals, points (editable) and the sketch."""
 
     VIEW = "task"
+    AUTO_FOCUS = "#points-table"  # the place to edit the task: its keys work from the first key press
     _compact = False  # a narrow screen: the points table leaves out codes and elevations
     _stale = False  # the totals say the plan on screen is the last good one
     _shown = None  # what the points table and the sketch show: (task, turnpoints, units, compact)
