@@ -75,3 +75,20 @@ async def test_final_glide_verdict_leads_with_what_decides_the_glide(synthetic, 
         assert [line.split("  ")[0] for line in lines[1:4]] == ["Required height", "Margin", "MacCready to arrive"]
         # the verdict and those three rows are on screen (the rest scrolls)
         assert verdict.region.y + 1 + 4 <= app.screen.query_one("#status-line").region.y
+
+
+def bottom_line(app) -> str:
+    strips = app.screen._compositor.render_strips()
+    return "".join(segment.text for segment in strips[-1])
+
+
+@pytest.mark.parametrize("size", [(80, 24), (120, 40)])
+async def test_footer_keeps_save_export_and_cautions_on_every_view(synthetic, acknowledged, size):
+    app = make_app(scenario=synthetic, compute_on_start=False)
+    async with app.run_test(size=size) as pilot:
+        for index in range(1, 8):
+            await pilot.press(str(index))
+            await settle(pilot)
+            footer = bottom_line(app)
+            for key in ("^s", "^e", "f1"):
+                assert key in footer, (index, footer)

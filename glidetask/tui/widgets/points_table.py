@@ -18,13 +18,14 @@ def role(index: int, count: int) -> str:
 class PointsTable(DataTable):
     """Task points; keys ask the view to add, replace, remove, move points or edit a zone."""
 
+    # named on the panel's border, so the footer keeps room for the app's keys (save, export, cautions)
     BINDINGS = [
-        Binding("a", "ask('add')", "Add point"),
-        Binding("r", "ask('replace')", "Replace"),
-        Binding("x,delete", "ask('remove')", "Remove"),
-        Binding("shift+up", "ask('up')", "Move up"),
-        Binding("shift+down", "ask('down')", "Move down"),
-        Binding("z", "ask('zone')", "Zone"),
+        Binding("a", "ask('add')", "Add point", show=False),
+        Binding("r", "ask('replace')", "Replace", show=False),
+        Binding("x,delete", "ask('remove')", "Remove", show=False),
+        Binding("shift+up", "ask('up')", "Move up", show=False),
+        Binding("shift+down", "ask('down')", "Move down", show=False),
+        Binding("z", "ask('zone')", "Zone", show=False),
     ]
 
     class EditRequested(Message):
