@@ -17,15 +17,16 @@ class PolarPlot(PlotextPlot):
         plt.clear_data()
         plt.clear_figure()
         xs, ys = [], []
-        for polar, label, colour in ((reference, "reference", "gray"), (current, "this flight", "cyan")):
+        # the key sits on the border: a legend inside would cover the slow end of the curves
+        self.border_subtitle = "[gray]━ reference[/]  [cyan]━ this flight[/]  [orange]● best glide[/]"
+        for polar, colour in ((reference, "gray"), (current, "cyan")):
             speeds = np.linspace(float(polar.min_speed_ms), float(polar.vne_ms), 60)
             x, y = units.speed(speeds), -units.vertical(np.asarray(polar.sink(speeds)))
-            plt.plot(x, y, label=label, color=colour, marker="braille")
+            plt.plot(x, y, color=colour, marker="braille")
             xs += [float(x.min()), float(x.max())]
             ys += [float(y.min()), float(y.max())]
         best = float(current.best_ld_speed_ms)
-        plt.scatter([units.speed(best)], [-units.vertical(float(current.sink(best)))], color="orange",
-                    marker="●", label="best glide")
+        plt.scatter([units.speed(best)], [-units.vertical(float(current.sink(best)))], color="orange", marker="●")
         x_ticks = nice_ticks(min(xs), max(xs))
         plt.xticks(x_ticks, number_labels(x_ticks))
         # sink is drawn downward (as a polar is drawn) and labelled as the positive rate it is

@@ -18,6 +18,7 @@ class TerrainProfile(PlotextPlot):
         plt.clear_data()
         plt.clear_figure()
         if check is None:
+            self.border_subtitle = ""
             plt.title(note or "no terrain under this glide")
             self.refresh()
             return
@@ -25,9 +26,10 @@ class TerrainProfile(PlotextPlot):
         terrain = np.asarray(check.terrain_m, dtype=float)
         glide = np.asarray(check.glide_m, dtype=float)
         known = np.isfinite(terrain)
-        plt.plot(x[known], units.height(terrain[known]), label="terrain", color="orange", marker="braille")
-        plt.plot(x[known], units.height(terrain[known] + check.clearance_m), label="+ clearance", color="red",
-                 marker="braille")
+        # the key sits on the border: a legend inside would cover the start of the glide
+        self.border_subtitle = "[orange]━ terrain[/]  [red]━ terrain + clearance[/]  [cyan]━ glide[/]"
+        plt.plot(x[known], units.height(terrain[known]), color="orange", marker="braille")
+        plt.plot(x[known], units.height(terrain[known] + check.clearance_m), color="red", marker="braille")
         # a glide that ends below the ground is drawn down to a little under the lowest terrain,
         # not to wherever its line would go: the ground stays readable
         ground = terrain[known]
@@ -35,7 +37,7 @@ class TerrainProfile(PlotextPlot):
         top = float(np.nanmax([np.nanmax(glide), np.max(ground + check.clearance_m) if ground.size else floor]))
         low = floor - 0.1 * max(top - floor, 1.0)
         seen = glide >= low
-        plt.plot(x[seen], units.height(glide[seen]), label="glide", color="cyan", marker="braille")
+        plt.plot(x[seen], units.height(glide[seen]), color="cyan", marker="braille")
         y_low, y_high = units.height(low), units.height(top)
         y_ticks = nice_ticks(y_low, y_high, 4)
         plt.ylim(y_low, y_high)
