@@ -92,3 +92,17 @@ async def test_distance_and_course_mode_and_a_bad_entry(synthetic, acknowledged)
         await type_into(pilot, "glide-height", "k2000")
         assert app.screen.query_one("#glide-height").has_class("-invalid")
         assert verdict_text(app) == before  # the last good answer stays
+
+
+async def test_the_calculator_names_the_plans_own_final_glide(acknowledged):
+    from glidetask import paths
+    from glidetask.tui.widgets.plan_totals import final_glide_text
+
+    app = make_app(paths.demo_task())
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("4")
+        await settle(pilot)
+        await settle(pilot)
+        text = " ".join(verdict_text(app).split())
+        assert "The plan's own final glide: " + final_glide_text(app.plan.plan, METRIC) in text

@@ -223,7 +223,11 @@ class GlideView(ViewScreen):
             self.app.call_from_thread(self._show_answer, answer)
 
     def _show_answer(self, answer) -> None:
+        from glidetask.tui.widgets.plan_totals import final_glide_text
+
         self.answer = answer
-        self.query_one(GlideVerdict).show(answer, self.app.units)
+        outcome = self.app.plan
+        note = final_glide_text(outcome.plan, self.app.units) if outcome is not None else ""
+        self.query_one(GlideVerdict).show(answer, self.app.units, note)
         self.query_one(TerrainProfile).show(answer.terrain, self.app.units,
                                             answer.terrain_note or "needs a terrain model and a glide between two turnpoints")

@@ -23,7 +23,8 @@ def verdict_text(margin_m: float, units: UnitSystem) -> Text:
 class GlideVerdict(Static):
     """Verdict line, then the final-glide figures (contract 5.2 meanings)."""
 
-    def show(self, answer, units: UnitSystem) -> None:
+    def show(self, answer, units: UnitSystem, plan_note: str = "") -> None:
+        """The answer; ``plan_note``: where the plan itself starts its final glide, for comparison."""
         glide = answer.glide
         u = units
         grid = Table.grid(padding=(0, 2))
@@ -60,4 +61,7 @@ class GlideVerdict(Static):
         elif answer.terrain_note:
             parts.append(Text(""))
             parts.append(Text(answer.terrain_note, style="dim"))
+        if plan_note:
+            parts.append(Text(""))
+            parts.append(Text(f"The plan's own final glide: {plan_note}", style="dim"))
         self.update(Group(*parts))
