@@ -20,6 +20,7 @@ SLOWEST_SHARE = 0.15
 BEST_STYLE = "bold #12161c on #8cc66d"
 PLOT_STRENGTHS = 4  # curves in the plot
 PLOT_COLOURS = ("cyan", "green", "orange", "magenta")
+KEY_COLOURS = {"cyan": "ansi_cyan", "green": "ansi_green", "orange": "darkorange", "magenta": "ansi_magenta"}
 
 
 def heat_colour(share: float) -> str:
@@ -111,13 +112,13 @@ class SweepPlot(PlotextPlot):
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
-        hours = []
+        hours, key = [], []
         for colour, i in zip(PLOT_COLOURS, plotted_strengths(sweep)):
             row = sweep.task_time_s[i]
             finite = np.isfinite(row)
             hours += [float(row[finite].min()) / 3600.0, float(row[finite].max()) / 3600.0]
-            plt.plot(sweep.ballast_kg[finite], row[finite] / 3600.0, color=colour, marker="braille",
-                     label=strength_label(units, sweep.thermal_strength_ms[i]))
+            plt.plot(sweep.ballast_kg[finite], row[finite] / 3600.0, color=colour, marker="braille")
+            key.append(f"[{KEY_COLOURS[colour]}]━ {strength_label(units, sweep.thermal_strength_ms[i])}[/]")
             best = sweep.best_ballast_kg[i]
             if math.isfinite(best):
                 plt.scatter([best], [row[sweep.ballast_kg == best][0] / 3600.0], color=colour, marker="●")
@@ -126,6 +127,8 @@ class SweepPlot(PlotextPlot):
             plt.yticks(ticks, labels)
         x_ticks = nice_ticks(float(np.min(sweep.ballast_kg)), float(np.max(sweep.ballast_kg)), 4)
         plt.xticks(x_ticks, number_labels(x_ticks))
-        plt.xlabel("water ballast (kg)  ● best")
+        # the key sits on the border: a legend inside would cover the slowest, weakest day
+        self.border_subtitle = "  ".join(key) + "  ● best"
+        plt.xlabel("water ballast (kg)")
         plt.ylabel("task time (h:mm)")
         self.refresh()
