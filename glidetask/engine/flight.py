@@ -719,7 +719,7 @@ class _Simulation:
         drift = self.along[rows, k]
         gap = h - self.required(rows)
         closing = rate + self.hpm_fg[rows, k] * drift  # the gap grows by this per second
-        with np.errstate(invalid="ignore", divide="ignore"):
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
             to_final = np.where(gap >= 0.0, 0.0, np.where(closing > 0.0, -gap / closing, np.inf))
             to_leg_end = np.where(drift > 0.0, (self.distance[k] - s) / drift, np.inf)
         to_top = np.maximum(self.col["band_top_m"][rows] - h, 0.0) / rate

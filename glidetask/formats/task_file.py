@@ -515,7 +515,8 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
         lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
     else:
         lines.append(f"thermal_strength_ms = {_toml_value(_profile_value(day.thermal_strength))}")
-        lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    # The circling model uses the thermal radius with either profile (ballast comparisons, odds).
+    lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
     lines += [f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}",
               f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
               f"isa_deviation_c = {_toml_value(day.isa_deviation_c)}"]

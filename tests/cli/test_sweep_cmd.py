@@ -92,8 +92,9 @@ def test_a_glider_without_water_sweeps_one_column(capsys):
 def test_aviation_units(capsys):
     assert main(["sweep", TRIANGLE, "--units", "aviation"]) == 0
     text = capsys.readouterr().out
-    # Source: 1 kt = 0.514444 m/s (contract section 6): 5.0 m/s = 9.7 kt; 150 m = 492 ft
-    assert "9.7 kt" in text and "492 ft" in text
+    # Source: 1 kt = 0.514444 m/s and 1 ft = 0.3048 m (contract section 6): 5.0 m/s = 9.7 kt;
+    # the triangle's 250 m thermal radius = 820 ft
+    assert "9.7 kt" in text and "820 ft" in text
 
 
 def test_bad_task_file_exits_2_with_the_contract_line(capsys, tmp_path):
