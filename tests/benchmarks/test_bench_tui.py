@@ -81,7 +81,6 @@ def test_bench_first_screen(benchmark, tmp_path):
 
 def test_bench_edit_recompute(benchmark):
     """What the worker does after a keystroke: apply the field, plan, put the plan in contract form."""
-    pytest.importorskip("glidetask.engine.planner")
     from glidetask import paths, units
     from glidetask.tui import recompute
     from glidetask.tui.session import EditSession
@@ -140,7 +139,6 @@ def _edit_to_screen_s(edits: int) -> list[float]:
 
 def test_bench_edit_to_screen(benchmark, tmp_path, monkeypatch):
     """An edit's whole path in the app: message, session, worker plan, the views' redraw."""
-    pytest.importorskip("glidetask.engine.planner")
     monkeypatch.setenv("XDG_CONFIG_HOME", str(tmp_path))
     if benchmark.disabled:
         assert len(benchmark(_edit_to_screen_s, 2)) == 2

@@ -10,7 +10,6 @@ from conftest import settle
 from glidetask import cautions
 from glidetask.tui.app import make_app
 
-pytest.importorskip("glidetask.formats.briefing")
 
 
 async def export_to(pilot, path, radio_id: str | None = None) -> None:

@@ -22,7 +22,6 @@ from glidetask.engine.scenario import Wind
 from glidetask.tui.app import make_app
 from glidetask.units import KMH
 
-pytest.importorskip("glidetask.engine.planner")
 
 
 async def type_into(pilot, field_id: str, text: str) -> None:

@@ -17,7 +17,6 @@ from conftest import settle
 
 from glidetask.tui.app import VIEWS, make_app
 
-pytest.importorskip("glidetask.engine.planner")
 
 TIMEOUT_S = 60.0
 
