@@ -123,7 +123,7 @@ def landables_to_dict(c, leg_names: Sequence | None = None) -> dict:
 # ---------------------------------------------------------------- text
 
 
-def _terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
+def terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
     """(label, text) pairs describing the checked final glide; shared by text and Markdown."""
     if t.lowest is None:
         return [("verdict", "NOT CHECKED: the terrain model covers none of the final glide")]
@@ -154,10 +154,10 @@ def _terrain_facts(t, units: UnitSystem) -> list[tuple[str, str]]:
 def terrain_text(t, units: UnitSystem) -> str:
     """A readable section on the final glide over the terrain (text plan, ``glide`` command)."""
     title = "Final glide over the terrain" + (f" (model {t.source})" if t.source else "")
-    return "\n".join([title] + [f"  {label:<17} {text}" for label, text in _terrain_facts(t, units)])
+    return "\n".join([title] + [f"  {label:<17} {text}" for label, text in terrain_facts(t, units)])
 
 
-def _gap_whys(c, units: UnitSystem) -> list[str]:
+def gap_explanations(c, units: UnitSystem) -> list[str]:
     """Each gap's main cause, and the others with their lengths."""
     whys = []
     for reason, parts in zip(c.gap_reasons(), c.gap_breakdown()):
@@ -178,7 +178,7 @@ def landables_text(c, units: UnitSystem, leg_names: Sequence | None = None) -> s
     lines.append(f"  coverage   {c.coverage_percent:.0f}% of the task")
     if not c.gaps:
         lines.append("  gaps       none")
-    for (start, end), why in zip(c.gaps, _gap_whys(c, units)):
+    for (start, end), why in zip(c.gaps, gap_explanations(c, units)):
         lines.append(f"  gap        {units.fmt_distance(start)} to {units.fmt_distance(end)}"
                      f" ({units.fmt_distance(end - start)}): {why}")
     for entry in c.by_leg:
@@ -264,7 +264,7 @@ def terrain_markdown(t, units: UnitSystem, *, table: bool = True) -> str:
     lines = ["## Final glide over the terrain", ""]
     if t.source:
         lines += [f"Elevation model: `{t.source}`.", ""]
-    lines += [f"- **{label.capitalize()}:** {text}" for label, text in _terrain_facts(t, units)]
+    lines += [f"- **{label.capitalize()}:** {text}" for label, text in terrain_facts(t, units)]
     if t.lowest is None:
         return "\n".join(lines + ["", *(f"> - {text}" for text in terrain_cautions(t, units))]) + "\n"
     lines += ["", "```", terrain_profile_ascii(t, units), "```"]
@@ -301,7 +301,7 @@ def landables_markdown(c, units: UnitSystem, leg_names: Sequence | None = None) 
     lines += [f"**Coverage: {c.coverage_percent:.0f}% of the task.**", ""]
     if c.gaps:
         lines += [f"| Gap from ({d}) | to ({d}) | length ({d}) | why |", "|---:|---:|---:|---|"]
-        for (start, end), why in zip(c.gaps, _gap_whys(c, units)):
+        for (start, end), why in zip(c.gaps, gap_explanations(c, units)):
             lines.append(f"| {units.distance(start):.1f} | {units.distance(end):.1f} | "
                          f"{units.distance(end - start):.1f} | {why} |")
     else:

@@ -67,7 +67,7 @@ class SafetyView(ViewScreen):
         return {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
 
     def _show_landables(self, plan) -> None:
-        from glidetask.formats.safety_report import _gap_whys
+        from glidetask.formats.safety_report import gap_explanations
 
         units, c = self.app.units, plan.landables
         summary = self.query_one("#coverage-summary", Static)
@@ -89,7 +89,7 @@ class SafetyView(ViewScreen):
         d = units.distance_label
         for key, label in (("from", f"From {d}"), ("to", f"To {d}"), ("length", f"Length {d}"), ("why", "Why")):
             gaps_table.add_column(label, key=key)
-        for index, ((start, end), why) in enumerate(zip(c.gaps, _gap_whys(c, units))):
+        for index, ((start, end), why) in enumerate(zip(c.gaps, gap_explanations(c, units))):
             gaps_table.add_row(*(Text(display.distance(units, v), justify="right") for v in (start, end, end - start)),
                                why, key=f"gap-{index}")
         codes = self._codes()
@@ -106,7 +106,7 @@ class SafetyView(ViewScreen):
     # ------------------------------------------------------------ terrain
 
     def _show_terrain(self, plan) -> None:
-        from glidetask.formats.safety_report import _terrain_facts
+        from glidetask.formats.safety_report import terrain_facts
 
         units = self.app.units
         widget = self.query_one("#terrain-summary", Static)
@@ -123,7 +123,7 @@ class SafetyView(ViewScreen):
             profile.show(None, units, "no final glide in this plan")
             return
         lines = []
-        for label, text in _terrain_facts(terrain, units):
+        for label, text in terrain_facts(terrain, units):
             style = "" if label != "verdict" else GOOD if terrain.ok else BAD
             lines.append(Text.assemble((f"{label:<16}", "dim"), (text, style)))
         lines.append(Text(f"model {source}", style="dim"))
