@@ -13,24 +13,12 @@ import pytest
 
 from glidetask import cautions
 from glidetask.cli import main
+from polar_text import GOOD
 
 ROOT = Path(__file__).resolve().parents[2]
 RACING = str(ROOT / "polars" / "racing-15m.toml")
 ERROR_LINE = re.compile(r"^glidetask: error: [^:]+: [^:]+: .+$")
 
-GOOD = """\
-[glider]
-label = "test example"
-wing_area_m2 = 10.5
-reference_mass_kg = 350.0
-empty_mass_kg = 255.0
-max_ballast_kg = 170.0
-max_mass_kg = 525.0
-vne_kmh = 270.0
-min_speed_kmh = 75.0
-[polar]
-points = [[80.0, 0.62], [120.0, 0.80], [180.0, 1.85]]
-"""
 
 
 def _json(capsys, *argv: str) -> dict:

@@ -17,15 +17,9 @@ from glidetask.engine.circling import (
     turn_radius,
     updraft,
 )
-from glidetask.engine.polar import PolarSpec, scaled_polar
+from glidetask.engine.polar import scaled_polar
+from invented_polar import KMH, SPEC
 
-KMH = 1 / 3.6
-# An invented polar, not any real aircraft.
-SPEC = PolarSpec(
-    label="test 15 m", wing_area_m2=10.5, reference_mass_kg=350.0, empty_mass_kg=260.0,
-    max_ballast_kg=170.0, max_mass_kg=525.0, vne_ias_ms=270 * KMH, min_speed_ias_ms=70 * KMH,
-    points=((80 * KMH, 0.62), (100 * KMH, 0.64), (120 * KMH, 0.80), (150 * KMH, 1.20), (180 * KMH, 1.85)),
-)
 
 
 def test_load_factor_of_standard_banks():

@@ -10,18 +10,10 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from glidetask.engine.finalglide import final_glide, height_used, mc_to_arrive
-from glidetask.engine.polar import PolarSpec, scaled_polar
 from glidetask.engine.scenario import Wind
 from glidetask.engine.wind import wind_components
+from invented_polar import KMH, POLAR, SPEC
 
-KMH = 1 / 3.6
-# An invented polar, not any real aircraft.
-SPEC = PolarSpec(
-    label="test 15 m", wing_area_m2=10.5, reference_mass_kg=350.0, empty_mass_kg=260.0,
-    max_ballast_kg=170.0, max_mass_kg=525.0, vne_ias_ms=270 * KMH, min_speed_ias_ms=70 * KMH,
-    points=((80 * KMH, 0.62), (100 * KMH, 0.64), (120 * KMH, 0.80), (150 * KMH, 1.20), (180 * KMH, 1.85)),
-)
-POLAR = scaled_polar(SPEC, 420.0)
 
 distances = st.floats(1000.0, 150000.0)
 directions = st.floats(0.0, 360.0)

@@ -10,22 +10,15 @@ from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 from scipy.optimize import minimize_scalar
 
-from glidetask.engine.polar import PolarSpec, scaled_polar
+from glidetask.engine.polar import scaled_polar
 from glidetask.engine.speedtofly import (
     cruise_in_wind,
     glide_in_wind,
     macready_for_speed,
     speed_to_fly_still_air,
 )
+from invented_polar import POLAR, SPEC
 
-KMH = 1 / 3.6
-# An invented polar, not any real aircraft.
-SPEC = PolarSpec(
-    label="test 15 m", wing_area_m2=10.5, reference_mass_kg=350.0, empty_mass_kg=260.0,
-    max_ballast_kg=170.0, max_mass_kg=525.0, vne_ias_ms=270 * KMH, min_speed_ias_ms=70 * KMH,
-    points=((80 * KMH, 0.62), (100 * KMH, 0.64), (120 * KMH, 0.80), (150 * KMH, 1.20), (180 * KMH, 1.85)),
-)
-POLAR = scaled_polar(SPEC, 420.0)
 
 settings_ = st.floats(0.0, 5.0)
 winds = st.floats(-15.0, 15.0)

@@ -10,20 +10,8 @@ import pytest
 from glidetask.engine.polar import scaled_polar
 from glidetask.errors import InputError
 from glidetask.formats.polar_file import load_polar_spec, loading_problems, polar_problems, read_polar_spec
+from polar_text import GOOD
 
-GOOD = """\
-[glider]
-label = "test example"
-wing_area_m2 = 10.5
-reference_mass_kg = 350.0
-empty_mass_kg = 255.0
-max_ballast_kg = 170.0
-max_mass_kg = 525.0
-vne_kmh = 270.0
-min_speed_kmh = 75.0
-[polar]
-points = [[80.0, 0.62], [120.0, 0.80], [180.0, 1.85]]
-"""
 
 
 def _write(tmp_path: Path, text: str, name: str = "p.toml") -> Path:
