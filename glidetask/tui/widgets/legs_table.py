@@ -99,6 +99,17 @@ class LegsTable(DataTable):
                 cells.append(Text(cell_text(kind, getattr(leg, attribute), units), justify="right"))
             self.add_row(*cells, key=f"leg-{index + 1}")
 
+    def on_idle(self) -> None:
+        # Textual 8's DataTable widens its columns for new rows when idle, without
+        # invalidating lines it already drew: a header drawn in between kept the old widths
+        # (seen under load). Once the widths are settled, draw every line afresh.
+        if self._require_update_dimensions:
+            self.call_later(self._redraw_with_settled_widths)
+
+    def _redraw_with_settled_widths(self) -> None:
+        self._clear_caches()
+        self.refresh()
+
     def cell(self, row: int, key: str) -> str:
         """The text in leg ``row`` (0-based), column ``key`` (for tests and screen readers)."""
         value = self.get_cell(f"leg-{row + 1}", key)
