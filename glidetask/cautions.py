@@ -63,7 +63,7 @@ def compass(bearing_deg: float) -> str:
 def place(point, units: "UnitSystem") -> str:
     """A terrain point in words: ``"terrain of 1180 m at 287.3 km (4.1 km NNE of Orsby)"``.
 
-    ``point`` is a :class:`glidetask.engine.terrain.TerrainPoint`.
+    ``point`` is a :class:`glidetask.engine.clearance.TerrainPoint`.
     """
     text = f"terrain of {units.fmt_height(point.elevation_m)} at {units.fmt_distance(point.at_m)}"
     if point.near is not None:
@@ -81,7 +81,7 @@ def _stretches(ranges: Iterable[tuple[float, float]], units: "UnitSystem") -> st
 
 def terrain_cautions(t, units: "UnitSystem") -> list[str]:
     """The terrain cautions, general and for this glide, for a
-    :class:`glidetask.engine.terrain.FinalGlideTerrain` (text, JSON and briefing)."""
+    :class:`glidetask.engine.clearance.FinalGlideTerrain` (text, JSON and briefing)."""
     out = list(TERRAIN)
     if t.covered_share < 1.0:
         model = f"The terrain model {t.source}" if t.source else "The terrain model"
@@ -100,7 +100,7 @@ def path_not_covered(source: str | None, covered_share: float, uncovered, units:
     """The caution for a planned path the elevation model covers only in part.
 
     ``covered_share`` [0-1] and ``uncovered`` (``(from_m, to_m)`` stretches) are those of
-    :class:`glidetask.engine.terrain.PathProfile`.
+    :class:`glidetask.engine.terrain_profile.PathProfile`.
     """
     model = f"The terrain model {source}" if source else "The terrain model"
     return (f"{model} does not cover {100.0 * (1.0 - covered_share):.0f}% of the planned path "

@@ -4,7 +4,7 @@ Called by :mod:`glidetask.commands.glide` (imported only when ``--terrain`` is g
 plain glide check never loads rasterio). The glide line runs from the present height at
 ``--from`` down the straight geodesic to ``--to`` at the height used per metre of the
 final glide just computed, and is checked over the elevation model with
-:func:`glidetask.engine.terrain.final_glide_over_terrain`: the least clearance and where,
+:func:`glidetask.engine.clearance.final_glide_over_terrain`: the least clearance and where,
 and the height needed to clear the terrain by ``--clearance-m`` all the way. Without
 ``--arrival-elevation-m`` the goal's elevation is the model's at ``--to``
 (:func:`goal_elevation`), so the verdict and the terrain check agree on it.
@@ -104,7 +104,7 @@ def check(args: argparse.Namespace, polar, result) -> tuple[dict, str]:
         The terrain file is missing, not a raster, or has no CRS.
     """
     from glidetask.engine import geodesy
-    from glidetask.engine.terrain import final_glide_over_terrain
+    from glidetask.engine.clearance import final_glide_over_terrain
 
     model = _load(args.terrain)
     shown = unit_systems.by_name(args.units)

@@ -13,7 +13,7 @@ The rules of the flight are the contract's section 3 (see :mod:`glidetask.engine
 inputs, for the ballast sweep and the Monte-Carlo days, which vary them per flight.
 
 Safety over the ground: when the task names an elevation model (``[terrain] file``) the
-plan samples it along every path it flies (:func:`glidetask.engine.terrain.path_terrain`),
+plan samples it along every path it flies (:func:`glidetask.engine.clearance_hook.path_terrain`),
 lets it raise the final-glide requirement wherever the terrain ahead demands more height
 than the arrival margin, and reports the final glide over the terrain from the same
 samples (:attr:`Plan.terrain`). Whenever the turnpoint collection has landable fields it
@@ -158,14 +158,14 @@ class Plan:
         The flight core's full result (one flight).
     terrain : FinalGlideTerrain or None
         The final glide checked over the elevation model
-        (:class:`glidetask.engine.terrain.FinalGlideTerrain`), from the same samples that
+        (:class:`glidetask.engine.clearance.FinalGlideTerrain`), from the same samples that
         raised its requirement; None without a model or without a final glide.
     landables : Coverage or None
         Landable coverage along the planned path from the band bottom
         (:class:`glidetask.engine.reach.Coverage`); None when no turnpoint is landable.
     requirement : RequirementHook or None
         The extra final-glide requirement the plan was flown with (a
-        :class:`glidetask.engine.terrain.PathTerrain` when the task has a model).
+        :class:`glidetask.engine.clearance_hook.PathTerrain` when the task has a model).
     terrain_source : str or None
         The elevation model's file when the task has one (even when no final glide
         could be checked), as the task names it: relative to the task file
@@ -576,7 +576,7 @@ def terrain_requirement(model):
     The samples are cached by path, model and clearance: a replan after an edit that
     leaves the path alone (the day, the glider, the margins) samples nothing again.
     """
-    from glidetask.engine.terrain import path_terrain
+    from glidetask.engine.clearance_hook import path_terrain
 
     def requirement_for(scenario: Scenario, path):
         clearance = scenario.safety.terrain_clearance_m

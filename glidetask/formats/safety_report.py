@@ -4,7 +4,7 @@ JSON objects (shared/CONTRACT.md 5.3 ``terrain`` and ``landables``, with extra k
 readable sections for the text plan and the ``glide`` command, Markdown sections for the
 pre-flight briefing, and the cautions that go with them (worded in :mod:`glidetask.cautions`,
 the one source the plan's own cautions come from too). Everything here formats results of
-:mod:`glidetask.engine.terrain` and :mod:`glidetask.engine.reach`; nothing is computed again.
+:mod:`glidetask.engine.clearance` and :mod:`glidetask.engine.reach`; nothing is computed again.
 """
 
 from __future__ import annotations
@@ -60,7 +60,7 @@ def _point_dict(point) -> dict | None:
 
 
 def terrain_to_dict(t, source: str | None = None) -> dict:
-    """The contract's ``terrain`` object for a :class:`~glidetask.engine.terrain.FinalGlideTerrain`.
+    """The contract's ``terrain`` object for a :class:`~glidetask.engine.clearance.FinalGlideTerrain`.
 
     Keys of the contract: ``source``, ``ok``, ``final_glide_min_clearance_m`` (least height
     of the final glide as planned above the terrain), ``at_km`` (where, along the task).

@@ -74,7 +74,7 @@ class GlideAnswer:
     question: GlideQuestion
     glide: object  # engine.finalglide.FinalGlide
     altitude_m: float  # where the polar's density is taken [m MSL]
-    terrain: object | None = None  # engine.terrain.FinalGlideTerrain
+    terrain: object | None = None  # engine.clearance.FinalGlideTerrain
     terrain_note: str = ""
 
 
@@ -105,7 +105,8 @@ def answer_glide(scenario: Scenario, question: GlideQuestion, *, with_terrain: b
 
 
 def _terrain_check(scenario: Scenario, question: GlideQuestion, glide):
-    from glidetask.engine.terrain import final_glide_over_terrain, load_terrain
+    from glidetask.engine.clearance import final_glide_over_terrain
+    from glidetask.engine.terrain import load_terrain
 
     per_metre = float(glide.height_used_m) / question.distance_m
     if not np.isfinite(per_metre):

@@ -21,10 +21,9 @@ from hypothesis import strategies as st
 from pyproj import Transformer
 from affine import Affine
 
-from glidetask.engine.terrain import (
-    Terrain, TerrainError, clear_cache, final_glide_clearance, final_glide_over_terrain,
-    load_terrain, required_height_line, sample_path,
-)
+from glidetask.engine.clearance import final_glide_clearance, final_glide_over_terrain, required_height_line
+from glidetask.engine.terrain import Terrain, TerrainError, clear_cache, load_terrain
+from glidetask.engine.terrain_profile import sample_path
 
 WGS84 = Geodesic.WGS84
 UTM25 = "EPSG:32625"  # UTM zone 25 north: 36 W to 30 W, where the demo region lies
@@ -483,7 +482,7 @@ def wall_path(tmp_path):
 
 
 def test_the_requirement_hook_and_the_final_glide_report_agree(wall_path):
-    from glidetask.engine.terrain import path_terrain
+    from glidetask.engine.clearance_hook import path_terrain
 
     terrain, v_lats, column = wall_path
     along = path_terrain(terrain, v_lats, [column] * 3, CLEARANCE)
@@ -509,7 +508,7 @@ def test_the_requirement_hook_and_the_final_glide_report_agree(wall_path):
 
 
 def test_the_requirement_hook_takes_many_flights_at_once(wall_path):
-    from glidetask.engine.terrain import path_terrain
+    from glidetask.engine.clearance_hook import path_terrain
 
     terrain, v_lats, column = wall_path
     along = path_terrain(terrain, v_lats, [column] * 3, CLEARANCE)
@@ -557,7 +556,7 @@ def direct_extra_required(profile, clearance_m, position_m, height_per_metre, fl
 
 
 def _profile(distance, elevation, vertex):
-    from glidetask.engine.terrain import PathProfile
+    from glidetask.engine.terrain_profile import PathProfile
 
     distance = np.asarray(distance, dtype=float)
     segment = np.clip(np.searchsorted(vertex, distance, side="right") - 1, 0, max(len(vertex) - 2, 0))
@@ -603,11 +602,11 @@ SEARCHES = pytest.mark.parametrize("direct_limit", [0, 10**12], ids=["hulls", "e
 def test_the_fast_requirement_hook_equals_the_direct_maximum(direct_limit, case):
     # The hook searches convex hulls of the samples ahead instead of every sample: the
     # answer must be the direct maximum's, to round-off (1e-9 m).
-    from glidetask.engine import terrain
+    from glidetask.engine import clearance_hook
 
     profile, clearance, position, per_metre, floor = case
-    with mock.patch.object(terrain, "DIRECT_PAIRS_LIMIT", direct_limit):
-        fast = terrain.PathTerrain(profile, clearance)(position, per_metre, floor)
+    with mock.patch.object(clearance_hook, "DIRECT_PAIRS_LIMIT", direct_limit):
+        fast = clearance_hook.PathTerrain(profile, clearance)(position, per_metre, floor)
     direct = direct_extra_required(profile, clearance, position, per_metre, floor)
     np.testing.assert_allclose(fast, direct, rtol=0.0, atol=1e-9)
 
@@ -616,9 +615,9 @@ def test_the_fast_requirement_hook_equals_the_direct_maximum(direct_limit, case)
 def test_the_fast_requirement_hook_equals_the_direct_maximum_over_the_demo_terrain(direct_limit, demo_dir):
     # The demo triangle's planned path over the demo model (hills, a ridge, the plain), and
     # final-glide tables across the whole plausible range (glide ratios 15 to 60).
-    from glidetask.engine import terrain
+    from glidetask.engine import clearance_hook
+    from glidetask.engine.clearance_hook import path_terrain
     from glidetask.engine.task import optimized_path
-    from glidetask.engine.terrain import path_terrain
     from glidetask.formats.task_file import load_scenario
 
     scenario = load_scenario(demo_dir / "vardmoor-triangle-300.toml")
@@ -629,7 +628,7 @@ def test_the_fast_requirement_hook_equals_the_direct_maximum_over_the_demo_terra
     position = rng.uniform(0.0, along.profile.total_m, count)
     per_metre = rng.uniform(1 / 60.0, 1 / 15.0, (count, len(path.legs)))
     floor = rng.uniform(100.0, 800.0, count)
-    with mock.patch.object(terrain, "DIRECT_PAIRS_LIMIT", direct_limit):
+    with mock.patch.object(clearance_hook, "DIRECT_PAIRS_LIMIT", direct_limit):
         fast = along(position, per_metre, floor)
     assert np.count_nonzero(fast) > count // 4  # the terrain does decide somewhere
     direct = direct_extra_required(along.profile, 150.0, position, per_metre, floor)

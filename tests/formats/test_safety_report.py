@@ -19,7 +19,7 @@ from glidetask.engine.polar import PolarSpec, scaled_polar
 from glidetask.engine.reach import coverage
 from glidetask.engine.scenario import Wind
 from glidetask.engine.task import Turnpoint
-from glidetask.engine.terrain import final_glide_clearance
+from glidetask.engine.clearance import final_glide_clearance
 from glidetask.formats import safety_report as report
 from glidetask.units import AVIATION, METRIC
 

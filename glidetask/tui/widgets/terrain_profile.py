@@ -13,7 +13,7 @@ class TerrainProfile(PlotextPlot):
     """Terrain (brown), the glide line (cyan) and terrain plus clearance (red dots)."""
 
     def show(self, check, units: UnitSystem, note: str = "") -> None:
-        """Draw ``check`` (an ``engine.terrain.FinalGlideTerrain``); None: ``note`` instead."""
+        """Draw ``check`` (an ``engine.clearance.FinalGlideTerrain``); None: ``note`` instead."""
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
