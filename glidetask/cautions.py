@@ -1,7 +1,7 @@
 """The cautions every output a pilot may act on carries.
 
 One source of truth: the command line, the briefing, the JSON, the terminal UI and the
-plan itself (:attr:`glidetask.engine.planner.Plan.cautions`) all take their wording from
+plan itself (:attr:`glidetask.engine.plan.Plan.cautions`) all take their wording from
 here. The general cautions are constants; the terrain and landable cautions of one plan
 or one glide are worded by the functions below from the engine's results (read by their
 attributes, so this module imports nothing) in the unit system the reader chose.

@@ -40,7 +40,7 @@ _MATCHES = (
 
 def test_importing_every_engine_module_imports_no_ui_no_formats_and_no_rasterio():
     modules = _engine_modules()
-    assert "glidetask.engine.polar" in modules and "glidetask.engine.planner" in modules
+    assert "glidetask.engine.polar" in modules and "glidetask.engine.plan" in modules
     script = (
         "import importlib, sys\n" + _MATCHES +
         f"for name in {modules!r}:\n"
@@ -68,8 +68,8 @@ def test_planning_a_demo_task_imports_no_formats_commands_or_ui(task, terrain):
         f"if not {terrain!r}:\n"
         "    scenario = dataclasses.replace(scenario, terrain_file=None)\n"
         "before = set(sys.modules)\n"
-        "import glidetask.engine.planner as planner\n"
-        "result = planner.plan(scenario)\n"
+        "import glidetask.engine.plan as planning\n"
+        "result = planning.plan(scenario)\n"
         "added = sorted(set(sys.modules) - before)\n"
         f"forbidden = {FORBIDDEN + (() if terrain else ('rasterio',))!r}\n"
         "print(json.dumps({'bad': [m for m in added if matches(m, forbidden)],\n"

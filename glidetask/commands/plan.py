@@ -46,7 +46,7 @@ def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = No
     the task file's, and the what-ifs' against the task (e.g. ballast above the polar's
     maximum).
     """
-    from glidetask.engine.planner import plan, with_what_ifs
+    from glidetask.engine.plan import plan, with_what_ifs
     from glidetask.engine.scenario import Wind
     from glidetask.formats.task_file import load_scenario
 
@@ -239,7 +239,7 @@ def _general():
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.engine.planner import plan_sensitivity
+    from glidetask.engine.compare import plan_sensitivity
 
     plan = plan_from_args(args)
     sensitivity = plan_sensitivity(plan)

@@ -1,6 +1,6 @@
 """Ballast against thermal strength, and how the task time answers to the day.
 
-Two questions asked on the launch grid, answered with the planner's own flight core
+Two questions asked on the launch grid, answered with the plan's own flight core
 (:func:`glidetask.engine.flight.fly`), never a second model of the flight:
 
 * :func:`ballast_sweep`: the task with its wind flown for every ballast from empty to
@@ -11,7 +11,7 @@ Two questions asked on the launch grid, answered with the planner's own flight c
   and gains speed only in the glides. The best ballast per strength and where ballast
   starts (and stops) paying follow.
 * :func:`sensitivity`: the planned task time for a few what-ifs (weaker climbs, more
-  wind, a later start, bugs), each flown exactly as :func:`glidetask.engine.planner.plan`
+  wind, a later start, bugs), each flown exactly as :func:`glidetask.engine.plan.plan`
   flies it, all in one vectorised call.
 
 References
@@ -35,7 +35,10 @@ from typing import Sequence
 
 import numpy as np
 
-from glidetask.engine.flight import Flights, Flown, fly
+from glidetask.engine import plan as planning
+from glidetask.engine.flight import Flights, Flown, course_for, flights_for, fly
+from glidetask.engine.plan import Plan, with_what_ifs
+from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
 from glidetask.engine.scenario import Profile, Scenario, Wind
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
@@ -96,7 +99,7 @@ def planned_route(scenario: Scenario, path=None, requirement=TASK_TERRAIN):
     ----------
     scenario : Scenario
     path : TaskPath, optional
-        The planned path; default the one :func:`glidetask.engine.planner.plan` chooses
+        The planned path; default the one :func:`glidetask.engine.plan.plan` chooses
         (racing: optimized; area: the chosen targets), and then its hook as well.
     requirement : RequirementHook, None or "task"
         Extra final-glide height along the path; ``"task"`` (default): what ``plan()``
@@ -106,29 +109,23 @@ def planned_route(scenario: Scenario, path=None, requirement=TASK_TERRAIN):
     -------
     (TaskPath, RequirementHook or None)
     """
-    from glidetask.engine import planner
-
     if path is None:
-        planned = planner.plan(scenario)
+        planned = planning.plan(scenario)
         return planned.path, planned.requirement
     if isinstance(requirement, str):
         if requirement != TASK_TERRAIN:
             raise ValueError(f"requirement must be a hook, None or {TASK_TERRAIN!r}")
-        model = planner.load_terrain_for(scenario)
-        requirement = None if model is None else planner.terrain_requirement(model)(scenario, path)
+        model = load_terrain_for(scenario)
+        requirement = None if model is None else terrain_requirement(model)(scenario, path)
     return path, requirement
 
 
 def _band_polar(scenario: Scenario, ballast_kg):
     """The polar at each ballast at the density of the middle of the working band (as the
     flight core flies it)."""
-    from glidetask.engine.atmosphere import density_ratio
-    from glidetask.engine.polar import scaled_polar
-
-    glider, day = scenario.glider, scenario.day
-    mass = glider.spec.empty_mass_kg + glider.pilot_kg + np.asarray(ballast_kg, dtype=float)
-    sigma = density_ratio(0.5 * (day.band_top_m + day.band_bottom_m), day.isa_deviation_c)
-    return scaled_polar(glider.spec, mass, glider.bugs_percent, sigma)
+    day = scenario.day
+    return scenario.glider.polar_at(day.band_middle_m, day.isa_deviation_c,
+                                    ballast_kg=np.asarray(ballast_kg, dtype=float))
 
 
 def strength_for_climb(scenario: Scenario, climb_ms):
@@ -314,7 +311,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         from empty to full).
     path, requirement : optional
         The planned path and its final-glide requirement (see :func:`planned_route`;
-        default: as :func:`glidetask.engine.planner.plan` flies the task).
+        default: as :func:`glidetask.engine.plan.plan` flies the task).
     phases : int
         Positions of the climbs along the route to average over (>= 1).
 
@@ -324,7 +321,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
 
     Notes
     -----
-    Every flight is the planner's (:func:`glidetask.engine.planner.flights_for`) with the
+    Every flight is the planner's (:func:`glidetask.engine.flight.flights_for`) with the
     mass of its ballast and a thermal-strength profile held at the row's strength; the
     MacCready setting follows the achieved climb (a fixed setting in the day would not
     suit every strength), the final-glide setting and margins are the scenario's.
@@ -343,7 +340,6 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     of the fastest: water that buys less is not worth carrying, and the model
     cannot tell such gains apart.
     """
-    from glidetask.engine.planner import course_for, flights_for
 
     if phases < 1:
         raise ValueError("phases must be at least 1")
@@ -358,7 +354,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     s_grid, b_grid, h_grid = np.meshgrid(strengths, ballast, starts, indexing="ij")
     base = flights_for(scenario)
     flights = dataclasses.replace(
-        base, mass_kg=(glider.spec.empty_mass_kg + glider.pilot_kg + b_grid).ravel(),
+        base, mass_kg=glider.mass_with_ballast_kg(b_grid).ravel(),
         start_height_m=h_grid.ravel(), lift_scale=s_grid.ravel(), lift_times_s=(day.start_time_s,),
         lift_values=(1.0,), lift_is_strength=True, mc_ms=math.nan)
     flown = fly(course_for(path), flights, requirement=requirement, detail=False)
@@ -371,7 +367,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     best = _best_ballast(task_time, ballast)
     return BallastSweep(
         task_name=scenario.task.name, planned_distance_m=float(path.total_m), ballast_kg=ballast,
-        mass_kg=glider.spec.empty_mass_kg + glider.pilot_kg + ballast, thermal_strength_ms=strengths,
+        mass_kg=glider.mass_with_ballast_kg(ballast), thermal_strength_ms=strengths,
         thermal_radius_m=float(day.thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
         task_time_s=task_time, best_ballast_kg=best, fastest_ballast_kg=_fastest_ballast(task_time, ballast),
         ballast_pays_from_ms=_first_strength(strengths, best > 0.0),
@@ -492,7 +488,6 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
     """``(key, label, change, scenario)`` for the forecast and each what-if of
     :data:`WHAT_IFS`; the scenario is None where the what-if cannot be flown (a start at
     or after the end of lift)."""
-    from glidetask.engine.planner import with_what_ifs
     from glidetask.errors import InputError
     from glidetask.units import format_clock
 
@@ -530,7 +525,7 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
         The forecast (its task, glider, day and margins).
     path, requirement : optional
         The planned path and its final-glide requirement (see :func:`planned_route`;
-        default: as :func:`glidetask.engine.planner.plan` flies the task).
+        default: as :func:`glidetask.engine.plan.plan` flies the task).
 
     Returns
     -------
@@ -539,7 +534,7 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
 
     Notes
     -----
-    Each what-if is a scenario built as :func:`glidetask.engine.planner.plan` builds it
+    Each what-if is a scenario built as :func:`glidetask.engine.plan.plan` builds it
     (its ``with_what_ifs`` for wind, start and bugs; the day's climb or thermal-strength
     profile lowered by 0.5 m/s, not below 0, for weaker climbs) and turned into the core's
     inputs by the planner's ``flights_for``; all are flown in one call over the planned
@@ -548,7 +543,6 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
     targets stay where the forecast plan put them (the planner would move them to keep
     the minimum time), so the change shows as time rather than distance.
     """
-    from glidetask.engine.planner import course_for, flights_for
 
     path, requirement = planned_route(scenario, path, requirement)
     variants = what_if_scenarios(scenario)
@@ -585,3 +579,11 @@ def _sensitivity_row(key: str, label: str, change: str, flown: Flown | None, sce
         speed = path.total_m / total
     return SensitivityRow(key, label, change, total, math.nan, finished, float(flown.finish_time_s[0]),
                           float(flown.landout_m[0]), speed)
+
+
+def plan_sensitivity(plan: Plan):
+    """How the task time answers to the day: the plan flown again with climbs 0.5 m/s weaker,
+    10 km/h more wind, a 30-minute later start and 5 % more bugs, over the planned path with
+    the plan's own final-glide requirement (the terrain), so the forecast row is the plan
+    (:func:`glidetask.engine.compare.sensitivity`, one vectorised flight of five)."""
+    return sensitivity(plan.scenario, path=plan.path, requirement=plan.requirement)

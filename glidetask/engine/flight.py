@@ -54,8 +54,10 @@ import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
+from glidetask.engine.scenario import Scenario, band_middle_m
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind, speed_to_fly_still_air
 from glidetask.engine.wind import wind_components
+
 
 # Why a flight ended (``Flown.reason``). A finished flight has FINAL_GLIDE, or the reason
 # its climbs stopped if it then glided home at MacCready 0.
@@ -337,6 +339,39 @@ def fly(course: Course, flights: Flights, *, search: SearchHook | None = None,
     return simulation.result(detail)
 
 
+# ---------------------------------------------------------------- the core's inputs from a scenario
+
+
+def course_for(path) -> Course:
+    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`)."""
+    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs])
+
+
+def flights_for(scenario: Scenario) -> Flights:
+    """The flight core's inputs for one flight of ``scenario`` (scalars; vary them with
+    :func:`dataclasses.replace` to fly many).
+
+    The lift profile is the day's achieved climb, or its thermal strength
+    (``lift_is_strength``) for the circling model. Fixed settings absent from the
+    scenario are NaN (the core then follows the climb of each cycle).
+    """
+    day, glider, safety = scenario.day, scenario.glider, scenario.safety
+    profile = day.climb if day.climb is not None else day.thermal_strength
+    nan = float("nan")
+    return Flights(
+        spec=glider.spec, mass_kg=glider.mass_kg, bugs_percent=glider.bugs_percent,
+        wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms,
+        start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
+        band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
+        lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
+        lift_is_strength=day.climb is None, thermal_radius_m=day.thermal_radius_m,
+        mc_ms=nan if day.mc_ms is None else day.mc_ms,
+        final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
+        finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
+        arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
+        isa_deviation_c=day.isa_deviation_c)
+
+
 # ---------------------------------------------------------------- internals
 
 
@@ -420,7 +455,7 @@ class _Simulation:
             course.course_deg[None, :], col["wind_from_deg"][:, None], col["wind_speed_ms"][:, None]))
         self.airmass = col["glide_airmass_ms"]
         self.floor = col["finish_elevation_m"] + col["arrival_margin_m"]
-        self.sigma_band = np.asarray(density_ratio(0.5 * (col["band_top_m"] + col["band_bottom_m"]),
+        self.sigma_band = np.asarray(density_ratio(band_middle_m(col["band_top_m"], col["band_bottom_m"]),
                                                    col["isa_deviation_c"]), dtype=float)
         self.polar = scaled_polar(flights.spec, col["mass_kg"], col["bugs_percent"], self.sigma_band)
         everyone = np.arange(n)

@@ -13,12 +13,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from functools import lru_cache
-from typing import TYPE_CHECKING
 
 import numpy as np
-
-if TYPE_CHECKING:
-    from glidetask.engine.scenario import GliderSetup
 
 
 def _scalar_or_array(value):
@@ -257,10 +253,3 @@ def scaled_polar(spec: PolarSpec, mass_kg, bugs_percent=0.0, sigma=1.0) -> Polar
         fit_rms_ms=_scalar_or_array(rms * k * dirt),
     )
 
-
-def polar_for(setup: "GliderSetup", altitude_m=0.0, isa_deviation_c=0.0) -> Polar:
-    """The polar of a glider set-up (mass, bugs) at an altitude [m MSL] and ISA deviation [degC]."""
-    from glidetask.engine.atmosphere import density_ratio
-
-    sigma = density_ratio(altitude_m, isa_deviation_c)
-    return scaled_polar(setup.spec, setup.mass_kg, setup.bugs_percent, sigma)

@@ -7,14 +7,65 @@ Times are local clock seconds after midnight; heights metres MSL; speeds m/s.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
 
 import numpy as np
 
+from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
+from glidetask.units import KMH, format_clock
+
 if TYPE_CHECKING:  # imported for type names only; keeps this module cheap
-    from glidetask.engine.polar import PolarSpec
     from glidetask.engine.task import Task, Turnpoint
+
+
+#: The strongest wind any input may give [km/h] (the task file's limit, one for every input).
+MAX_WIND_SPEED_KMH = 200.0
+
+
+def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
+    """What makes a scenario inconsistent, as ``(task-file key, message)`` pairs.
+
+    The one check of a whole scenario: the task-file reader, the command line's what-ifs
+    (:func:`glidetask.engine.plan.with_what_ifs`) and the UI each name the key in their
+    own terms. Empty when the scenario can be planned.
+    """
+    glider, day = scenario.glider, scenario.day
+    spec = glider.spec
+    out: list[tuple[str, str]] = []
+    if spec.max_ballast_kg <= 0.0 and glider.ballast_kg != 0.0:
+        out.append(("[glider] ballast_kg", f"this glider carries no water ballast (the polar's maximum is 0 kg), "
+                                           f"got {glider.ballast_kg:g} kg"))
+    elif not 0.0 <= glider.ballast_kg <= spec.max_ballast_kg:
+        out.append(("[glider] ballast_kg", f"ballast {glider.ballast_kg:g} kg is outside 0-{spec.max_ballast_kg:g} kg, "
+                                           f"the polar's maximum water ballast"))
+    elif spec.max_mass_kg is not None and glider.mass_kg > spec.max_mass_kg + 1e-9:
+        out.append(("[glider] ballast_kg", f"the flying mass {glider.mass_kg:g} kg (empty {spec.empty_mass_kg:g} + "
+                                           f"pilot {glider.pilot_kg:g} + ballast {glider.ballast_kg:g}) is above the "
+                                           f"maximum {spec.max_mass_kg:g} kg"))
+    if not glider.bugs_percent >= 0.0 or not math.isfinite(glider.bugs_percent):
+        out.append(("[glider] bugs_percent", "bugs must be 0 % or more"))
+    if day.mc_ms is not None and not 0.0 <= day.mc_ms <= 10.0:
+        out.append(("[day] mc_ms", f"the MacCready setting must be 0-10 m/s, got {day.mc_ms:g}"))
+    wind_kmh = day.wind.speed_ms / KMH
+    if not 0.0 <= wind_kmh <= MAX_WIND_SPEED_KMH + 1e-9:
+        out.append(("[day] wind", f"the wind speed must be 0-{MAX_WIND_SPEED_KMH:g} km/h, got {wind_kmh:g}"))
+    if not day.start_time_s < day.lift_ends_s:
+        out.append(("[day] start_time", f"the start ({format_clock(day.start_time_s)}) must be before lift ends "
+                                        f"({format_clock(day.lift_ends_s)})"))
+    if not day.band_top_m > day.band_bottom_m:
+        out.append(("[day] band_top_m", "the band top must be above band_bottom_m"))
+    if day.start_height_m is not None and day.start_height_m > day.band_top_m:
+        out.append(("[day] start_height_m", "the start height is above band_top_m"))
+    return out
+
+
+def band_middle_m(band_top_m, band_bottom_m):
+    """The middle of the working band [m MSL] (scalars or arrays): the height whose air
+    density the cruise's polar takes (contract section 3)."""
+    return 0.5 * (band_top_m + band_bottom_m)
 
 
 @dataclass(frozen=True)
@@ -57,7 +108,7 @@ class GliderSetup:
     ``mass_kg`` = empty mass + pilot (with parachute) + water ballast (contract section 3).
     """
 
-    spec: "PolarSpec"
+    spec: PolarSpec
     pilot_kg: float = 90.0
     ballast_kg: float = 0.0
     bugs_percent: float = 0.0
@@ -65,7 +116,20 @@ class GliderSetup:
 
     @property
     def mass_kg(self) -> float:
-        return self.spec.empty_mass_kg + self.pilot_kg + self.ballast_kg
+        """The flying mass [kg]: empty mass + pilot + water ballast."""
+        return self.mass_with_ballast_kg(self.ballast_kg)
+
+    def mass_with_ballast_kg(self, ballast_kg):
+        """The flying mass with another water ballast [kg] (scalar or array), the one
+        place the flying mass is summed (contract section 3)."""
+        return self.spec.empty_mass_kg + self.pilot_kg + (ballast_kg if np.isscalar(ballast_kg)
+                                                          else np.asarray(ballast_kg, dtype=float))
+
+    def polar_at(self, altitude_m=0.0, isa_deviation_c=0.0, *, ballast_kg=None) -> Polar:
+        """The polar as loaded (mass, bugs) at an altitude [m MSL] and ISA deviation [degC];
+        ``ballast_kg`` (scalar or array) instead of the set-up's own gives one polar per value."""
+        mass = self.mass_kg if ballast_kg is None else self.mass_with_ballast_kg(ballast_kg)
+        return scaled_polar(self.spec, mass, self.bugs_percent, density_ratio(altitude_m, isa_deviation_c))
 
 
 @dataclass(frozen=True)
@@ -89,6 +153,11 @@ class Day:
     isa_deviation_c: float = 0.0
     mc_ms: float | None = None  # None: the achieved climb at that moment
     thermal_radius_m: float = 150.0  # e-folding radius of the Gaussian thermal core
+
+    @property
+    def band_middle_m(self) -> float:
+        """The middle of the working band [m MSL] (:func:`band_middle_m`)."""
+        return band_middle_m(self.band_top_m, self.band_bottom_m)
 
     @property
     def effective_start_height_m(self) -> float:

@@ -280,7 +280,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     path, requirement : optional
         The planned path and its final-glide requirement (the terrain, if the task has
         a model): see :func:`glidetask.engine.compare.planned_route`; default: as
-        :func:`glidetask.engine.planner.plan` flies the task.
+        :func:`glidetask.engine.plan.plan` flies the task.
 
     Returns
     -------
@@ -294,7 +294,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     Notes
     -----
     Every flight starts from the planner's inputs for its ballast
-    (:func:`glidetask.engine.planner.flights_for` of ``with_what_ifs(scenario,
+    (:func:`glidetask.engine.flight.flights_for` of ``with_what_ifs(scenario,
     ballast_kg=...)``); a day changes only the lift scale, the wind, the end of lift (and
     the profile's decay with it) and adds the thermal search. With no spread these are
     the forecast's own values, untouched, and no search hook is passed: each run is
@@ -302,7 +302,8 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     targets the plan chose at the scenario's ballast).
     """
     from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights
-    from glidetask.engine.planner import course_for, flights_for, with_what_ifs
+    from glidetask.engine.flight import course_for, flights_for
+    from glidetask.engine.plan import with_what_ifs
 
     spread = DaySpread() if spread is None else spread
     choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))

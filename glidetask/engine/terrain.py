@@ -21,7 +21,7 @@ import os
 import threading
 import warnings
 from collections import OrderedDict
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 
 import numpy as np
@@ -83,6 +83,10 @@ class Terrain:
     elevation_m : ndarray
         Elevations [m MSL], shape ``(rows, cols)``, NaN where the model has no data.
         Read-only.
+    file_key : tuple or None
+        ``(absolute path, modification time [ns], size [bytes])`` of the file read: a value
+        that names this model for caches (:func:`load_terrain` sets it); None for a model
+        built in memory, which is then never cached.
     """
 
     source: str
@@ -92,6 +96,7 @@ class Terrain:
     bounds: tuple[float, float, float, float]
     transform: tuple[float, float, float, float, float, float]
     elevation_m: np.ndarray
+    file_key: tuple | None = None
 
     @property
     def shape(self) -> tuple[int, int]:
@@ -211,7 +216,7 @@ def load_terrain(path) -> Terrain:
             _CACHE.move_to_end(key)
             cached = _CACHE[key]
             return cached if cached.source == name else _renamed(cached, name)
-    terrain = _read(name)
+    terrain = replace(_read(name), file_key=key)
     with _CACHE_LOCK:
         _CACHE[key] = terrain
         while len(_CACHE) > _CACHE_SIZE:
@@ -220,8 +225,6 @@ def load_terrain(path) -> Terrain:
 
 
 def _renamed(terrain: Terrain, source: str) -> Terrain:
-    from dataclasses import replace
-
     return replace(terrain, source=source)
 
 

@@ -111,7 +111,7 @@ def _legs(plan, unit) -> list[str]:
 
 
 def _heights(plan, unit) -> list[str]:
-    from glidetask.engine.planner import CARD_MC_MS, final_glide_card
+    from glidetask.engine.plan import CARD_MC_MS, final_glide_card
 
     settings = CARD_MC_MS if unit.name == "metric" else CARD_MC_KT
     card = final_glide_card(plan, settings)
@@ -195,11 +195,11 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
 
     Parameters
     ----------
-    plan : glidetask.engine.planner.Plan
+    plan : glidetask.engine.plan.Plan
     unit_name : str
         ``"metric"`` or ``"aviation"``.
     sensitivity : glidetask.engine.compare.Sensitivity, optional
-        The task time under what-ifs (:func:`glidetask.engine.planner.plan_sensitivity`);
+        The task time under what-ifs (:func:`glidetask.engine.compare.plan_sensitivity`);
         a table on page one when given.
     """
     unit = units.by_name(unit_name)

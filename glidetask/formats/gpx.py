@@ -77,7 +77,7 @@ def plan_to_gpx(plan) -> str:
 
     Parameters
     ----------
-    plan : glidetask.engine.planner.Plan
+    plan : glidetask.engine.plan.Plan
 
     Returns
     -------

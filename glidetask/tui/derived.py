@@ -35,18 +35,18 @@ def card_settings_ms(units: UnitSystem) -> np.ndarray:
 
 def mid_band_m(scenario: Scenario) -> float:
     """The height at which the plan's legs take their density: the middle of the working band."""
-    return 0.5 * (scenario.day.band_top_m + scenario.day.band_bottom_m)
+    return scenario.day.band_middle_m
 
 
 def glider_card(setup: GliderSetup, altitude_m: float, isa_deviation_c: float,
                 units: UnitSystem) -> GliderCard:
     """Polars, figures and the still-air speed-to-fly card for a glider set-up."""
-    from glidetask.engine.polar import polar_for, scaled_polar
+    from glidetask.engine.polar import scaled_polar
     from glidetask.engine.speedtofly import cruise_in_wind, speed_to_fly_still_air
 
     spec = setup.spec
     reference = scaled_polar(spec, spec.reference_mass_kg)
-    current = polar_for(setup, altitude_m, isa_deviation_c)
+    current = setup.polar_at(altitude_m, isa_deviation_c)
     settings = card_settings_ms(units)
     speeds = np.asarray(speed_to_fly_still_air(current, settings), dtype=float)
     cruise = np.asarray(cruise_in_wind(current, settings, 0.0, 0.0).cruise_speed_ms, dtype=float)
@@ -86,10 +86,9 @@ def glide_altitude_m(question: GlideQuestion) -> float:
 def answer_glide(scenario: Scenario, question: GlideQuestion, *, with_terrain: bool = True) -> GlideAnswer:
     """The engine's final glide for the question, and its terrain check when a model is loaded."""
     from glidetask.engine.finalglide import final_glide
-    from glidetask.engine.polar import polar_for
 
     altitude = glide_altitude_m(question)
-    polar = polar_for(scenario.glider, altitude, scenario.day.isa_deviation_c)
+    polar = scenario.glider.polar_at(altitude, scenario.day.isa_deviation_c)
     glide = final_glide(polar, question.distance_m, question.height_m, course_deg=question.course_deg,
                         wind=question.wind, mc_ms=question.mc_ms,
                         arrival_elevation_m=question.arrival_elevation_m, margin_m=question.margin_m,

@@ -32,8 +32,8 @@ def load_task(path: str | Path) -> Scenario:
 
 
 def compute_plan(scenario: Scenario) -> Outcome:
-    """Plan the task of ``scenario`` (engine.planner.plan) and put it in the contract's terms, timed."""
-    from glidetask.engine.planner import plan
+    """Plan the task of ``scenario`` (engine.plan.plan) and put it in the contract's terms, timed."""
+    from glidetask.engine.plan import plan
     from glidetask.formats.plan_json import plan_to_dict
 
     started = time.perf_counter()

@@ -21,7 +21,7 @@ from pathlib import Path
 import pytest
 from wholeprocess import ROOT, bench_against_baseline
 
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.engine.scenario import Wind
 from glidetask.formats.task_file import load_scenario
 

@@ -32,7 +32,7 @@ def test_bench_sweep_whole_process(benchmark):
 def test_bench_ten_thousand_simulated_flights(benchmark, terrain):
     """Without terrain: the flight core alone. With the task's elevation model: the final
     glide's terrain requirement asked by the core at every event, as the plan flies it."""
-    from glidetask.engine.planner import plan
+    from glidetask.engine.plan import plan
     from glidetask.engine.simulate import simulate_days
     from glidetask.formats.task_file import load_scenario
 

@@ -61,7 +61,7 @@ def test_text_plan_shows_legs_totals_heights_verdict_and_cautions(capsys):
 
 def test_aviation_units_convert_every_column(capsys):
     # Source: contract section 6 - NM, ft, kt; 1 NM = 1852 m, 1 ft = 0.3048 m, 1 kt = 0.514444 m/s.
-    from glidetask.engine.planner import plan
+    from glidetask.engine.plan import plan
     from glidetask.formats.task_file import load_scenario
 
     assert main(["plan", TRIANGLE, "--units", "aviation"]) == 0
@@ -107,6 +107,7 @@ def test_wind_too_strong_is_a_result_with_exit_0(capsys):
     (["--wind", "270"], "--wind", "FROM_DEG/SPEED_KMH"),
     (["--mc-ms", "12"], "--mc-ms", "at most 10"),
     (["--bugs-percent", "-1"], "--bugs-percent", "at least 0"),
+    (["--wind", "270/900"], "--wind", "the wind speed must be 0-200 km/h, got 900"),
 ])
 def test_bad_what_ifs_exit_2_with_the_contract_line(capsys, options, where, what):
     lines = _errors(capsys, TRIANGLE, *options)

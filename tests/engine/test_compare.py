@@ -13,7 +13,7 @@ from hypothesis import strategies as st
 from glidetask.engine import compare
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.circling import achieved_climb
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.engine.polar import PolarSpec, scaled_polar
 from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
 from glidetask.engine.task import Task, TaskPoint, Turnpoint

@@ -20,7 +20,7 @@ from geographiclib.geodesic import Geodesic
 
 from glidetask import cautions
 from glidetask.engine import geodesy
-from glidetask.engine.planner import final_glide_card, plan
+from glidetask.engine.plan import final_glide_card, plan
 from glidetask.engine.polar import PolarSpec
 from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
 from glidetask.engine.task import Task, TaskPoint, Turnpoint
@@ -210,7 +210,7 @@ def test_the_model_is_named_as_the_task_names_it_not_by_its_whole_path(tmp_path)
 
 
 def test_a_model_beside_the_task_is_its_file_name_and_without_a_task_file_too(tmp_path, demo_dir):
-    from glidetask.engine.planner import shown_terrain_source
+    from glidetask.engine.plan_safety import shown_terrain_source
     from glidetask.formats.task_file import load_scenario
 
     demo = load_scenario(demo_dir / "vardmoor-triangle-300.toml")  # [terrain] file = "terrain.tif"
@@ -340,7 +340,7 @@ def test_rising_air_in_the_glides_is_not_counted_on_for_reaching_a_field():
 
 def test_the_sensitivity_forecast_is_the_plan_over_the_ridge(ridge):
     # The what-ifs fly with the plan's own terrain requirement: the forecast row is the plan.
-    from glidetask.engine.planner import plan_sensitivity
+    from glidetask.engine.compare import plan_sensitivity
 
     p, _, _ = ridge
     forecast = plan_sensitivity(p).forecast

@@ -7,7 +7,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from glidetask.engine.polar import PolarSpec, fit_quadratic, polar_for, scaled_polar
+from glidetask.engine.polar import PolarSpec, fit_quadratic, scaled_polar
 from glidetask.engine.scenario import GliderSetup
 
 KMH = 1 / 3.6
@@ -137,7 +137,7 @@ def test_polar_for_a_setup_uses_its_mass_and_the_density_at_altitude():
     # Source: contract section 3: mass = empty + pilot + ballast; sigma from ISO 2533
     # (0.7423 at 3000 m, table value from memory).
     setup = GliderSetup(spec=SPEC, pilot_kg=85.0, ballast_kg=100.0, bugs_percent=5.0)
-    polar = polar_for(setup, altitude_m=3000.0)
+    polar = setup.polar_at(altitude_m=3000.0)
     assert polar.mass_kg == pytest.approx(445.0)
     assert polar.wing_loading_kgm2 == pytest.approx(445.0 / 10.5)
     k = np.sqrt(445.0 / 350.0) / np.sqrt(0.7423)

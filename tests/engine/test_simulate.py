@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 
 from glidetask.engine import simulate
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.engine.scenario import Profile
 from glidetask.engine.simulate import DaySpread, draw_days, simulate_days, stretched_profiles
 from glidetask.errors import InputError

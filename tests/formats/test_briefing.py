@@ -8,7 +8,8 @@ from pathlib import Path
 import pytest
 
 from glidetask import cautions
-from glidetask.engine.planner import CARD_MC_MS, final_glide_card, plan, plan_sensitivity
+from glidetask.engine.compare import plan_sensitivity
+from glidetask.engine.plan import CARD_MC_MS, final_glide_card, plan
 from glidetask.engine.scenario import Wind
 from glidetask.formats.briefing import PAGE_BREAK, plan_to_markdown
 from glidetask.formats.task_file import load_scenario

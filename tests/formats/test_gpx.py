@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 
 from glidetask import cautions
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.formats.gpx import plan_to_gpx
 from glidetask.formats.task_file import load_scenario
 

@@ -193,7 +193,7 @@ def test_cautions_name_partial_coverage_raised_heights_and_gaps():
 
 
 def test_the_report_words_its_cautions_from_the_one_source():
-    # The text, JSON and briefing (here) and the plan (glidetask.engine.planner) take the same
+    # The text, JSON and briefing (here) and the plan (glidetask.engine.plan) take the same
     # functions from glidetask.cautions, so their wording cannot drift apart.
     assert report.terrain_cautions is cautions.terrain_cautions
     assert report.landables_cautions is cautions.landables_cautions

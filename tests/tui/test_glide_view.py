@@ -6,7 +6,6 @@ from conftest import settle
 
 from glidetask.engine import geodesy
 from glidetask.engine.finalglide import final_glide
-from glidetask.engine.polar import polar_for
 from glidetask.engine.scenario import Wind
 from glidetask.tui.app import make_app
 from glidetask.units import KMH, METRIC
@@ -38,7 +37,7 @@ async def test_final_glide_from_the_last_turn_matches_the_engine(synthetic, ackn
         margin = synthetic.safety.arrival_margin_m
         # Source: contract section 3: a final glide takes the density at the middle of its
         # start and arrival heights
-        polar = polar_for(synthetic.glider, 0.5 * (3600.0 + goal.elevation_m + margin))
+        polar = synthetic.glider.polar_at(0.5 * (3600.0 + goal.elevation_m + margin))
         expected = final_glide(polar, distance, 3600.0, course_deg=course, wind=Wind(270.0, 20.0 * KMH),
                                mc_ms=1.0, arrival_elevation_m=goal.elevation_m, margin_m=margin)
         text = verdict_text(app)
@@ -62,7 +61,7 @@ async def test_a_headwind_turns_the_verdict(synthetic, acknowledged):
         await type_into(pilot, "glide-wind", "calm")
         origin, goal = synthetic.turnpoints[2], synthetic.turnpoints[0]
         distance, course, _ = geodesy.inverse(origin.lat, origin.lon, goal.lat, goal.lon)
-        needed_calm = final_glide(polar_for(synthetic.glider, 1000.0), distance, 0.0, course_deg=course,
+        needed_calm = final_glide(synthetic.glider.polar_at(1000.0), distance, 0.0, course_deg=course,
                                   arrival_elevation_m=goal.elevation_m).required_height_m
         height = needed_calm + 150.0
         await type_into(pilot, "glide-height", f"{height:.0f}")
@@ -85,7 +84,7 @@ async def test_distance_and_course_mode_and_a_bad_entry(synthetic, acknowledged)
         await type_into(pilot, "glide-mc", "2")
         await type_into(pilot, "glide-height", "2000")
         elevation = synthetic.turnpoints[0].elevation_m
-        polar = polar_for(synthetic.glider, 0.5 * (2000.0 + elevation + 200.0))
+        polar = synthetic.glider.polar_at(0.5 * (2000.0 + elevation + 200.0))
         expected = final_glide(polar, 50_000.0, 2000.0, course_deg=90.0, mc_ms=2.0, arrival_elevation_m=elevation)
         before = verdict_text(app)
         assert METRIC.fmt_height(expected.required_height_m) in before

@@ -7,7 +7,6 @@ from dataclasses import replace
 import numpy as np
 from conftest import settle
 
-from glidetask.engine.polar import polar_for
 from glidetask.engine.speedtofly import speed_to_fly_still_air
 from glidetask.tui.app import make_app
 from glidetask.units import AVIATION, KNOT, METRIC
@@ -37,7 +36,7 @@ async def test_ballast_changes_wing_loading_and_speeds_as_the_engine_says(synthe
         assert app.scenario.glider.ballast_kg == 120.0
         setup = replace(synthetic.glider, ballast_kg=120.0)
         mid_band = 0.5 * (synthetic.day.band_top_m + synthetic.day.band_bottom_m)
-        polar = polar_for(setup, mid_band, synthetic.day.isa_deviation_c)
+        polar = setup.polar_at(mid_band, synthetic.day.isa_deviation_c)
         text = figures_text(app)
         # Source: the engine's own figures for the same inputs, formatted through glidetask.units
         assert f"{setup.mass_kg:.0f} kg" in text
@@ -70,7 +69,7 @@ async def test_card_in_aviation_units_uses_whole_knots(synthetic, acknowledged):
         await settle(pilot)
         card = app.screen.query_one("#stf-card")
         mid_band = 0.5 * (synthetic.day.band_top_m + synthetic.day.band_bottom_m)
-        polar = polar_for(synthetic.glider, mid_band)
+        polar = synthetic.glider.polar_at(mid_band)
         assert str(card.get_cell_at((3, 0))) == "3.0"
         # Source: 1 kt = 1852 m / 3600 s (contract section 6)
         expected = speed_to_fly_still_air(polar, 3.0 * KNOT)

@@ -63,7 +63,7 @@ def cli_legs(task: Path, units: str = "metric", *options: str) -> list[dict[str,
 def text_legs(scenario, units: str = "metric") -> list[dict[str, str]]:
     """The legs ``glidetask plan``'s text renderer prints for an edited scenario."""
     from glidetask.commands.plan import plan_text
-    from glidetask.engine.planner import plan
+    from glidetask.engine.plan import plan
 
     return legs_of_plan_text(plan_text(plan(scenario), units))
 

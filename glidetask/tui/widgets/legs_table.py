@@ -1,6 +1,6 @@
 """The legs of the plan, one row per leg, in the units on screen (contract 5.3 fields).
 
-The cells are made from the plan's own SI figures (``engine.planner.LegPlan``), rounded
+The cells are made from the plan's own SI figures (``engine.plan.LegPlan``), rounded
 once by :mod:`glidetask.units` as ``glidetask plan`` rounds them, never from the rounded
 JSON form (rounding twice can move a figure by one).
 """
@@ -78,7 +78,7 @@ class LegsTable(DataTable):
         self._units: UnitSystem | None = None  # the unit system of the headers shown
 
     def show(self, plan, units: UnitSystem, codes: dict[str, str] | None = None) -> None:
-        """Fill the table from an ``engine.planner.Plan`` (None: headers only); ``codes``
+        """Fill the table from an ``engine.plan.Plan`` (None: headers only); ``codes``
         maps turnpoint names to short codes for the Leg column."""
         codes = codes or {}
         if self._units is units:

@@ -1,6 +1,6 @@
 """Totals of the plan: distance, time, speed, finish, where the final glide starts.
 
-Figures come from the plan's SI values (``engine.planner.Plan``), rounded once through
+Figures come from the plan's SI values (``engine.plan.Plan``), rounded once through
 :mod:`glidetask.units` as ``glidetask plan`` rounds them.
 """
 

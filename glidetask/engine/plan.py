@@ -1,4 +1,4 @@
-"""The planner: a whole task flown on paper, leg by leg, into a :class:`Plan`.
+"""The plan: a whole task flown on paper, leg by leg, into a :class:`Plan`.
 
 :func:`plan` applies the what-ifs to a :class:`~glidetask.engine.scenario.Scenario`,
 chooses the planned path (the optimized path of a racing task; for an area task the
@@ -9,8 +9,9 @@ airspeed, heading, ground speeds, time, the height required at its start and the
 planned on reaching its end; the totals, where the final glide starts, and cautions.
 The rules of the flight are the contract's section 3 (see :mod:`glidetask.engine.flight`).
 
-:func:`flights_for` and :func:`course_for` turn a scenario and a path into the core's
-inputs, for the ballast sweep and the Monte-Carlo days, which vary them per flight.
+The core's inputs for a scenario and a path are :func:`glidetask.engine.flight.flights_for`
+and :func:`glidetask.engine.flight.course_for`, shared with the ballast sweep and the
+Monte-Carlo days, which vary them per flight.
 
 Safety over the ground: when the task names an elevation model (``[terrain] file``) the
 plan samples it along every path it flies (:func:`glidetask.engine.clearance_hook.path_terrain`),
@@ -31,26 +32,31 @@ from __future__ import annotations
 
 import dataclasses
 import math
-import threading
-from collections import OrderedDict
 from dataclasses import dataclass
 
 import numpy as np
 
 from glidetask import cautions as caution_text
 from glidetask.engine import flight
-from glidetask.engine.flight import Course, Flights, Flown, fly
-from glidetask.engine.scenario import Scenario, Wind
+from glidetask.engine import task as task_geometry
+from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.flight import Flown, course_for, flights_for, fly
+from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
+from glidetask.engine.polar import scaled_polar
+from glidetask.engine.scenario import Scenario, Wind, scenario_problems
+from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
+from glidetask.engine.wind import heading_for_course, wind_components
 from glidetask.errors import InputError, Problem
 from glidetask.units import format_clock, format_duration
 
 CMDLINE = "command line"
+#: The command-line option of each what-if, by the task-file key it replaces.
+WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
+                   "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
 AREA_TIME_SLACK = 0.05  # planned area-task time within [min time, (1 + this) x min time]
 TIGHT_DAY_S = 1800.0  # caution when the last climb ends this close to the end of lift [s]
 THIN_MARGIN_M = 150.0  # caution for an arrival margin below this [m] (common practice)
 CARD_MC_MS = (0.0, 1.0, 2.0, 3.0)  # MacCready settings of the briefing's final-glide card
-COVERAGE_SPACING_M = 1000.0  # landable coverage sampled along the path at least this often [m]
-_COVERAGE_CACHE_SIZE = 16  # coverage results kept for repeated plans (the UI replans on every edit)
 
 
 @dataclass(frozen=True)
@@ -228,39 +234,6 @@ class Plan:
         return bool(self.terrain is not None and self.terrain.ok and covered)
 
 
-# ---------------------------------------------------------------- the core's inputs
-
-
-def course_for(path) -> Course:
-    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`)."""
-    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs])
-
-
-def flights_for(scenario: Scenario) -> Flights:
-    """The flight core's inputs for one flight of ``scenario`` (scalars; vary them with
-    :func:`dataclasses.replace` to fly many).
-
-    The lift profile is the day's achieved climb, or its thermal strength
-    (``lift_is_strength``) for the circling model. Fixed settings absent from the
-    scenario are NaN (the core then follows the climb of each cycle).
-    """
-    day, glider, safety = scenario.day, scenario.glider, scenario.safety
-    profile = day.climb if day.climb is not None else day.thermal_strength
-    nan = float("nan")
-    return Flights(
-        spec=glider.spec, mass_kg=glider.mass_kg, bugs_percent=glider.bugs_percent,
-        wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms,
-        start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
-        band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
-        lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
-        lift_is_strength=day.climb is None, thermal_radius_m=day.thermal_radius_m,
-        mc_ms=nan if day.mc_ms is None else day.mc_ms,
-        final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
-        finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
-        arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
-        isa_deviation_c=day.isa_deviation_c)
-
-
 # ---------------------------------------------------------------- what-ifs
 
 
@@ -277,7 +250,6 @@ def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_perce
         itself are named by the task file and key.
     """
     glider, day = scenario.glider, scenario.day
-    problems: list[Problem] = []
     if ballast_kg is not None:
         glider = dataclasses.replace(glider, ballast_kg=float(ballast_kg))
     if bugs_percent is not None:
@@ -288,40 +260,15 @@ def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_perce
         day = dataclasses.replace(day, wind=wind)
     if start_time_s is not None:
         day = dataclasses.replace(day, start_time_s=float(start_time_s))
+    result = dataclasses.replace(scenario, glider=glider, day=day)
+    given = {"[glider] ballast_kg": ballast_kg, "[glider] bugs_percent": bugs_percent, "[day] mc_ms": mc_ms,
+             "[day] wind": wind, "[day] start_time": start_time_s}
     file = scenario.source or "task"
-
-    def blame(option, key):
-        return (CMDLINE, option) if option else (file, key)
-
-    spec = glider.spec
-    where = blame("--ballast-kg" if ballast_kg is not None else None, "[glider] ballast_kg")
-    if spec.max_ballast_kg <= 0.0 and glider.ballast_kg != 0.0:
-        problems.append(Problem(*where, f"this glider carries no water ballast (the polar's maximum is 0 kg), "
-                                        f"got {glider.ballast_kg:g} kg"))
-    elif not 0.0 <= glider.ballast_kg <= spec.max_ballast_kg:
-        problems.append(Problem(*where, f"ballast {glider.ballast_kg:g} kg is outside 0-{spec.max_ballast_kg:g} kg, "
-                                        f"the polar's maximum water ballast"))
-    elif spec.max_mass_kg is not None and glider.mass_kg > spec.max_mass_kg + 1e-9:
-        problems.append(Problem(*where, f"the flying mass {glider.mass_kg:g} kg (empty {spec.empty_mass_kg:g} + pilot "
-                                        f"{glider.pilot_kg:g} + ballast {glider.ballast_kg:g}) is above the maximum "
-                                        f"{spec.max_mass_kg:g} kg"))
-    if not glider.bugs_percent >= 0.0 or not math.isfinite(glider.bugs_percent):
-        problems.append(Problem(*blame("--bugs-percent" if bugs_percent is not None else None,
-                                       "[glider] bugs_percent"), "bugs must be 0 % or more"))
-    if day.mc_ms is not None and not 0.0 <= day.mc_ms <= 10.0:
-        problems.append(Problem(*blame("--mc-ms" if mc_ms is not None else None, "[day] mc_ms"),
-                                f"the MacCready setting must be 0-10 m/s, got {day.mc_ms:g}"))
-    if not day.start_time_s < day.lift_ends_s:
-        problems.append(Problem(*blame("--start" if start_time_s is not None else None, "[day] start_time"),
-                                f"the start ({format_clock(day.start_time_s)}) must be before lift ends "
-                                f"({format_clock(day.lift_ends_s)})"))
-    if not day.band_top_m > day.band_bottom_m:
-        problems.append(Problem(file, "[day] band_top_m", "the band top must be above band_bottom_m"))
-    if day.start_height_m is not None and day.start_height_m > day.band_top_m:
-        problems.append(Problem(file, "[day] start_height_m", "the start height is above band_top_m"))
+    problems = [Problem(CMDLINE, WHAT_IF_OPTIONS[key], message) if given.get(key) is not None
+                else Problem(file, key, message) for key, message in scenario_problems(result)]
     if problems:
         raise InputError(problems)
-    return dataclasses.replace(scenario, glider=glider, day=day)
+    return result
 
 
 # ---------------------------------------------------------------- the plan
@@ -347,7 +294,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         ``requirement_for(scenario, path) -> RequirementHook or None``: extra final-glide
         height along a candidate path (see :data:`glidetask.engine.flight.RequirementHook`),
         asked once per path flown. Default: the task's elevation model, if it has one
-        (:func:`terrain_requirement`).
+        (:func:`glidetask.engine.plan_safety.terrain_requirement`).
 
     Returns
     -------
@@ -364,8 +311,6 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         elevation model that cannot be read or does not cover the task at all (named
         ``[terrain] file`` of the task file).
     """
-    from glidetask.engine import task as task_geometry
-
     scenario = with_what_ifs(scenario, mc_ms=mc_ms, ballast_kg=ballast_kg, bugs_percent=bugs_percent, wind=wind,
                              start_time_s=start_time_s)
     model = load_terrain_for(scenario)
@@ -389,9 +334,9 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         path, flown = optimized, fly_path(optimized)
     hook = next(h for p, h in hooks if p is path)
     if model is not None:
-        _check_model_covers(scenario, model, hook)
+        check_model_covers(scenario, model, hook)
     result = _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
-    return _with_safety(result, hook, model)
+    return with_safety(result, hook, model)
 
 
 def _area_path(scenario: Scenario, fly_path):
@@ -401,15 +346,13 @@ def _area_path(scenario: Scenario, fly_path):
     The time grows with the depth (the path with it), so a bracketing secant search on
     ``time(depth) - 1.025 T`` finds it in a few flights.
     """
-    from glidetask.engine.task import area_distance_range, area_targets, path_through
-
     task = scenario.task
     minimum = float(task.min_time_s)
-    shortest, longest = area_distance_range(task)
+    shortest, longest = task_geometry.area_distance_range(task)
 
     def attempt(depth):
-        lats, lons = area_targets(task, float(depth))
-        path = path_through(task, lats, lons)
+        lats, lons = task_geometry.area_targets(task, float(depth))
+        path = task_geometry.path_through(task, lats, lons)
         flown = fly_path(path)
         time = float(flown.total_time_s[0]) if flown.finished[0] else math.inf
         return depth, path, flown, time
@@ -464,10 +407,8 @@ def _bisect_depth(attempt, low, high, minimum, tries: int = 14):
 
 
 def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes) -> Plan:
-    from glidetask.engine.polar import polar_for
-
     day = scenario.day
-    polar = polar_for(scenario.glider, 0.5 * (day.band_top_m + day.band_bottom_m), day.isa_deviation_c)
+    polar = scenario.glider.polar_at(day.band_middle_m, day.isa_deviation_c)
     legs = _legs(scenario, path, flown, polar)
     finished = bool(flown.finished[0])
     total = float(flown.total_time_s[0])
@@ -492,11 +433,6 @@ def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes)
 
 def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
     """Per-leg speeds and headings at each leg's settings (one vectorised call per kind)."""
-    from glidetask.engine.atmosphere import density_ratio
-    from glidetask.engine.polar import scaled_polar
-    from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
-    from glidetask.engine.wind import heading_for_course, wind_components
-
     day = scenario.day
     courses = np.array([leg.course_deg for leg in path.legs])
     along, across = (np.asarray(x, dtype=float) for x in wind_components(courses, day.wind.from_deg,
@@ -540,215 +476,6 @@ def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
             arrival_height_m=float(flown.leg_arrival_height_m[0, i]), final_glide=bool(final[i]),
             start_time_s=float(flown.leg_entry_time_s[0, i])))
     return tuple(out)
-
-
-# ---------------------------------------------------------------- safety over the ground
-
-
-def load_terrain_for(scenario: Scenario):
-    """The task's elevation model (cached by :func:`glidetask.engine.terrain.load_terrain`), or None.
-
-    Raises
-    ------
-    InputError
-        The model cannot be used (missing, not a raster, no CRS), named by the task
-        file's ``[terrain] file``.
-    """
-    if not scenario.terrain_file:
-        return None
-    from glidetask.engine.terrain import TerrainError, load_terrain
-
-    try:
-        return load_terrain(scenario.terrain_file)
-    except TerrainError as error:
-        raise InputError([Problem(scenario.source or "task", "[terrain] file", f"{error.path}: {error.what}")]) from None
-
-
-_PATH_TERRAIN_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
-_PATH_TERRAIN_CACHE_SIZE = 32  # an area task tries up to about 16 paths per plan
-_PATH_TERRAIN_LOCK = threading.Lock()
-
-
-def terrain_requirement(model):
-    """``requirement_for`` of :func:`plan` for an elevation model: the terrain sampled along
-    each path flown (every 250 m), at the scenario's terrain clearance.
-
-    The samples are cached by path, model and clearance: a replan after an edit that
-    leaves the path alone (the day, the glider, the margins) samples nothing again.
-    """
-    from glidetask.engine.clearance_hook import path_terrain
-
-    def requirement_for(scenario: Scenario, path):
-        clearance = scenario.safety.terrain_clearance_m
-        key = (id(model), np.asarray(path.lats).tobytes(), np.asarray(path.lons).tobytes(), clearance)
-        with _PATH_TERRAIN_LOCK:
-            cached = _PATH_TERRAIN_CACHE.get(key)
-            if cached is not None and cached[0] is model:
-                _PATH_TERRAIN_CACHE.move_to_end(key)
-                return cached[1]
-        hook = path_terrain(model, path.lats, path.lons, clearance)
-        with _PATH_TERRAIN_LOCK:
-            _PATH_TERRAIN_CACHE[key] = (model, hook)  # the model is kept, so its id stays its own
-            while len(_PATH_TERRAIN_CACHE) > _PATH_TERRAIN_CACHE_SIZE:
-                _PATH_TERRAIN_CACHE.popitem(last=False)
-        return hook
-
-    return requirement_for
-
-
-def _check_model_covers(scenario: Scenario, model, hook) -> None:
-    """A model that covers none of the planned path is the wrong file: an input error."""
-    profile = getattr(hook, "profile", None)
-    if profile is not None and not np.any(np.isfinite(profile.elevation_m)):
-        raise InputError([Problem(scenario.source or "task", "[terrain] file",
-                                  f"{model.source}: the elevation model covers none of the task's planned path")])
-
-
-def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
-    """Height used per metre on each leg [m/m] by the plan's final glide, shape (L,).
-
-    The final glide's own polar (at its density, ``flown.final_glide_sigma``) and setting
-    (``flown.final_glide_mc_ms``) in each leg's wind, exactly as the flight core flew it;
-    NaN without a final glide.
-    """
-    from glidetask.engine.polar import scaled_polar
-    from glidetask.engine.speedtofly import glide_in_wind
-    from glidetask.engine.wind import wind_components
-
-    sigma, mc = float(flown.final_glide_sigma[0]), float(flown.final_glide_mc_ms[0])
-    if not (math.isfinite(sigma) and math.isfinite(mc)):
-        return np.full(len(path.legs), np.nan)
-    day, glider = scenario.day, scenario.glider
-    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), day.wind.from_deg,
-                                    day.wind.speed_ms)
-    polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
-    glide = glide_in_wind(polar, mc, along, across, day.glide_airmass_ms)
-    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float), (len(path.legs),)).copy()
-
-
-_COVERAGE_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
-_COVERAGE_LOCK = threading.Lock()
-
-
-def landable_coverage(scenario: Scenario, path, model=None):
-    """Landable coverage along a planned path from the band bottom, or None without landables.
-
-    Every :data:`COVERAGE_SPACING_M` along the path (and at every turnpoint), the fields
-    of the turnpoint collection marked ``landable`` in reach at MacCready 0 in the day's
-    wind, arriving with the arrival margin, clearing the terrain by the terrain clearance
-    when a model is given (:func:`glidetask.engine.reach.coverage`).
-
-    Notes
-    -----
-    The polar is the glider's as loaded at the density of the middle of the band bottom
-    and the arrival floor (finish elevation plus margin): the heights glided through on
-    the way down to a field. Air rising in the glides is not counted on (a glide to a
-    field plans with ``min(glide_airmass_ms, 0)``): a pilot low and looking for a field
-    cannot rely on it. Results are cached, keyed by everything they depend on, so an
-    edit that changes none of it (a climb, a start time, a MacCready setting) costs
-    nothing here.
-    """
-    from glidetask.engine import reach
-    from glidetask.engine.polar import polar_for
-
-    fields = tuple((p.name, p.lat, p.lon, p.elevation_m) for p in scenario.turnpoints if getattr(p, "landable", False))
-    if not fields:
-        return None
-    day, safety = scenario.day, scenario.safety
-    floor = scenario.task.points[-1].turnpoint.elevation_m + safety.arrival_margin_m
-    polar = polar_for(scenario.glider, 0.5 * (day.band_bottom_m + floor), day.isa_deviation_c)
-    airmass = min(day.glide_airmass_ms, 0.0)
-    key = (np.asarray(path.lats).tobytes(), np.asarray(path.lons).tobytes(), fields,
-           tuple(float(x) for x in (polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms)),
-           day.wind, day.band_bottom_m, safety.arrival_margin_m, airmass,
-           None if model is None else (id(model), safety.terrain_clearance_m))
-    with _COVERAGE_LOCK:
-        cached = _COVERAGE_CACHE.get(key)
-        if cached is not None and cached[0] is model:
-            _COVERAGE_CACHE.move_to_end(key)
-            return cached[1]
-    lats, lons, along = path.sample(COVERAGE_SPACING_M)
-    leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
-    result = reach.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, day.wind,
-                            day.band_bottom_m, safety.arrival_margin_m, model, safety.terrain_clearance_m,
-                            airmass_ms=airmass)
-    with _COVERAGE_LOCK:
-        _COVERAGE_CACHE[key] = (model, result)  # the model is kept, so its id stays its own
-        while len(_COVERAGE_CACHE) > _COVERAGE_CACHE_SIZE:
-            _COVERAGE_CACHE.popitem(last=False)
-    return result
-
-
-def shown_terrain_source(scenario: Scenario) -> str | None:
-    """The elevation model's file as the task names it, for pilots and scripts; None without one.
-
-    Relative to the task file's folder (POSIX separators), the form task files use and the
-    one a saved task file writes, so ``terrain.tif`` for a model beside the task; the whole
-    path only when no relative path leads there (another drive). Without a task file (a
-    scenario built in memory) the file name alone. The absolute path stays in
-    ``scenario.terrain_file``.
-    """
-    import os
-    from pathlib import Path
-
-    if not scenario.terrain_file:
-        return None
-    target = os.path.abspath(scenario.terrain_file)
-    if not scenario.source:
-        return os.path.basename(target)
-    folder = os.path.realpath(os.path.dirname(os.path.abspath(scenario.source)))
-    try:
-        return Path(os.path.relpath(target, folder)).as_posix()
-    except ValueError:  # on another drive
-        return Path(target).as_posix()
-
-
-def _with_safety(plan: Plan, hook, model) -> Plan:
-    """The plan with its terrain check, landable coverage and their cautions; the model named
-    as the task names it (:func:`shown_terrain_source`) wherever the plan shows it."""
-    terrain = None
-    source = None if model is None else shown_terrain_source(plan.scenario)
-    if hasattr(hook, "final_glide") and math.isfinite(plan.final_glide_from_m):
-        landmarks = plan.scenario.turnpoints or tuple(p.turnpoint for p in plan.scenario.task.points)
-        terrain = hook.final_glide(plan.final_glide_from_m, final_glide_per_metre(plan.scenario, plan.path, plan.flown),
-                                   plan.arrival_floor_m, start_height_m=plan.final_glide_height_m, landmarks=landmarks)
-        terrain = dataclasses.replace(terrain, source=source)
-    plan = dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
-                               requirement=hook, terrain_source=source)
-    extra = [text for text in safety_cautions(plan) if text not in plan.cautions]
-    return dataclasses.replace(plan, cautions=plan.cautions + tuple(dict.fromkeys(extra)))
-
-
-def safety_cautions(plan: Plan) -> list[str]:
-    """The terrain and landable cautions of a plan, metric (wording from
-    :mod:`glidetask.cautions`, the one source for every output)."""
-    from glidetask.units import METRIC
-
-    out: list[str] = []
-    if plan.terrain_source is not None:
-        if plan.terrain is not None:
-            out += caution_text.terrain_cautions(plan.terrain, METRIC)
-        else:
-            out += [*caution_text.TERRAIN, caution_text.NO_FINAL_GLIDE_TO_CHECK]
-        path = plan.terrain_path
-        if path is not None and path.profile.covered_share < 1.0:
-            out.append(caution_text.path_not_covered(plan.terrain_source, path.profile.covered_share,
-                                                     path.profile.uncovered_ranges(), METRIC))
-    if plan.landables is not None:
-        out += caution_text.landables_cautions(plan.landables, METRIC)
-    elif plan.scenario.turnpoints:
-        out.append(caution_text.NO_LANDABLES)
-    return out
-
-
-def plan_sensitivity(plan: Plan):
-    """How the task time answers to the day: the plan flown again with climbs 0.5 m/s weaker,
-    10 km/h more wind, a 30-minute later start and 5 % more bugs, over the planned path with
-    the plan's own final-glide requirement (the terrain), so the forecast row is the plan
-    (:func:`glidetask.engine.compare.sensitivity`, one vectorised flight of five)."""
-    from glidetask.engine.compare import sensitivity
-
-    return sensitivity(plan.scenario, path=plan.path, requirement=plan.requirement)
 
 
 # ---------------------------------------------------------------- cautions

@@ -20,7 +20,8 @@ import pytest
 from wholeprocess import ROOT, bench_against_baseline
 
 from glidetask.engine.flight import Course, fly
-from glidetask.engine.planner import course_for, flights_for, plan
+from glidetask.engine.flight import course_for, flights_for
+from glidetask.engine.plan import plan
 from glidetask.engine.scenario import Profile, Wind
 from glidetask.engine.task import Task, TaskPoint, optimized_path
 from glidetask.engine.zones import Zone

@@ -1,4 +1,4 @@
-"""The planner (glidetask.engine.planner): a task flown on paper into a Plan."""
+"""The planner (glidetask.engine.plan): a task flown on paper into a Plan."""
 
 from __future__ import annotations
 
@@ -13,9 +13,10 @@ from hypothesis import strategies as st
 from glidetask import cautions
 from glidetask.engine import geodesy
 from glidetask.engine.atmosphere import density_ratio
-from glidetask.engine.planner import final_glide_card, flights_for, plan, with_what_ifs
+from glidetask.engine.flight import flights_for
+from glidetask.engine.plan import final_glide_card, plan, with_what_ifs
 from glidetask.engine.polar import PolarSpec, scaled_polar
-from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.scenario import MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind
 from glidetask.engine.task import Task, TaskPoint, Turnpoint
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
@@ -140,10 +141,37 @@ def test_lift_ending_early_ends_the_plan_short_with_a_caution():
 
 
 def test_wind_too_strong_is_a_result_not_an_error():
-    p = plan(scenario(OUT_AND_RETURN, wind=Wind(90.0, 300 * KMH)))
+    # The strongest wind any input may give (200 km/h), straight on the nose of the first
+    # leg: no progress with climbs, so the plan glides on at MacCready 0 from the start
+    # height down to the arrival floor and ends where that glide ends: the height to lose
+    # over the height used per metre over the ground (the glide ratio over the ground).
+    from glidetask.engine.speedtofly import glide_in_wind
+    from glidetask.engine.wind import wind_components
+
+    s = scenario(OUT_AND_RETURN, wind=Wind(90.0, MAX_WIND_SPEED_KMH * KMH))
+    p = plan(s)
     assert not p.finished
-    assert p.landout_m == pytest.approx(0.0)
     assert any("too strong" in c for c in p.cautions)
+    day = s.day
+    along, across = wind_components(p.legs[0].course_deg, day.wind.from_deg, day.wind.speed_ms)
+    best = glide_in_wind(s.glider.polar_at(day.band_middle_m, day.isa_deviation_c), 0.0, along, across,
+                         day.glide_airmass_ms)
+    glide_m = (day.effective_start_height_m - p.arrival_floor_m) / float(best.height_per_metre)
+    assert 0.0 < glide_m < p.legs[0].distance_m
+    # Tolerance: the same closed-form glide, to round-off.
+    assert p.landout_m == pytest.approx(glide_m, rel=1e-9)
+
+
+def test_a_wind_above_the_input_limit_is_refused_by_name():
+    # One wind limit for every input (the task file's 200 km/h): a what-if above it is an
+    # input error naming the option; the same wind in the scenario itself names the key.
+    with pytest.raises(InputError) as what_if:
+        plan(scenario(OUT_AND_RETURN), wind=Wind(270.0, 900 * KMH))
+    assert [(p.file, p.where) for p in what_if.value.problems] == [("command line", "--wind")]
+    with pytest.raises(InputError) as in_file:
+        plan(scenario(OUT_AND_RETURN, wind=Wind(90.0, 300 * KMH)))
+    assert [p.where for p in in_file.value.problems] == ["[day] wind"]
+    assert "0-200 km/h" in in_file.value.problems[0].what
 
 
 def test_wind_changes_heading_and_ground_speed_the_right_way():

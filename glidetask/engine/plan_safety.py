@@ -1,0 +1,233 @@
+"""Safety over the ground for a plan: the terrain under its path and the fields in reach.
+
+When the task names an elevation model (``[terrain] file``), :func:`terrain_requirement`
+gives :func:`glidetask.engine.plan.plan` the clearance rule as the flight core's
+requirement hook (:func:`glidetask.engine.clearance_hook.path_terrain`) for every path it
+flies; :func:`with_safety` adds to the flown plan the final glide checked over the
+terrain from the same samples and the landable coverage along the planned path from the
+band bottom (:func:`glidetask.engine.reach.coverage`), with their cautions.
+
+Sampling a path and searching fields are the slow parts of a replan, and the UI replans
+on every edit: both results are kept in small caches keyed on the values they depend on
+(the path's vertices, the elevation model's file identity, the polar, the wind, the
+margins), never on object identities.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+import os
+import threading
+from collections import OrderedDict
+from pathlib import Path
+
+import numpy as np
+
+from glidetask import cautions as caution_text
+from glidetask.engine import reach
+from glidetask.engine.clearance_hook import path_terrain
+from glidetask.engine.flight import Flown
+from glidetask.engine.polar import scaled_polar
+from glidetask.engine.scenario import Scenario
+from glidetask.engine.speedtofly import glide_in_wind
+from glidetask.engine.terrain import TerrainError, load_terrain
+from glidetask.engine.wind import wind_components
+from glidetask.errors import InputError, Problem
+from glidetask.units import METRIC
+
+COVERAGE_SPACING_M = 1000.0  # landable coverage sampled along the path at least this often [m]
+_COVERAGE_CACHE_SIZE = 16  # coverage results kept for repeated plans (the UI replans on every edit)
+
+
+def load_terrain_for(scenario: Scenario):
+    """The task's elevation model (cached by :func:`glidetask.engine.terrain.load_terrain`), or None.
+
+    Raises
+    ------
+    InputError
+        The model cannot be used (missing, not a raster, no CRS), named by the task
+        file's ``[terrain] file``.
+    """
+    if not scenario.terrain_file:
+        return None
+    try:
+        return load_terrain(scenario.terrain_file)
+    except TerrainError as error:
+        raise InputError([Problem(scenario.source or "task", "[terrain] file", f"{error.path}: {error.what}")]) from None
+
+
+_PATH_TERRAIN_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
+_PATH_TERRAIN_CACHE_SIZE = 32  # an area task tries up to about 16 paths per plan
+_PATH_TERRAIN_LOCK = threading.Lock()
+
+
+def terrain_requirement(model):
+    """``requirement_for`` of :func:`plan` for an elevation model: the terrain sampled along
+    each path flown (every 250 m), at the scenario's terrain clearance.
+
+    The samples are cached by path, model file (:attr:`Terrain.file_key`) and clearance:
+    a replan after an edit that leaves the path alone (the day, the glider, the margins)
+    samples nothing again. A model built in memory has no file key and is not cached.
+    """
+    def requirement_for(scenario: Scenario, path):
+        clearance = scenario.safety.terrain_clearance_m
+        if model.file_key is None:
+            return path_terrain(model, path.lats, path.lons, clearance)
+        key = (model.file_key, model.source, _vertices(path), clearance)
+        with _PATH_TERRAIN_LOCK:
+            cached = _PATH_TERRAIN_CACHE.get(key)
+            if cached is not None:
+                _PATH_TERRAIN_CACHE.move_to_end(key)
+                return cached
+        hook = path_terrain(model, path.lats, path.lons, clearance)
+        with _PATH_TERRAIN_LOCK:
+            _PATH_TERRAIN_CACHE[key] = hook
+            while len(_PATH_TERRAIN_CACHE) > _PATH_TERRAIN_CACHE_SIZE:
+                _PATH_TERRAIN_CACHE.popitem(last=False)
+        return hook
+
+    return requirement_for
+
+
+def _vertices(path) -> tuple[bytes, bytes]:
+    """A path's vertices as a cache key (their exact float64 bytes)."""
+    return np.asarray(path.lats, dtype=float).tobytes(), np.asarray(path.lons, dtype=float).tobytes()
+
+
+def check_model_covers(scenario: Scenario, model, hook) -> None:
+    """A model that covers none of the planned path is the wrong file: an input error."""
+    profile = getattr(hook, "profile", None)
+    if profile is not None and not np.any(np.isfinite(profile.elevation_m)):
+        raise InputError([Problem(scenario.source or "task", "[terrain] file",
+                                  f"{model.source}: the elevation model covers none of the task's planned path")])
+
+
+def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
+    """Height used per metre on each leg [m/m] by the plan's final glide, shape (L,).
+
+    The final glide's own polar (at its density, ``flown.final_glide_sigma``) and setting
+    (``flown.final_glide_mc_ms``) in each leg's wind, exactly as the flight core flew it;
+    NaN without a final glide.
+    """
+    sigma, mc = float(flown.final_glide_sigma[0]), float(flown.final_glide_mc_ms[0])
+    if not (math.isfinite(sigma) and math.isfinite(mc)):
+        return np.full(len(path.legs), np.nan)
+    day, glider = scenario.day, scenario.glider
+    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), day.wind.from_deg,
+                                    day.wind.speed_ms)
+    polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
+    glide = glide_in_wind(polar, mc, along, across, day.glide_airmass_ms)
+    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float), (len(path.legs),)).copy()
+
+
+_COVERAGE_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
+_COVERAGE_LOCK = threading.Lock()
+
+
+def landable_coverage(scenario: Scenario, path, model=None):
+    """Landable coverage along a planned path from the band bottom, or None without landables.
+
+    Every :data:`COVERAGE_SPACING_M` along the path (and at every turnpoint), the fields
+    of the turnpoint collection marked ``landable`` in reach at MacCready 0 in the day's
+    wind, arriving with the arrival margin, clearing the terrain by the terrain clearance
+    when a model is given (:func:`glidetask.engine.reach.coverage`).
+
+    Notes
+    -----
+    The polar is the glider's as loaded at the density of the middle of the band bottom
+    and the arrival floor (finish elevation plus margin): the heights glided through on
+    the way down to a field. Air rising in the glides is not counted on (a glide to a
+    field plans with ``min(glide_airmass_ms, 0)``): a pilot low and looking for a field
+    cannot rely on it. Results are cached, keyed by everything they depend on, so an
+    edit that changes none of it (a climb, a start time, a MacCready setting) costs
+    nothing here.
+    """
+    fields = tuple((p.name, p.lat, p.lon, p.elevation_m) for p in scenario.turnpoints if getattr(p, "landable", False))
+    if not fields:
+        return None
+    day, safety = scenario.day, scenario.safety
+    floor = scenario.task.points[-1].turnpoint.elevation_m + safety.arrival_margin_m
+    polar = scenario.glider.polar_at(0.5 * (day.band_bottom_m + floor), day.isa_deviation_c)
+    airmass = min(day.glide_airmass_ms, 0.0)
+    model_key = None if model is None else (model.file_key, model.source, safety.terrain_clearance_m)
+    key = (_vertices(path), fields,
+           tuple(float(x) for x in (polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms)),
+           day.wind, day.band_bottom_m, safety.arrival_margin_m, airmass,
+           model_key)
+    cacheable = model is None or model.file_key is not None
+    with _COVERAGE_LOCK:
+        cached = _COVERAGE_CACHE.get(key) if cacheable else None
+        if cached is not None:
+            _COVERAGE_CACHE.move_to_end(key)
+            return cached
+    lats, lons, along = path.sample(COVERAGE_SPACING_M)
+    leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
+    result = reach.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, day.wind,
+                            day.band_bottom_m, safety.arrival_margin_m, model, safety.terrain_clearance_m,
+                            airmass_ms=airmass)
+    if not cacheable:
+        return result
+    with _COVERAGE_LOCK:
+        _COVERAGE_CACHE[key] = result
+        while len(_COVERAGE_CACHE) > _COVERAGE_CACHE_SIZE:
+            _COVERAGE_CACHE.popitem(last=False)
+    return result
+
+
+def shown_terrain_source(scenario: Scenario) -> str | None:
+    """The elevation model's file as the task names it, for pilots and scripts; None without one.
+
+    Relative to the task file's folder (POSIX separators), the form task files use and the
+    one a saved task file writes, so ``terrain.tif`` for a model beside the task; the whole
+    path only when no relative path leads there (another drive). Without a task file (a
+    scenario built in memory) the file name alone. The absolute path stays in
+    ``scenario.terrain_file``.
+    """
+    if not scenario.terrain_file:
+        return None
+    target = os.path.abspath(scenario.terrain_file)
+    if not scenario.source:
+        return os.path.basename(target)
+    folder = os.path.realpath(os.path.dirname(os.path.abspath(scenario.source)))
+    try:
+        return Path(os.path.relpath(target, folder)).as_posix()
+    except ValueError:  # on another drive
+        return Path(target).as_posix()
+
+
+def with_safety(plan, hook, model):
+    """The plan (a :class:`glidetask.engine.plan.Plan`) with its terrain check, landable
+    coverage and their cautions; the model named as the task names it
+    (:func:`shown_terrain_source`) wherever the plan shows it."""
+    terrain = None
+    source = None if model is None else shown_terrain_source(plan.scenario)
+    if hasattr(hook, "final_glide") and math.isfinite(plan.final_glide_from_m):
+        landmarks = plan.scenario.turnpoints or tuple(p.turnpoint for p in plan.scenario.task.points)
+        terrain = hook.final_glide(plan.final_glide_from_m, final_glide_per_metre(plan.scenario, plan.path, plan.flown),
+                                   plan.arrival_floor_m, start_height_m=plan.final_glide_height_m, landmarks=landmarks)
+        terrain = dataclasses.replace(terrain, source=source)
+    plan = dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
+                               requirement=hook, terrain_source=source)
+    extra = [text for text in safety_cautions(plan) if text not in plan.cautions]
+    return dataclasses.replace(plan, cautions=plan.cautions + tuple(dict.fromkeys(extra)))
+
+
+def safety_cautions(plan) -> list[str]:
+    """The terrain and landable cautions of a plan, metric (wording from
+    :mod:`glidetask.cautions`, the one source for every output)."""
+    out: list[str] = []
+    if plan.terrain_source is not None:
+        if plan.terrain is not None:
+            out += caution_text.terrain_cautions(plan.terrain, METRIC)
+        else:
+            out += [*caution_text.TERRAIN, caution_text.NO_FINAL_GLIDE_TO_CHECK]
+        path = plan.terrain_path
+        if path is not None and path.profile.covered_share < 1.0:
+            out.append(caution_text.path_not_covered(plan.terrain_source, path.profile.covered_share,
+                                                     path.profile.uncovered_ranges(), METRIC))
+    if plan.landables is not None:
+        out += caution_text.landables_cautions(plan.landables, METRIC)
+    elif plan.scenario.turnpoints:
+        out.append(caution_text.NO_LANDABLES)
+    return out
