@@ -4,24 +4,10 @@ and the caution block of the text output."""
 from __future__ import annotations
 
 import json
-import math
 import sys
-from typing import Any
 
 from glidetask import cautions
-
-
-def jsonable(value: Any) -> Any:
-    """Plain JSON types: numpy scalars to Python, NaN/inf to None, tuples to lists."""
-    if isinstance(value, dict):
-        return {str(k): jsonable(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [jsonable(v) for v in value]
-    if hasattr(value, "tolist"):  # numpy scalar or array
-        return jsonable(value.tolist())
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    return value
+from glidetask.formats.plan_json import jsonable
 
 
 def print_json(payload: dict) -> None:

@@ -9,13 +9,13 @@ is written atomically: an interrupted export never leaves half a file behind.
 from __future__ import annotations
 
 import argparse
-import json
 from pathlib import Path
 
 from glidetask import cautions
 from glidetask.cli import CMDLINE
-from glidetask.commands._output import jsonable, print_json
+from glidetask.commands._output import print_json
 from glidetask.errors import InputError, Problem
+from glidetask.formats.export import render
 
 FORMATS = {".gpx": "GPX 1.1 route", ".md": "pre-flight briefing (Markdown)", ".json": "plan JSON"}
 
@@ -32,28 +32,6 @@ def target_problems(target: str) -> list[Problem]:
     elif path.is_dir():
         problems.append(Problem(CMDLINE, "--to", f"{target!r} is a folder; give a file name"))
     return problems
-
-
-def render(plan, suffix: str, unit_name: str = "metric") -> str:
-    """The file's text for a plan in the format of ``suffix``.
-
-    The briefing and the JSON carry the sensitivity of the task time (computed here, so
-    the terminal UI's export, which calls this, gets the same file).
-    """
-    if suffix == ".gpx":
-        from glidetask.formats.gpx import plan_to_gpx
-
-        return plan_to_gpx(plan)
-    from glidetask.engine.planner import plan_sensitivity
-
-    sensitivity = plan_sensitivity(plan)
-    if suffix == ".md":
-        from glidetask.formats.briefing import plan_to_markdown
-
-        return plan_to_markdown(plan, unit_name, sensitivity)
-    from glidetask.formats.plan_json import plan_to_dict
-
-    return json.dumps(jsonable(plan_to_dict(plan, sensitivity)), indent=2, allow_nan=False) + "\n"
 
 
 def run(args: argparse.Namespace) -> int:

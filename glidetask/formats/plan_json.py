@@ -16,6 +16,19 @@ from typing import Any
 from glidetask.units import KMH, format_clock
 
 
+def jsonable(value: Any) -> Any:
+    """Plain JSON types: numpy scalars to Python, NaN/inf to None, tuples to lists."""
+    if isinstance(value, dict):
+        return {str(k): jsonable(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [jsonable(v) for v in value]
+    if hasattr(value, "tolist"):  # numpy scalar or array
+        return jsonable(value.tolist())
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    return value
+
+
 def _number(value, scale: float = 1.0, digits: int = 3):
     """``value / scale`` rounded, or None where undefined."""
     if value is None:
@@ -153,9 +166,9 @@ def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
 
     Parameters
     ----------
-    plan : glidetask.engine.planner.Plan
+    plan : glidetask.engine.plan.Plan
     sensitivity : glidetask.engine.compare.Sensitivity, optional
-        The task time under what-ifs (:func:`glidetask.engine.planner.plan_sensitivity`),
+        The task time under what-ifs (:func:`glidetask.engine.compare.plan_sensitivity`),
         added as ``sensitivity`` when given.
 
     Returns

@@ -1,4 +1,4 @@
-"""Export the plan exactly as ``glidetask export`` does (its own ``render``): a GPX route,
+"""Export the plan exactly as ``glidetask export`` does (:func:`glidetask.formats.export.render`): a GPX route,
 a Markdown briefing in the units on screen, or the plan's JSON, written atomically."""
 
 from __future__ import annotations
@@ -13,7 +13,7 @@ def export_plan(path: str | Path, plan, unit_name: str = "metric") -> Path:
 
     Raises ValueError for an unknown suffix and OSError when the file cannot be written.
     """
-    from glidetask.commands.export import render
+    from glidetask.formats.export import render
     from glidetask.formats.atomic import write_atomic
 
     target = Path(path).expanduser()

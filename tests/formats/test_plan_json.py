@@ -10,7 +10,7 @@ import pytest
 from geographiclib.geodesic import Geodesic
 
 from glidetask import cautions
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.engine.scenario import Wind
 from glidetask.formats.plan_json import plan_to_dict
 from glidetask.formats.task_file import load_scenario

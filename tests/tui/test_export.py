@@ -24,7 +24,7 @@ async def export_to(pilot, path, radio_id: str | None = None) -> None:
 
 
 async def test_export_a_briefing_and_a_route(tmp_path, acknowledged):
-    from glidetask.commands.export import render
+    from glidetask.formats.export import render
 
     app = make_app()
     async with app.run_test(size=(120, 40)) as pilot:
