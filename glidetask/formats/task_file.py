@@ -31,7 +31,7 @@ import os
 from pathlib import Path
 from typing import Any
 
-from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.scenario import MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
@@ -310,7 +310,7 @@ def _wind(reader: _Reader, table: dict) -> Wind | None:
         return None
     reader.unknown(raw, "[day] wind", ("from_deg", "speed_kmh"))
     direction = reader.number(raw, "[day] wind", "from_deg", required=True, low=0.0, high=360.0)
-    speed = reader.number(raw, "[day] wind", "speed_kmh", required=True, low=0.0, high=200.0)
+    speed = reader.number(raw, "[day] wind", "speed_kmh", required=True, low=0.0, high=MAX_WIND_SPEED_KMH)
     if direction is None or speed is None:
         return None
     return Wind(direction % 360.0, speed * KMH)
