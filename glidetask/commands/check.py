@@ -18,6 +18,7 @@ from pathlib import Path
 
 from glidetask import cautions, units
 from glidetask.errors import InputError, Problem
+from glidetask.units import KMH
 
 TURNPOINT_SUFFIXES = (".geojson", ".json", ".csv")
 TERRAIN_SUFFIXES = (".tif", ".tiff")
@@ -69,9 +70,9 @@ def check_polar(path: str) -> dict:
         "empty_mass_kg": spec.empty_mass_kg,
         "max_ballast_kg": spec.max_ballast_kg,
         "best_ld": float(polar.best_ld),
-        "best_ld_speed_kmh": float(polar.best_ld_speed_ms) * 3.6,
+        "best_ld_speed_kmh": float(polar.best_ld_speed_ms) / KMH,
         "min_sink_ms": float(polar.min_sink_ms),
-        "min_sink_speed_kmh": float(polar.min_sink_speed_ms) * 3.6,
+        "min_sink_speed_kmh": float(polar.min_sink_speed_ms) / KMH,
         "fit_rms_ms": float(polar.fit_rms_ms),
     }
 
@@ -108,7 +109,7 @@ def check_task(path: str) -> dict:
         "mass_kg": scenario.glider.mass_kg,
         "start_time": units.format_clock(day.start_time_s),
         "band_m": [day.band_bottom_m, day.band_top_m],
-        "wind": {"from_deg": day.wind.from_deg, "speed_kmh": day.wind.speed_ms * 3.6},
+        "wind": {"from_deg": day.wind.from_deg, "speed_kmh": day.wind.speed_ms / KMH},
         "turnpoints": len(scenario.turnpoints),
         "landables": sum(1 for p in scenario.turnpoints if p.landable),
         "terrain_file": scenario.terrain_file,
@@ -211,8 +212,8 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
         vertical = unit.vertical(result["min_sink_ms"])
         return [f"  {result['label']}",
                 f"  at {result['reference_mass_kg']:g} kg: best glide 1:{result['best_ld']:.1f} at "
-                f"{unit.fmt_speed(result['best_ld_speed_kmh'] / 3.6)}, minimum sink {vertical:.2f} "
-                f"{unit.vertical_label} at {unit.fmt_speed(result['min_sink_speed_kmh'] / 3.6)}"]
+                f"{unit.fmt_speed(result['best_ld_speed_kmh'] * KMH)}, minimum sink {vertical:.2f} "
+                f"{unit.vertical_label} at {unit.fmt_speed(result['min_sink_speed_kmh'] * KMH)}"]
     if kind == "terrain":
         if not result.get("checked"):
             return ["  elevation model (not checked: the terrain engine is not available)"]
@@ -233,7 +234,7 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
     wind = result["wind"]
     lines += [f"  glider {result['glider']}, {result['mass_kg']:g} kg; start {result['start_time']}, band "
               f"{unit.fmt_height(result['band_m'][0])} to {unit.fmt_height(result['band_m'][1])}, wind "
-              f"{wind['from_deg']:03.0f}/{unit.fmt_speed(wind['speed_kmh'] / 3.6)}",
+              f"{wind['from_deg']:03.0f}/{unit.fmt_speed(wind['speed_kmh'] * KMH)}",
               f"  {result['turnpoints']} turnpoints ({result['landables']} landable); terrain "
               f"{'none' if not result['terrain_file'] else os.path.basename(result['terrain_file'])}",
               f"  {cautions.COMPACT}"]

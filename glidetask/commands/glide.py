@@ -18,7 +18,7 @@ from glidetask import cautions, units
 from glidetask.cli import CMDLINE, check_number, parse_position, parse_wind
 from glidetask.commands._output import caution_block, print_json
 from glidetask.commands.polar import glider_problems
-from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.atmosphere import density_ratio, ias_from_tas_at
 from glidetask.engine.finalglide import MC_TO_ARRIVE_CAP_MS, FinalGlide, final_glide
 from glidetask.engine.polar import Polar, scaled_polar
 from glidetask.engine.scenario import Wind
@@ -121,7 +121,7 @@ def glide_text(args: argparse.Namespace, spec_label: str, polar: Polar, sigma: f
     else:
         to_arrive_text = f"{unit.vertical(to_arrive):.1f} {unit.vertical_label}"
     ias = "" if math.isnan(glide.speed_to_fly_ms) else \
-        f" ({unit.speed(glide.speed_to_fly_ms * math.sqrt(sigma)):.0f} IAS)"
+        f" ({unit.speed(ias_from_tas_at(glide.speed_to_fly_ms, sigma)):.0f} IAS)"
     heading = "-" if math.isnan(glide.heading_deg) else f"{glide.heading_deg:03.0f} deg"
     time = "-" if math.isnan(glide.time_s) else units.format_duration(glide.time_s)
     lines = [
@@ -213,12 +213,11 @@ def run(args: argparse.Namespace) -> int:
 def glide_payload(args: argparse.Namespace, label: str, polar: Polar, sigma: float, glide: FinalGlide,
                   distance_m: float, course_deg: float, wind: Wind) -> dict:
     """The contract 5.2 JSON, plus the inputs and context a script may want."""
-    kmh = 3.6
     return {
         "required_height_m": glide.required_height_m,
         "margin_m": glide.margin_m,
-        "speed_to_fly_kmh": glide.speed_to_fly_ms * kmh,
-        "ground_speed_kmh": glide.ground_speed_ms * kmh,
+        "speed_to_fly_kmh": glide.speed_to_fly_ms / KMH,
+        "ground_speed_kmh": glide.ground_speed_ms / KMH,
         "heading_deg": glide.heading_deg,
         "time_s": glide.time_s,
         "ld_required": glide.ld_required,
@@ -227,7 +226,7 @@ def glide_payload(args: argparse.Namespace, label: str, polar: Polar, sigma: flo
         "above_glide": bool(glide.margin_m >= 0.0),
         "reachable": bool(not math.isnan(glide.margin_m)),
         "height_used_m": glide.height_used_m,
-        "speed_to_fly_ias_kmh": glide.speed_to_fly_ms * math.sqrt(sigma) * kmh,
+        "speed_to_fly_ias_kmh": ias_from_tas_at(glide.speed_to_fly_ms, sigma) / KMH,
         "sink_ms": glide.sink_ms,
         "distance_km": distance_m / 1000.0,
         "course_deg": course_deg,
@@ -238,7 +237,7 @@ def glide_payload(args: argparse.Namespace, label: str, polar: Polar, sigma: flo
         "arrival_margin_m": args.margin_m,
         "mc_ms": args.mc_ms,
         "airmass_ms": args.airmass_ms,
-        "wind": {"from_deg": wind.from_deg, "speed_kmh": wind.speed_ms * kmh},
+        "wind": {"from_deg": wind.from_deg, "speed_kmh": wind.speed_ms / KMH},
         "polar_file": args.polar,
         "label": label,
         "mass_kg": polar.mass_kg,

@@ -14,11 +14,12 @@ import numpy as np
 from glidetask import cautions, units
 from glidetask.cli import CMDLINE, check_number
 from glidetask.commands._output import caution_block, print_json
-from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.atmosphere import density_ratio, ias_from_tas_at
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.engine.speedtofly import cruise_in_wind, speed_to_fly_still_air
 from glidetask.errors import InputError, Problem
 from glidetask.formats.polar_file import loading_problems, read_polar_spec
+from glidetask.units import KMH
 
 CARD_SETTINGS_MS = tuple(0.5 * i for i in range(11))  # MacCready 0.0 ... 5.0 m/s (contract 5.1)
 CARD_SETTINGS_KT = tuple(float(i) for i in range(11))  # the aviation card: 0 ... 10 kt
@@ -45,8 +46,8 @@ def speed_card(polar: Polar, sigma: float, settings_ms) -> list[dict]:
     settings = np.asarray(settings_ms, dtype=float)
     speeds = np.asarray(speed_to_fly_still_air(polar, settings))
     cruise = np.asarray(cruise_in_wind(polar, settings, 0.0, 0.0).cruise_speed_ms)
-    return [{"mc_ms": float(m), "speed_kmh": float(v * 3.6), "cruise_speed_kmh": float(c * 3.6),
-             "speed_ias_kmh": float(v * np.sqrt(sigma) * 3.6)}
+    return [{"mc_ms": float(m), "speed_kmh": float(v / KMH), "cruise_speed_kmh": float(c / KMH),
+             "speed_ias_kmh": float(ias_from_tas_at(v, sigma) / KMH)}
             for m, v, c in zip(settings, speeds, cruise)]
 
 
@@ -66,11 +67,11 @@ def polar_payload(args: argparse.Namespace, spec: PolarSpec, polar: Polar, sigma
         "coefficients": {"a": polar.a, "b": polar.b, "c": polar.c},
         "fit_rms_ms": polar.fit_rms_ms,
         "min_sink_ms": polar.min_sink_ms,
-        "min_sink_speed_kmh": polar.min_sink_speed_ms * 3.6,
+        "min_sink_speed_kmh": polar.min_sink_speed_ms / KMH,
         "best_ld": polar.best_ld,
-        "best_ld_speed_kmh": polar.best_ld_speed_ms * 3.6,
-        "min_speed_kmh": polar.min_speed_ms * 3.6,
-        "vne_kmh": polar.vne_ms * 3.6,
+        "best_ld_speed_kmh": polar.best_ld_speed_ms / KMH,
+        "min_speed_kmh": polar.min_speed_ms / KMH,
+        "vne_kmh": polar.vne_ms / KMH,
         "speed_to_fly": speed_card(polar, sigma, CARD_SETTINGS_MS),
         "cautions": cautions.general(),
     }
@@ -78,7 +79,7 @@ def polar_payload(args: argparse.Namespace, spec: PolarSpec, polar: Polar, sigma
 
 def _speed(unit: units.UnitSystem, speed_ms: float, sigma: float) -> str:
     """``"128 km/h (120 IAS)"``: true airspeed with the indicated one beside it."""
-    return f"{unit.speed(speed_ms):.0f} {unit.speed_label} ({unit.speed(speed_ms * np.sqrt(sigma)):.0f} IAS)"
+    return f"{unit.speed(speed_ms):.0f} {unit.speed_label} ({unit.speed(ias_from_tas_at(speed_ms, sigma)):.0f} IAS)"
 
 
 def polar_text(args: argparse.Namespace, spec: PolarSpec, polar: Polar, sigma: float) -> str:
@@ -110,8 +111,8 @@ def polar_text(args: argparse.Namespace, spec: PolarSpec, polar: Polar, sigma: f
         setting = f"{unit.vertical(row['mc_ms']):.0f} {unit.vertical_label}" if aviation else \
             f"{row['mc_ms']:.1f} {unit.vertical_label}"
         cruise = row["cruise_speed_kmh"]
-        cruise_text = "-" if not np.isfinite(cruise) else unit.fmt_speed(cruise / 3.6)
-        lines.append(f"  {setting:<12}{_speed(unit, row['speed_kmh'] / 3.6, sigma):<22}{cruise_text}")
+        cruise_text = "-" if not np.isfinite(cruise) else unit.fmt_speed(cruise * KMH)
+        lines.append(f"  {setting:<12}{_speed(unit, row['speed_kmh'] * KMH, sigma):<22}{cruise_text}")
     lines += ["", caution_block()]
     return "\n".join(lines)
 

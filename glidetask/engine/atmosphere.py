@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
+
 # ISO 2533:1975 sea-level constants and the troposphere's lapse rate.
 T0_K = 288.15  # sea-level temperature [K]
 P0_PA = 101325.0  # sea-level pressure [Pa]
@@ -29,18 +31,13 @@ _T11_K = T0_K - LAPSE_KM * TROPOPAUSE_M  # 216.65 K
 _P11_PA = P0_PA * (_T11_K / T0_K) ** _EXPONENT  # 22632 Pa
 
 
-def _scalar_or_array(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
-
-
 def geopotential_altitude(altitude_m):
     """Geopotential altitude for a geometric altitude [m]: ``H = r h / (r + h)``.
 
     ``r = 6 356 766 m`` as in ISO 2533; the difference is 1.4 m at 3000 m.
     """
     h = np.asarray(altitude_m, dtype=float)
-    return _scalar_or_array(EARTH_RADIUS_M * h / (EARTH_RADIUS_M + h))
+    return scalar_or_array(EARTH_RADIUS_M * h / (EARTH_RADIUS_M + h))
 
 
 def isa_temperature(altitude_m):
@@ -59,7 +56,7 @@ def isa_temperature(altitude_m):
     h = np.asarray(geopotential_altitude(altitude_m))
     temperature = np.where(h < TROPOPAUSE_M, T0_K - LAPSE_KM * h, _T11_K)
     temperature = np.where((h >= LOWEST_M) & (h <= HIGHEST_M), temperature, np.nan)
-    return _scalar_or_array(temperature)
+    return scalar_or_array(temperature)
 
 
 def isa_pressure(altitude_m):
@@ -80,7 +77,7 @@ def isa_pressure(altitude_m):
         stratosphere = _P11_PA * np.exp(-G0_MS2 * (h - TROPOPAUSE_M) / (R_AIR * _T11_K))
     pressure = np.where(h < TROPOPAUSE_M, troposphere, stratosphere)
     pressure = np.where((h >= LOWEST_M) & (h <= HIGHEST_M), pressure, np.nan)
-    return _scalar_or_array(pressure)
+    return scalar_or_array(pressure)
 
 
 def air_density(altitude_m, isa_deviation_c=0.0):
@@ -112,7 +109,7 @@ def air_density(altitude_m, isa_deviation_c=0.0):
     """
     temperature = np.asarray(isa_temperature(altitude_m)) + np.asarray(isa_deviation_c, dtype=float)
     temperature = np.where(temperature > 0.0, temperature, np.nan)
-    return _scalar_or_array(np.asarray(isa_pressure(altitude_m)) / (R_AIR * temperature))
+    return scalar_or_array(np.asarray(isa_pressure(altitude_m)) / (R_AIR * temperature))
 
 
 def density_ratio(altitude_m, isa_deviation_c=0.0):
@@ -123,7 +120,7 @@ def density_ratio(altitude_m, isa_deviation_c=0.0):
     """
     temperature = np.asarray(isa_temperature(altitude_m)) + np.asarray(isa_deviation_c, dtype=float)
     temperature = np.where(temperature > 0.0, temperature, np.nan)
-    return _scalar_or_array(np.asarray(isa_pressure(altitude_m)) / P0_PA * (T0_K / temperature))
+    return scalar_or_array(np.asarray(isa_pressure(altitude_m)) / P0_PA * (T0_K / temperature))
 
 
 def tas_from_ias(ias_ms, altitude_m, isa_deviation_c=0.0):
@@ -135,11 +132,21 @@ def tas_from_ias(ias_ms, altitude_m, isa_deviation_c=0.0):
     position and compressibility errors neglected; compressibility is well under 1 %
     below 300 km/h at glider heights).
     """
-    sigma = np.asarray(density_ratio(altitude_m, isa_deviation_c))
-    return _scalar_or_array(np.asarray(ias_ms, dtype=float) / np.sqrt(sigma))
+    return tas_from_ias_at(ias_ms, density_ratio(altitude_m, isa_deviation_c))
 
 
 def ias_from_tas(tas_ms, altitude_m, isa_deviation_c=0.0):
     """Indicated airspeed for a true airspeed [m/s]: ``IAS = TAS sqrt(sigma)``."""
-    sigma = np.asarray(density_ratio(altitude_m, isa_deviation_c))
-    return _scalar_or_array(np.asarray(tas_ms, dtype=float) * np.sqrt(sigma))
+    return ias_from_tas_at(tas_ms, density_ratio(altitude_m, isa_deviation_c))
+
+
+def tas_from_ias_at(ias_ms, sigma):
+    """True airspeed for an indicated airspeed [m/s] at a density ratio ``sigma``:
+    ``TAS = IAS / sqrt(sigma)`` (see :func:`tas_from_ias`)."""
+    return scalar_or_array(np.asarray(ias_ms, dtype=float) / np.sqrt(np.asarray(sigma, dtype=float)))
+
+
+def ias_from_tas_at(tas_ms, sigma):
+    """Indicated airspeed for a true airspeed [m/s] at a density ratio ``sigma``:
+    ``IAS = TAS sqrt(sigma)`` (see :func:`ias_from_tas`)."""
+    return scalar_or_array(np.asarray(tas_ms, dtype=float) * np.sqrt(np.asarray(sigma, dtype=float)))

@@ -27,6 +27,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.polar import Polar
 
 G0_MS2 = 9.80665  # standard gravity [m/s^2]
@@ -34,14 +35,9 @@ BANK_RANGE_DEG = (15.0, 60.0)  # banks searched for the best climb [deg]
 CIRCLING_SPEED_SPAN = 1.6  # wings-level speeds searched: min_speed to this multiple of it
 
 
-def _scalar_or_array(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
-
-
 def load_factor(bank_deg):
     """Load factor of a coordinated level turn ``n = 1/cos(phi)`` [-]."""
-    return _scalar_or_array(1.0 / np.cos(np.radians(np.asarray(bank_deg, dtype=float))))
+    return scalar_or_array(1.0 / np.cos(np.radians(np.asarray(bank_deg, dtype=float))))
 
 
 def circling_speed(speed_ms, bank_deg):
@@ -49,7 +45,7 @@ def circling_speed(speed_ms, bank_deg):
 
     ``V_turn = v sqrt(n)``: the lift must grow by ``n`` at the same lift coefficient.
     """
-    return _scalar_or_array(np.asarray(speed_ms, dtype=float) * np.sqrt(load_factor(bank_deg)))
+    return scalar_or_array(np.asarray(speed_ms, dtype=float) * np.sqrt(load_factor(bank_deg)))
 
 
 def circling_sink(polar: Polar, speed_ms, bank_deg):
@@ -70,7 +66,7 @@ def circling_sink(polar: Polar, speed_ms, bank_deg):
     ``n^1.5``: ``sink_turn = sink(v) n^1.5`` [1]_ (module references).
     """
     n = np.asarray(load_factor(bank_deg))
-    return _scalar_or_array(np.asarray(polar.sink(speed_ms)) * n**1.5)
+    return scalar_or_array(np.asarray(polar.sink(speed_ms)) * n**1.5)
 
 
 def turn_radius(speed_ms, bank_deg):
@@ -85,7 +81,7 @@ def turn_radius(speed_ms, bank_deg):
     """
     v = np.asarray(speed_ms, dtype=float)
     with np.errstate(divide="ignore"):
-        return _scalar_or_array(v * v / (G0_MS2 * np.tan(np.radians(np.asarray(bank_deg, dtype=float)))))
+        return scalar_or_array(v * v / (G0_MS2 * np.tan(np.radians(np.asarray(bank_deg, dtype=float)))))
 
 
 def updraft(r_m, core_ms, radius_m=150.0):
@@ -113,7 +109,7 @@ def updraft(r_m, core_ms, radius_m=150.0):
     form itself is our idealisation, not a fit to either model.
     """
     r = np.asarray(r_m, dtype=float) / np.asarray(radius_m, dtype=float)
-    return _scalar_or_array(np.asarray(core_ms, dtype=float) * np.exp(-r * r))
+    return scalar_or_array(np.asarray(core_ms, dtype=float) * np.exp(-r * r))
 
 
 @dataclass(frozen=True)
@@ -204,9 +200,9 @@ def achieved_climb(polar: Polar, core_ms, radius_m=150.0, *, rounds: int = 3) ->
     bank_deg, wings_level = best_bank[..., 0, 0], best_speed[..., 0, 0]
     in_turn = np.asarray(circling_speed(wings_level, bank_deg))
     return ClimbSolution(
-        climb_ms=_scalar_or_array(best),
-        bank_deg=_scalar_or_array(bank_deg),
-        airspeed_ms=_scalar_or_array(in_turn),
-        turn_radius_m=_scalar_or_array(turn_radius(in_turn, bank_deg)),
-        wings_level_speed_ms=_scalar_or_array(wings_level),
+        climb_ms=scalar_or_array(best),
+        bank_deg=scalar_or_array(bank_deg),
+        airspeed_ms=scalar_or_array(in_turn),
+        turn_radius_m=scalar_or_array(turn_radius(in_turn, bank_deg)),
+        wings_level_speed_ms=scalar_or_array(wings_level),
     )

@@ -19,6 +19,7 @@ from typing import Sequence
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine import geodesy
 from glidetask.engine.terrain import Terrain
 from glidetask.engine.terrain_profile import (
@@ -148,7 +149,7 @@ class FinalGlideTerrain:
         suffix = np.concatenate((_suffix_max(deficit), [0.0]))
         index = np.searchsorted(self.distance_m, np.asarray(distance_m, dtype=float), side="left")
         result = np.maximum(suffix[index], 0.0)
-        return float(result) if result.ndim == 0 else result
+        return scalar_or_array(result)
 
 
 def _deficit(terrain_m, clearance_m, required_m) -> np.ndarray:

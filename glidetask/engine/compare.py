@@ -40,6 +40,7 @@ from glidetask.engine.flight import Flights, Flown, course_for, flights_for, fly
 from glidetask.engine.plan import Plan, with_what_ifs
 from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
 from glidetask.engine.scenario import Profile, Scenario, Wind
+from glidetask.units import KMH
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
 SWEEP_BALLAST_STEPS = 19  # ballast values from empty to full
@@ -49,7 +50,7 @@ SWEEP_PHASES = 16  # positions of the climbs along the route averaged over (see 
 BALLAST_GAIN_TOLERANCE = 0.002
 
 WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
-MORE_WIND_MS = 10.0 / 3.6  # what-if: this much more wind [m/s] (10 km/h)
+MORE_WIND_MS = 10.0 * KMH  # what-if: this much more wind [m/s] (10 km/h)
 LATER_START_S = 1800.0  # what-if: the start this much later [s]
 MORE_BUGS_PERCENT = 5.0  # what-if: this much more sink from bugs [%]
 INVERSE_STRENGTH_STEP_MS = 0.01  # strength grid for turning a climb back into a thermal strength [m/s]
@@ -504,7 +505,7 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
     out = [("forecast", "Forecast", "the plan as given", scenario),
            ("weaker_climbs", *weaker, dataclasses.replace(scenario, day=weaker_day))]
     for key, label, change, what_if in (
-            ("more_wind", "Wind 10 km/h stronger", f"wind {wind.from_deg:03.0f}/{wind.speed_ms * 3.6:.0f} km/h",
+            ("more_wind", "Wind 10 km/h stronger", f"wind {wind.from_deg:03.0f}/{wind.speed_ms / KMH:.0f} km/h",
              {"wind": wind}),
             ("later_start", "Start 30 min later", f"start {format_clock(start)}", {"start_time_s": start}),
             ("more_bugs", "5 % more bugs", f"bugs {bugs:g} % (sink rate)", {"bugs_percent": bugs})):

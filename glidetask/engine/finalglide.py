@@ -11,17 +11,13 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.polar import Polar
 from glidetask.engine.scenario import Wind
 from glidetask.engine.speedtofly import _ground_speed, _glide_terms, glide_in_wind, solve_increasing
 from glidetask.engine.wind import correction_angle_deg, wind_components
 
 MC_TO_ARRIVE_CAP_MS = 10.0  # the largest MacCready setting reported [m/s]
-
-
-def _scalar_or_array(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
 
 
 def _check_distance(distance_m) -> np.ndarray:
@@ -59,7 +55,7 @@ def height_used(polar: Polar, distance_m, along_ms, across_ms, mc_ms, airmass_ms
     """
     distance = _check_distance(distance_m)
     per_metre = np.asarray(glide_in_wind(polar, mc_ms, along_ms, across_ms, airmass_ms).height_per_metre)
-    return _scalar_or_array(np.where(distance == 0.0, 0.0, distance * per_metre))
+    return scalar_or_array(np.where(distance == 0.0, 0.0, distance * per_metre))
 
 
 def _height_rate(v, a, b, c, along, across_sq, airmass, target):
@@ -126,7 +122,7 @@ def mc_to_arrive(polar: Polar, distance_m, available_m, along_ms, across_ms, air
     *_, setting, _ = _glide_terms(a, b, c, v, along, across_sq, airmass)
     setting = np.clip(setting, 0.0, cap_ms)
     result = np.where(spare_at_vne, cap_ms, np.where(interior, setting, np.nan))
-    return _scalar_or_array(result)
+    return scalar_or_array(result)
 
 
 @dataclass(frozen=True)
@@ -232,7 +228,7 @@ def final_glide(polar: Polar, distance_m, height_m, *, course_deg=0.0, wind: Win
     shape = np.broadcast_shapes(np.shape(required), np.shape(height), np.shape(to_arrive), np.shape(heading))
 
     def out(value):
-        return _scalar_or_array(np.broadcast_to(np.asarray(value, dtype=float), shape))
+        return scalar_or_array(np.broadcast_to(np.asarray(value, dtype=float), shape))
 
     return FinalGlide(
         required_height_m=out(required),

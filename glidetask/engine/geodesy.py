@@ -21,6 +21,8 @@ import math
 import numpy as np
 import pyproj
 
+from glidetask.engine.arrays import scalar_or_array
+
 #: The one ellipsoid of the project (semi-major axis 6378137 m, flattening 1/298.257223563).
 WGS84 = pyproj.Geod(ellps="WGS84")
 
@@ -29,14 +31,14 @@ def normalize_lon(lon):
     """Longitude [deg] folded into [-180, 180) (scalar or array)."""
     lon = np.asarray(lon, dtype=float)
     folded = np.where((lon >= -180.0) & (lon < 180.0), lon, (lon + 180.0) % 360.0 - 180.0)  # exact if in range
-    return float(folded) if folded.ndim == 0 else folded
+    return scalar_or_array(folded)
 
 
 def normalize_azimuth(azimuth_deg):
     """Azimuth [deg] folded into [0, 360) (scalar or array)."""
     folded = np.asarray(azimuth_deg, dtype=float) % 360.0
     folded = np.where(folded >= 360.0, 0.0, folded)  # -1e-15 % 360 rounds to 360.0
-    return float(folded) if folded.ndim == 0 else folded
+    return scalar_or_array(folded)
 
 
 def _flat_broadcast(*values):

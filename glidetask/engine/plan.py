@@ -47,7 +47,7 @@ from glidetask.engine.scenario import Scenario, Wind, scenario_problems
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
 from glidetask.engine.wind import heading_for_course, wind_components
 from glidetask.errors import InputError, Problem
-from glidetask.units import format_clock, format_duration
+from glidetask.units import KMH, format_clock, format_duration
 
 CMDLINE = "command line"
 #: The command-line option of each what-if, by the task-file key it replaces.
@@ -504,7 +504,7 @@ def plan_cautions(plan: Plan) -> list[str]:
         elif reason == flight.NO_CLIMB:
             why = f"the climb profile gives no climb at {format_clock(stop)}, before the final glide can start"
         elif reason == flight.UNREACHABLE:
-            speed = day.wind.speed_ms * 3.6
+            speed = day.wind.speed_ms / KMH
             why = (f"the wind ({day.wind.from_deg:03.0f}/{speed:.0f} km/h) is too strong for this glider to make "
                    f"progress with climbs")
         elif reason == flight.BELOW_FLOOR:

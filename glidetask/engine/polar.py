@@ -16,10 +16,7 @@ from functools import lru_cache
 
 import numpy as np
 
-
-def _scalar_or_array(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
+from glidetask.engine.arrays import scalar_or_array
 
 
 @dataclass(frozen=True)
@@ -140,17 +137,17 @@ class Polar:
     def sink(self, speed_ms):
         """Sink rate at a true airspeed [m/s] (the quadratic; no range check)."""
         v = np.asarray(speed_ms, dtype=float)
-        return _scalar_or_array((np.asarray(self.a) * v + self.b) * v + self.c)
+        return scalar_or_array((np.asarray(self.a) * v + self.b) * v + self.c)
 
     def sink_slope(self, speed_ms):
         """``d sink / d v`` at a true airspeed [-]."""
         v = np.asarray(speed_ms, dtype=float)
-        return _scalar_or_array(2.0 * np.asarray(self.a) * v + self.b)
+        return scalar_or_array(2.0 * np.asarray(self.a) * v + self.b)
 
     def clamp(self, speed_ms):
         """``speed_ms`` limited to the valid range ``[min_speed_ms, vne_ms]``."""
         v = np.asarray(speed_ms, dtype=float)
-        return _scalar_or_array(np.minimum(np.maximum(v, self.min_speed_ms), self.vne_ms))
+        return scalar_or_array(np.minimum(np.maximum(v, self.min_speed_ms), self.vne_ms))
 
     @property
     def min_sink_speed_ms(self):
@@ -179,12 +176,12 @@ class Polar:
     def best_ld(self):
         """Best glide ratio (lift/drag = distance/height in still air) [-]."""
         speed = self.best_ld_speed_ms
-        return _scalar_or_array(np.asarray(speed) / np.asarray(self.sink(speed)))
+        return scalar_or_array(np.asarray(speed) / np.asarray(self.sink(speed)))
 
     @property
     def wing_loading_kgm2(self):
         """Wing loading [kg/m^2]."""
-        return _scalar_or_array(np.asarray(self.mass_kg, dtype=float) / self.wing_area_m2)
+        return scalar_or_array(np.asarray(self.mass_kg, dtype=float) / self.wing_area_m2)
 
     @property
     def shape(self) -> tuple[int, ...]:
@@ -243,13 +240,13 @@ def scaled_polar(spec: PolarSpec, mass_kg, bugs_percent=0.0, sigma=1.0) -> Polar
     k = np.sqrt(mass / spec.reference_mass_kg) / np.sqrt(density)
     dirt = 1.0 + bugs / 100.0
     return Polar(
-        a=_scalar_or_array(a / k * dirt),
-        b=_scalar_or_array(b * dirt * np.ones_like(k)),
-        c=_scalar_or_array(c * k * dirt),
-        min_speed_ms=_scalar_or_array(spec.min_speed_ias_ms * k * np.ones_like(dirt)),
-        vne_ms=_scalar_or_array(spec.vne_ias_ms / np.sqrt(density) * np.ones_like(k * dirt)),
-        mass_kg=_scalar_or_array(mass * np.ones_like(k * dirt)),
+        a=scalar_or_array(a / k * dirt),
+        b=scalar_or_array(b * dirt * np.ones_like(k)),
+        c=scalar_or_array(c * k * dirt),
+        min_speed_ms=scalar_or_array(spec.min_speed_ias_ms * k * np.ones_like(dirt)),
+        vne_ms=scalar_or_array(spec.vne_ias_ms / np.sqrt(density) * np.ones_like(k * dirt)),
+        mass_kg=scalar_or_array(mass * np.ones_like(k * dirt)),
         wing_area_m2=float(spec.wing_area_m2),
-        fit_rms_ms=_scalar_or_array(rms * k * dirt),
+        fit_rms_ms=scalar_or_array(rms * k * dirt),
     )
 

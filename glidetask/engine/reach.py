@@ -22,6 +22,7 @@ from typing import Sequence
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine import geodesy
 from glidetask.engine.polar import Polar
 from glidetask.engine.scenario import Wind
@@ -79,7 +80,7 @@ def reach_distance(polar: Polar, height_m, course_deg=0.0, wind: Wind = Wind(), 
     with np.errstate(divide="ignore", invalid="ignore"):
         distance = np.where(per_metre > 0.0, height / per_metre, np.where(np.isnan(per_metre), np.nan, np.inf))
     distance = np.where(height <= 0.0, 0.0, distance)
-    return float(distance) if distance.ndim == 0 else distance
+    return scalar_or_array(distance)
 
 
 # ---------------------------------------------------------------- landables

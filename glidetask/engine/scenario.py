@@ -13,6 +13,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.units import KMH, format_clock
@@ -168,7 +169,7 @@ class Day:
         profile = self.climb if self.climb is not None else self.thermal_strength
         value = np.asarray(profile.at(time_s), dtype=float)
         value = np.where(np.asarray(time_s) > self.lift_ends_s, 0.0, value)
-        return value if value.ndim else float(value)
+        return scalar_or_array(value)
 
 
 @dataclass(frozen=True)

@@ -49,6 +49,7 @@ import numpy as np
 from glidetask.engine import flight
 from glidetask.engine.flight import Flights, fly
 from glidetask.engine.scenario import Scenario
+from glidetask.units import KMH
 
 SEARCH_DRAWS = 64  # exponential draws kept per day; climb n uses draw n mod this
 DEFAULT_RUNS = 2000
@@ -86,7 +87,7 @@ class DaySpread:
     """
 
     climb_log_sd: float = 0.2
-    wind_speed_sd_ms: float = 8.0 / 3.6
+    wind_speed_sd_ms: float = 8.0 * KMH
     wind_direction_sd_deg: float = 20.0
     lift_end_sd_s: float = 1800.0
     thermal_search_mean_m: float = 2000.0
@@ -378,7 +379,7 @@ def _choice(ballast: float, setup: Flights, flown, rows: slice, forecast, legs: 
 
 def _notes(scenario: Scenario, spread: DaySpread) -> list[str]:
     notes = ["The spread of days is a planning assumption of glidetask, not a forecast: strength "
-             f"x exp(N(0, {spread.climb_log_sd:g})), wind speed +/- {spread.wind_speed_sd_ms * 3.6:.0f} km/h "
+             f"x exp(N(0, {spread.climb_log_sd:g})), wind speed +/- {spread.wind_speed_sd_ms / KMH:.0f} km/h "
              f"and direction +/- {spread.wind_direction_sd_deg:.0f} deg (1 sd), end of lift +/- "
              f"{spread.lift_end_sd_s / 60:.0f} min, next climb on average {spread.thermal_search_mean_m / 1000:.1f} km "
              "beyond the band bottom."]

@@ -29,12 +29,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.polar import Polar
-
-
-def _scalar_or_array(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
 
 
 def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1e-9):
@@ -165,7 +161,7 @@ def macready_for_speed(polar: Polar, airspeed_ms, along_ms, across_ms, airmass_m
     *_, setting, _ = _glide_terms(np.asarray(polar.a), np.asarray(polar.b), np.asarray(polar.c),
                                   np.asarray(airspeed_ms, dtype=float), np.asarray(along_ms, dtype=float),
                                   np.asarray(across_ms, dtype=float) ** 2, np.asarray(airmass_ms, dtype=float))
-    return _scalar_or_array(setting)
+    return scalar_or_array(setting)
 
 
 def _snap_to_ends(v, lo, hi, rtol=1e-8):
@@ -259,11 +255,11 @@ def glide_in_wind(polar: Polar, mc_ms, along_ms, across_ms, airmass_ms=0.0) -> G
         per_metre = net_sink / ground
     nan = np.nan
     return GlideSolution(
-        airspeed_ms=_scalar_or_array(np.where(valid, v, nan)),
-        ground_speed_ms=_scalar_or_array(np.where(valid, ground, nan)),
-        sink_ms=_scalar_or_array(np.where(valid, sink, nan)),
-        height_per_metre=_scalar_or_array(np.where(valid, per_metre, nan)),
-        ld=_scalar_or_array(np.where(valid, ld, nan)),
+        airspeed_ms=scalar_or_array(np.where(valid, v, nan)),
+        ground_speed_ms=scalar_or_array(np.where(valid, ground, nan)),
+        sink_ms=scalar_or_array(np.where(valid, sink, nan)),
+        height_per_metre=scalar_or_array(np.where(valid, per_metre, nan)),
+        ld=scalar_or_array(np.where(valid, ld, nan)),
     )
 
 
@@ -342,8 +338,8 @@ def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, 
     cruise = np.where(cruise > 0.0, cruise, np.nan)
     shape = np.broadcast_shapes(v.shape, cruise.shape, glide_ground.shape, fraction.shape)
     return CruiseSolution(
-        airspeed_ms=_scalar_or_array(np.broadcast_to(v, shape)),
-        cruise_speed_ms=_scalar_or_array(np.broadcast_to(cruise, shape)),
-        glide_ground_speed_ms=_scalar_or_array(np.broadcast_to(glide_ground, shape)),
-        glide_fraction=_scalar_or_array(np.broadcast_to(fraction, shape)),
+        airspeed_ms=scalar_or_array(np.broadcast_to(v, shape)),
+        cruise_speed_ms=scalar_or_array(np.broadcast_to(cruise, shape)),
+        glide_ground_speed_ms=scalar_or_array(np.broadcast_to(glide_ground, shape)),
+        glide_fraction=scalar_or_array(np.broadcast_to(fraction, shape)),
     )

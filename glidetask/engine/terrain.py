@@ -26,6 +26,7 @@ from functools import lru_cache
 
 import numpy as np
 
+from glidetask.engine.arrays import scalar_or_array
 from glidetask.units import FOOT
 
 _NEGLIGIBLE_WEIGHT = 1e-9
@@ -150,7 +151,7 @@ class Terrain:
             unknown |= missing & (np.abs(weight) > _NEGLIGIBLE_WEIGHT)
             total += weight * np.where(missing, 0.0, value)
         result = np.where(inside & ~unknown, total, np.nan)
-        return float(result) if result.ndim == 0 else result
+        return scalar_or_array(result)
 
     def sample(self, lats, lons):
         """Elevation [m MSL] at WGS84 latitudes and longitudes [deg] (scalars or arrays).

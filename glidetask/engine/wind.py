@@ -8,10 +8,7 @@ from __future__ import annotations
 
 import numpy as np
 
-
-def _scalar_or_array(value):
-    value = np.asarray(value, dtype=float)
-    return float(value) if value.ndim == 0 else value
+from glidetask.engine.arrays import scalar_or_array
 
 
 def wind_components(course_deg, wind_from_deg, wind_speed_ms):
@@ -41,7 +38,7 @@ def wind_components(course_deg, wind_from_deg, wind_speed_ms):
     """
     delta = np.radians(np.asarray(wind_from_deg, dtype=float) - np.asarray(course_deg, dtype=float))
     speed = np.asarray(wind_speed_ms, dtype=float)
-    return _scalar_or_array(-speed * np.cos(delta)), _scalar_or_array(-speed * np.sin(delta))
+    return scalar_or_array(-speed * np.cos(delta)), scalar_or_array(-speed * np.sin(delta))
 
 
 def heading_for_course(course_deg, airspeed_ms, wind_from_deg, wind_speed_ms):
@@ -77,7 +74,7 @@ def heading_for_course(course_deg, airspeed_ms, wind_from_deg, wind_speed_ms):
     with np.errstate(invalid="ignore"):
         ground = np.sqrt(np.where(np.abs(across) < v, v * v - across * across, np.nan)) + along
     heading = np.mod(np.asarray(course_deg, dtype=float) - np.asarray(correction_angle_deg(v, across)), 360.0)
-    return _scalar_or_array(heading), _scalar_or_array(ground)
+    return scalar_or_array(heading), scalar_or_array(ground)
 
 
 def correction_angle_deg(airspeed_ms, across_ms):
@@ -90,4 +87,4 @@ def correction_angle_deg(airspeed_ms, across_ms):
     across = np.asarray(across_ms, dtype=float)
     with np.errstate(invalid="ignore", divide="ignore"):
         angle = np.degrees(np.arcsin(np.where(np.abs(across) < v, across / v, np.nan)))
-    return _scalar_or_array(angle)
+    return scalar_or_array(angle)
