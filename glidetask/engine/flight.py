@@ -56,7 +56,7 @@ from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.engine.scenario import Scenario, band_middle_m
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind, speed_to_fly_still_air
-from glidetask.engine.wind import wind_components
+from glidetask.engine.wind import ground_speed, wind_components
 
 
 # Why a flight ended (``Flown.reason``). A finished flight has FINAL_GLIDE, or the reason
@@ -578,7 +578,7 @@ class _Simulation:
         airmass = self.airmass[rows, None]
         v = speed_to_fly_still_air(polar, mc_fg[:, None], airmass)
         with np.errstate(invalid="ignore", divide="ignore"):
-            ground = np.sqrt(v * v - self.across[rows] ** 2) + self.along[rows]
+            ground = np.asarray(ground_speed(v, self.along[rows], self.across[rows]))
             hpm = np.where(ground > 0.0, (polar.sink(v) - airmass) / ground, self.hpm0[rows])
         tail = self._tail(hpm)
         return self.floor[rows] + hpm[line, leg] * (self.distance[leg] - pos) + tail[line, leg + 1]
@@ -662,7 +662,7 @@ class _Simulation:
         k, s, h = self.leg[rows], self.pos[rows], self.h[rows]
         along, across = self.along[rows, k], self.across[rows, k]
         with np.errstate(invalid="ignore", divide="ignore"):
-            cruise_gs = np.sqrt(self.v[rows] ** 2 - (across / self.fraction[rows]) ** 2) + along
+            cruise_gs = np.asarray(ground_speed(self.v[rows], along, across / self.fraction[rows]))
             pure = self.pure[rows]
             gs = np.where(pure, self.gs0[rows, k], cruise_gs)
             hpm = np.where(pure, self.hpm0[rows, k], self.net_sink[rows] / cruise_gs)

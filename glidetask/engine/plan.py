@@ -45,7 +45,7 @@ from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, t
 from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import Scenario, Wind, scenario_problems
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
-from glidetask.engine.wind import heading_for_course, wind_components
+from glidetask.engine.wind import ground_speed, heading_for_course, wind_components
 from glidetask.errors import InputError, Problem
 from glidetask.units import KMH, format_clock, format_duration
 
@@ -444,7 +444,7 @@ def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
     v, fraction = np.asarray(cruise.airspeed_ms), np.asarray(cruise.glide_fraction)
     with np.errstate(invalid="ignore", divide="ignore"):
         drift_fix = across / fraction  # air velocity across the course in the glides (contract 3)
-        cruise_ground = np.sqrt(v * v - drift_fix**2) + along
+        cruise_ground = np.asarray(ground_speed(v, along, drift_fix))
         cruise_heading = np.mod(courses - np.degrees(np.arcsin(drift_fix / v)), 360.0)
     sigma = float(flown.final_glide_sigma[0])
     fg_polar = scaled_polar(scenario.glider.spec, scenario.glider.mass_kg, scenario.glider.bugs_percent,

@@ -31,6 +31,7 @@ import numpy as np
 
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.polar import Polar
+from glidetask.engine.wind import ground_speed
 
 
 def solve_increasing(func, lo, hi, guess=None, args=(), *, iterations=60, rtol=1e-9):
@@ -123,7 +124,9 @@ def speed_to_fly_still_air(polar: Polar, mc_ms, airmass_ms=0.0):
 
 
 def _ground_speed(v, along, across_sq):
-    """``q = sqrt(v^2 - Wn^2)`` and ``Vg = q + We`` (q = 0 where the crosswind wins)."""
+    """``q = sqrt(v^2 - Wn^2)`` and ``Vg = q + We`` (q = 0 where the crosswind wins): the
+    solvers' form of :func:`glidetask.engine.wind.ground_speed`, clamped so that Newton steps
+    stay finite, with the squared crosswind ``Wn^2`` computed once."""
     q = np.sqrt(np.maximum(v * v - across_sq, 0.0))
     return q, q + along
 
@@ -333,8 +336,8 @@ def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, 
     with np.errstate(divide="ignore", invalid="ignore"):
         fraction = np.where(net_sink <= 0.0, 1.0, climb / (climb + net_sink))
         fraction = np.where((net_sink > 0.0) & (climb <= 0.0), np.nan, fraction)
-        cruise = np.sqrt((fraction * v) ** 2 - across**2) + along
-        glide_ground = np.sqrt(v * v - across**2) + along
+        cruise = np.asarray(ground_speed(fraction * v, along, across))
+        glide_ground = np.asarray(ground_speed(v, along, across))
     cruise = np.where(cruise > 0.0, cruise, np.nan)
     shape = np.broadcast_shapes(v.shape, cruise.shape, glide_ground.shape, fraction.shape)
     return CruiseSolution(

@@ -71,10 +71,35 @@ def heading_for_course(course_deg, airspeed_ms, wind_from_deg, wind_speed_ms):
     along, across = wind_components(course_deg, wind_from_deg, wind_speed_ms)
     along, across = np.asarray(along), np.asarray(across)
     v = np.asarray(airspeed_ms, dtype=float)
-    with np.errstate(invalid="ignore"):
-        ground = np.sqrt(np.where(np.abs(across) < v, v * v - across * across, np.nan)) + along
+    ground = np.where(np.abs(across) < v, ground_speed(v, along, across), np.nan)
     heading = np.mod(np.asarray(course_deg, dtype=float) - np.asarray(correction_angle_deg(v, across)), 360.0)
     return scalar_or_array(heading), scalar_or_array(ground)
+
+
+def ground_speed(airspeed_ms, along_ms, across_ms):
+    """Speed over the ground along a course, heading so that the crosswind does not drift
+    the glider off it: ``sqrt(v^2 - Wn^2) + We`` [m/s] (the wind triangle; standard air
+    navigation). The one place this rule is written.
+
+    Parameters
+    ----------
+    airspeed_ms : float or array_like
+        True airspeed [m/s] (or, for a climb-and-glide cycle, the air velocity that must
+        cancel the cycle's drift).
+    along_ms, across_ms : float or array_like
+        Wind components along (tailwind positive) and across the course [m/s]
+        (:func:`wind_components`).
+
+    Returns
+    -------
+    float or ndarray
+        NaN where the crosswind is stronger than the airspeed; zero or negative where a
+        headwind is as strong as the airspeed's part along the course.
+    """
+    v = np.asarray(airspeed_ms, dtype=float)
+    across = np.asarray(across_ms, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return scalar_or_array(np.sqrt(v * v - across * across) + np.asarray(along_ms, dtype=float))
 
 
 def correction_angle_deg(airspeed_ms, across_ms):
