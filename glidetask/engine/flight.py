@@ -54,7 +54,7 @@ import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
-from glidetask.engine.scenario import Scenario, band_middle_m
+from glidetask.engine.scenario import Scenario, band_middle_m, until_lift_ends
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind, speed_to_fly_still_air
 from glidetask.engine.wind import ground_speed, wind_components
 
@@ -429,7 +429,7 @@ class _Lift:
         return value * self.scale[rows]
 
     def climb(self, rows, time_s):
-        """Achieved climb [m/s] for flights ``rows`` at ``time_s``; 0 from the end of lift on."""
+        """Achieved climb [m/s] for flights ``rows`` at ``time_s``; 0 after the end of lift."""
         value = self.profile(rows, time_s)
         if self.table is not None:
             x = np.maximum(value, 0.0) / STRENGTH_STEP_MS
@@ -438,7 +438,7 @@ class _Lift:
             table = self.table[self.table_row[rows]]
             line = np.arange(rows.size)
             value = np.where(value > 0.0, table[line, j] * (1.0 - weight) + table[line, j + 1] * weight, 0.0)
-        return np.where(time_s < self.ends[rows], value, 0.0)
+        return until_lift_ends(value, time_s, self.ends[rows])
 
 
 class _Simulation:
@@ -729,7 +729,7 @@ class _Simulation:
     def _start_climb(self, rows) -> None:
         t = self.t[rows]
         rate = self.lift.climb(rows, t)
-        none = ~(rate > 0.0)
+        none = ~(rate > 0.0) | (t >= self.col["lift_ends_s"][rows])  # no time left to climb at the end of lift
         if none.any():
             ended = t[none] >= self.col["lift_ends_s"][rows[none]]
             self._glide_on(rows[none][ended], LIFT_ENDED)

@@ -63,6 +63,13 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
     return out
 
 
+def until_lift_ends(value, time_s, lift_ends_s):
+    """A lift profile's ``value`` at ``time_s`` with the end of lift applied: zero after
+    ``lift_ends_s``, the profile's own value up to and at it (shared/CONTRACT.md, ``[day]``).
+    Scalars or arrays; the one place the end of lift cuts the lift."""
+    return np.where(np.asarray(time_s) > lift_ends_s, 0.0, value)
+
+
 def band_middle_m(band_top_m, band_bottom_m):
     """The middle of the working band [m MSL] (scalars or arrays): the height whose air
     density the cruise's polar takes (contract section 3)."""
@@ -168,7 +175,7 @@ class Day:
         """The profile value (achieved climb or thermal strength) at ``time_s``; 0 after lift ends."""
         profile = self.climb if self.climb is not None else self.thermal_strength
         value = np.asarray(profile.at(time_s), dtype=float)
-        value = np.where(np.asarray(time_s) > self.lift_ends_s, 0.0, value)
+        value = until_lift_ends(value, time_s, self.lift_ends_s)
         return scalar_or_array(value)
 
 

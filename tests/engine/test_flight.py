@@ -262,3 +262,23 @@ def test_drift_in_climbs_carries_the_glider_downwind():
 def test_inconsistent_band_is_refused():
     with pytest.raises(ValueError):
         fly(TRIANGLE, calm_day(band_top_m=800.0, band_bottom_m=800.0))
+
+
+def test_the_lift_is_zero_after_lift_ends_not_at_it_and_no_climb_starts_at_it():
+    # Source: shared/CONTRACT.md, [day]: the profile is "zero after lift_ends". The day's
+    # profile and the core's lift follow the same rule (scenario.until_lift_ends); a climb
+    # that would start at the very moment lift ends has no time to climb.
+    from glidetask.engine.scenario import Day, Profile, until_lift_ends
+
+    day = Day(start_time_s=12 * HOUR, band_top_m=1800.0, band_bottom_m=800.0, lift_ends_s=18 * HOUR,
+              climb=Profile((12 * HOUR, 18 * HOUR), (2.0, 1.0)))
+    assert day.lift_profile_at(18 * HOUR) == 1.0
+    assert day.lift_profile_at(18 * HOUR + 1.0) == 0.0
+    np.testing.assert_array_equal(until_lift_ends(np.array([1.0, 1.0, 1.0]), np.array([1.0, 2.0, 3.0]), 2.0),
+                                  [1.0, 1.0, 0.0])
+    # Start one second before lift ends: the first glide down the band takes minutes, so
+    # the first climb would start after the end; the flight makes no climb and glides on
+    # with the reason "lift ended".
+    flown = fly(TRIANGLE, calm_day(start_time_s=19 * HOUR - 1.0, lift_ends_s=19 * HOUR))
+    assert int(flown.climbs[0]) == 0
+    assert int(flown.reason[0]) == flight.LIFT_ENDED
