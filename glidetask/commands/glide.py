@@ -19,7 +19,7 @@ from glidetask.cli import CMDLINE, check_number, parse_position, parse_wind
 from glidetask.commands._output import caution_block, print_json
 from glidetask.commands.polar import glider_problems
 from glidetask.engine.atmosphere import density_ratio, ias_from_tas_at
-from glidetask.engine.finalglide import MC_TO_ARRIVE_CAP_MS, FinalGlide, final_glide
+from glidetask.engine.finalglide import MC_TO_ARRIVE_CAP_MS, FinalGlide, density_height_m, final_glide
 from glidetask.engine.polar import Polar, scaled_polar
 from glidetask.engine.scenario import Wind
 from glidetask.errors import InputError, Problem
@@ -151,8 +151,8 @@ def glide_text(args: argparse.Namespace, spec_label: str, polar: Polar, sigma: f
 
 
 def _mid_height_m(args: argparse.Namespace) -> float:
-    """Halfway between the present height and the arrival height (contract section 3)."""
-    return 0.5 * (args.height_m + args.arrival_elevation_m + args.margin_m)
+    """The final glide's density height (:func:`glidetask.engine.finalglide.density_height_m`)."""
+    return density_height_m(args.height_m, args.arrival_elevation_m + args.margin_m)
 
 
 def _cautions_for(glide: FinalGlide, args: argparse.Namespace) -> list[str]:

@@ -18,6 +18,17 @@ from glidetask.engine.speedtofly import _ground_speed, _glide_terms, glide_in_wi
 from glidetask.engine.wind import correction_angle_deg, wind_components
 
 MC_TO_ARRIVE_CAP_MS = 10.0  # the largest MacCready setting reported [m/s]
+LOWEST_DENSITY_HEIGHT_M, HIGHEST_DENSITY_HEIGHT_M = -1000.0, 19000.0  # the atmosphere model's range [m]
+
+
+def density_height_m(start_height_m, arrival_height_m):
+    """The height whose air density a final glide's polar takes [m MSL]: the middle of its
+    start height and its arrival height (goal elevation plus margin), within the atmosphere
+    model's range (shared/CONTRACT.md section 3). Scalars or arrays; the one place this
+    choice is made, for the plan's final glide, ``glidetask glide`` and the UI alike.
+    """
+    middle = 0.5 * (np.asarray(start_height_m, dtype=float) + np.asarray(arrival_height_m, dtype=float))
+    return scalar_or_array(np.clip(middle, LOWEST_DENSITY_HEIGHT_M, HIGHEST_DENSITY_HEIGHT_M))
 
 
 def _check_distance(distance_m) -> np.ndarray:

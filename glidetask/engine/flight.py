@@ -53,6 +53,7 @@ from typing import Callable
 import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.finalglide import density_height_m
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.engine.scenario import Scenario, band_middle_m, until_lift_ends
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind, speed_to_fly_still_air
@@ -67,7 +68,6 @@ REASONS = ("final glide", "lift ended", "no climb in the profile", "wind too str
 
 STRENGTH_STEP_MS = 0.05  # grid step of the achieved-climb tables against thermal strength [m/s]
 _GLIDE, _CLIMB_START, _CLIMB, _DONE = range(4)
-_HIGHEST_MID_M = 19000.0  # the atmosphere model's range caps the final-glide density height
 
 
 @dataclass(frozen=True)
@@ -543,7 +543,8 @@ class _Simulation:
         carry the glider (no bound).
         """
         col = self.col
-        sigma = density_ratio(np.clip(self.floor, -1000.0, _HIGHEST_MID_M), col["isa_deviation_c"])
+        # The densest air any final glide here flies in: a glide that starts at the floor itself.
+        sigma = density_ratio(density_height_m(self.floor, self.floor), col["isa_deviation_c"])
         polar = scaled_polar(self.spec, col["mass_kg"], col["bugs_percent"], sigma)
         a, b = np.asarray(polar.a), np.asarray(polar.b)
         c = np.asarray(polar.c) - np.maximum(self.airmass, 0.0)
@@ -598,7 +599,7 @@ class _Simulation:
         estimate = first if estimate is None else np.where(np.isfinite(estimate), estimate, first)
         for attempt in range(2):
             estimate = np.where(np.isfinite(estimate), estimate, col["band_top_m"][rows])
-            mid = np.clip(0.5 * (estimate + self.floor[rows]), -1000.0, _HIGHEST_MID_M)
+            mid = np.asarray(density_height_m(estimate, self.floor[rows]))
             sigma = np.asarray(density_ratio(mid, col["isa_deviation_c"][rows]), dtype=float)
             polar = scaled_polar(self.spec, col["mass_kg"][rows], col["bugs_percent"][rows], sigma)
             glide = glide_in_wind(_take(polar, line), mc_fg[:, None], self.along[rows], self.across[rows],

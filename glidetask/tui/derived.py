@@ -80,7 +80,9 @@ class GlideAnswer:
 
 def glide_altitude_m(question: GlideQuestion) -> float:
     """The middle of the start height and the planned arrival height (contract section 3)."""
-    return 0.5 * (question.height_m + question.arrival_elevation_m + question.margin_m)
+    from glidetask.engine.finalglide import density_height_m
+
+    return density_height_m(question.height_m, question.arrival_elevation_m + question.margin_m)
 
 
 def answer_glide(scenario: Scenario, question: GlideQuestion, *, with_terrain: bool = True) -> GlideAnswer:

@@ -127,3 +127,14 @@ def test_mc_to_arrive_standalone_matches_final_glide():
     glide = final_glide(POLAR, 30000.0, 1500.0, arrival_elevation_m=200.0, margin_m=150.0)
     alone = mc_to_arrive(POLAR, 30000.0, 1500.0 - 200.0 - 150.0, 0.0, 0.0)
     assert alone == pytest.approx(glide.mc_to_arrive_ms, rel=1e-12)
+
+
+def test_the_final_glide_takes_the_density_halfway_between_start_and_arrival():
+    # Source: shared/CONTRACT.md section 3: a final glide uses the density at the middle of
+    # its start height and its arrival height; the ISA model's range (-1 km to 19 km here)
+    # bounds it. One function for the plan, the glide command and the UI.
+    from glidetask.engine.finalglide import density_height_m
+
+    assert density_height_m(2000.0, 400.0) == 1200.0
+    np.testing.assert_array_equal(density_height_m(np.array([2000.0, 50000.0, -9000.0]), 400.0),
+                                  [1200.0, 19000.0, -1000.0])
