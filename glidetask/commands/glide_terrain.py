@@ -22,7 +22,6 @@ from glidetask.formats import safety_report
 
 NOT_CHECKED = "The terrain was not checked: the goal is out of reach against this wind."
 GOAL_DISAGREEMENT_M = 50.0  # caution when the given goal elevation and the model's differ by more [m]
-FROM_MODEL = "terrain model at --to"
 
 
 def _load(path: str):

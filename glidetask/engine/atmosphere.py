@@ -17,7 +17,6 @@ from glidetask.engine.arrays import scalar_or_array
 # ISO 2533:1975 sea-level constants and the troposphere's lapse rate.
 T0_K = 288.15  # sea-level temperature [K]
 P0_PA = 101325.0  # sea-level pressure [Pa]
-RHO0_KGM3 = 1.225  # sea-level density [kg/m^3]
 G0_MS2 = 9.80665  # standard gravity [m/s^2]
 R_AIR = 287.05287  # specific gas constant of dry air [J/(kg K)]
 LAPSE_KM = 0.0065  # temperature lapse rate in the troposphere [K/m]

@@ -462,7 +462,6 @@ class _Simulation:
         best = glide_in_wind(_take(self.polar, everyone), 0.0, self.along, self.across, self.airmass[:, None])
         self.hpm0 = np.broadcast_to(best.height_per_metre, (n, legs))
         self.gs0 = np.broadcast_to(best.ground_speed_ms, (n, legs))
-        self.tail0 = self._tail(self.hpm0)
         self.hpm_bound = self._final_glide_bound()
         self.lift = _Lift(flights, col, self.polar)
         self._allocate(n, legs)

@@ -268,12 +268,6 @@ class Coverage:
             reasons.append(ranked[0] if parts[ranked[0]] > 0.0 else "range")
         return tuple(reasons)
 
-    def share_with_status(self, status: int) -> float:
-        """Share of the path's length whose samples have this status [0-1]."""
-        if self.distance_m.size < 2 or self.total_m <= 0.0:
-            return float(np.all(self.status == status)) if self.status.size else 0.0
-        return float(np.sum(self._cells_m()[self.status == status]) / self.total_m)
-
 
 # ---------------------------------------------------------------- coverage
 

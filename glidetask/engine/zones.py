@@ -150,11 +150,6 @@ class Zone:
         return self.kind in AREA_KINDS
 
     @property
-    def needs_axis(self) -> bool:
-        """True where the shape turns with the neighbouring legs (lines, sectors, keyholes)."""
-        return self.kind in ("line", "sector", "keyhole")
-
-    @property
     def reach_m(self) -> float:
         """The farthest any point of the zone lies from its centre [m]."""
         if self.kind == "line":

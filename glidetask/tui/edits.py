@@ -259,8 +259,3 @@ def set_profile(scenario: Scenario, profile: Profile, *, thermal_strength: bool)
     else:
         day = replace(scenario.day, climb=profile, thermal_strength=None)
     return replace(scenario, day=day)
-
-
-def set_glider_loading(scenario: Scenario, **changes) -> Scenario:
-    """A what-if on the loading (``pilot_kg``, ``ballast_kg``, ``bugs_percent``)."""
-    return replace(scenario, glider=replace(scenario.glider, **changes))

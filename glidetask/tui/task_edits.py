@@ -72,9 +72,3 @@ def set_zone(scenario: Scenario, index: int, zone) -> Scenario:
     points = list(scenario.task.points)
     points[index] = replace(points[index], zone=zone)
     return _with_points(scenario, points)
-
-
-def rename_task(scenario: Scenario, name: str) -> Scenario:
-    if not name.strip():
-        raise InputError([Problem(SOURCE, "[task] name", "the task needs a name")])
-    return replace(scenario, task=replace(scenario.task, name=name.strip()))
