@@ -2,14 +2,18 @@
 
 One source of truth: the command line, the briefing, the JSON, the terminal UI and the
 plan itself (:attr:`glidetask.engine.plan.Plan.cautions`) all take their wording from
-here. The general cautions are constants; the terrain and landable cautions of one plan
-or one glide are worded by the functions below from the engine's results (read by their
-attributes, so this module imports nothing) in the unit system the reader chose.
+here. The general cautions are constants; a plan's own cautions (its notices: facts with
+numbers, :class:`glidetask.engine.plan.Notice`), and the terrain and landable cautions of
+one plan or one glide, are worded by the functions below from the engine's results (read
+by their attributes, so this module imports nothing of the engine) in the unit system the
+reader chose (:func:`plan_cautions`).
 """
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING, Iterable
+
+from glidetask.units import format_clock, format_duration
 
 if TYPE_CHECKING:
     from glidetask.units import UnitSystem
@@ -120,3 +124,89 @@ def landables_cautions(c, units: "UnitSystem") -> list[str]:
     if any(parts["unknown"] > 0.0 for parts in c.gap_breakdown()):
         out.append(UNKNOWN_GLIDES_TO_FIELDS)
     return out
+
+
+# ---------------------------------------------------------------- a plan's cautions
+
+
+def _signed_vertical(value_ms: float, units: "UnitSystem") -> str:
+    return f"{units.vertical(value_ms):+.{units.vertical_decimals}f} {units.vertical_label}"
+
+
+def _height_range(low_m: float, high_m: float, units: "UnitSystem") -> str:
+    return f"{units.height(low_m):.0f}-{units.height(high_m):.0f} {units.height_label}"
+
+
+def _ends_short(f: dict, units: "UnitSystem") -> str:
+    why = {
+        "lift_ended": f"lift ends at {format_clock(f['lift_ends_s'])} before the final glide can start",
+        "no_climb": f"the climb profile gives no climb at {format_clock(f['stop_time_s'])}, before the final "
+                    f"glide can start",
+        "wind_too_strong": f"the wind ({f['wind_from_deg']:03.0f}/{units.fmt_speed(f['wind_speed_ms'])}) is too "
+                           f"strong for this glider to make progress with climbs",
+        "below_floor": "the plan reaches the finish below the arrival margin",
+    }.get(f["why"], "the plan cannot be completed")
+    return (f"Task not completed: {why}; the plan ends {units.fmt_distance(f['at_m'])} along the task, on the leg "
+            f"{f['leg_from']} -> {f['leg_to']}, gliding on at MacCready 0 down to {units.fmt_height(f['floor_m'])} "
+            f"(finish elevation plus the arrival margin, taken as the ground).")
+
+
+def notice_text(notice, units: "UnitSystem") -> str:
+    """One fact about a plan (a :class:`glidetask.engine.plan.Notice`) in words and ``units``."""
+    f, code = notice.facts, notice.code
+    if code == "ends_short":
+        return _ends_short(f, units)
+    if code == "lift_ends_before_final_glide":
+        return (f"Lift ends ({format_clock(f['stop_time_s'])}) before the planned final glide: the plan glides home "
+                f"at MacCready 0 from {units.fmt_distance(f['final_glide_from_m'])}, arriving "
+                f"{units.fmt_height(f['above_margin_m'])} above the arrival margin. Any sink on the way and it "
+                f"lands out.")
+    if code == "tight_day":
+        return (f"The last climb ends at {format_clock(f['last_climb_end_s'])}, only {f['spare_s'] / 60:.0f} min "
+                f"before lift ends ({format_clock(f['lift_ends_s'])}): little time in hand if the day dies early.")
+    if code == "under_min_time":
+        return (f"The planned time {format_duration(f['time_s'])} is under the minimum time "
+                f"{format_duration(f['min_time_s'])}: the speed is scored over the minimum time.")
+    if code == "thin_margin":
+        return (f"The arrival margin of {units.fmt_height(f['margin_m'])} is thin: most pilots plan "
+                f"{_height_range(150.0, 300.0, units)} over the finish.")
+    if code == "final_glide_at_mc0":
+        return "The final glide is planned at MacCready 0 (best glide): it has no speed in hand for sinking air."
+    if code == "rising_air_counted":
+        return (f"The plan counts on rising air while gliding ({_signed_vertical(f['airmass_ms'], units)}): "
+                f"if it is not there, every glide loses more height.")
+    if code == "areas_too_long":
+        return (f"Even the shortest path through the areas ({units.fmt_distance(f['distance_m'])}) takes "
+                f"{format_duration(f['time_s'])}, more than the minimum time {format_duration(f['min_time_s'])}.")
+    if code == "areas_too_short":
+        return (f"Even the longest path through the areas ({units.fmt_distance(f['distance_m'])}) takes only "
+                f"{format_duration(f['time_s'])}, under the minimum time {format_duration(f['min_time_s'])}: "
+                f"the speed is scored over the minimum time.")
+    raise ValueError(f"unknown notice {code!r}")
+
+
+def safety_cautions(plan, units: "UnitSystem") -> list[str]:
+    """The terrain and landable cautions of a :class:`glidetask.engine.plan.Plan`."""
+    out: list[str] = []
+    if plan.terrain_source is not None:
+        if plan.terrain is not None:
+            out += terrain_cautions(plan.terrain, units)
+        else:
+            out += [*TERRAIN, NO_FINAL_GLIDE_TO_CHECK]
+        path = plan.terrain_path
+        if path is not None and path.profile.covered_share < 1.0:
+            out.append(path_not_covered(plan.terrain_source, path.profile.covered_share,
+                                        path.profile.uncovered_ranges(), units))
+    if plan.landables is not None:
+        out += landables_cautions(plan.landables, units)
+    elif plan.scenario.turnpoints:
+        out.append(NO_LANDABLES)
+    return out
+
+
+def plan_cautions(plan, units: "UnitSystem") -> list[str]:
+    """Every caution of a :class:`glidetask.engine.plan.Plan` in ``units``: the general ones,
+    then the plan's own (its notices), then its terrain and landable cautions, each once.
+    The text output, the JSON (metric), the briefing and the UI all call this."""
+    own = general() + [notice_text(notice, units) for notice in plan.notices]
+    return own + [text for text in dict.fromkeys(safety_cautions(plan, units)) if text not in own]

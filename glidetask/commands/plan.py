@@ -14,7 +14,7 @@ from __future__ import annotations
 import argparse
 import math
 
-from glidetask import units
+from glidetask import cautions, units
 from glidetask.cli import CMDLINE, check_number, parse_wind
 from glidetask.commands._output import caution_block, print_json
 from glidetask.errors import InputError, Problem
@@ -228,14 +228,8 @@ def plan_text(plan, unit_name: str = "metric", sensitivity=None) -> str:
         if section:
             lines += [""] + section
     lines += ["", verdict(plan, unit), ""]
-    lines.append(caution_block(plan.cautions[len(_general()):]))
+    lines.append(caution_block(cautions.plan_cautions(plan, unit)[len(cautions.GENERAL):]))
     return "\n".join(lines)
-
-
-def _general():
-    from glidetask import cautions
-
-    return cautions.GENERAL
 
 
 def run(args: argparse.Namespace) -> int:

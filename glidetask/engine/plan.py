@@ -47,7 +47,7 @@ from glidetask.engine.scenario import Scenario, Wind, scenario_problems
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
 from glidetask.engine.wind import ground_speed, heading_for_course, wind_components
 from glidetask.errors import InputError, Problem
-from glidetask.units import KMH, format_clock, format_duration
+from glidetask.units import METRIC
 
 CMDLINE = "command line"
 #: The command-line option of each what-if, by the task-file key it replaces.
@@ -127,6 +127,25 @@ class AreaPlan:
 
 
 @dataclass(frozen=True)
+class Notice:
+    """A fact about a plan that a pilot must be told; :mod:`glidetask.cautions` words it.
+
+    Attributes
+    ----------
+    code : str
+        What it is: ``"ends_short"``, ``"lift_ends_before_final_glide"``, ``"tight_day"``,
+        ``"under_min_time"``, ``"thin_margin"``, ``"final_glide_at_mc0"``,
+        ``"rising_air_counted"``, ``"areas_too_long"``, ``"areas_too_short"``.
+    facts : dict
+        The numbers (SI: ``_m``, ``_ms``, ``_s`` durations, ``_time_s`` clock times in
+        seconds after midnight, ``_deg``) and names it is about.
+    """
+
+    code: str
+    facts: dict = dataclasses.field(default_factory=dict)
+
+
+@dataclass(frozen=True)
 class Plan:
     """A task flown on paper (contract 5.3 in SI units; see :mod:`glidetask.formats.plan_json`).
 
@@ -158,8 +177,9 @@ class Plan:
         and MacCready setting; NaN without one.
     reason : str
         How the flight ended (:data:`glidetask.engine.flight.REASONS`).
-    cautions : tuple of str
-        The general cautions, then this plan's own.
+    notices : tuple of Notice
+        The facts about this plan a pilot must be told (worded, with the general, terrain
+        and landable cautions, by :func:`glidetask.cautions.plan_cautions`).
     flown : Flown
         The flight core's full result (one flight).
     terrain : FinalGlideTerrain or None
@@ -198,12 +218,18 @@ class Plan:
     final_glide_height_m: float
     final_glide_mc_ms: float
     reason: str
-    cautions: tuple[str, ...]
+    notices: tuple[Notice, ...]
     flown: Flown
     terrain: object | None = None
     landables: object | None = None
     requirement: object | None = None
     terrain_source: str | None = None
+
+    @property
+    def cautions(self) -> tuple[str, ...]:
+        """Every caution of this plan worded in metric units, as the contract's JSON carries
+        them (:func:`glidetask.cautions.plan_cautions`; outputs in other units call it)."""
+        return tuple(caution_text.plan_cautions(self, METRIC))
 
     @property
     def start_time_s(self) -> float:
@@ -361,19 +387,16 @@ def _area_path(scenario: Scenario, fly_path):
         return minimum <= time <= (1.0 + AREA_TIME_SLACK) * minimum
 
     low = attempt(0.0)
-    notes: list[str] = []
+    notes: list[Notice] = []
     if low[3] >= minimum:
         chosen = low
         if low[3] > (1.0 + AREA_TIME_SLACK) * minimum and math.isfinite(low[3]):
-            notes.append(f"Even the shortest path through the areas ({shortest / 1000:.1f} km) takes "
-                         f"{format_duration(low[3])}, more than the minimum time {format_duration(minimum)}.")
+            notes.append(Notice("areas_too_long", dict(distance_m=shortest, time_s=low[3], min_time_s=minimum)))
     else:
         high = attempt(1.0)
         chosen = high
         if high[3] < minimum:
-            notes.append(f"Even the longest path through the areas ({longest / 1000:.1f} km) takes only "
-                         f"{format_duration(high[3])}, under the minimum time {format_duration(minimum)}: "
-                         f"the speed is scored over the minimum time.")
+            notes.append(Notice("areas_too_short", dict(distance_m=longest, time_s=high[3], min_time_s=minimum)))
         elif not good(high[3]):
             chosen = _bisect_depth(attempt, low, high, minimum)
     depth, path, flown, _ = chosen
@@ -427,8 +450,8 @@ def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes)
         finished=finished, finish_time_s=float(flown.finish_time_s[0]), landout_m=float(flown.landout_m[0]),
         final_glide_from_m=float(flown.final_glide_from_m[0]), final_glide_height_m=float(flown.final_glide_height_m[0]),
         final_glide_mc_ms=float(flown.final_glide_mc_ms[0]), reason=flight.REASONS[int(flown.reason[0])],
-        cautions=(), flown=flown)
-    return dataclasses.replace(plan, cautions=tuple(caution_text.general() + notes + plan_cautions(plan)))
+        notices=(), flown=flown)
+    return dataclasses.replace(plan, notices=tuple(notes) + plan_notices(plan))
 
 
 def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
@@ -478,64 +501,53 @@ def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
     return tuple(out)
 
 
-# ---------------------------------------------------------------- cautions
+# ---------------------------------------------------------------- notices
 
 
-def _where(plan: Plan, distance_m: float) -> str:
-    """``"123.4 km along the task, on the leg A -> B"``."""
+def _leg_at(plan: Plan, distance_m: float) -> LegPlan:
+    """The leg of the planned path at a distance along it."""
     bounds = plan.path.cumulative_m
-    index = int(np.clip(np.searchsorted(bounds, distance_m, side="right") - 1, 0, len(plan.legs) - 1))
-    leg = plan.legs[index]
-    return f"{distance_m / 1000:.1f} km along the task, on the leg {leg.from_name} -> {leg.to_name}"
+    return plan.legs[int(np.clip(np.searchsorted(bounds, distance_m, side="right") - 1, 0, len(plan.legs) - 1))]
 
 
-def plan_cautions(plan: Plan) -> list[str]:
-    """This plan's own cautions (the general ones come first in :attr:`Plan.cautions`)."""
+_WHY_SHORT = {flight.LIFT_ENDED: "lift_ended", flight.NO_CLIMB: "no_climb", flight.UNREACHABLE: "wind_too_strong",
+              flight.BELOW_FLOOR: "below_floor"}
+
+
+def plan_notices(plan: Plan) -> tuple[Notice, ...]:
+    """The facts about this plan a pilot must be told (worded by
+    :func:`glidetask.cautions.plan_cautions`), in the order they are shown."""
     day, flown = plan.scenario.day, plan.flown
     reason = int(flown.reason[0])
     stop = float(flown.stop_time_s[0])
     floor = plan.arrival_floor_m
-    out: list[str] = []
+    out: list[Notice] = []
     if not plan.finished:
-        glide_on = (f"gliding on at MacCready 0 down to {floor:.0f} m (finish elevation plus the arrival "
-                    f"margin, taken as the ground)")
-        if reason == flight.LIFT_ENDED:
-            why = f"lift ends at {format_clock(day.lift_ends_s)} before the final glide can start"
-        elif reason == flight.NO_CLIMB:
-            why = f"the climb profile gives no climb at {format_clock(stop)}, before the final glide can start"
-        elif reason == flight.UNREACHABLE:
-            speed = day.wind.speed_ms / KMH
-            why = (f"the wind ({day.wind.from_deg:03.0f}/{speed:.0f} km/h) is too strong for this glider to make "
-                   f"progress with climbs")
-        elif reason == flight.BELOW_FLOOR:
-            why = "the plan reaches the finish below the arrival margin"
-        else:
-            why = "the plan cannot be completed"
-        out.append(f"Task not completed: {why}; the plan ends {_where(plan, plan.landout_m)}, {glide_on}.")
+        leg = _leg_at(plan, plan.landout_m)
+        out.append(Notice("ends_short", dict(
+            why=_WHY_SHORT.get(reason, "other"), stop_time_s=stop, lift_ends_s=day.lift_ends_s,
+            wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms, at_m=plan.landout_m,
+            leg_from=leg.from_name, leg_to=leg.to_name, floor_m=floor)))
     elif reason != flight.FINAL_GLIDE:
-        arrival = plan.legs[-1].arrival_height_m
-        out.append(f"Lift ends ({format_clock(stop)}) before the planned final glide: the plan glides home at "
-                   f"MacCready 0 from {plan.final_glide_from_m / 1000:.1f} km, arriving "
-                   f"{arrival - floor:.0f} m above the arrival margin. Any sink on the way and it lands out.")
+        out.append(Notice("lift_ends_before_final_glide", dict(
+            stop_time_s=stop, final_glide_from_m=plan.final_glide_from_m,
+            above_margin_m=plan.legs[-1].arrival_height_m - floor)))
     last_climb = plan.last_climb_end_s
     if plan.finished and reason == flight.FINAL_GLIDE and math.isfinite(last_climb):
         spare = day.lift_ends_s - last_climb
         if spare < TIGHT_DAY_S:
-            out.append(f"The last climb ends at {format_clock(last_climb)}, only {spare / 60:.0f} min before lift "
-                       f"ends ({format_clock(day.lift_ends_s)}): little time in hand if the day dies early.")
+            out.append(Notice("tight_day", dict(last_climb_end_s=last_climb, spare_s=spare,
+                                                lift_ends_s=day.lift_ends_s)))
     if plan.area is not None and plan.finished and plan.total_time_s < plan.area.min_time_s:
-        out.append(f"The planned time {format_duration(plan.total_time_s)} is under the minimum time "
-                   f"{format_duration(plan.area.min_time_s)}: the speed is scored over the minimum time.")
+        out.append(Notice("under_min_time", dict(time_s=plan.total_time_s, min_time_s=plan.area.min_time_s)))
     margin = plan.scenario.safety.arrival_margin_m
     if margin < THIN_MARGIN_M:
-        out.append(f"The arrival margin of {margin:.0f} m is thin: most pilots plan 150-300 m over the finish.")
+        out.append(Notice("thin_margin", dict(margin_m=margin)))
     if plan.finished and math.isfinite(plan.final_glide_mc_ms) and plan.final_glide_mc_ms == 0.0:
-        out.append("The final glide is planned at MacCready 0 (best glide): it has no speed in hand "
-                   "for sinking air.")
+        out.append(Notice("final_glide_at_mc0"))
     if day.glide_airmass_ms > 0.0:
-        out.append(f"The plan counts on rising air while gliding ({day.glide_airmass_ms:+.1f} m/s): "
-                   f"if it is not there, every glide loses more height.")
-    return out
+        out.append(Notice("rising_air_counted", dict(airmass_ms=day.glide_airmass_ms)))
+    return tuple(out)
 
 
 # ---------------------------------------------------------------- cards

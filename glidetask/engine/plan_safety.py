@@ -5,7 +5,7 @@ gives :func:`glidetask.engine.plan.plan` the clearance rule as the flight core's
 requirement hook (:func:`glidetask.engine.clearance_hook.path_terrain`) for every path it
 flies; :func:`with_safety` adds to the flown plan the final glide checked over the
 terrain from the same samples and the landable coverage along the planned path from the
-band bottom (:func:`glidetask.engine.reach.coverage`), with their cautions.
+band bottom (:func:`glidetask.engine.reach.coverage`), whose cautions :mod:`glidetask.cautions` words.
 
 Sampling a path and searching fields are the slow parts of a replan, and the UI replans
 on every edit: both results are kept in small caches keyed on the values they depend on
@@ -24,7 +24,6 @@ from pathlib import Path
 
 import numpy as np
 
-from glidetask import cautions as caution_text
 from glidetask.engine import reach
 from glidetask.engine.clearance_hook import path_terrain
 from glidetask.engine.flight import Flown
@@ -34,7 +33,6 @@ from glidetask.engine.speedtofly import glide_in_wind
 from glidetask.engine.terrain import TerrainError, load_terrain
 from glidetask.engine.wind import wind_components
 from glidetask.errors import InputError, Problem
-from glidetask.units import METRIC
 
 COVERAGE_SPACING_M = 1000.0  # landable coverage sampled along the path at least this often [m]
 _COVERAGE_CACHE_SIZE = 16  # coverage results kept for repeated plans (the UI replans on every edit)
@@ -197,9 +195,9 @@ def shown_terrain_source(scenario: Scenario) -> str | None:
 
 
 def with_safety(plan, hook, model):
-    """The plan (a :class:`glidetask.engine.plan.Plan`) with its terrain check, landable
-    coverage and their cautions; the model named as the task names it
-    (:func:`shown_terrain_source`) wherever the plan shows it."""
+    """The plan (a :class:`glidetask.engine.plan.Plan`) with its terrain check and landable
+    coverage (facts :func:`glidetask.cautions.plan_cautions` words); the model named as the
+    task names it (:func:`shown_terrain_source`) wherever the plan shows it."""
     terrain = None
     source = None if model is None else shown_terrain_source(plan.scenario)
     if hasattr(hook, "final_glide") and math.isfinite(plan.final_glide_from_m):
@@ -207,27 +205,5 @@ def with_safety(plan, hook, model):
         terrain = hook.final_glide(plan.final_glide_from_m, final_glide_per_metre(plan.scenario, plan.path, plan.flown),
                                    plan.arrival_floor_m, start_height_m=plan.final_glide_height_m, landmarks=landmarks)
         terrain = dataclasses.replace(terrain, source=source)
-    plan = dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
+    return dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
                                requirement=hook, terrain_source=source)
-    extra = [text for text in safety_cautions(plan) if text not in plan.cautions]
-    return dataclasses.replace(plan, cautions=plan.cautions + tuple(dict.fromkeys(extra)))
-
-
-def safety_cautions(plan) -> list[str]:
-    """The terrain and landable cautions of a plan, metric (wording from
-    :mod:`glidetask.cautions`, the one source for every output)."""
-    out: list[str] = []
-    if plan.terrain_source is not None:
-        if plan.terrain is not None:
-            out += caution_text.terrain_cautions(plan.terrain, METRIC)
-        else:
-            out += [*caution_text.TERRAIN, caution_text.NO_FINAL_GLIDE_TO_CHECK]
-        path = plan.terrain_path
-        if path is not None and path.profile.covered_share < 1.0:
-            out.append(caution_text.path_not_covered(plan.terrain_source, path.profile.covered_share,
-                                                     path.profile.uncovered_ranges(), METRIC))
-    if plan.landables is not None:
-        out += caution_text.landables_cautions(plan.landables, METRIC)
-    elif plan.scenario.turnpoints:
-        out.append(caution_text.NO_LANDABLES)
-    return out

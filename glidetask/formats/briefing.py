@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import math
 
-from glidetask import units
+from glidetask import cautions, units
 from glidetask.units import KNOT, format_clock, format_duration
 
 CARD_MC_KT = tuple(k * KNOT for k in (0.0, 2.0, 4.0, 6.0))  # the aviation card's settings [m/s]
@@ -54,7 +54,7 @@ def _summary(plan, unit) -> list[str]:
     return [
         f"# Pre-flight briefing: {task.name}",
         "",
-        f"*{plan.cautions[0]} The pilot in command decides.*",
+        f"*{cautions.GENERAL[0]} The pilot in command decides.*",
         "",
         f"- **Task**: {task.kind}, {' - '.join(p.name for p in task.points)}; {distance}.",
         f"- **Glider**: {glider.spec.label}; {plan.mass_kg:.0f} kg with {glider.ballast_kg:g} kg water, "
@@ -208,5 +208,5 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     safety = _safety_pages(plan, unit)
     if safety:
         lines += ["", PAGE_BREAK, ""] + safety
-    lines += ["", "## Cautions", ""] + [f"- {text}" for text in plan.cautions]
+    lines += ["", "## Cautions", ""] + [f"- {text}" for text in cautions.plan_cautions(plan, unit)]
     return "\n".join(lines) + "\n"

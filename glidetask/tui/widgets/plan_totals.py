@@ -37,10 +37,11 @@ def final_glide_text(plan, units: UnitSystem) -> str:
             f"MacCready {display.with_unit(display.vertical(units, plan.final_glide_mc_ms), units.vertical_label)}")
 
 
-def particular_cautions(plan) -> list[str]:
-    """The plan's own cautions (the general, terrain and landable wording is always on screen)."""
+def particular_cautions(plan, units: UnitSystem) -> list[str]:
+    """The plan's own cautions in ``units`` (the general, terrain and landable wording is
+    always on screen)."""
     known = set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES)
-    return [c for c in plan.cautions if c not in known]
+    return [c for c in cautions.plan_cautions(plan, units) if c not in known]
 
 
 class PlanTotals(Static):
@@ -72,7 +73,7 @@ class PlanTotals(Static):
         if not plan.finished and plan.landout_m is not None and math.isfinite(plan.landout_m):
             parts.append(Text(f"Ends short {_distance(units, plan.landout_m)} along the task: {plan.reason}",
                               style=ALARM))
-        for text in particular_cautions(plan):
+        for text in particular_cautions(plan, units):
             parts.append(Text(f"⚠ {text}", style=WARNING))
         if stale:
             parts.append(Text("showing the last good plan: the inputs above are not yet valid", style=ALARM))

@@ -1,0 +1,49 @@
+"""The cautions worded at the edge (glidetask.cautions): a plan's facts in the reader's units."""
+
+from __future__ import annotations
+
+import dataclasses
+import re
+
+from glidetask import cautions
+from glidetask.engine.plan import plan
+from glidetask.engine.scenario import Wind
+from glidetask.formats.task_file import load_scenario
+from glidetask.units import AVIATION, KMH, METRIC
+
+METRIC_QUANTITY = re.compile(r"\d(?:\.\d+)? ?(?:m|km|km/h|m/s)\b")
+
+
+def _short_plan(demo_dir):
+    # An invented demo task made to end short with a thin margin and rising air counted on.
+    scenario = load_scenario(demo_dir / "vardmoor-ridge-final-glide.toml")
+    scenario = dataclasses.replace(
+        scenario, safety=dataclasses.replace(scenario.safety, arrival_margin_m=100.0),
+        day=dataclasses.replace(scenario.day, glide_airmass_ms=0.3))
+    return plan(scenario, wind=Wind(270.0, 180.0 * KMH))
+
+
+def test_the_plans_own_cautions_follow_the_chosen_units(demo_dir):
+    # Conversions: 1 ft = 0.3048 m and 1 kt = 1852/3600 m/s exactly (international
+    # definitions, from memory): 100 m = 328.08 ft, 150 m = 492.1 ft, 300 m = 984.25 ft,
+    # 0.3 m/s = 0.583 kt.
+    p = _short_plan(demo_dir)
+    codes = [n.code for n in p.notices]
+    assert {"ends_short", "thin_margin", "rising_air_counted"} <= set(codes)
+    aviation = cautions.plan_cautions(p, AVIATION)[len(cautions.GENERAL):]
+    assert "The arrival margin of 328 ft is thin: most pilots plan 492-984 ft over the finish." in aviation
+    assert "The plan counts on rising air while gliding (+0.6 kt): if it is not there, every glide loses " \
+           "more height." in aviation
+    short = next(text for text in aviation if text.startswith("Task not completed"))
+    assert " NM along the task" in short and " ft (finish elevation" in short
+    for text in aviation:
+        assert not METRIC_QUANTITY.search(text), text
+
+
+def test_the_metric_wording_is_the_plans_json_cautions(demo_dir):
+    p = _short_plan(demo_dir)
+    metric = cautions.plan_cautions(p, METRIC)
+    assert tuple(metric) == p.cautions
+    assert metric[: len(cautions.GENERAL)] == list(cautions.GENERAL)
+    assert "The arrival margin of 100 m is thin: most pilots plan 150-300 m over the finish." in metric
+    assert len(set(metric)) == len(metric)  # each caution once
