@@ -57,7 +57,7 @@ from glidetask.engine.finalglide import density_height_m
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.engine.scenario import Scenario, band_middle_m, until_lift_ends
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind, speed_to_fly_still_air
-from glidetask.engine.wind import ground_speed, wind_components
+from glidetask.engine.wind import correction_angle_deg, ground_speed, heading_for_course, wind_components
 
 
 # Why a flight ended (``Flown.reason``). A finished flight has FINAL_GLIDE, or the reason
@@ -246,6 +246,17 @@ class Flown:
         in final glide ``leg_mc_ms`` is the final glide's setting.
     leg_final : ndarray of bool, (N, L)
         The leg is flown entirely in final glide.
+    leg_airspeed_ms : ndarray, (N, L)
+        Speed to fly in the leg's glides [m/s TAS] at the leg's settings: the final glide's
+        on legs flown in final glide, best glide before any climb, else the cruise's.
+    leg_heading_deg : ndarray, (N, L)
+        Heading in the leg's glides [deg true]: in cruise it cancels the drift of a whole
+        climb-and-glide cycle; in a pure glide it holds the course.
+    leg_ground_speed_ms : ndarray, (N, L)
+        Speed over the ground along the course while gliding [m/s].
+    leg_cruise_speed_ms : ndarray, (N, L)
+        Drift-aware average speed along the course with climbs at the leg's settings [m/s].
+        The four ``leg_*speed``/heading arrays are NaN when ``fly`` ran with ``detail=False``.
     """
 
     finished: np.ndarray
@@ -270,6 +281,10 @@ class Flown:
     leg_climb_ms: np.ndarray
     leg_mc_ms: np.ndarray
     leg_final: np.ndarray
+    leg_airspeed_ms: np.ndarray
+    leg_heading_deg: np.ndarray
+    leg_ground_speed_ms: np.ndarray
+    leg_cruise_speed_ms: np.ndarray
 
     def flight(self, i: int) -> "Flown":
         """The results of flight ``i`` alone (arrays of length 1)."""
@@ -450,6 +465,7 @@ class _Simulation:
         self.n, self.legs, self.spec = n, legs, flights.spec
         self.col, self.search_hook, self.requirement_hook = col, search, requirement
         self.distance = course.distance_m
+        self.course_deg = course.course_deg
         self.leg_start = course.leg_start_m
         self.along, self.across = (np.asarray(x, dtype=float) for x in wind_components(
             course.course_deg[None, :], col["wind_from_deg"][:, None], col["wind_speed_ms"][:, None]))
@@ -923,10 +939,42 @@ class _Simulation:
             required[rows, legs] = self.required(rows, legs, zero, hpm, tail)
         return required
 
+    def leg_speeds(self):
+        """Airspeed, heading and ground speed in each leg's glides, and its cruise speed, at
+        the settings the leg was flown with, shape (N, L) each (see :class:`Flown`)."""
+        col, every = self.col, np.arange(self.n)
+        climb, mc, final = self.leg_climb, self.leg_mc, self.leg_final
+        airmass = self.airmass[:, None]
+        band = _take(self.polar, every)
+        cruise = cruise_in_wind(band, climb, self.along, self.across, airmass, np.maximum(np.nan_to_num(mc), 0.0))
+        v, fraction = np.asarray(cruise.airspeed_ms), np.asarray(cruise.glide_fraction)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            drift_fix = self.across / fraction  # air velocity across the course in the glides (contract 3)
+            cruise_ground = np.asarray(ground_speed(v, self.along, drift_fix))
+        cruise_heading = np.mod(self.course_deg[None, :] - np.asarray(correction_angle_deg(v, drift_fix)), 360.0)
+        sigma = np.where(np.isfinite(self.fg_sigma), self.fg_sigma, density_ratio(0.0))
+        final_polar = _take(scaled_polar(self.spec, col["mass_kg"], col["bugs_percent"], sigma), every)
+        pure = glide_in_wind(final_polar, np.where(final, np.nan_to_num(mc), 0.0), self.along, self.across, airmass)
+        best = glide_in_wind(band, 0.0, self.along, self.across, airmass)
+        wind = (col["wind_from_deg"][:, None], col["wind_speed_ms"][:, None])
+        pure_heading, _ = heading_for_course(self.course_deg[None, :], pure.airspeed_ms, *wind)
+        best_heading, _ = heading_for_course(self.course_deg[None, :], best.airspeed_ms, *wind)
+        no_climb = ~(climb > 0.0)  # a glide with no climb ahead (before the lift starts): best glide
+
+        def pick(final_value, best_value, cruise_value):
+            return np.where(final, final_value, np.where(no_climb, best_value, cruise_value))
+
+        shape = (self.n, self.legs)
+        return (np.broadcast_to(pick(pure.airspeed_ms, best.airspeed_ms, v), shape).copy(),
+                np.broadcast_to(pick(pure_heading, best_heading, cruise_heading), shape).copy(),
+                np.broadcast_to(pick(pure.ground_speed_ms, best.ground_speed_ms, cruise_ground), shape).copy(),
+                np.broadcast_to(np.asarray(cruise.cruise_speed_ms, dtype=float), shape).copy())
+
     def result(self, detail: bool = True) -> Flown:
         start = self.col["start_time_s"]
         finish = np.where(self.finished, self.end_t, np.nan)
         required = self.leg_requirements() if detail else np.full((self.n, self.legs), np.nan)
+        speeds = self.leg_speeds() if detail else tuple(np.full((self.n, self.legs), np.nan) for _ in range(4))
         return Flown(
             finished=self.finished.copy(), reason=self.reason.copy(), total_time_s=self.end_t - start,
             finish_time_s=finish, end_time_s=self.end_t.copy(), stop_time_s=self.stop_t.copy(),
@@ -938,7 +986,8 @@ class _Simulation:
             last_climb_end_s=self.last_climb_end.copy(), leg_time_s=self.leg_time.copy(),
             leg_entry_time_s=self.leg_entry.copy(), leg_arrival_height_m=self.leg_arrival.copy(),
             leg_required_height_m=required, leg_climb_ms=self.leg_climb.copy(),
-            leg_mc_ms=self.leg_mc.copy(), leg_final=self.leg_final.copy(),
+            leg_mc_ms=self.leg_mc.copy(), leg_final=self.leg_final.copy(), leg_airspeed_ms=speeds[0],
+            leg_heading_deg=speeds[1], leg_ground_speed_ms=speeds[2], leg_cruise_speed_ms=speeds[3],
         )
 
 

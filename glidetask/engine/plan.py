@@ -39,13 +39,9 @@ import numpy as np
 from glidetask import cautions as caution_text
 from glidetask.engine import flight
 from glidetask.engine import task as task_geometry
-from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
 from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
-from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import Scenario, Wind, scenario_problems
-from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
-from glidetask.engine.wind import ground_speed, heading_for_course, wind_components
 from glidetask.errors import InputError, Problem
 from glidetask.units import METRIC
 
@@ -432,7 +428,7 @@ def _bisect_depth(attempt, low, high, minimum, tries: int = 14):
 def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes) -> Plan:
     day = scenario.day
     polar = scenario.glider.polar_at(day.band_middle_m, day.isa_deviation_c)
-    legs = _legs(scenario, path, flown, polar)
+    legs = _legs(path, flown)
     finished = bool(flown.finished[0])
     total = float(flown.total_time_s[0])
     planned = path.total_m
@@ -454,49 +450,20 @@ def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes)
     return dataclasses.replace(plan, notices=tuple(notes) + plan_notices(plan))
 
 
-def _legs(scenario, path, flown: Flown, polar) -> tuple[LegPlan, ...]:
-    """Per-leg speeds and headings at each leg's settings (one vectorised call per kind)."""
-    day = scenario.day
-    courses = np.array([leg.course_deg for leg in path.legs])
-    along, across = (np.asarray(x, dtype=float) for x in wind_components(courses, day.wind.from_deg,
-                                                                          day.wind.speed_ms))
-    climb, mc = flown.leg_climb_ms[0], flown.leg_mc_ms[0]
-    final = flown.leg_final[0]
-    airmass = day.glide_airmass_ms
-    cruise = cruise_in_wind(polar, climb, along, across, airmass, np.maximum(np.nan_to_num(mc), 0.0))
-    v, fraction = np.asarray(cruise.airspeed_ms), np.asarray(cruise.glide_fraction)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        drift_fix = across / fraction  # air velocity across the course in the glides (contract 3)
-        cruise_ground = np.asarray(ground_speed(v, along, drift_fix))
-        cruise_heading = np.mod(courses - np.degrees(np.arcsin(drift_fix / v)), 360.0)
-    sigma = float(flown.final_glide_sigma[0])
-    fg_polar = scaled_polar(scenario.glider.spec, scenario.glider.mass_kg, scenario.glider.bugs_percent,
-                            sigma if math.isfinite(sigma) else density_ratio(0.0))
-    pure_mc = np.where(final, np.nan_to_num(mc), 0.0)
-    pure = glide_in_wind(fg_polar, pure_mc, along, across, airmass)
-    no_climb = ~(climb > 0.0)  # a glide with no climb ahead (before the lift starts): best glide
-    best = glide_in_wind(polar, 0.0, along, across, airmass)
-    pure_heading, _ = heading_for_course(courses, pure.airspeed_ms, day.wind.from_deg, day.wind.speed_ms)
-    best_heading, _ = heading_for_course(courses, best.airspeed_ms, day.wind.from_deg, day.wind.speed_ms)
-
-    def pick(final_value, best_value, cruise_value):
-        return np.where(final, final_value, np.where(no_climb, best_value, cruise_value))
-
-    airspeed = pick(pure.airspeed_ms, best.airspeed_ms, v)
-    heading = pick(pure_heading, best_heading, cruise_heading)
-    ground = pick(pure.ground_speed_ms, best.ground_speed_ms, cruise_ground)
+def _legs(path, flown: Flown) -> tuple[LegPlan, ...]:
+    """The plan's legs from the flight core's records (one flight); NaN where not reached."""
     reached = np.isfinite(flown.leg_entry_time_s[0])
     out = []
     for i, leg in enumerate(path.legs):
-        def value(array):
-            return float(array[i]) if reached[i] else math.nan
+        def value(name):
+            return float(getattr(flown, name)[0, i]) if reached[i] else math.nan
         out.append(LegPlan(
             from_name=leg.from_name, to_name=leg.to_name, distance_m=float(leg.distance_m),
-            course_deg=float(leg.course_deg), climb_ms=value(climb), mc_ms=value(mc),
-            airspeed_ms=value(airspeed), heading_deg=value(heading), glide_ground_speed_ms=value(ground),
-            cruise_speed_ms=value(np.asarray(cruise.cruise_speed_ms, dtype=float) * np.ones(len(path.legs))),
-            time_s=value(flown.leg_time_s[0]), required_height_m=value(flown.leg_required_height_m[0]),
-            arrival_height_m=float(flown.leg_arrival_height_m[0, i]), final_glide=bool(final[i]),
+            course_deg=float(leg.course_deg), climb_ms=value("leg_climb_ms"), mc_ms=value("leg_mc_ms"),
+            airspeed_ms=value("leg_airspeed_ms"), heading_deg=value("leg_heading_deg"),
+            glide_ground_speed_ms=value("leg_ground_speed_ms"), cruise_speed_ms=value("leg_cruise_speed_ms"),
+            time_s=value("leg_time_s"), required_height_m=value("leg_required_height_m"),
+            arrival_height_m=float(flown.leg_arrival_height_m[0, i]), final_glide=bool(flown.leg_final[0, i]),
             start_time_s=float(flown.leg_entry_time_s[0, i])))
     return tuple(out)
 
