@@ -1,0 +1,153 @@
+"""The final-glide requirement inside the flight core.
+
+The height a flight needs at a point to glide home: the arrival floor plus the height
+used over the remaining legs at the final-glide setting, each leg in its own wind, with
+the polar at the density of the middle of the glide's start and arrival heights, plus
+the terrain's extra from the requirement hook (:mod:`glidetask.engine.clearance_hook`).
+:class:`FinalGlideRequirement` is the part of the simulation that computes it, the one
+place it is computed; the tables it keeps per flight are documented on
+:class:`glidetask.engine.flight_simulation.Simulation`.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.finalglide import density_height_m
+from glidetask.engine.polar import Polar, scaled_polar
+from glidetask.engine.speedtofly import glide_in_wind, speed_to_fly_still_air
+from glidetask.engine.wind import ground_speed
+
+
+def polar_rows(polar: Polar, rows) -> Polar:
+    """The polars of some flights, as a column (n, 1) for broadcasting against legs."""
+    def pick(value):
+        value = np.asarray(value, dtype=float)
+        return value[rows][:, None] if value.ndim else value
+    return Polar(a=pick(polar.a), b=pick(polar.b), c=pick(polar.c), min_speed_ms=pick(polar.min_speed_ms),
+                 vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2)
+
+
+class FinalGlideRequirement:
+    """The requirement part of :class:`glidetask.engine.flight_simulation.Simulation`."""
+
+
+    def _tail(self, hpm):
+        """Height used from each leg's start to the finish, shape (n, L+1) (0 at the finish)."""
+        used = np.where(self.leg_length == 0.0, 0.0, hpm * self.leg_length)
+        return np.concatenate([np.cumsum(used[..., ::-1], axis=-1)[..., ::-1],
+                               np.zeros(used.shape[:-1] + (1,))], axis=-1)
+
+    def required(self, rows, leg=None, pos=None, hpm=None, tail=None):
+        """Required height [m MSL] of flights ``rows`` (n,) at (leg, position in leg): the one
+        place where the final-glide requirement along the remaining path is computed.
+
+        ``hpm`` (n, L) and ``tail`` (n, L+1) default to each flight's present final-glide table.
+        """
+        leg = self.leg[rows] if leg is None else leg
+        pos = self.position[rows] if pos is None else pos
+        if hpm is None:
+            hpm, tail = self.final_per_metre[rows], self.final_height_after[rows]
+        line = np.arange(rows.size)
+        required = self.floor[rows] + hpm[line, leg] * (self.leg_length[leg] - pos) + tail[line, leg + 1]
+        if self.requirement_hook is not None:
+            required = required + self._extra(required, self.leg_start[leg] + pos, hpm, self.floor[rows])
+        return required
+
+    def _extra(self, required, position, hpm, floor):
+        """The hook's extra height, asked only where the pure requirement is defined: a flight
+        still too far out for a final-glide table (NaN) needs nothing from it."""
+        asked = np.isfinite(required)
+        if asked.all():
+            return np.asarray(self.requirement_hook(position, hpm, floor), dtype=float)
+        extra = np.zeros(required.shape)
+        if asked.any():
+            extra[asked] = self.requirement_hook(position[asked], hpm[asked], floor[asked])
+        return extra
+
+    def _final_glide_bound(self):
+        """A lower bound [m/m] of the final glide's height used per metre, any leg, setting and density.
+
+        Over the ground a glider makes at most ``v + W``; a final glide's density is at most
+        the arrival floor's, and a denser polar glides no flatter in wind. So the height per
+        metre is at least ``min over v of (sink_floor(v) - max(u, 0)) / (v + W)``: the tangent
+        from ``(-W, 0)`` to the polar at the floor's density. NaN where rising air could
+        carry the glider (no bound).
+        """
+        inputs = self.inputs
+        # The densest air any final glide here flies in: a glide that starts at the floor itself.
+        sigma = density_ratio(density_height_m(self.floor, self.floor), inputs["isa_deviation_c"])
+        polar = scaled_polar(self.spec, inputs["mass_kg"], inputs["bugs_percent"], sigma)
+        a, b = np.asarray(polar.a), np.asarray(polar.b)
+        c = np.asarray(polar.c) - np.maximum(self.airmass, 0.0)
+        wind = inputs["wind_speed_ms"]
+        with np.errstate(invalid="ignore"):
+            v = np.maximum(-wind + np.sqrt(wind * wind + (c - b * wind) / a), 0.0)
+            bound = ((a * v + b) * v + c) / (v + wind)
+        return np.where(bound > 0.0, bound * (1.0 - 1e-9), np.nan)
+
+    def _far_from_final(self, rows):
+        """Flights whose final glide cannot start before their next climb: no table needed.
+
+        The furthest a cycle can carry a flight is its climb's drift plus a glide from the
+        band top to the bottom at ground speed ``v + W``; if the lowest possible requirement
+        there is still above the band top, no final glide can start in this cycle.
+        """
+        inputs = self.inputs
+        top, bottom, wind = inputs["band_top_m"][rows], inputs["band_bottom_m"][rows], inputs["wind_speed_ms"][rows]
+        rate, sink = self.climb_rate[rows], self.cruise_net_sink[rows]
+        remaining = self.leg_start[-1] - self.leg_start[self.leg[rows]] - self.position[rows]
+        with np.errstate(invalid="ignore", divide="ignore"):
+            drift = np.where(rate > 0.0, np.maximum(top - self.height[rows], 0.0) / rate * wind, np.inf)
+            glide = np.where(sink > 0.0, (top - bottom) * (self.cruise_airspeed[rows] + wind) / sink, np.inf)
+            lowest = self.floor[rows] + self.final_per_metre_bound[rows] * np.maximum(remaining - drift - glide, 0.0)
+        return (lowest > top + 1.0) & ~self.no_climb[rows]
+
+    def _first_estimate(self, rows, leg, pos, mc_fg):
+        """A cheap requirement [m MSL] to start the density iteration from: the band's polar
+        at the still-air speed to fly, heading into the crosswind (no solver)."""
+        line = np.arange(rows.size)
+        polar = polar_rows(self.band_polar, rows)
+        airmass = self.airmass[rows, None]
+        v = speed_to_fly_still_air(polar, mc_fg[:, None], airmass)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            ground = np.asarray(ground_speed(v, self.wind_along[rows], self.wind_across[rows]))
+            hpm = np.where(ground > 0.0, (polar.sink(v) - airmass) / ground, self.best_per_metre[rows])
+        tail = self._tail(hpm)
+        return self.floor[rows] + hpm[line, leg] * (self.leg_length[leg] - pos) + tail[line, leg + 1]
+
+    def final_table(self, rows, leg, pos, mc_fg, estimate=None):
+        """Final-glide speeds per leg for flights ``rows`` starting at (leg, pos) at setting ``mc_fg``.
+
+        The density is that of the middle of the start height (the requirement itself) and
+        the arrival floor, found by two fixed-point passes from ``estimate`` (default a
+        cheap first guess). Each pass shrinks the height error about twenty-fold, so the
+        density matches the requirement to a few centimetres (a few decimetres from a
+        poor first guess on long glides).
+        """
+        inputs = self.inputs
+        line = np.arange(rows.size)
+        first = self._first_estimate(rows, leg, pos, mc_fg)
+        estimate = first if estimate is None else np.where(np.isfinite(estimate), estimate, first)
+        for attempt in range(2):
+            estimate = np.where(np.isfinite(estimate), estimate, inputs["band_top_m"][rows])
+            mid = np.asarray(density_height_m(estimate, self.floor[rows]))
+            sigma = np.asarray(density_ratio(mid, inputs["isa_deviation_c"][rows]), dtype=float)
+            polar = scaled_polar(self.spec, inputs["mass_kg"][rows], inputs["bugs_percent"][rows], sigma)
+            glide = glide_in_wind(polar_rows(polar, line), mc_fg[:, None], self.wind_along[rows], self.wind_across[rows],
+                                  self.airmass[rows, None])
+            hpm = np.broadcast_to(glide.height_per_metre, (rows.size, self.legs))
+            tail = self._tail(hpm)
+            if attempt == 0:  # the next pass's start height, with the terrain's extra: the real start
+                estimate = self.required(rows, leg, pos, hpm, tail)
+        return hpm, np.broadcast_to(glide.ground_speed_ms, hpm.shape), tail, sigma
+
+    def _solve_final(self, rows) -> None:
+        """Give flights ``rows`` their cycle's final-glide table (where they are now)."""
+        if not rows.size:
+            return
+        previous = self.required(rows)  # the last cycle's requirement here; NaN without a table
+        hpm, gs, tail, sigma = self.final_table(rows, self.leg[rows], self.position[rows], self.final_mc[rows],
+                                                 previous)
+        self.final_per_metre[rows], self.final_ground_speed[rows], self.final_height_after[rows], self.final_sigma[rows] = hpm, gs, tail, sigma
