@@ -233,7 +233,7 @@ def plan_text(plan, unit_name: str = "metric", sensitivity=None) -> str:
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.engine.compare import plan_sensitivity
+    from glidetask.engine.sensitivity import plan_sensitivity
 
     plan = plan_from_args(args)
     sensitivity = plan_sensitivity(plan)

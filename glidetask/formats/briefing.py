@@ -198,8 +198,8 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     plan : glidetask.engine.plan.Plan
     unit_name : str
         ``"metric"`` or ``"aviation"``.
-    sensitivity : glidetask.engine.compare.Sensitivity, optional
-        The task time under what-ifs (:func:`glidetask.engine.compare.plan_sensitivity`);
+    sensitivity : glidetask.engine.sensitivity.Sensitivity, optional
+        The task time under what-ifs (:func:`glidetask.engine.sensitivity.plan_sensitivity`);
         a table on page one when given.
     """
     unit = units.by_name(unit_name)

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import json
 
-from glidetask.engine.compare import plan_sensitivity
+from glidetask.engine.sensitivity import plan_sensitivity
 from glidetask.formats.briefing import plan_to_markdown
 from glidetask.formats.gpx import plan_to_gpx
 from glidetask.formats.plan_json import jsonable, plan_to_dict

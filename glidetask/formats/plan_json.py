@@ -167,8 +167,8 @@ def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
     Parameters
     ----------
     plan : glidetask.engine.plan.Plan
-    sensitivity : glidetask.engine.compare.Sensitivity, optional
-        The task time under what-ifs (:func:`glidetask.engine.compare.plan_sensitivity`),
+    sensitivity : glidetask.engine.sensitivity.Sensitivity, optional
+        The task time under what-ifs (:func:`glidetask.engine.sensitivity.plan_sensitivity`),
         added as ``sensitivity`` when given.
 
     Returns

@@ -4,7 +4,7 @@
   section 5.4 keys (``ballast_kg``, ``thermal_strength_ms``, ``task_time_s`` one row per
   strength, ``best_ballast_kg``) plus the achieved climb, the cruise speed, where ballast
   starts paying, and the cautions;
-* the sensitivity of the task time (:class:`glidetask.engine.compare.Sensitivity`): a
+* the sensitivity of the task time (:class:`glidetask.engine.sensitivity.Sensitivity`): a
   small table for the plan output and the briefing;
 * the odds of getting home (:class:`glidetask.engine.simulate.Odds`).
 
@@ -19,6 +19,7 @@ import math
 
 from glidetask import cautions
 from glidetask import units as unit_systems
+from glidetask.engine import sensitivity as what_ifs
 from glidetask.units import UnitSystem, format_clock, format_duration
 
 DASH = "-"
@@ -200,24 +201,22 @@ def sweep_markdown(sweep, units: UnitSystem | str = "metric") -> str:
 
 def _what_if_words(s, row, units: UnitSystem) -> tuple[str, str]:
     """(label, change) of a sensitivity row in the units shown."""
-    from glidetask.engine import compare
-
     if row.key == "weaker_climbs":
         thing = "Thermals" if s.lift_is_strength else "Climbs"
         change = "thermal strength" if s.lift_is_strength else "achieved climb"
-        by = _vertical(units, compare.WEAKER_CLIMB_MS)
+        by = _vertical(units, what_ifs.WEAKER_CLIMB_MS)
         return f"{thing} {by} weaker", f"{change} -{by} all day"
     if row.key == "more_wind":
-        more = units.fmt_speed(compare.MORE_WIND_MS)
-        speed = units.fmt_speed(s.wind.speed_ms + compare.MORE_WIND_MS)
+        more = units.fmt_speed(what_ifs.MORE_WIND_MS)
+        speed = units.fmt_speed(s.wind.speed_ms + what_ifs.MORE_WIND_MS)
         return f"Wind {more} stronger", f"wind {s.wind.from_deg:03.0f}/{speed}"
     if row.key == "later_start":
-        start = format_clock(s.start_time_s + compare.LATER_START_S)
+        start = format_clock(s.start_time_s + what_ifs.LATER_START_S)
         suffix = "" if row.finished or _finite(row.total_time_s) else ", after lift ends"
-        return f"Start {compare.LATER_START_S / 60:.0f} min later", f"start {start}{suffix}"
+        return f"Start {what_ifs.LATER_START_S / 60:.0f} min later", f"start {start}{suffix}"
     if row.key == "more_bugs":
-        return (f"{compare.MORE_BUGS_PERCENT:g} % more bugs",
-                f"bugs {s.bugs_percent + compare.MORE_BUGS_PERCENT:g} % (sink rate)")
+        return (f"{what_ifs.MORE_BUGS_PERCENT:g} % more bugs",
+                f"bugs {s.bugs_percent + what_ifs.MORE_BUGS_PERCENT:g} % (sink rate)")
     return row.label, row.change
 
 

@@ -11,6 +11,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
 from glidetask.engine import compare
+from glidetask.engine import sensitivity as what_ifs
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.circling import achieved_climb
 from glidetask.engine.plan import plan
@@ -273,8 +274,8 @@ def _what_if_plans(s: Scenario) -> dict:
 @pytest.mark.parametrize("task", ["triangle-300", "out-and-return", "ridge-final-glide"])
 def test_sensitivity_rows_are_what_the_planner_gives_for_each_what_if(demo, task):
     s = demo[task]
-    result = compare.sensitivity(s)
-    assert [row.key for row in result.rows] == list(compare.WHAT_IFS)
+    result = what_ifs.sensitivity(s)
+    assert [row.key for row in result.rows] == list(what_ifs.WHAT_IFS)
     plans = _what_if_plans(s)
     for row in result.rows:
         expected = plans[row.key]
@@ -288,7 +289,7 @@ def test_weaker_climbs_more_bugs_and_more_wind_cost_time(demo):
     # Source: MacCready theory (from memory): a weaker climb or a polar with more sink
     # lowers the average cross-country speed at every setting; on an out-and-return any
     # steady wind costs more on the upwind leg than it gives back downwind.
-    result = compare.sensitivity(demo["out-and-return"])
+    result = what_ifs.sensitivity(demo["out-and-return"])
     delta = {row.key: row.delta_s for row in result.rows}
     assert delta["weaker_climbs"] > 0.0 and delta["more_bugs"] > 0.0 and delta["more_wind"] > 0.0
     assert result.forecast.delta_s == 0.0
@@ -296,14 +297,14 @@ def test_weaker_climbs_more_bugs_and_more_wind_cost_time(demo):
 
 def test_a_start_after_the_end_of_lift_is_not_flown():
     s = synthetic(climb=2.0, lift_ends=12.25 * HOUR)  # lift ends 15 min after the start
-    result = compare.sensitivity(s)
+    result = what_ifs.sensitivity(s)
     later = [row for row in result.rows if row.key == "later_start"][0]
     assert not later.finished and math.isnan(later.total_time_s) and "after the end of lift" in later.change
 
 
 def test_area_task_sensitivity_keeps_the_forecast_targets(demo):
     s = demo["area-3h"]
-    result = compare.sensitivity(s)
+    result = what_ifs.sensitivity(s)
     assert result.notes and "targets" in result.notes[0]
     forecast = plan(s)
     assert result.forecast.total_time_s == pytest.approx(forecast.total_time_s, abs=1e-6)

@@ -340,7 +340,7 @@ def test_rising_air_in_the_glides_is_not_counted_on_for_reaching_a_field():
 
 def test_the_sensitivity_forecast_is_the_plan_over_the_ridge(ridge):
     # The what-ifs fly with the plan's own terrain requirement: the forecast row is the plan.
-    from glidetask.engine.compare import plan_sensitivity
+    from glidetask.engine.sensitivity import plan_sensitivity
 
     p, _, _ = ridge
     forecast = plan_sensitivity(p).forecast

@@ -8,7 +8,7 @@ from pathlib import Path
 import pytest
 
 from glidetask import cautions
-from glidetask.engine.compare import plan_sensitivity
+from glidetask.engine.sensitivity import plan_sensitivity
 from glidetask.engine.plan import CARD_MC_MS, final_glide_card, plan
 from glidetask.engine.scenario import Wind
 from glidetask.formats.briefing import PAGE_BREAK, plan_to_markdown

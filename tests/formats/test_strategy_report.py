@@ -10,7 +10,8 @@ import numpy as np
 import pytest
 
 from glidetask import cautions
-from glidetask.engine.compare import BallastSweep, Sensitivity, SensitivityRow
+from glidetask.engine.compare import BallastSweep
+from glidetask.engine.sensitivity import Sensitivity, SensitivityRow
 from glidetask.engine.scenario import Wind
 from glidetask.engine.simulate import ChoiceOdds, DaySpread, Odds
 from glidetask.formats import strategy_report as report

@@ -1,0 +1,195 @@
+"""How the task time answers to the day: the plan flown again under a few what-ifs.
+
+:func:`sensitivity` gives the planned task time for weaker climbs, more wind, a later
+start and more bugs, each flown exactly as :func:`glidetask.engine.plan.plan` flies it
+(the plan's own flight core, :func:`glidetask.engine.flight.fly`), all in one vectorised
+call over the planned path; :func:`plan_sensitivity` does it for a plan.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import math
+from dataclasses import dataclass
+
+from glidetask.engine.compare import TASK_TERRAIN, planned_route, stack_flights
+from glidetask.engine.flight import Flown, course_for, flights_for, fly
+from glidetask.engine.plan import Plan, with_what_ifs
+from glidetask.engine.scenario import Profile, Scenario, Wind
+from glidetask.units import KMH
+
+WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
+MORE_WIND_MS = 10.0 * KMH  # what-if: this much more wind [m/s] (10 km/h)
+LATER_START_S = 1800.0  # what-if: the start this much later [s]
+MORE_BUGS_PERCENT = 5.0  # what-if: this much more sink from bugs [%]
+
+
+@dataclass(frozen=True)
+class SensitivityRow:
+    """The task flown with one what-if.
+
+    Attributes
+    ----------
+    key : str
+        Which what-if: one of :data:`WHAT_IFS`.
+    label : str
+        The what-if in words ("Climbs 0.5 m/s weaker"; "Forecast" for the plan itself).
+    change : str
+        What was changed, with the new value ("wind 250/25 km/h").
+    total_time_s : float
+        Start to finish, or to where the flight ends short [s]; NaN if it cannot start.
+    delta_s : float
+        ``total_time_s`` minus the forecast's [s]; NaN unless both finish.
+    finished : bool
+    finish_time_s : float
+        Clock time at the finish [s after midnight]; NaN if not finished.
+    landout_m : float
+        Where the flight ends short along the path [m]; NaN if finished.
+    task_speed_ms : float
+        As the plan scores it (racing: optimized distance over the time; area: the
+        planned distance over the greater of the time and the minimum time) [m/s].
+    """
+
+    key: str
+    label: str
+    change: str
+    total_time_s: float
+    delta_s: float
+    finished: bool
+    finish_time_s: float
+    landout_m: float
+    task_speed_ms: float
+
+
+@dataclass(frozen=True)
+class Sensitivity:
+    """The forecast plan and its what-ifs (first row: the forecast).
+
+    ``wind``, ``start_time_s``, ``bugs_percent`` and ``lift_is_strength`` are the
+    forecast's, for describing the what-ifs in any units.
+    """
+
+    task_name: str
+    kind: str
+    rows: tuple[SensitivityRow, ...]
+    notes: tuple[str, ...]
+    wind: Wind
+    start_time_s: float
+    bugs_percent: float
+    lift_is_strength: bool
+
+    @property
+    def forecast(self) -> SensitivityRow:
+        return self.rows[0]
+
+
+def _weaker(profile: Profile, by: float) -> Profile:
+    return Profile(profile.times_s, tuple(max(v - by, 0.0) for v in profile.values))
+
+
+WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs")
+
+
+def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario | None]]:
+    """``(key, label, change, scenario)`` for the forecast and each what-if of
+    :data:`WHAT_IFS`; the scenario is None where the what-if cannot be flown (a start at
+    or after the end of lift)."""
+    from glidetask.errors import InputError
+    from glidetask.units import format_clock
+
+    day, glider = scenario.day, scenario.glider
+    if day.climb is not None:
+        weaker_day = dataclasses.replace(day, climb=_weaker(day.climb, WEAKER_CLIMB_MS))
+        weaker = ("Climbs 0.5 m/s weaker", "achieved climb -0.5 m/s all day")
+    else:
+        weaker_day = dataclasses.replace(day, thermal_strength=_weaker(day.thermal_strength, WEAKER_CLIMB_MS))
+        weaker = ("Thermals 0.5 m/s weaker", "thermal strength -0.5 m/s all day")
+    wind = Wind(day.wind.from_deg, day.wind.speed_ms + MORE_WIND_MS)
+    start = day.start_time_s + LATER_START_S
+    bugs = glider.bugs_percent + MORE_BUGS_PERCENT
+    out = [("forecast", "Forecast", "the plan as given", scenario),
+           ("weaker_climbs", *weaker, dataclasses.replace(scenario, day=weaker_day))]
+    for key, label, change, what_if in (
+            ("more_wind", "Wind 10 km/h stronger", f"wind {wind.from_deg:03.0f}/{wind.speed_ms / KMH:.0f} km/h",
+             {"wind": wind}),
+            ("later_start", "Start 30 min later", f"start {format_clock(start)}", {"start_time_s": start}),
+            ("more_bugs", "5 % more bugs", f"bugs {bugs:g} % (sink rate)", {"bugs_percent": bugs})):
+        try:
+            out.append((key, label, change, with_what_ifs(scenario, **what_if)))
+        except InputError:
+            out.append((key, label, change + ": at or after the end of lift", None))
+    return out
+
+
+def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> Sensitivity:
+    """How much the task time changes for climbs 0.5 m/s weaker, 10 km/h more wind, a
+    30-minute later start and 5 % more bugs.
+
+    Parameters
+    ----------
+    scenario : Scenario
+        The forecast (its task, glider, day and margins).
+    path, requirement : optional
+        The planned path and its final-glide requirement (see :func:`planned_route`;
+        default: as :func:`glidetask.engine.plan.plan` flies the task).
+
+    Returns
+    -------
+    Sensitivity
+        The forecast row first, then one row per what-if.
+
+    Notes
+    -----
+    Each what-if is a scenario built as :func:`glidetask.engine.plan.plan` builds it
+    (its ``with_what_ifs`` for wind, start and bugs; the day's climb or thermal-strength
+    profile lowered by 0.5 m/s, not below 0, for weaker climbs) and turned into the core's
+    inputs by the planner's ``flights_for``; all are flown in one call over the planned
+    path, with the plan's final-glide requirement (the terrain, if the task has a model). For a racing task that path is the optimized one, whatever the day, so every
+    row is the plan the planner would make for that what-if. For an area task the
+    targets stay where the forecast plan put them (the planner would move them to keep
+    the minimum time), so the change shows as time rather than distance.
+    """
+
+    path, requirement = planned_route(scenario, path, requirement)
+    variants = what_if_scenarios(scenario)
+    flyable = [v for v in variants if v[3] is not None]
+    flown = fly(course_for(path), stack_flights([flights_for(v[3]) for v in flyable]), requirement=requirement,
+                detail=False)
+    by_key = {key: flown.flight(i) for i, (key, _, _, _) in enumerate(flyable)}
+    rows = [_sensitivity_row(key, label, change, by_key.get(key), scenario, path)
+            for key, label, change, _ in variants]
+    forecast = rows[0]
+    rows = [dataclasses.replace(row, delta_s=row.total_time_s - forecast.total_time_s
+                                if row.finished and forecast.finished else math.nan) for row in rows]
+    notes = []
+    if scenario.task.kind == "area":
+        notes.append("Area task: the what-ifs fly the forecast plan's targets; on the day, move the targets "
+                     "to keep the minimum time.")
+    day = scenario.day
+    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes), day.wind,
+                       day.start_time_s, scenario.glider.bugs_percent, day.climb is None)
+
+
+def _sensitivity_row(key: str, label: str, change: str, flown: Flown | None, scenario: Scenario,
+                     path) -> SensitivityRow:
+    if flown is None:
+        return SensitivityRow(key, label, change, math.nan, math.nan, False, math.nan, math.nan, math.nan)
+    finished = bool(flown.finished[0])
+    total = float(flown.total_time_s[0])
+    task = scenario.task
+    if not finished:
+        speed = math.nan
+    elif task.kind == "area":
+        speed = path.total_m / max(total, float(task.min_time_s))
+    else:
+        speed = path.total_m / total
+    return SensitivityRow(key, label, change, total, math.nan, finished, float(flown.finish_time_s[0]),
+                          float(flown.landout_m[0]), speed)
+
+
+def plan_sensitivity(plan: Plan):
+    """How the task time answers to the day: the plan flown again with climbs 0.5 m/s weaker,
+    10 km/h more wind, a 30-minute later start and 5 % more bugs, over the planned path with
+    the plan's own final-glide requirement (the terrain), so the forecast row is the plan
+    (:func:`glidetask.engine.compare.sensitivity`, one vectorised flight of five)."""
+    return sensitivity(plan.scenario, path=plan.path, requirement=plan.requirement)
