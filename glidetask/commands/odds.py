@@ -36,7 +36,7 @@ def option_problems(args: argparse.Namespace) -> list[Problem]:
 
 def ballast_problems(scenario, ballasts) -> list[Problem]:
     """Each ballast against the glider (the planner's check: polar maximum, maximum mass)."""
-    from glidetask.engine.plan import with_what_ifs
+    from glidetask.engine.scenario import with_what_ifs
 
     problems: list[Problem] = []
     for value in ballasts:

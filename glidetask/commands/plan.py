@@ -46,7 +46,8 @@ def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = No
     the task file's, and the what-ifs' against the task (e.g. ballast above the polar's
     maximum).
     """
-    from glidetask.engine.plan import plan, with_what_ifs
+    from glidetask.engine.plan import plan
+    from glidetask.engine.scenario import with_what_ifs
     from glidetask.engine.scenario import Wind
     from glidetask.formats.task_file import load_scenario
 

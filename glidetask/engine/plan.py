@@ -41,14 +41,9 @@ from glidetask.engine import flight
 from glidetask.engine import task as task_geometry
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
 from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
-from glidetask.engine.scenario import Scenario, Wind, scenario_problems
-from glidetask.errors import InputError, Problem
+from glidetask.engine.scenario import Scenario, Wind, with_what_ifs
 from glidetask.units import METRIC
 
-CMDLINE = "command line"
-#: The command-line option of each what-if, by the task-file key it replaces.
-WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
-                   "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
 AREA_TIME_SLACK = 0.05  # planned area-task time within [min time, (1 + this) x min time]
 TIGHT_DAY_S = 1800.0  # caution when the last climb ends this close to the end of lift [s]
 THIN_MARGIN_M = 150.0  # caution for an arrival margin below this [m] (common practice)
@@ -254,43 +249,6 @@ class Plan:
         path = self.terrain_path
         covered = path is None or path.profile.covered_share >= 1.0
         return bool(self.terrain is not None and self.terrain.ok and covered)
-
-
-# ---------------------------------------------------------------- what-ifs
-
-
-def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
-                  start_time_s=None) -> Scenario:
-    """The scenario with the given what-ifs (None keeps the scenario's value).
-
-    Raises
-    ------
-    InputError
-        A what-if that makes the inputs inconsistent (ballast above the polar's
-        maximum, a mass above the maximum mass, a start at or after the end of lift, a
-        negative setting), named by its command-line option; problems of the scenario
-        itself are named by the task file and key.
-    """
-    glider, day = scenario.glider, scenario.day
-    if ballast_kg is not None:
-        glider = dataclasses.replace(glider, ballast_kg=float(ballast_kg))
-    if bugs_percent is not None:
-        glider = dataclasses.replace(glider, bugs_percent=float(bugs_percent))
-    if mc_ms is not None:
-        day = dataclasses.replace(day, mc_ms=float(mc_ms))
-    if wind is not None:
-        day = dataclasses.replace(day, wind=wind)
-    if start_time_s is not None:
-        day = dataclasses.replace(day, start_time_s=float(start_time_s))
-    result = dataclasses.replace(scenario, glider=glider, day=day)
-    given = {"[glider] ballast_kg": ballast_kg, "[glider] bugs_percent": bugs_percent, "[day] mc_ms": mc_ms,
-             "[day] wind": wind, "[day] start_time": start_time_s}
-    file = scenario.source or "task"
-    problems = [Problem(CMDLINE, WHAT_IF_OPTIONS[key], message) if given.get(key) is not None
-                else Problem(file, key, message) for key, message in scenario_problems(result)]
-    if problems:
-        raise InputError(problems)
-    return result
 
 
 # ---------------------------------------------------------------- the plan

@@ -7,6 +7,7 @@ Times are local clock seconds after midnight; heights metres MSL; speeds m/s.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING
@@ -16,12 +17,17 @@ import numpy as np
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
+from glidetask.errors import InputError, Problem
 from glidetask.units import KMH, format_clock
 
 if TYPE_CHECKING:  # imported for type names only; keeps this module cheap
     from glidetask.engine.task import Task, Turnpoint
 
 
+CMDLINE = "command line"
+#: The command-line option of each what-if, by the task-file key it replaces.
+WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
+                   "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
 #: The strongest wind any input may give [km/h] (the task file's limit, one for every input).
 MAX_WIND_SPEED_KMH = 200.0
 
@@ -30,7 +36,7 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
     """What makes a scenario inconsistent, as ``(task-file key, message)`` pairs.
 
     The one check of a whole scenario: the task-file reader, the command line's what-ifs
-    (:func:`glidetask.engine.plan.with_what_ifs`) and the UI each name the key in their
+    (:func:`with_what_ifs`) and the UI each name the key in their
     own terms. Empty when the scenario can be planned.
     """
     glider, day = scenario.glider, scenario.day
@@ -206,3 +212,40 @@ class Scenario:
     terrain_file: str | None = None
     source: str | None = None
     turnpoints_file: str | None = None
+
+
+# ---------------------------------------------------------------- what-ifs
+
+
+def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
+                  start_time_s=None) -> Scenario:
+    """The scenario with the given what-ifs (None keeps the scenario's value).
+
+    Raises
+    ------
+    InputError
+        A what-if that makes the inputs inconsistent (ballast above the polar's
+        maximum, a mass above the maximum mass, a start at or after the end of lift, a
+        negative setting), named by its command-line option; problems of the scenario
+        itself are named by the task file and key.
+    """
+    glider, day = scenario.glider, scenario.day
+    if ballast_kg is not None:
+        glider = dataclasses.replace(glider, ballast_kg=float(ballast_kg))
+    if bugs_percent is not None:
+        glider = dataclasses.replace(glider, bugs_percent=float(bugs_percent))
+    if mc_ms is not None:
+        day = dataclasses.replace(day, mc_ms=float(mc_ms))
+    if wind is not None:
+        day = dataclasses.replace(day, wind=wind)
+    if start_time_s is not None:
+        day = dataclasses.replace(day, start_time_s=float(start_time_s))
+    result = dataclasses.replace(scenario, glider=glider, day=day)
+    given = {"[glider] ballast_kg": ballast_kg, "[glider] bugs_percent": bugs_percent, "[day] mc_ms": mc_ms,
+             "[day] wind": wind, "[day] start_time": start_time_s}
+    file = scenario.source or "task"
+    problems = [Problem(CMDLINE, WHAT_IF_OPTIONS[key], message) if given.get(key) is not None
+                else Problem(file, key, message) for key, message in scenario_problems(result)]
+    if problems:
+        raise InputError(problems)
+    return result

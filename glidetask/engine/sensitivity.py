@@ -14,7 +14,8 @@ from dataclasses import dataclass
 
 from glidetask.engine.compare import TASK_TERRAIN, planned_route, stack_flights
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
-from glidetask.engine.plan import Plan, with_what_ifs
+from glidetask.engine.plan import Plan
+from glidetask.engine.scenario import with_what_ifs
 from glidetask.engine.scenario import Profile, Scenario, Wind
 from glidetask.units import KMH
 

@@ -290,7 +290,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     Raises
     ------
     InputError
-        A ballast the glider cannot carry (the planner's ``with_what_ifs`` check).
+        A ballast the glider cannot carry (the scenario's ``with_what_ifs`` check).
 
     Notes
     -----
@@ -304,7 +304,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     """
     from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights
     from glidetask.engine.flight import course_for, flights_for
-    from glidetask.engine.plan import with_what_ifs
+    from glidetask.engine.scenario import with_what_ifs
 
     spread = DaySpread() if spread is None else spread
     choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))

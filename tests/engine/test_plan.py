@@ -14,9 +14,11 @@ from glidetask import cautions
 from glidetask.engine import geodesy
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.flight import flights_for
-from glidetask.engine.plan import final_glide_card, plan, with_what_ifs
+from glidetask.engine.plan import final_glide_card, plan
 from glidetask.engine.polar import PolarSpec, scaled_polar
-from glidetask.engine.scenario import MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.scenario import (
+    MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind, with_what_ifs,
+)
 from glidetask.engine.task import Task, TaskPoint, Turnpoint
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
