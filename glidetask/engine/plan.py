@@ -19,7 +19,7 @@ lets it raise the final-glide requirement wherever the terrain ahead demands mor
 than the arrival margin, and reports the final glide over the terrain from the same
 samples (:attr:`Plan.terrain`). Whenever the turnpoint collection has landable fields it
 reports the coverage along the planned path from the band bottom
-(:func:`glidetask.engine.reach.coverage`, :attr:`Plan.landables`).
+(:func:`glidetask.engine.reach_coverage.coverage`, :attr:`Plan.landables`).
 
 References
 ----------

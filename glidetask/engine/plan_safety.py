@@ -5,7 +5,7 @@ gives :func:`glidetask.engine.plan.plan` the clearance rule as the flight core's
 requirement hook (:func:`glidetask.engine.clearance_hook.path_terrain`) for every path it
 flies; :func:`with_safety` adds to the flown plan the final glide checked over the
 terrain from the same samples and the landable coverage along the planned path from the
-band bottom (:func:`glidetask.engine.reach.coverage`), whose cautions :mod:`glidetask.cautions` words.
+band bottom (:func:`glidetask.engine.reach_coverage.coverage`), whose cautions :mod:`glidetask.cautions` words.
 
 Sampling a path and searching fields are the slow parts of a replan, and the UI replans
 on every edit: both results are kept in small caches keyed on the values they depend on
@@ -24,7 +24,7 @@ from pathlib import Path
 
 import numpy as np
 
-from glidetask.engine import reach
+from glidetask.engine import reach, reach_coverage
 from glidetask.engine.clearance_hook import path_terrain
 from glidetask.engine.flight import Flown
 from glidetask.engine.polar import scaled_polar
@@ -129,7 +129,7 @@ def landable_coverage(scenario: Scenario, path, model=None):
     Every :data:`COVERAGE_SPACING_M` along the path (and at every turnpoint), the fields
     of the turnpoint collection marked ``landable`` in reach at MacCready 0 in the day's
     wind, arriving with the arrival margin, clearing the terrain by the terrain clearance
-    when a model is given (:func:`glidetask.engine.reach.coverage`).
+    when a model is given (:func:`glidetask.engine.reach_coverage.coverage`).
 
     Notes
     -----
@@ -161,7 +161,7 @@ def landable_coverage(scenario: Scenario, path, model=None):
             return cached
     lats, lons, along = path.sample(COVERAGE_SPACING_M)
     leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
-    result = reach.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, day.wind,
+    result = reach_coverage.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, day.wind,
                             day.band_bottom_m, safety.arrival_margin_m, model, safety.terrain_clearance_m,
                             airmass_ms=airmass)
     if not cacheable:

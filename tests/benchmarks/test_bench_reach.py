@@ -20,7 +20,8 @@ import pytest
 
 from glidetask.engine import geodesy
 from glidetask.engine.polar import PolarSpec, scaled_polar
-from glidetask.engine.reach import REACHABLE, coverage
+from glidetask.engine.reach import REACHABLE
+from glidetask.engine.reach_coverage import coverage
 from glidetask.engine.scenario import Wind
 from glidetask.engine.task import Turnpoint
 from glidetask.engine.terrain import load_terrain

@@ -18,8 +18,9 @@ from hypothesis import strategies as st
 
 from glidetask.engine.polar import PolarSpec, scaled_polar
 from glidetask.engine.reach import (
-    OUT_OF_RANGE, REACHABLE, TERRAIN_BLOCKED, TERRAIN_UNKNOWN, coverage, landable_index, reach_distance,
+    OUT_OF_RANGE, REACHABLE, TERRAIN_BLOCKED, TERRAIN_UNKNOWN, landable_index, reach_distance,
 )
+from glidetask.engine.reach_coverage import coverage
 from glidetask.engine.scenario import Wind
 from glidetask.engine.speedtofly import glide_in_wind
 from glidetask.engine.task import Turnpoint
@@ -305,7 +306,7 @@ def test_a_gap_says_how_much_of_it_is_terrain_and_how_much_is_range(tmp_path):
 
 
 def test_the_tree_and_the_direct_pair_search_find_the_same_landables(monkeypatch):
-    import glidetask.engine.reach as reach
+    import glidetask.engine.reach_coverage as reach_coverage
 
     rng = np.random.default_rng(11)
     lats, lons, s = meridian_path(80, step_m=1000.0)
@@ -313,7 +314,7 @@ def test_the_tree_and_the_direct_pair_search_find_the_same_landables(monkeypatch
               enumerate(zip(rng.uniform(45.6, 47.0, 400), rng.uniform(-33.8, -32.2, 400), rng.uniform(0, 700, 400)))]
     wind = Wind(300.0, 30 * KMH)
     direct = coverage(lats, lons, s, 0, fields, POLAR, wind, BAND_BOTTOM, MARGIN)
-    monkeypatch.setattr(reach, "_DIRECT_PAIRS", 0)
+    monkeypatch.setattr(reach_coverage, "_DIRECT_PAIRS", 0)
     tree = coverage(lats, lons, s, 0, fields, POLAR, wind, BAND_BOTTOM, MARGIN)
     np.testing.assert_array_equal(direct.status, tree.status)
     np.testing.assert_array_equal(direct.best_landable, tree.best_landable)

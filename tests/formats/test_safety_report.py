@@ -16,7 +16,7 @@ from geographiclib.geodesic import Geodesic
 
 from glidetask import cautions
 from glidetask.engine.polar import PolarSpec, scaled_polar
-from glidetask.engine.reach import coverage
+from glidetask.engine.reach_coverage import coverage
 from glidetask.engine.scenario import Wind
 from glidetask.engine.task import Turnpoint
 from glidetask.engine.clearance import final_glide_clearance
