@@ -21,7 +21,7 @@ import pytest
 from glidetask import paths
 from glidetask.engine import geodesy
 from glidetask.engine.plan import plan
-from glidetask.engine.task import area_distance_range, optimized_path
+from glidetask.engine.task_search import area_distance_range, optimized_path
 from glidetask.formats.task_file import load_scenario
 from glidetask.formats.turnpoints import read_turnpoints
 from glidetask.units import KMH

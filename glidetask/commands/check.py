@@ -93,7 +93,8 @@ def _zone_text(zone) -> str:
 
 def check_task(path: str) -> dict:
     """Summary of a task file: the task, its distances, glider and day."""
-    from glidetask.engine.task import area_distance_range, nominal_distance_m, optimized_path
+    from glidetask.engine.task import nominal_distance_m
+    from glidetask.engine.task_search import area_distance_range, optimized_path
     from glidetask.formats.task_file import load_scenario
 
     scenario = load_scenario(path)

@@ -39,6 +39,7 @@ import numpy as np
 from glidetask import cautions as caution_text
 from glidetask.engine import flight
 from glidetask.engine import task as task_geometry
+from glidetask.engine import task_search
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
 from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
 from glidetask.engine.scenario import Scenario, Wind, with_what_ifs
@@ -298,7 +299,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         requirement_for = terrain_requirement(model)
     task = scenario.task
     flights = flights_for(scenario)
-    optimized = task_geometry.optimized_path(task)
+    optimized = task_search.optimized_path(task)
     area = None
     notes: list[str] = []
     hooks: list[tuple[object, object]] = []  # (path, hook) of every path flown
@@ -328,10 +329,10 @@ def _area_path(scenario: Scenario, fly_path):
     """
     task = scenario.task
     minimum = float(task.min_time_s)
-    shortest, longest = task_geometry.area_distance_range(task)
+    shortest, longest = task_search.area_distance_range(task)
 
     def attempt(depth):
-        lats, lons = task_geometry.area_targets(task, float(depth))
+        lats, lons = task_search.area_targets(task, float(depth))
         path = task_geometry.path_through(task, lats, lons)
         flown = fly_path(path)
         time = float(flown.total_time_s[0]) if flown.finished[0] else math.inf

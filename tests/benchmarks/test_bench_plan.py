@@ -23,7 +23,8 @@ from glidetask.engine.flight import Course, fly
 from glidetask.engine.flight import course_for, flights_for
 from glidetask.engine.plan import plan
 from glidetask.engine.scenario import Profile, Wind
-from glidetask.engine.task import Task, TaskPoint, optimized_path
+from glidetask.engine.task import Task, TaskPoint
+from glidetask.engine.task_search import optimized_path
 from glidetask.engine.zones import Zone
 from glidetask.formats.task_file import load_scenario
 

@@ -17,8 +17,9 @@ from pathlib import Path
 import pytest
 from wholeprocess import ROOT, bench_against_baseline
 
-from glidetask.engine import task as task_module
-from glidetask.engine.task import Task, TaskPoint, Turnpoint, nominal_distance_m, optimized_path
+from glidetask.engine import task_search
+from glidetask.engine.task import Task, TaskPoint, Turnpoint, nominal_distance_m
+from glidetask.engine.task_search import optimized_path
 from glidetask.engine.zones import Zone
 
 BIG_FILE_POINTS = 50_000
@@ -38,7 +39,7 @@ def _ten_point_task() -> Task:
 
 
 def _fresh_optimized(task: Task) -> float:
-    task_module.optimized_path.cache_clear()  # time the search, not the cache
+    task_search.optimized_path.cache_clear()  # time the search, not the cache
     return optimized_path(task).total_m
 
 

@@ -10,7 +10,8 @@ import pytest
 
 from glidetask.cli import main
 from glidetask.engine.polar import scaled_polar
-from glidetask.engine.task import area_distance_range, nominal_distance_m, optimized_path
+from glidetask.engine.task import nominal_distance_m
+from glidetask.engine.task_search import area_distance_range, optimized_path
 from glidetask.formats.polar_file import load_polar_spec
 from glidetask.formats.task_file import load_scenario
 from glidetask.units import NAUTICAL_MILE

@@ -117,7 +117,7 @@ def ridge(tmp_path_factory):
     """A knife-edge ridge (crest 1400 m) across the path exactly at the turn, where the
     final glide turns for home: 60 km out, 30 km back."""
     task = north_and_back_task(60e3, 30e3)
-    from glidetask.engine.task import optimized_path
+    from glidetask.engine.task_search import optimized_path
 
     path = optimized_path(task)
     crest_lat = float(path.lats[1])  # the path's turn: a vertex, so a terrain sample

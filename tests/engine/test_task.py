@@ -19,8 +19,9 @@ from geographiclib.geodesic import Geodesic
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from glidetask.engine.task import (Task, TaskPoint, Turnpoint, area_distance_range, area_targets, in_zone,
-                                   nominal_distance_m, nominal_path, optimized_path, path_through, zone_outlines)
+from glidetask.engine.task import (Task, TaskPoint, Turnpoint, in_zone, nominal_distance_m, nominal_path, path_through,
+                                   zone_outlines)
+from glidetask.engine.task_search import area_distance_range, area_targets, optimized_path
 from glidetask.engine.zones import Zone, contains
 
 REF = Geodesic.WGS84

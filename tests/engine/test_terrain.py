@@ -617,7 +617,7 @@ def test_the_fast_requirement_hook_equals_the_direct_maximum_over_the_demo_terra
     # final-glide tables across the whole plausible range (glide ratios 15 to 60).
     from glidetask.engine import clearance_hook
     from glidetask.engine.clearance_hook import path_terrain
-    from glidetask.engine.task import optimized_path
+    from glidetask.engine.task_search import optimized_path
     from glidetask.formats.task_file import load_scenario
 
     scenario = load_scenario(demo_dir / "vardmoor-triangle-300.toml")
