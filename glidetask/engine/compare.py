@@ -34,9 +34,11 @@ from typing import Sequence
 import numpy as np
 
 from glidetask.engine import plan as planning
+from glidetask.engine.circling import achieved_climb
 from glidetask.engine.flight import Flights, course_for, flights_for, fly
 from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
 from glidetask.engine.scenario import Scenario
+from glidetask.engine.speedtofly import cruise_in_wind
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
 SWEEP_BALLAST_STEPS = 19  # ballast values from empty to full
@@ -124,8 +126,6 @@ def _band_polar(scenario: Scenario, ballast_kg):
 def strength_for_climb(scenario: Scenario, climb_ms):
     """The thermal strength in which the glider as loaded achieves ``climb_ms`` [m/s]
     (the circling model inverted on a 0.01 m/s grid; NaN above its range)."""
-    from glidetask.engine.circling import achieved_climb
-
     grid = np.arange(0.0, INVERSE_STRENGTH_MAX_MS + 1e-9, INVERSE_STRENGTH_STEP_MS)
     own = np.asarray(achieved_climb(_band_polar(scenario, scenario.glider.ballast_kg), grid,
                                     scenario.day.thermal_radius_m).climb_ms, dtype=float)
@@ -163,8 +163,6 @@ def climb_values_for_ballasts(scenario: Scenario, ballasts_kg) -> np.ndarray:
         Climb [m/s] at each profile time for each ballast, not below 0. The file's own
         ballast gets the profile's values unchanged, and a value of 0 (no lift) stays 0.
     """
-    from glidetask.engine.circling import achieved_climb
-
     day = scenario.day
     if day.climb is None:
         raise ValueError("the day has no achieved-climb profile")
@@ -266,9 +264,6 @@ def climb_table(scenario: Scenario, ballast_kg, strengths_ms):
         density of the middle of the working band (as the flight core uses it), and the
         MacCready cruise speed at that climb in still air [m/s].
     """
-    from glidetask.engine.circling import achieved_climb
-    from glidetask.engine.speedtofly import cruise_in_wind
-
     day = scenario.day
     polar = _band_polar(scenario, np.asarray(ballast_kg, dtype=float)[None, :])
     strengths = np.asarray(strengths_ms, dtype=float)[:, None]

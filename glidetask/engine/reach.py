@@ -111,7 +111,7 @@ class LandableIndex:
         """A :class:`scipy.spatial.cKDTree` over ``xyz``, built on first use (None without landables)."""
         if not self.names:
             return None
-        from scipy.spatial import cKDTree
+        from scipy.spatial import cKDTree  # lazily: scipy.spatial is slow to import, small files skip it
 
         return cKDTree(self.xyz)
 

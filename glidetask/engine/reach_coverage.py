@@ -105,7 +105,7 @@ def _pairs_within(path_xyz: np.ndarray, index: LandableIndex, chord: float):
         distance = np.sqrt(np.maximum(2.0 - 2.0 * (path_xyz @ index.xyz.T), 0.0))
         point, landable = np.nonzero(distance <= chord)
         return point.astype(np.intp), landable.astype(np.intp), distance[point, landable]
-    from scipy.spatial import cKDTree
+    from scipy.spatial import cKDTree  # lazily: scipy.spatial is slow to import, small files skip it
 
     found = cKDTree(path_xyz).sparse_distance_matrix(index.tree, chord, output_type="ndarray")
     return found["i"].astype(np.intp), found["j"].astype(np.intp), found["v"]

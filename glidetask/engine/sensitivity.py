@@ -15,9 +15,9 @@ from dataclasses import dataclass
 from glidetask.engine.compare import TASK_TERRAIN, planned_route, stack_flights
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
 from glidetask.engine.plan import Plan
-from glidetask.engine.scenario import with_what_ifs
-from glidetask.engine.scenario import Profile, Scenario, Wind
-from glidetask.units import KMH
+from glidetask.engine.scenario import Profile, Scenario, Wind, with_what_ifs
+from glidetask.errors import InputError
+from glidetask.units import KMH, format_clock
 
 WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
 MORE_WIND_MS = 10.0 * KMH  # what-if: this much more wind [m/s] (10 km/h)
@@ -95,9 +95,6 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
     """``(key, label, change, scenario)`` for the forecast and each what-if of
     :data:`WHAT_IFS`; the scenario is None where the what-if cannot be flown (a start at
     or after the end of lift)."""
-    from glidetask.errors import InputError
-    from glidetask.units import format_clock
-
     day, glider = scenario.day, scenario.glider
     if day.climb is not None:
         weaker_day = dataclasses.replace(day, climb=_weaker(day.climb, WEAKER_CLIMB_MS))

@@ -47,8 +47,9 @@ from dataclasses import dataclass
 import numpy as np
 
 from glidetask.engine import flight
-from glidetask.engine.flight import Flights, fly
-from glidetask.engine.scenario import Scenario
+from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights, usable_ballast_kg
+from glidetask.engine.flight import Flights, course_for, flights_for, fly
+from glidetask.engine.scenario import Scenario, with_what_ifs
 from glidetask.units import KMH
 
 SEARCH_DRAWS = 64  # exponential draws kept per day; climb n uses draw n mod this
@@ -252,8 +253,6 @@ class Odds:
 def default_ballasts_kg(scenario: Scenario) -> tuple[float, ...]:
     """Empty, half and full (the most the glider may carry with this pilot); just empty
     for a glider that carries no water."""
-    from glidetask.engine.compare import usable_ballast_kg
-
     full = usable_ballast_kg(scenario)
     return (0.0, 0.5 * full, full) if full > 0.0 else (0.0,)
 
@@ -302,10 +301,6 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     then the plan, to the last bit. The path is the plan's (for an area task the
     targets the plan chose at the scenario's ballast).
     """
-    from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights
-    from glidetask.engine.flight import course_for, flights_for
-    from glidetask.engine.scenario import with_what_ifs
-
     spread = DaySpread() if spread is None else spread
     choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))
     if not choices:
@@ -328,8 +323,6 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
 
 def _day_flights(scenario: Scenario, setups: list[Flights], days: Days, spread: DaySpread):
     """The core's inputs for every (choice, day), choice-major, and the search hook (or None)."""
-    from glidetask.engine.compare import stack_flights
-
     runs, count = days.climb_factor.size, len(setups)
     stacked = stack_flights(setups)
     per_choice = {name: np.repeat(np.asarray(getattr(stacked, name)), runs) for name in Flights._PER_FLIGHT}

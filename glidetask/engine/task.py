@@ -20,7 +20,7 @@ from functools import cached_property
 import numpy as np
 
 from glidetask.engine import geodesy
-from glidetask.engine.zones import AREA_KINDS, START_FINISH_KINDS, TURN_KINDS, Zone, contains, zone_axes
+from glidetask.engine.zones import AREA_KINDS, START_FINISH_KINDS, TURN_KINDS, Zone, boundary, contains, zone_axes
 
 TURNPOINT_KINDS = ("airfield", "field", "waypoint")
 TASK_KINDS = ("racing", "area")
@@ -233,8 +233,6 @@ class TaskPath:
 def zone_outlines(task: Task, points_per_circle: int = 72) -> list[list[tuple[np.ndarray, np.ndarray]]]:
     """Every task point's zone outline for drawing: one list of ``(lats, lons)`` polylines per
     task point, oriented by the task's legs (:func:`glidetask.engine.zones.boundary`)."""
-    from glidetask.engine.zones import boundary
-
     return [boundary(p.zone, p.lat, p.lon, axis, points_per_circle) for p, axis in zip(task.points, task.axes_deg)]
 
 

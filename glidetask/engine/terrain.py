@@ -25,6 +25,7 @@ from dataclasses import dataclass, replace
 from functools import lru_cache
 
 import numpy as np
+from pyproj import CRS, Transformer
 
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.units import FOOT
@@ -57,8 +58,6 @@ class TerrainError(ValueError):
 @lru_cache(maxsize=16)
 def _transformer(crs_wkt: str):
     """WGS84 (lon, lat) -> raster CRS (x, y); one per CRS, reused (pyproj >= 3.1 is thread-safe)."""
-    from pyproj import CRS, Transformer
-
     return Transformer.from_crs(CRS.from_epsg(4326), CRS.from_wkt(crs_wkt), always_xy=True)
 
 
@@ -230,7 +229,7 @@ def _renamed(terrain: Terrain, source: str) -> Terrain:
 
 
 def _read(name: str) -> Terrain:
-    import rasterio
+    import rasterio  # lazily: slow to import, and only tasks with an elevation model need it
     from rasterio.errors import NotGeoreferencedWarning, RasterioError
 
     try:
