@@ -15,6 +15,9 @@ from __future__ import annotations
 import math
 
 from glidetask import cautions, units
+from glidetask.engine.plan import CARD_MC_MS, final_glide_card
+from glidetask.formats.safety_report import landables_markdown, terrain_markdown
+from glidetask.formats.strategy_report import sensitivity_markdown
 from glidetask.units import KNOT, format_clock, format_duration
 
 CARD_MC_KT = tuple(k * KNOT for k in (0.0, 2.0, 4.0, 6.0))  # the aviation card's settings [m/s]
@@ -111,8 +114,6 @@ def _legs(plan, unit) -> list[str]:
 
 
 def _heights(plan, unit) -> list[str]:
-    from glidetask.engine.plan import CARD_MC_MS, final_glide_card
-
     settings = CARD_MC_MS if unit.name == "metric" else CARD_MC_KT
     card = final_glide_card(plan, settings)
     names = [leg.from_name for leg in plan.legs] + [plan.legs[-1].to_name]
@@ -154,8 +155,6 @@ def _day(plan, unit) -> list[str]:
 def _sensitivity(sensitivity, unit) -> list[str]:
     if sensitivity is None:
         return []
-    from glidetask.formats.strategy_report import sensitivity_markdown
-
     return ["", *sensitivity_markdown(sensitivity, unit).rstrip("\n").splitlines()]
 
 
@@ -169,8 +168,6 @@ def _without_cautions(section: str) -> list[str]:
 
 def _safety_pages(plan, unit) -> list[str]:
     """Page two: the final glide over the terrain and the landable fields; empty without either."""
-    from glidetask.formats.safety_report import landables_markdown, terrain_markdown
-
     lines: list[str] = []
     if plan.terrain_source is not None:
         if plan.terrain is not None:

@@ -127,7 +127,7 @@ def terrain_dict(plan) -> dict[str, Any] | None:
     clearance and the model covers the whole planned path (``task_covered_percent``,
     ``task_uncovered``); a plan with no final glide has ``ok`` false and a ``reason``.
     """
-    from glidetask.formats.safety_report import terrain_to_dict
+    from glidetask.formats.safety_report import terrain_to_dict  # lazily: jsonable's users need none of it
 
     if plan.terrain_source is None:
         return None
@@ -154,7 +154,7 @@ def landables_dict(plan) -> dict[str, Any] | None:
     :func:`glidetask.formats.safety_report.landables_to_dict` (``reason`` of each gap,
     ``alternates``, the leg's ``from`` and ``to``, the heights and margins used).
     """
-    from glidetask.formats.safety_report import landables_to_dict
+    from glidetask.formats.safety_report import landables_to_dict  # lazily: jsonable's users need none of it
 
     if plan.landables is None:
         return None
@@ -212,7 +212,7 @@ def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
     if landables is not None:
         out["landables"] = landables
     if sensitivity is not None:
-        from glidetask.formats.strategy_report import sensitivity_to_dict
+        from glidetask.formats.strategy_report import sensitivity_to_dict  # lazily: jsonable's users need none of it
 
         out["sensitivity"] = sensitivity_to_dict(sensitivity)
     return out

@@ -19,7 +19,6 @@ import math
 
 from glidetask import cautions
 from glidetask import units as unit_systems
-from glidetask.engine import sensitivity as what_ifs
 from glidetask.units import UnitSystem, format_clock, format_duration
 
 DASH = "-"
@@ -201,6 +200,8 @@ def sweep_markdown(sweep, units: UnitSystem | str = "metric") -> str:
 
 def _what_if_words(s, row, units: UnitSystem) -> tuple[str, str]:
     """(label, change) of a sensitivity row in the units shown."""
+    from glidetask.engine import sensitivity as what_ifs  # lazily: the UI imports this module at start-up
+
     if row.key == "weaker_climbs":
         thing = "Thermals" if s.lift_is_strength else "Climbs"
         change = "thermal strength" if s.lift_is_strength else "achieved climb"
@@ -267,7 +268,7 @@ def sensitivity_markdown(s, units: UnitSystem | str = "metric", *, heading: bool
 
 
 def reason_words(key: str) -> str:
-    from glidetask.engine.simulate import LANDOUT_REASONS
+    from glidetask.engine.simulate import LANDOUT_REASONS  # lazily: the UI imports this module at start-up
 
     return {k: words for k, words in LANDOUT_REASONS.values()}.get(key, key)
 
