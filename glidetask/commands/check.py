@@ -18,7 +18,8 @@ from pathlib import Path
 
 from glidetask import cautions, units
 from glidetask.errors import InputError, Problem
-from glidetask.units import KMH
+from glidetask.formats.zone_text import zone_text
+from glidetask.units import KMH, METRIC
 
 TURNPOINT_SUFFIXES = (".geojson", ".json", ".csv")
 TERRAIN_SUFFIXES = (".tif", ".tiff")
@@ -77,20 +78,6 @@ def check_polar(path: str) -> dict:
     }
 
 
-def _zone_text(zone) -> str:
-    km = lambda metres: f"{metres / 1000.0:g} km"  # noqa: E731
-    if zone.kind == "line":
-        return f"line {km(zone.length_m)}"
-    if zone.kind == "sector":
-        return f"sector {km(zone.radius_m)} {zone.angle_deg:g} deg"
-    if zone.kind == "keyhole":
-        return f"keyhole {km(zone.radius_m)} {zone.angle_deg:g} deg + {km(zone.cylinder_radius_m)}"
-    if zone.kind == "area_sector":
-        inner = f"{km(zone.inner_radius_m)}-" if zone.inner_radius_m > 0 else ""
-        return f"area sector {inner}{km(zone.radius_m)} {zone.radial_from_deg:g}-{zone.radial_to_deg:g} deg"
-    return f"{zone.kind.replace('_', ' ')} {km(zone.radius_m)}"
-
-
 def check_task(path: str) -> dict:
     """Summary of a task file: the task, its distances, glider and day."""
     from glidetask.engine.task import nominal_distance_m
@@ -103,7 +90,7 @@ def check_task(path: str) -> dict:
         "kind": "task",
         "name": task.name,
         "task_kind": task.kind,
-        "points": [{"at": p.name, "zone": _zone_text(p.zone)} for p in task.points],
+        "points": [{"at": p.name, "zone": zone_text(p.zone, METRIC)} for p in task.points],
         "nominal_distance_km": nominal_distance_m(task) / 1000.0,
         "optimized_distance_km": optimized_path(task).total_m / 1000.0,
         "glider": scenario.glider.spec.label,

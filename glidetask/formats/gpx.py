@@ -19,31 +19,12 @@ import math
 import xml.etree.ElementTree as ET
 
 from glidetask import cautions
-from glidetask.units import format_clock
+from glidetask.formats.zone_text import zone_text
+from glidetask.units import METRIC, format_clock
 
 GPX_NS = "http://www.topografix.com/GPX/1/1"
 XSI_NS = "http://www.w3.org/2001/XMLSchema-instance"
 SCHEMA_LOCATION = f"{GPX_NS} {GPX_NS}/gpx.xsd"
-
-
-def _zone_text(zone) -> str:
-    km = 1000.0
-    kind = zone.kind
-    if kind == "line":
-        return f"line {zone.length_m / km:g} km"
-    if kind == "cylinder":
-        return f"cylinder {zone.radius_m / km:g} km"
-    if kind == "sector":
-        return f"sector {zone.radius_m / km:g} km, {zone.angle_deg:g} deg"
-    if kind == "keyhole":
-        return (f"keyhole: sector {zone.radius_m / km:g} km {zone.angle_deg:g} deg, "
-                f"cylinder {zone.cylinder_radius_m / km:g} km")
-    if kind == "area_cylinder":
-        return f"area cylinder {zone.radius_m / km:g} km"
-    if kind == "area_sector":
-        return (f"area sector {zone.inner_radius_m / km:g}-{zone.radius_m / km:g} km, radials "
-                f"{zone.radial_from_deg:g}-{zone.radial_to_deg:g} deg")
-    return kind
 
 
 def _route_points(plan):
@@ -54,7 +35,7 @@ def _route_points(plan):
     for i, point in enumerate(task.points):
         role = "start" if i == 0 else "finish" if i == last else f"turn {i}"
         tp = point.turnpoint
-        desc = f"{role}: {_zone_text(point.zone)}"
+        desc = f"{role}: {zone_text(point.zone, METRIC)}"
         lat, lon, name = tp.lat, tp.lon, tp.name
         if point.zone.is_area:
             lat, lon = float(plan.path.lats[i]), float(plan.path.lons[i])

@@ -73,24 +73,3 @@ def number(value, decimals: int = 1) -> str:
         return ""
     text = f"{float(value):.{decimals}f}"
     return text.rstrip("0").rstrip(".") if "." in text else text
-
-
-def zone_text(zone, units: UnitSystem) -> str:
-    """A zone in words: ``line 10.0 km``, ``sector 10.0 km 90°``, ``area 20.0 km 045-135°``."""
-    kind = zone.kind
-    if kind == "line":
-        return f"line {units.fmt_distance(zone.length_m)}"
-    if kind == "cylinder":
-        return f"cylinder {units.fmt_distance(zone.radius_m)}"
-    if kind == "sector":
-        return f"sector {units.fmt_distance(zone.radius_m)} {zone.angle_deg:g}°"
-    if kind == "keyhole":
-        return (f"keyhole {units.fmt_distance(zone.radius_m)} {zone.angle_deg:g}° "
-                f"+ {units.fmt_distance(zone.cylinder_radius_m)}")
-    if kind == "area_cylinder":
-        return f"area circle {units.fmt_distance(zone.radius_m)}"
-    if kind == "area_sector":
-        inner = f"{units.distance(zone.inner_radius_m):g}-" if zone.inner_radius_m else ""
-        return (f"area sector {inner}{units.fmt_distance(zone.radius_m)} "
-                f"{degrees(zone.radial_from_deg)}-{degrees(zone.radial_to_deg)}°")
-    return kind

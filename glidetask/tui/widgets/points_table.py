@@ -7,6 +7,7 @@ from textual.binding import Binding
 from textual.message import Message
 from textual.widgets import DataTable
 
+from glidetask.formats.zone_text import zone_text
 from glidetask.tui import display
 from glidetask.units import UnitSystem
 
@@ -51,7 +52,7 @@ class PointsTable(DataTable):
         for index, point in enumerate(task.points):
             turnpoint = point.turnpoint
             name = turnpoint.name + (f" ({turnpoint.code})" if turnpoint.code and not compact else "")
-            cells = [role(index, count), name, display.zone_text(point.zone, units)]
+            cells = [role(index, count), name, zone_text(point.zone, units)]
             if not compact:
                 cells.append(Text(display.height(units, turnpoint.elevation_m), justify="right"))
             self.add_row(*cells, key=f"point-{index}")
