@@ -24,8 +24,8 @@ def test_allen_radius_by_hand(ratio, expected_m):
 
 
 def test_allen_radius_scales_with_the_layer_and_grows_with_height():
-    # Source: the formula's form (Allen 2006, from memory): r2/zi depends on z/zi only and rises
-    # all the way to the top of the layer (the figure of r2 against height in the paper).
+    # Source: the formula's form (Allen 2006, from memory): r2/zi depends on z/zi only, and its
+    # derivative (1/3)(z/zi)^(-2/3)(1 - z/zi) is positive up to the top of the layer.
     ratios = np.linspace(0.05, 1.0, 40)
     one = allen_updraft_radius(ratios * 1500.0, 1500.0)
     two = allen_updraft_radius(ratios * 3000.0, 3000.0)
