@@ -18,6 +18,11 @@ import numpy as np
 
 from glidetask.engine.arrays import scalar_or_array
 
+# A polar file without a stall speed: the lowest valid speed is taken as 1.1 times the
+# wings-level stall speed (shared/CONTRACT.md 2.4; a polar is measured down to about
+# 1.1 Vs, common practice).
+MIN_SPEED_OVER_STALL = 1.1
+
 
 @dataclass(frozen=True)
 class PolarSpec:
@@ -43,6 +48,9 @@ class PolarSpec:
         Lowest indicated airspeed at which the polar is valid, wings level [m/s].
     points : tuple of (float, float)
         ``(IAS [m/s], sink [m/s])`` pairs at the reference mass, sea-level density.
+    stall_speed_ias_ms : float or None, default None
+        Wings-level stall speed, indicated, at the reference mass [m/s]; None where the
+        file does not give it (see :attr:`stall_ias_ms`).
     """
 
     label: str
@@ -54,6 +62,22 @@ class PolarSpec:
     vne_ias_ms: float
     min_speed_ias_ms: float
     points: tuple[tuple[float, float], ...]
+    stall_speed_ias_ms: float | None = None
+
+    @property
+    def stall_speed_defaulted(self) -> bool:
+        """True where the file gave no stall speed and :attr:`stall_ias_ms` is the default."""
+        return self.stall_speed_ias_ms is None
+
+    @property
+    def stall_ias_ms(self) -> float:
+        """The wings-level stall speed used, IAS at the reference mass [m/s].
+
+        The given one, else ``min_speed / 1.1`` (:data:`MIN_SPEED_OVER_STALL`).
+        """
+        if self.stall_speed_ias_ms is None:
+            return self.min_speed_ias_ms / MIN_SPEED_OVER_STALL
+        return float(self.stall_speed_ias_ms)
 
     def fit(self) -> tuple[float, float, float, float]:
         """``(a, b, c, rms_ms)`` of the least-squares quadratic through ``points``."""
@@ -123,6 +147,9 @@ class Polar:
         Wing area [m^2].
     fit_rms_ms : float or ndarray
         RMS residual of the fit, scaled like the sink rates [m/s].
+    stall_speed_ms : float or ndarray, default NaN
+        Wings-level stall speed as TAS at this mass and density [m/s]; NaN for not
+        known, read as ``min_speed_ms / 1.1`` (see :attr:`wings_level_stall_ms`).
     """
 
     a: float
@@ -133,6 +160,15 @@ class Polar:
     mass_kg: float = float("nan")
     wing_area_m2: float = float("nan")
     fit_rms_ms: float = 0.0
+    stall_speed_ms: float = float("nan")
+
+    @property
+    def wings_level_stall_ms(self):
+        """Wings-level stall speed [m/s TAS]: ``stall_speed_ms``, or ``min_speed_ms / 1.1``
+        where that is NaN (a polar file without a stall speed, shared/CONTRACT.md 2.4)."""
+        stall = np.asarray(self.stall_speed_ms, dtype=float)
+        return scalar_or_array(np.where(np.isnan(stall), np.asarray(self.min_speed_ms) / MIN_SPEED_OVER_STALL,
+                                         stall))
 
     def sink(self, speed_ms):
         """Sink rate at a true airspeed [m/s] (the quadratic; no range check)."""
@@ -187,7 +223,7 @@ class Polar:
     def shape(self) -> tuple[int, ...]:
         """The broadcast shape of the fields (``()`` for a single polar)."""
         return np.broadcast_shapes(*(np.shape(getattr(self, n)) for n in
-                                     ("a", "b", "c", "min_speed_ms", "vne_ms")))
+                                     ("a", "b", "c", "min_speed_ms", "vne_ms", "stall_speed_ms")))
 
 
 def scaled_polar(spec: PolarSpec, mass_kg, bugs_percent=0.0, sigma=1.0) -> Polar:
@@ -220,7 +256,9 @@ def scaled_polar(spec: PolarSpec, mass_kg, bugs_percent=0.0, sigma=1.0) -> Polar
     and so do sink rates, leaving the glide ratio unchanged [1]_ [2]_. With ``v' = k v``,
     ``s' = k s``: ``a' = a/k``, ``b' = b``, ``c' = c k``. Bugs multiply every sink rate
     by ``(1 + p/100)`` (a simple model: real contamination changes the polar's shape).
-    ``min_speed`` scales like the polar's speeds; ``vne`` is an indicated limit, so its
+    ``min_speed`` and the stall speed scale like the polar's speeds (the stall happens
+    at a fixed lift coefficient, so ``Vs`` grows as ``sqrt(m / (rho S))`` [1]_); ``vne``
+    is an indicated limit, so its
     TAS is ``vne_ias / sqrt(sigma)`` whatever the mass (shared/CONTRACT.md section 3).
 
     References
@@ -248,5 +286,6 @@ def scaled_polar(spec: PolarSpec, mass_kg, bugs_percent=0.0, sigma=1.0) -> Polar
         mass_kg=scalar_or_array(mass * np.ones_like(k * dirt)),
         wing_area_m2=float(spec.wing_area_m2),
         fit_rms_ms=scalar_or_array(rms * k * dirt),
+        stall_speed_ms=scalar_or_array(spec.stall_ias_ms * k * np.ones_like(dirt)),
     )
 

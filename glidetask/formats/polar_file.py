@@ -25,9 +25,13 @@ from glidetask.formats.toml_reader import TomlReader, is_number, read_toml
 
 KMH = 1000.0 / 3600.0  # m/s per km/h
 DEFAULT_PILOT_ALLOWANCE_KG = 90.0  # empty mass defaults to reference mass minus this
+# A stall speed this many times below min_speed_kmh puts the circling speeds far below the
+# polar's points (or is in the wrong unit): a polar is measured down to about 1.1-1.3 times
+# the stall speed (common practice).
+STALL_PLAUSIBLE_RATIO = 1.5
 
 GLIDER_KEYS = ("label", "wing_area_m2", "reference_mass_kg", "empty_mass_kg", "max_ballast_kg",
-               "max_mass_kg", "vne_kmh", "min_speed_kmh")
+               "max_mass_kg", "vne_kmh", "min_speed_kmh", "stall_speed_kmh")
 POLAR_KEYS = ("points",)
 
 
@@ -71,7 +75,8 @@ def _points(checker: TomlReader, polar: dict, min_kmh: float | None, vne_kmh: fl
 
 def _fit_problems(checker: TomlReader, points, min_kmh: float | None, vne_kmh: float | None) -> None:
     """An impossible fitted polar: curving the wrong way, or no sink somewhere in range
-    (the valid speed range, or the points' own range if the limits are unusable)."""
+    (the valid speed range down to the stall, where the circling model flies, or the
+    points' own range if the limits are unusable)."""
     a, b, c, _ = fit_quadratic([s * KMH for s, _ in points], [w for _, w in points])
     where = "[polar] points"
     if a <= 0.0:
@@ -123,6 +128,7 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
         values["empty_mass_kg"] = checker.number(glider, "[glider]", "empty_mass_kg", positive=True)
         values["max_ballast_kg"] = checker.number(glider, "[glider]", "max_ballast_kg", low=0.0)
         values["max_mass_kg"] = checker.number(glider, "[glider]", "max_mass_kg", positive=True)
+        values["stall_speed_kmh"] = checker.number(glider, "[glider]", "stall_speed_kmh", positive=True)
         _limit_problems(checker, glider, values)
     min_kmh, vne_kmh = values.get("min_speed_kmh"), values.get("vne_kmh")
     if min_kmh is not None and vne_kmh is not None and min_kmh >= vne_kmh:
@@ -132,7 +138,9 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
         checker.unknown(polar, "[polar]", POLAR_KEYS)
         points = _points(checker, polar, min_kmh, vne_kmh)
         if points is not None:
-            _fit_problems(checker, points, min_kmh, vne_kmh)
+            stall_kmh = values.get("stall_speed_kmh")
+            low_kmh = min_kmh if stall_kmh is None or min_kmh is None else min(stall_kmh, min_kmh)
+            _fit_problems(checker, points, low_kmh, vne_kmh)
     if checker.problems or glider is None or points is None:
         return None, checker.problems.problems
     return PolarSpec(
@@ -145,6 +153,7 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
         vne_ias_ms=vne_kmh * KMH,
         min_speed_ias_ms=min_kmh * KMH,
         points=tuple((speed * KMH, sink) for speed, sink in points),
+        stall_speed_ias_ms=None if values["stall_speed_kmh"] is None else values["stall_speed_kmh"] * KMH,
     ), []
 
 
@@ -166,6 +175,16 @@ def _limit_problems(checker: TomlReader, glider: dict, values: dict[str, Any]) -
     low, high = values["min_speed_kmh"], values["vne_kmh"]
     if low is not None and high is not None and low >= high:
         checker.add("[glider] min_speed_kmh", f"must be below vne_kmh ({high:g}), got {low:g}")
+    stall = values["stall_speed_kmh"]
+    if stall is not None and low is not None:
+        if stall >= low:
+            checker.add("[glider] stall_speed_kmh", f"must be below min_speed_kmh ({low:g}): the polar "
+                                                    f"is flown above the stall, got {stall:g}")
+        elif stall * STALL_PLAUSIBLE_RATIO < low:
+            checker.add("[glider] stall_speed_kmh", f"{stall:g} is below min_speed_kmh / {STALL_PLAUSIBLE_RATIO:g} "
+                                                    f"({low / STALL_PLAUSIBLE_RATIO:.0f}): the polar would start "
+                                                    "far above the stall; give the wings-level stall speed, "
+                                                    "IAS in km/h")
 
 
 def read_polar_spec(path: str | Path) -> tuple[PolarSpec | None, list[Problem]]:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 from hypothesis import given, settings
@@ -144,3 +146,30 @@ def test_polar_for_a_setup_uses_its_mass_and_the_density_at_altitude():
     assert polar.min_speed_ms == pytest.approx(SPEC.min_speed_ias_ms * k, rel=1e-4)
     reference = scaled_polar(SPEC, 445.0, 5.0, 0.742248445103431)
     assert polar.best_ld == pytest.approx(reference.best_ld, rel=1e-12)
+
+
+def test_stall_speed_scales_with_mass_and_density_at_a_fixed_lift_coefficient():
+    # Source: the lift equation m g = 1/2 rho V^2 S CL (any flight mechanics text, e.g.
+    # Anderson, Introduction to Flight; from memory): the stall is at CL_max, so the CL_max
+    # found at the reference mass and sea level (ISO 2533: rho0 = 1.225 kg/m^3) gives the
+    # stall at another mass and density.
+    spec = replace(SPEC, stall_speed_ias_ms=65 * KMH)
+    rho0, g, sigma = 1.225, 9.80665, 0.8
+    cl_max = 2 * spec.reference_mass_kg * g / (rho0 * spec.stall_ias_ms**2 * spec.wing_area_m2)
+    expected = np.sqrt(2 * 450.0 * g / (sigma * rho0 * spec.wing_area_m2 * cl_max))
+    polar = scaled_polar(spec, 450.0, sigma=sigma)
+    assert polar.stall_speed_ms == pytest.approx(expected, rel=1e-12)
+    assert polar.wings_level_stall_ms == pytest.approx(expected, rel=1e-12)
+    assert float(expected) * 3.6 == pytest.approx(82.40, abs=0.01)  # 65 sqrt(450/350)/sqrt(0.8), by hand
+
+
+def test_stall_speed_defaults_to_min_speed_over_1_1_and_says_so():
+    # Source: shared/CONTRACT.md 2.4.
+    assert SPEC.stall_speed_defaulted and SPEC.stall_ias_ms == pytest.approx(70 * KMH / 1.1, rel=1e-12)
+    given = replace(SPEC, stall_speed_ias_ms=60 * KMH)
+    assert not given.stall_speed_defaulted and given.stall_ias_ms == 60 * KMH
+    polar = scaled_polar(SPEC, 400.0)
+    assert polar.stall_speed_ms == pytest.approx(polar.min_speed_ms / 1.1, rel=1e-12)
+    # A polar built without a stall speed reads it from its lowest valid speed.
+    bare = replace(polar, stall_speed_ms=float("nan"))
+    assert bare.wings_level_stall_ms == pytest.approx(polar.min_speed_ms / 1.1, rel=1e-12)

@@ -46,6 +46,36 @@ def test_optional_keys_take_the_contract_defaults(tmp_path):
     assert spec.label == "my-glider"
 
 
+def test_stall_speed_is_read_or_defaulted_and_flagged(tmp_path):
+    # Source: shared/CONTRACT.md 2.4: optional IAS at the reference mass, default min_speed_kmh / 1.1.
+    given = load_polar_spec(_write(tmp_path, GOOD.replace("min_speed_kmh = 75.0", "min_speed_kmh = 75.0\nstall_speed_kmh = 66.0")))
+    assert given.stall_ias_ms == pytest.approx(66.0 / 3.6) and not given.stall_speed_defaulted
+    defaulted = load_polar_spec(_write(tmp_path, GOOD))
+    assert defaulted.stall_ias_ms == pytest.approx(75.0 / 1.1 / 3.6) and defaulted.stall_speed_defaulted
+
+
+@pytest.mark.parametrize("stall, fragment", [
+    ("0.0", "greater than 0"),
+    ("75.0", "must be below min_speed_kmh (75)"),
+    ("80.0", "must be below min_speed_kmh (75)"),
+    ("40.0", "below min_speed_kmh / 1.5 (50)"),  # e.g. typed in m/s-like or knots-confused figures
+    ('"slow"', "must be a number"),
+])
+def test_bad_stall_speeds(tmp_path, stall, fragment):
+    found = _problems(tmp_path, GOOD.replace("min_speed_kmh = 75.0", f"min_speed_kmh = 75.0\nstall_speed_kmh = {stall}"))
+    assert any(w == "[glider] stall_speed_kmh" and fragment in what for w, what in found), found
+
+
+def test_fitted_polar_must_sink_down_to_the_stall(tmp_path):
+    # A fit that is positive over min_speed..vne but rises out of the ground below the first
+    # point: the circling model would fly there, so the reader checks the range from the stall.
+    # The points lie on sink = 0.000135 (v - 55)(v - 70), v in km/h: negative between 55 and 70.
+    text = GOOD.replace("[[80.0, 0.62], [120.0, 0.80], [180.0, 1.85]]", "[[80.0, 0.03375], [120.0, 0.43875], [180.0, 1.85625]]")
+    assert load_polar_spec(_write(tmp_path, text)).points[0][1] == 0.03375
+    found = _problems(tmp_path, text.replace("min_speed_kmh = 75.0", "min_speed_kmh = 75.0\nstall_speed_kmh = 60.0"))
+    assert any(w == "[polar] points" and "minimum sink" in what for w, what in found), found
+
+
 def test_every_problem_is_collected_at_once(tmp_path):
     text = GOOD.replace("wing_area_m2 = 10.5", 'wing_area_m2 = "big"').replace(
         "vne_kmh = 270.0\n", "").replace("max_ballast_kg = 170.0", "max_ballast_kg = -5.0")
