@@ -91,6 +91,8 @@ def parse_airspace(text: str, file: str = "<airspace>") -> Airspace:
         raise InputError.one(file, f"line {error.lineno}", f"not valid JSON: {error.msg}") from None
     except RecursionError:  # pragma: no cover - the depth guard above comes first
         raise InputError.one(file, "top level", "JSON nested too deeply") from None
+    except ValueError:  # an integer of more digits than Python converts
+        raise InputError.one(file, "top level", "not valid JSON: a number too long to read") from None
     return volumes_from_document(document, file)
 
 
@@ -121,8 +123,9 @@ def _volume(feature, number: int, problems: ProblemCollector) -> Volume | None:
     where = f"feature {number} ({label})" if label else f"feature {number}"
     count = len(problems.problems)
     if not isinstance(properties, dict):
-        problems.add(where, f"properties must be an object, got {_shown(properties)}")
-        properties = {}
+        problems.add(where, f"properties must be an object with name, floor and ceiling, got {_shown(properties)}")
+        _geometry(feature.get("geometry"), where, problems)
+        return None
     if label is None:
         problems.add(where, "name is required" if raw_name is None or isinstance(raw_name, str)
                      else f"name must be text, got {_shown(raw_name)}")
@@ -140,6 +143,16 @@ def _volume(feature, number: int, problems: ProblemCollector) -> Volume | None:
     if len(problems.problems) > count or polygons is None:
         return None
     return Volume(label, airspace_class, floor, ceiling, polygons, note.strip())
+
+
+def _number(value) -> bool:
+    """A JSON number that converts to a finite float (a bool is not a number)."""
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        return False
+    try:
+        return math.isfinite(float(value))
+    except OverflowError:  # an integer beyond any float
+        return False
 
 
 def _shown(value) -> str:
@@ -165,7 +178,7 @@ def _limit(value, key: str, where: str, problems: ProblemCollector) -> Limit | N
         return None
     ok = True
     number, unit, ref = value.get("value"), value.get("unit"), value.get("ref")
-    if isinstance(number, bool) or not isinstance(number, (int, float)) or not math.isfinite(number):
+    if not _number(number):
         problems.add(where, f"{key} value must be a finite number, got {_shown(number)}")
         ok = False
     if unit not in UNITS:
@@ -264,11 +277,11 @@ def _ring(ring, name: str, where: str, problems: ProblemCollector):
     positions = []
     for k, position in enumerate(ring, start=1):
         if (not isinstance(position, list) or len(position) < 2
-                or any(isinstance(c, bool) or not isinstance(c, (int, float)) for c in position)):
-            problems.add(where, f"{name}: position {k} must be [lon, lat] numbers, got {_shown(position)}")
+                or not all(_number(c) for c in position)):
+            problems.add(where, f"{name}: position {k} must be [lon, lat] finite numbers, got {_shown(position)}")
             return None
         lon, lat = float(position[0]), float(position[1])
-        if not (math.isfinite(lon) and math.isfinite(lat)) or not (-180.0 <= lon <= 180.0 and -90.0 <= lat <= 90.0):
+        if not (-180.0 <= lon <= 180.0 and -90.0 <= lat <= 90.0):
             problems.add(where, f"{name}: position {k} [{position[0]}, {position[1]}] is outside "
                                 "[-180, 180] longitude, [-90, 90] latitude")
             return None
