@@ -560,6 +560,7 @@ class Conflict:
     planned_max_m: float
     no_room: bool
     volume: int
+    from_ground: bool = False
 
 
 @dataclass(frozen=True)
@@ -660,7 +661,8 @@ def _runs(volume: Volume, index: int, d, h, room, clash, floor, ceiling, leg_sta
         for leg, a, b in pieces:
             out.append(Conflict(volume.name, volume.airspace_class, leg, float(a), float(b),
                                 float(np.nanmin(floor[run])), float(np.nanmax(ceiling[run])),
-                                float(heights.min()), float(heights.max()), no_room, index))
+                                float(heights.min()), float(heights.max()), no_room, index,
+                                volume.floor.is_ground))
     return out
 
 
