@@ -80,7 +80,7 @@ class Limit:
 
     value: float
     unit: str
-    ref: str | None
+    ref: str | None = None
 
     @property
     def is_ground(self) -> bool:
@@ -453,7 +453,8 @@ class Limits:
 def limits_along(airspace: Airspace, lats, lons, ground: GroundFunction | None = None,
                  isa_deviation_c: float = 0.0, ground_is_estimate: bool = False,
                  only: np.ndarray | None = None) -> Limits:
-    """Every volume's floor and ceiling at each sample [m MSL] (NaN where AGL and no ground).
+    """Every volume's floor and ceiling at each sample [m MSL] (NaN where AGL and no ground,
+    except a floor at the ground itself: -inf there, below any flight).
 
     ``only`` (volume indices) limits the work to those volumes; the others get NaN.
     ``ground_is_estimate`` marks ``ground`` as the nearest turnpoint's elevation.
@@ -475,6 +476,8 @@ def limits_along(airspace: Airspace, lats, lons, ground: GroundFunction | None =
                                isa_deviation_c)
         ceiling[i] = limit_msl_m(volume.ceiling, ground_m if ground_m is not None else np.full(lats.shape, np.nan),
                                  isa_deviation_c)
+        if volume.floor.is_ground:  # from the ground: below any flight, even where the ground is unknown
+            floor[i] = np.where(np.isnan(floor[i]), -np.inf, floor[i])
     return Limits(floor, ceiling, bool(used_agl and ground is not None and ground_is_estimate))
 
 
