@@ -86,7 +86,7 @@ def parse_airspace(text: str, file: str = "<airspace>") -> Airspace:
     if _too_deep(text):
         raise InputError.one(file, "top level", f"JSON nested deeper than {MAX_DEPTH} levels: not an airspace file")
     try:
-        document = json.loads(text, parse_constant=lambda name: math.nan)
+        document = json.loads(text)
     except json.JSONDecodeError as error:
         raise InputError.one(file, f"line {error.lineno}", f"not valid JSON: {error.msg}") from None
     except RecursionError:  # pragma: no cover - the depth guard above comes first
