@@ -43,6 +43,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from functools import cached_property
 from typing import Callable, Sequence
 
 import numpy as np
@@ -201,19 +202,19 @@ class Volume:
     ceiling: Limit
     polygons: tuple
     note: str = ""
-    bbox: tuple = field(init=False, repr=False, compare=False)
-    _edges: tuple = field(init=False, repr=False, compare=False)
 
-    def __post_init__(self):
-        rings = [ring for polygon in self.polygons for ring in polygon]
-        every = np.concatenate(rings) if rings else np.zeros((0, 2))
-        bbox = (float(every[:, 0].min()), float(every[:, 1].min()), float(every[:, 0].max()),
-                float(every[:, 1].max())) if len(every) else (np.nan,) * 4
-        object.__setattr__(self, "bbox", bbox)
-        # Per polygon: edge start and end arrays [lon0, lat0, lon1, lat1] of all its rings.
-        edges = tuple(np.concatenate([np.hstack([ring[:-1], ring[1:]]) for ring in polygon])
-                      for polygon in self.polygons)
-        object.__setattr__(self, "_edges", edges)
+    @cached_property
+    def bbox(self) -> tuple:
+        """[lon_min, lat_min, lon_max, lat_max] of the outlines [deg] (holes lie inside them)."""
+        outlines = np.concatenate([polygon[0] for polygon in self.polygons])
+        low, high = outlines.min(axis=0), outlines.max(axis=0)
+        return float(low[0]), float(low[1]), float(high[0]), float(high[1])
+
+    @cached_property
+    def _edges(self) -> tuple:
+        """Per polygon: its rings' edges as rows [lon0, lat0, lon1, lat1] (made when first needed)."""
+        return tuple(np.concatenate([np.hstack([ring[:-1], ring[1:]]) for ring in polygon])
+                     for polygon in self.polygons)
 
     def contains(self, lats, lons) -> np.ndarray:
         """Whether each point is inside the outline (on an edge counts as either) [bool array]."""

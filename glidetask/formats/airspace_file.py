@@ -16,21 +16,21 @@ from __future__ import annotations
 import json
 import math
 import os
+from itertools import chain
 from pathlib import Path
 
 import numpy as np
 
-from glidetask.engine.airspace import CLASSES, REFS, UNITS, Airspace, Limit, Volume
+from glidetask.engine.airspace import CLASSES, FOOT_M, REFS, UNITS, Airspace, Limit, Volume
 from glidetask.errors import InputError, ProblemCollector
 
-#: The deepest JSON nesting a valid file needs is 7 (collection, features, feature,
-#: geometry, MultiPolygon parts, rings, positions); deeper text is refused before parsing.
-MAX_DEPTH = 12
 #: Limits beyond these are not airspace [m, ft, FL]: a mistyped number, not a volume.
 LIMIT_RANGE = {"m": (-500.0, 30000.0), "ft": (-1600.0, 100000.0), "FL": (0.0, 1000.0)}
 #: Edges compared at once in the self-crossing check (bounds its memory for long rings).
 _BLOCK = 256
 _CLASS_NAMES = {c.lower(): c for c in CLASSES}
+_NUMBER_TYPES = {int, float}
+_METRES_PER = {"m": 1.0, "ft": FOOT_M, "FL": 100.0 * FOOT_M}  # a flight level as pressure altitude
 
 
 def read_airspace(path: str | os.PathLike) -> Airspace:
@@ -47,31 +47,6 @@ def read_airspace(path: str | os.PathLike) -> Airspace:
     return parse_airspace(text, name)
 
 
-def _too_deep(text: str) -> bool:
-    """True if brackets nest deeper than :data:`MAX_DEPTH` (outside strings)."""
-    depth = deepest = 0
-    in_string = escaped = False
-    for char in text:
-        if in_string:
-            if escaped:
-                escaped = False
-            elif char == "\\":
-                escaped = True
-            elif char == '"':
-                in_string = False
-        elif char == '"':
-            in_string = True
-        elif char in "[{":
-            depth += 1
-            if depth > deepest:
-                deepest = depth
-                if deepest > MAX_DEPTH:
-                    return True
-        elif char in "]}":
-            depth -= 1
-    return False
-
-
 def is_airspace_document(document) -> bool:
     """True for a FeatureCollection whose features include a (Multi)Polygon and no Point."""
     if not isinstance(document, dict) or not isinstance(document.get("features"), list):
@@ -83,14 +58,12 @@ def is_airspace_document(document) -> bool:
 
 def parse_airspace(text: str, file: str = "<airspace>") -> Airspace:
     """Volumes from airspace GeoJSON text (see the module docstring)."""
-    if _too_deep(text):
-        raise InputError.one(file, "top level", f"JSON nested deeper than {MAX_DEPTH} levels: not an airspace file")
     try:
         document = json.loads(text)
     except json.JSONDecodeError as error:
         raise InputError.one(file, f"line {error.lineno}", f"not valid JSON: {error.msg}") from None
-    except RecursionError:  # pragma: no cover - the depth guard above comes first
-        raise InputError.one(file, "top level", "JSON nested too deeply") from None
+    except RecursionError:  # the parser's own guard against nesting deeper than Python's stack
+        raise InputError.one(file, "top level", "JSON nested too deeply: not an airspace file") from None
     except ValueError:  # an integer of more digits than Python converts
         raise InputError.one(file, "top level", "not valid JSON: a number too long to read") from None
     return volumes_from_document(document, file)
@@ -105,15 +78,16 @@ def volumes_from_document(document, file: str) -> Airspace:
     if not isinstance(features, list):
         raise InputError.one(file, "features", "expected a list of features")
     volumes = []
+    checked = _checked_rings(features)
     for number, feature in enumerate(features, start=1):
-        volume = _volume(feature, number, problems)
+        volume = _volume(feature, number, problems, checked)
         if volume is not None:
             volumes.append(volume)
     problems.raise_if_any()
     return Airspace(tuple(volumes), source=os.path.basename(file))
 
 
-def _volume(feature, number: int, problems: ProblemCollector) -> Volume | None:
+def _volume(feature, number: int, problems: ProblemCollector, checked: dict) -> Volume | None:
     if not isinstance(feature, dict) or feature.get("type") != "Feature":
         problems.add(f"feature {number}", "expected a GeoJSON Feature object")
         return None
@@ -124,7 +98,7 @@ def _volume(feature, number: int, problems: ProblemCollector) -> Volume | None:
     count = len(problems.problems)
     if not isinstance(properties, dict):
         problems.add(where, f"properties must be an object with name, floor and ceiling, got {_shown(properties)}")
-        _geometry(feature.get("geometry"), where, problems)
+        _geometry(feature.get("geometry"), where, problems, checked)
         return None
     if label is None:
         problems.add(where, "name is required" if raw_name is None or isinstance(raw_name, str)
@@ -139,7 +113,7 @@ def _volume(feature, number: int, problems: ProblemCollector) -> Volume | None:
         problems.add(where, f"note must be text, got {_shown(note)}")
     if floor is not None and ceiling is not None:
         _order(floor, ceiling, where, problems)
-    polygons = _geometry(feature.get("geometry"), where, problems)
+    polygons = _geometry(feature.get("geometry"), where, problems, checked)
     if len(problems.problems) > count or polygons is None:
         return None
     return Volume(label, airspace_class, floor, ceiling, polygons, note.strip())
@@ -204,18 +178,12 @@ def _limit(value, key: str, where: str, problems: ProblemCollector) -> Limit | N
 
 
 def _order(floor: Limit, ceiling: Limit, where: str, problems: ProblemCollector) -> None:
-    """A floor above its ceiling, where the two can be compared without knowing the day."""
-    from glidetask.engine.airspace import limit_msl_m
-
-    comparable = floor.unit == "FL" and ceiling.unit == "FL" or (
-        floor.unit != "FL" and ceiling.unit != "FL" and floor.ref == ceiling.ref)
-    if comparable:
-        low, high = limit_msl_m(floor, 0.0), limit_msl_m(ceiling, 0.0)
-    elif floor.ref == "AGL" or ceiling.ref == "AGL":
-        return  # depends on the ground: checked along the path
-    else:  # FL against MSL: compare on a standard day (a warm day moves an FL by well under 10 %)
-        low, high = limit_msl_m(floor, 0.0), limit_msl_m(ceiling, 0.0)
-    if low >= high:
+    """A floor above its ceiling, where the two can be compared without knowing the day:
+    both on the same reference, or a flight level against MSL on a standard day (pressure
+    altitude, within 0.1 % of the height there)."""
+    if (floor.ref == "AGL") != (ceiling.ref == "AGL"):
+        return  # one follows the ground: it depends on the place
+    if floor.value * _METRES_PER[floor.unit] >= ceiling.value * _METRES_PER[ceiling.unit]:
         problems.add(where, f"floor ({_limit_text(floor)}) must be below the ceiling ({_limit_text(ceiling)})")
 
 
@@ -223,7 +191,7 @@ def _limit_text(limit: Limit) -> str:
     return f"FL{limit.value:g}" if limit.unit == "FL" else f"{limit.value:g} {limit.unit} {limit.ref}"
 
 
-def _geometry(geometry, where: str, problems: ProblemCollector):
+def _geometry(geometry, where: str, problems: ProblemCollector, checked: dict):
     if not isinstance(geometry, dict):
         problems.add(where, "geometry must be a Polygon or MultiPolygon object")
         return None
@@ -241,20 +209,22 @@ def _geometry(geometry, where: str, problems: ProblemCollector):
     polygons = []
     for p, part in enumerate(parts, start=1):
         label = f"polygon {p}, " if kind == "MultiPolygon" else ""
-        polygon = _polygon(part, label, where, problems)
+        polygon = _polygon(part, label, where, problems, checked)
         if polygon is not None:
             polygons.append(polygon)
     return tuple(polygons) if len(polygons) == len(parts) else None
 
 
-def _polygon(rings, label: str, where: str, problems: ProblemCollector):
+def _polygon(rings, label: str, where: str, problems: ProblemCollector, checked: dict):
     if not isinstance(rings, list) or not rings:
         problems.add(where, f"{label}coordinates must be a non-empty list of rings")
         return None
     out = []
     for r, ring in enumerate(rings):
         name = f"{label}{'outline' if r == 0 else f'hole {r}'}"
-        array = _ring(ring, name, where, problems)
+        array = checked.get(id(ring))
+        if array is None:
+            array = _ring(ring, name, where, problems)
         if array is not None:
             out.append(array)
     if len(out) != len(rings):
@@ -270,10 +240,92 @@ def _polygon(rings, label: str, where: str, problems: ProblemCollector):
     return tuple(out)
 
 
+def _checked_rings(features) -> dict[int, np.ndarray]:
+    """Rings that pass every check, found for the whole file at once: ``id(ring) -> array``.
+
+    Large files are almost all well-formed, and most outlines convex; checking them all in a
+    few array operations keeps a file of thousands of volumes quick. A ring not found here
+    (odd positions, not closed, crossing 180 degrees, not strictly convex, no area) goes
+    through :func:`_ring`, which checks it in full and says what is wrong.
+    """
+    rings = []
+    for feature in features:
+        try:
+            geometry = feature["geometry"]
+            kind, coordinates = geometry["type"], geometry["coordinates"]
+        except (KeyError, TypeError, IndexError):
+            continue
+        parts = [coordinates] if kind == "Polygon" else coordinates if kind == "MultiPolygon" else []
+        for part in parts if isinstance(parts, list) else []:
+            for ring in part if isinstance(part, list) else []:
+                try:
+                    if (type(ring) is list and len(ring) >= 4 and set(map(len, ring)) == {2}
+                            and not set(map(type, chain.from_iterable(ring))) - _NUMBER_TYPES):
+                        rings.append(ring)
+                except TypeError:
+                    continue
+    if not rings:
+        return {}
+    try:
+        flat = np.array(list(chain.from_iterable(rings)), dtype=float)
+    except (OverflowError, ValueError):
+        return {}
+    lengths = np.fromiter(map(len, rings), dtype=int, count=len(rings))
+    ends = np.cumsum(lengths)
+    starts = ends - lengths
+    bad_position = ~np.isfinite(flat).all(axis=1) | (np.abs(flat[:, 0]) > 180.0) | (np.abs(flat[:, 1]) > 90.0)
+    in_range = ~np.logical_or.reduceat(bad_position, starts)
+    closed = (flat[starts] == flat[ends - 1]).all(axis=1)
+    edges = np.diff(flat, axis=0)  # row k joins position k to k + 1; rows ends - 1 join two rings
+    between = ends[:-1] - 1
+    following = np.arange(1, len(edges) + 1)
+    following[ends - 2] = starts  # the edge after a ring's last is its first
+    following[between] = between
+    cross = edges[:, 0] * edges[following, 1] - edges[:, 1] * edges[following, 0]
+    dot = (edges * edges[following]).sum(axis=1)
+    with np.errstate(invalid="ignore"):
+        turning = np.arctan2(cross, dot)
+    shoelace = flat[:-1, 0] * flat[1:, 1] - flat[1:, 0] * flat[:-1, 1]
+    jump = np.abs(edges[:, 0]) > 180.0
+    positive, negative = cross > 0.0, cross < 0.0
+    for array, neutral in ((turning, 0.0), (shoelace, 0.0), (jump, False), (positive, True), (negative, True)):
+        array[between] = neutral
+    convex = (np.logical_and.reduceat(positive, starts) | np.logical_and.reduceat(negative, starts))
+    convex &= np.abs(np.abs(np.add.reduceat(turning, starts)) - 2.0 * np.pi) < 1e-6
+    good = in_range & closed & ~np.logical_or.reduceat(jump, starts) & convex & (np.add.reduceat(shoelace, starts) != 0.0)
+    return {id(rings[i]): flat[starts[i]:ends[i]] for i in np.flatnonzero(good)}
+
+
+def _plain_positions(ring) -> np.ndarray | None:
+    """The ring as an ``(n, 2)`` array when every position is two or three plain numbers in
+    range, checked at C speed; None sends it to the careful path that says what is wrong."""
+    try:
+        if set(map(type, chain.from_iterable(ring))) - _NUMBER_TYPES:
+            return None
+        array = np.array(ring, dtype=float)
+    except (TypeError, ValueError, OverflowError):
+        return None
+    if array.ndim != 2 or array.shape[1] not in (2, 3) or not np.isfinite(array).all():
+        return None
+    array = array[:, :2]
+    if (np.abs(array[:, 0]) > 180.0).any() or (np.abs(array[:, 1]) > 90.0).any():
+        return None
+    return array
+
+
 def _ring(ring, name: str, where: str, problems: ProblemCollector):
     if not isinstance(ring, list):
         problems.add(where, f"{name}: a ring must be a list of positions")
         return None
+    array = _plain_positions(ring)
+    if array is None:
+        array = _careful_positions(ring, name, where, problems)
+    if array is None:
+        return None
+    return _ring_shape(array, name, where, problems)
+
+
+def _careful_positions(ring: list, name: str, where: str, problems: ProblemCollector) -> np.ndarray | None:
     positions = []
     for k, position in enumerate(ring, start=1):
         if (not isinstance(position, list) or len(position) < 2
@@ -286,14 +338,19 @@ def _ring(ring, name: str, where: str, problems: ProblemCollector):
                                 "[-180, 180] longitude, [-90, 90] latitude")
             return None
         positions.append((lon, lat))
+    return np.array(positions, dtype=float).reshape(-1, 2)
+
+
+def _ring_shape(array: np.ndarray, name: str, where: str, problems: ProblemCollector) -> np.ndarray | None:
+    """Closed, at least 4 positions, on one side of the antimeridian, not crossing itself."""
+    positions = array
     if len(positions) < 4:
         problems.add(where, f"{name}: a ring needs at least 4 positions (the last repeating the first), "
                             f"got {len(positions)}")
         return None
-    if positions[0] != positions[-1]:
+    if not np.array_equal(positions[0], positions[-1]):
         problems.add(where, f"{name}: the ring is not closed (its last position must repeat the first)")
         return None
-    array = np.array(positions, dtype=float)
     jumps = np.flatnonzero(np.abs(np.diff(array[:, 0])) > 180.0)
     if jumps.size:
         k = int(jumps[0]) + 1
@@ -301,14 +358,27 @@ def _ring(ring, name: str, where: str, problems: ProblemCollector):
                             f"{array[k, 0]:g} between positions {k} and {k + 1}); split it at 180 degrees "
                             "into a MultiPolygon (RFC 7946, 3.1.9)")
         return None
-    if len(np.unique(array[:-1], axis=0)) < 3:
-        problems.add(where, f"{name}: the ring encloses no area (fewer than 3 distinct positions)")
-        return None
-    crossing = _self_crossing(array)
+    crossing = None if _convex(array) else _self_crossing(array)
     if crossing is not None:
         problems.add(where, f"{name}: the ring crosses itself (edges {crossing[0]} and {crossing[1]})")
         return None
+    x, y = array[:, 0], array[:, 1]
+    if np.dot(x[:-1], y[1:]) - np.dot(x[1:], y[:-1]) == 0.0:  # twice the shoelace area
+        problems.add(where, f"{name}: the ring encloses no area")
+        return None
     return array
+
+
+def _convex(ring: np.ndarray) -> bool:
+    """True for a strictly convex ring turning once round: it cannot cross itself
+    (the common case, checked in a few array operations before the general test)."""
+    edges = np.diff(ring, axis=0)
+    following = np.roll(edges, -1, axis=0)
+    cross = edges[:, 0] * following[:, 1] - edges[:, 1] * following[:, 0]
+    if not ((cross > 0.0).all() or (cross < 0.0).all()):
+        return False
+    turning = np.arctan2(cross, (edges * following).sum(axis=1)).sum()
+    return bool(abs(abs(turning) - 2.0 * np.pi) < 1e-6)
 
 
 def _self_crossing(ring: np.ndarray) -> tuple[int, int] | None:
