@@ -43,7 +43,7 @@ References
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from functools import cached_property
+from functools import cached_property, lru_cache
 from typing import Callable, Sequence
 
 import numpy as np
@@ -135,6 +135,12 @@ def flight_level_msl_m(flight_level, isa_deviation_c=0.0):
     return float(result) if np.ndim(result) == 0 else result
 
 
+@lru_cache(maxsize=256)
+def _flight_level_m(flight_level: float, isa_deviation_c: float) -> float:
+    """:func:`flight_level_msl_m` of one level, remembered (a file has few distinct levels)."""
+    return flight_level_msl_m(flight_level, isa_deviation_c)
+
+
 def limit_msl_m(limit: Limit, ground_m=None, isa_deviation_c: float = 0.0):
     """A limit as a height above mean sea level [m] at places with ground elevation ``ground_m``.
 
@@ -144,7 +150,7 @@ def limit_msl_m(limit: Limit, ground_m=None, isa_deviation_c: float = 0.0):
     """
     ground = np.asarray(np.nan if ground_m is None else ground_m, dtype=float)
     if limit.unit == "FL":
-        value = np.broadcast_to(flight_level_msl_m(limit.value, isa_deviation_c), ground.shape)
+        value = np.broadcast_to(_flight_level_m(float(limit.value), float(isa_deviation_c)), ground.shape)
     else:
         metres = limit.value * (FOOT_M if limit.unit == "ft" else 1.0)
         value = ground + metres if limit.ref == "AGL" else np.broadcast_to(metres, ground.shape)
@@ -308,29 +314,32 @@ def _crossings_of_chords(edges, x, y, distance_m) -> np.ndarray:
     """
     px, py = x[:-1, None], y[:-1, None]
     dx, dy = (x[1:] - x[:-1])[:, None], (y[1:] - y[:-1])[:, None]
-    x0, y0, x1, y1 = (edges[:, k][None, :] for k in range(4))
-    side0 = dx * (y0 - py) - dy * (x0 - px) >= 0.0
-    side1 = dx * (y1 - py) - dy * (x1 - px) >= 0.0
-    ex, ey = x1 - x0, y1 - y0
-    denominator = dx * ey - dy * ex
-    with np.errstate(divide="ignore", invalid="ignore"):
-        t = ((x0 - px) * ey - (y0 - py) * ex) / denominator
-    hit = (side0 != side1) & (t >= 0.0) & (t < 1.0) & (denominator != 0.0)
-    chord, _ = np.nonzero(hit)
+    x0, y0, x1, y1 = edges[:, 0], edges[:, 1], edges[:, 2], edges[:, 3]
+    straddle = (dx * (y0 - py) - dy * (x0 - px) >= 0.0) != (dx * (y1 - py) - dy * (x1 - px) >= 0.0)
+    chord, edge = np.nonzero(straddle)  # few pairs: the rest of the work is on them only
     if chord.size == 0:
         return np.zeros(0)
-    start = distance_m[:-1][chord]
-    return np.sort(start + t[hit] * (distance_m[1:] - distance_m[:-1])[chord])
+    cx, cy, cdx, cdy = x[chord], y[chord], dx[chord, 0], dy[chord, 0]
+    ex, ey = x1[edge] - x0[edge], y1[edge] - y0[edge]
+    denominator = cdx * ey - cdy * ex
+    with np.errstate(divide="ignore", invalid="ignore"):
+        t = ((x0[edge] - cx) * ey - (y0[edge] - cy) * ex) / denominator
+    hit = (t >= 0.0) & (t < 1.0) & (denominator != 0.0)
+    chord = chord[hit]
+    return np.sort(distance_m[chord] + t[hit] * (distance_m[chord + 1] - distance_m[chord]))
 
 
 def _polygon_stretches(edges, x, y, distance_m) -> list[tuple[float, float]]:
     """Stretches of the path inside one polygon (its rings by the even-odd rule)."""
-    inside = bool(_even_odd(edges, x[:1], y[:1])[0])
-    # Only chords whose box meets the polygon's box can cross it.
-    box = (edges[:, [0, 2]].min(), edges[:, [1, 3]].min(), edges[:, [0, 2]].max(), edges[:, [1, 3]].max())
+    # Only chords whose box meets the polygon's box can cross it or lie inside it.
+    box = (min(edges[:, 0].min(), edges[:, 2].min()), min(edges[:, 1].min(), edges[:, 3].min()),
+           max(edges[:, 0].max(), edges[:, 2].max()), max(edges[:, 1].max(), edges[:, 3].max()))
     near = ((np.maximum(x[:-1], x[1:]) >= box[0]) & (np.minimum(x[:-1], x[1:]) <= box[2])
             & (np.maximum(y[:-1], y[1:]) >= box[1]) & (np.minimum(y[:-1], y[1:]) <= box[3]))
     chords = np.flatnonzero(near)
+    if chords.size == 0:
+        return []
+    inside = bool(_even_odd(edges, x[:1], y[:1])[0])
     crossings = []
     if chords.size:
         # Runs of neighbouring chords are passed together (as short paths) to keep arrays small.
@@ -361,6 +370,20 @@ def _union(stretches: list[tuple[float, float]]) -> list[tuple[float, float]]:
     return [(a, b) for a, b in out]
 
 
+def _met_by_chords(airspace: Airspace, candidates: np.ndarray, lats: np.ndarray, lons: np.ndarray) -> np.ndarray:
+    """The candidates whose box meets the box of at least one chord (or holds the one sample)."""
+    if candidates.size == 0 or lats.size < 2:
+        return candidates
+    lo_x, hi_x = np.minimum(lons[:-1], lons[1:]), np.maximum(lons[:-1], lons[1:])
+    lo_y, hi_y = np.minimum(lats[:-1], lats[1:]), np.maximum(lats[:-1], lats[1:])
+    b = airspace.boxes[candidates]
+    lat_ok = (b[:, 1:2] <= hi_y[None, :]) & (b[:, 3:4] >= lo_y[None, :])
+    met = np.zeros(candidates.size, dtype=bool)
+    for shift in (0.0, -360.0, 360.0):
+        met |= (lat_ok & (b[:, 0:1] <= hi_x[None, :] - shift) & (b[:, 2:3] >= lo_x[None, :] - shift)).any(axis=1)
+    return candidates[met]
+
+
 def path_stretches(airspace: Airspace, lats, lons, distance_m) -> list[Stretch]:
     """Every stretch of a path inside each volume, in order along the path.
 
@@ -383,7 +406,7 @@ def path_stretches(airspace: Airspace, lats, lons, distance_m) -> list[Stretch]:
     out: list[Stretch] = []
     if lats.size == 0:
         return out
-    for index in airspace.near(lats, lons):
+    for index in _met_by_chords(airspace, airspace.near(lats, lons), lats, lons):
         volume = airspace.volumes[index]
         found = []
         for shift in _shifts(volume.bbox, lons.min(), lons.max()):
@@ -397,12 +420,15 @@ def path_stretches(airspace: Airspace, lats, lons, distance_m) -> list[Stretch]:
     return sorted(out, key=lambda s: (s.from_m, s.volume))
 
 
-def inside_mask(airspace: Airspace, stretches: Sequence[Stretch], distance_m) -> np.ndarray:
-    """``(volumes, samples)`` bool: sample j lies in a stretch of volume i (ends included)."""
+def inside_mask(stretches: Sequence[Stretch], distance_m, volumes) -> np.ndarray:
+    """``(len(volumes), samples)`` bool: row k, sample j lies in a stretch of ``volumes[k]``
+    (ends included)."""
     distance_m = np.asarray(distance_m, dtype=float)
-    mask = np.zeros((len(airspace.volumes), distance_m.size), dtype=bool)
+    row = {int(v): k for k, v in enumerate(volumes)}
+    mask = np.zeros((len(row), distance_m.size), dtype=bool)
     for s in stretches:
-        mask[s.volume] |= (distance_m >= s.from_m) & (distance_m <= s.to_m)
+        if s.volume in row:
+            mask[row[s.volume]] |= (distance_m >= s.from_m) & (distance_m <= s.to_m)
     return mask
 
 
@@ -444,8 +470,10 @@ class BandCap:
 
 @dataclass(frozen=True)
 class Limits:
-    """Floors and ceilings of the volumes at each sample [m MSL], ``(volumes, samples)``."""
+    """Floors and ceilings of some volumes at each sample [m MSL], ``(len(volumes), samples)``:
+    row k belongs to the volume ``volumes[k]``."""
 
+    volumes: np.ndarray
     floor_m: np.ndarray
     ceiling_m: np.ndarray
     agl_from_points: bool
@@ -462,24 +490,23 @@ def limits_along(airspace: Airspace, lats, lons, ground: GroundFunction | None =
     """
     lats = np.atleast_1d(np.asarray(lats, dtype=float))
     lons = np.atleast_1d(np.asarray(lons, dtype=float))
-    n = len(airspace.volumes)
-    floor = np.full((n, lats.size), np.nan)
-    ceiling = np.full((n, lats.size), np.nan)
-    indices = range(n) if only is None else only
+    indices = np.arange(len(airspace.volumes)) if only is None else np.asarray(only, dtype=int)
+    floor = np.full((indices.size, lats.size), np.nan)
+    ceiling = np.full((indices.size, lats.size), np.nan)
     ground_m = None
     used_agl = False
-    for i in indices:
+    unknown = np.full(lats.shape, np.nan)
+    for k, i in enumerate(indices):
         volume = airspace.volumes[i]
         if (volume.floor.is_agl or volume.ceiling.is_agl) and ground_m is None and ground is not None:
             ground_m = np.asarray(ground(lats, lons), dtype=float)
         used_agl |= volume.floor.is_agl or volume.ceiling.is_agl
-        floor[i] = limit_msl_m(volume.floor, ground_m if ground_m is not None else np.full(lats.shape, np.nan),
-                               isa_deviation_c)
-        ceiling[i] = limit_msl_m(volume.ceiling, ground_m if ground_m is not None else np.full(lats.shape, np.nan),
-                                 isa_deviation_c)
+        under = ground_m if ground_m is not None else unknown
+        floor[k] = limit_msl_m(volume.floor, under, isa_deviation_c)
+        ceiling[k] = limit_msl_m(volume.ceiling, under, isa_deviation_c)
         if volume.floor.is_ground:  # from the ground: below any flight, even where the ground is unknown
-            floor[i] = np.where(np.isnan(floor[i]), -np.inf, floor[i])
-    return Limits(floor, ceiling, bool(used_agl and ground is not None and ground_is_estimate))
+            floor[k] = np.where(np.isnan(floor[k]), -np.inf, floor[k])
+    return Limits(indices, floor, ceiling, bool(used_agl and ground is not None and ground_is_estimate))
 
 
 def band_top_cap(airspace: Airspace, lats, lons, distance_m, band_top_m, band_bottom_m,
@@ -516,18 +543,19 @@ def band_top_cap(airspace: Airspace, lats, lons, distance_m, band_top_m, band_bo
     if involved.size == 0:
         return BandCap(top, setter, (), False)
     limits = limits_along(airspace, lats, lons, ground, isa_deviation_c, ground_is_estimate, only=involved)
-    inside = inside_mask(airspace, stretches, distance_m)
-    for i in involved:
-        lowered = limits.floor_m[i] - margin_m
-        in_band = inside[i] & (lowered < top) & (limits.ceiling_m[i] + margin_m > bottom)
+    inside = inside_mask(stretches, distance_m, involved)
+    for k, i in enumerate(involved):
+        lowered = limits.floor_m[k] - margin_m
+        in_band = inside[k] & (lowered < top) & (limits.ceiling_m[k] + margin_m > bottom)
         top = np.where(in_band, lowered, top)
         setter = np.where(in_band, i, setter)
     caps = []
     changes = np.flatnonzero(np.diff(setter) != 0) + 1
+    row = {int(v): k for k, v in enumerate(involved)}
     for run in np.split(np.arange(distance_m.size), changes):
         i = setter[run[0]]
         if i >= 0:
-            start, end = _run_ends(run, inside[i], distance_m, [s for s in stretches if s.volume == i])
+            start, end = _run_ends(run, inside[row[i]], distance_m, [s for s in stretches if s.volume == i])
             caps.append(Cap(start, end, float(top[run].min()), airspace.volumes[i].name))
     return BandCap(top, setter, tuple(caps), limits.agl_from_points)
 
@@ -632,15 +660,14 @@ def conflicts(airspace: Airspace, lats, lons, distance_m, profile_distance_m, pr
         at_lons = (at_lons + 180.0) % 360.0 - 180.0
         limits = limits_along(airspace, at_lats, at_lons, ground, isa_deviation_c, ground_is_estimate,
                               only=np.array([s.volume]))
-        low = limits.floor_m[s.volume] - margin_m
-        high = limits.ceiling_m[s.volume] + margin_m
+        low = limits.floor_m[0] - margin_m
+        high = limits.ceiling_m[0] + margin_m
         room = np.minimum(h - low, high - h)  # > 0: inside vertically
         clash = room > 0.0
         if band_bottom_m is not None:
             bottom = np.interp(d, distance_m, np.broadcast_to(np.asarray(band_bottom_m, float), distance_m.shape))
             clash |= (low <= bottom) & (high > bottom)
-        out += _runs(volume, s.volume, d, h, room, clash, limits.floor_m[s.volume], limits.ceiling_m[s.volume],
-                     leg_starts)
+        out += _runs(volume, s.volume, d, h, room, clash, limits.floor_m[0], limits.ceiling_m[0], leg_starts)
     return sorted(out, key=lambda c: (c.from_m, c.volume))
 
 
