@@ -149,7 +149,7 @@ def airspace_conflict(c, units: "UnitSystem", what: str = "Leg") -> str:
     floor = "the ground" if c.from_ground else units.fmt_height(c.floor_m)
     span = (f"planned at {units.fmt_height(c.planned_min_m)}" if round(c.planned_min_m) == round(c.planned_max_m)
             else f"planned {units.fmt_height(c.planned_min_m)} to {units.fmt_height(c.planned_max_m)}")
-    why = " (no room to climb and glide under its floor there)" if c.no_room else ""
+    why = " (no room to climb and glide under its floor there)" if c.no_room and not c.from_ground else ""
     return (f"{who} enters {_volume_name(c.name, c.airspace_class)}, {floor} to {units.fmt_height(c.ceiling_m)}, "
             f"from {units.fmt_distance(c.from_m)} to {units.fmt_distance(c.to_m)}, {span}{why}: "
             "a clearance or another route is needed, following local rules.")

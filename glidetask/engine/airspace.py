@@ -457,7 +457,8 @@ class BandCap:
     volume : ndarray of int
         The volume that sets it at each sample, -1 where the band top holds.
     caps : tuple of Cap
-        The lowered stretches, one per run of samples under the same volume.
+        The lowered stretches that leave room above the band bottom, one per run of samples
+        under the same volume (where no room is left, :func:`conflicts` reports it).
     agl_from_points : bool
         True when an AGL floor was placed over the nearest turnpoint's elevation (no terrain).
     """
@@ -550,10 +551,11 @@ def band_top_cap(airspace: Airspace, lats, lons, distance_m, band_top_m, band_bo
         top = np.where(in_band, lowered, top)
         setter = np.where(in_band, i, setter)
     caps = []
-    changes = np.flatnonzero(np.diff(setter) != 0) + 1
+    shown = np.where(top > bottom, setter, -2)  # no room left: a conflict, not a cap
+    changes = np.flatnonzero(np.diff(shown) != 0) + 1
     row = {int(v): k for k, v in enumerate(involved)}
     for run in np.split(np.arange(distance_m.size), changes):
-        i = setter[run[0]]
+        i = shown[run[0]]
         if i >= 0:
             start, end = _run_ends(run, inside[row[i]], distance_m, [s for s in stretches if s.volume == i])
             caps.append(Cap(start, end, float(top[run].min()), airspace.volumes[i].name))
@@ -577,8 +579,10 @@ class Conflict:
     """A stretch of the planned flight inside a volume (contract 5.3 ``airspace.conflicts``).
 
     Heights in metres MSL; ``floor_m``/``ceiling_m`` the lowest floor and highest ceiling on
-    the stretch (they vary with the ground for AGL limits); ``no_room`` when the band capped
-    by the volume falls to the band bottom or below there.
+    the stretch (they vary with the ground for AGL limits; a floor at unknown ground is
+    -inf); ``no_room`` when the band capped by the volume falls to the band bottom or below
+    somewhere on the stretch (whatever the planned heights), ``from_ground`` when its floor
+    is the ground.
     """
 
     name: str
@@ -664,14 +668,17 @@ def conflicts(airspace: Airspace, lats, lons, distance_m, profile_distance_m, pr
         high = limits.ceiling_m[0] + margin_m
         room = np.minimum(h - low, high - h)  # > 0: inside vertically
         clash = room > 0.0
+        closed = np.zeros(d.shape, dtype=bool)
         if band_bottom_m is not None:
             bottom = np.interp(d, distance_m, np.broadcast_to(np.asarray(band_bottom_m, float), distance_m.shape))
-            clash |= (low <= bottom) & (high > bottom)
-        out += _runs(volume, s.volume, d, h, room, clash, limits.floor_m[0], limits.ceiling_m[0], leg_starts)
+            closed = (low <= bottom) & (high > bottom)
+            clash |= closed
+        out += _runs(volume, s.volume, d, h, room, clash, closed, limits.floor_m[0], limits.ceiling_m[0],
+                     leg_starts)
     return sorted(out, key=lambda c: (c.from_m, c.volume))
 
 
-def _runs(volume: Volume, index: int, d, h, room, clash, floor, ceiling, leg_starts) -> list[Conflict]:
+def _runs(volume: Volume, index: int, d, h, room, clash, closed, floor, ceiling, leg_starts) -> list[Conflict]:
     """Conflicts from the runs of clashing points, their ends placed where ``room`` is zero."""
     out = []
     if not clash.any():
@@ -688,7 +695,7 @@ def _runs(volume: Volume, index: int, d, h, room, clash, floor, ceiling, leg_sta
             end = _zero(d[last], d[last + 1], room[last], room[last + 1])
         heights = np.concatenate([h[run], [np.interp(start, d, h), np.interp(end, d, h)]])
         pieces = _split_at_legs(start, end, leg_starts)
-        no_room = bool(np.any(clash[run] & ~(room[run] > 0.0)))
+        no_room = bool(np.any(closed[run]))
         for leg, a, b in pieces:
             out.append(Conflict(volume.name, volume.airspace_class, leg, float(a), float(b),
                                 float(np.nanmin(floor[run])), float(np.nanmax(ceiling[run])),

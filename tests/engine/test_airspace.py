@@ -288,4 +288,6 @@ def test_no_room_under_a_floor_below_the_band_bottom_is_a_conflict():
     check = check_path(Airspace((volume,)), lats, lons, along, along, np.full(along.shape, 800.0),
                        band_top_m=2000.0, band_bottom_m=1000.0)
     assert len(check.conflicts) == 1 and check.conflicts[0].no_room
-    assert check.caps[0].top_m == 900.0 and not check.ok
+    assert check.caps == () and not check.ok
+    cap = band_top_cap(Airspace((volume,)), lats, lons, along, 2000.0, 1000.0)
+    assert set(cap.top_m[cap.volume == 0]) == {900.0}
