@@ -9,8 +9,9 @@ Placed so that:
 - the 300 km triangle's second leg (Kellow Hill to Quellby Field) passes under the control
   area's lower step, whose floor (1500 m) minus the 100 m margin caps the band top of 2200 m
   at 1400 m, still above the band bottom of 1200 m: a capped band, no conflict;
-- a task set carelessly from Vardmoor round Trennick and Fallowden (whose second leg runs
-  over Brennick Airfield) crosses the control zone from the ground: a conflict;
+- a task set carelessly from Vardmoor round Trennick and Fallowden
+  (``vardmoor-careless-setter.toml``, whose second leg runs over Brennick Airfield) crosses
+  the control zone from the ground: a conflict;
 - the other demo tasks stay clear.
 
 Outlines are circles and rings drawn with WGS84 geodesics every 5 degrees of azimuth.
