@@ -18,10 +18,9 @@ import statistics
 import time
 
 import numpy as np
-import pytest
 from wholeprocess import ROOT, bench_against_baseline
 
-from glidetask.engine.airspace import Airspace, Limit, Volume, check_path
+from glidetask.engine.airspace import Airspace, check_path
 from glidetask.engine.planner import plan
 from glidetask.formats.airspace_file import read_airspace
 from glidetask.formats.task_file import load_scenario

@@ -16,7 +16,6 @@ import pytest
 from geographiclib.geodesic import Geodesic
 from pyproj import Geod, Transformer
 from scipy.integrate import quad
-from scipy.optimize import brentq
 from shapely.geometry import LineString, Point, Polygon
 
 from glidetask.engine import geodesy
