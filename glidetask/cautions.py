@@ -210,3 +210,58 @@ def plan_cautions(plan, units: "UnitSystem") -> list[str]:
     The text output, the JSON (metric), the briefing and the UI all call this."""
     own = general() + [notice_text(notice, units) for notice in plan.notices]
     return own + [text for text in dict.fromkeys(safety_cautions(plan, units)) if text not in own]
+# ---------------------------------------------------------------- airspace
+
+AIRSPACE = (
+    "Airspace from a file may be out of date or incomplete: check the current charts and notices "
+    "(temporary restrictions, active danger areas) before flight.",
+)
+FLIGHT_LEVELS = ("Flight levels are placed for a standard sea-level pressure (1013.25 hPa) and the day's "
+                 "ISA deviation: on a low-pressure day they are lower, by about 8 m per hPa.")
+
+
+def _volume_name(name: str, airspace_class: str | None) -> str:
+    if airspace_class is None:
+        return name
+    kind = f"class {airspace_class}" if len(airspace_class) == 1 else airspace_class
+    return f"{name} ({kind})"
+
+
+def airspace_conflict(c, units: "UnitSystem", what: str = "Leg") -> str:
+    """One conflict in words: a :class:`glidetask.engine.airspace.Conflict`.
+
+    ``what`` names the stretch's part of the flight: ``"Leg"`` (followed by the leg's
+    number) for a plan, or a phrase such as ``"The glide"`` for a single glide.
+    """
+    who = f"{what} {c.leg}" if what == "Leg" else what
+    floor = "the ground" if c.from_ground else units.fmt_height(c.floor_m)
+    span = (f"planned at {units.fmt_height(c.planned_min_m)}" if round(c.planned_min_m) == round(c.planned_max_m)
+            else f"planned {units.fmt_height(c.planned_min_m)} to {units.fmt_height(c.planned_max_m)}")
+    why = " (no room to climb and glide under its floor there)" if c.no_room and not c.from_ground else ""
+    return (f"{who} enters {_volume_name(c.name, c.airspace_class)}, {floor} to {units.fmt_height(c.ceiling_m)}, "
+            f"from {units.fmt_distance(c.from_m)} to {units.fmt_distance(c.to_m)}, {span}{why}: "
+            "a clearance or another route is needed, following local rules.")
+
+
+def airspace_cap(cap, units: "UnitSystem") -> str:
+    """A lowered band top in words: a :class:`glidetask.engine.airspace.Cap`."""
+    return (f"{cap.name} caps the band top at {units.fmt_height(cap.top_m)} from {units.fmt_distance(cap.from_m)} "
+            f"to {units.fmt_distance(cap.to_m)}: climb no higher there.")
+
+
+def airspace_cautions(check, units: "UnitSystem", what: str = "Leg", flight_levels: bool = False,
+                      ground_point: str = "the nearest turnpoint") -> list[str]:
+    """The airspace cautions of one plan or glide: a :class:`glidetask.engine.airspace.AirspaceCheck`.
+
+    ``flight_levels``: some volume met is limited by a flight level (add the pressure caution).
+    ``ground_point`` names what stood in for the terrain under AGL limits.
+    """
+    out = list(AIRSPACE)
+    out += [airspace_conflict(c, units, what) for c in check.conflicts]
+    out += [airspace_cap(cap, units) for cap in check.caps]
+    if check.agl_from_points:
+        out.append(f"Without a terrain model, heights above the ground of airspace limits are taken over the "
+                   f"elevation of {ground_point}: the real limits may differ.")
+    if flight_levels:
+        out.append(FLIGHT_LEVELS)
+    return out

@@ -127,10 +127,13 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--airmass-ms", type=float, default=0.0, metavar="U",
                    help="average vertical air motion on the glide [m/s] (negative = sink)")
     p.add_argument("--terrain", default=None, metavar="FILE", help="GeoTIFF elevation model for a terrain check")
-    p.add_argument("--from", dest="from_pos", default=None, metavar="LAT,LON", help="start position (with --terrain)")
-    p.add_argument("--to", dest="to_pos", default=None, metavar="LAT,LON", help="goal position (with --terrain)")
+    p.add_argument("--from", dest="from_pos", default=None, metavar="LAT,LON", help="start position (with --terrain or --airspace)")
+    p.add_argument("--to", dest="to_pos", default=None, metavar="LAT,LON", help="goal position (with --terrain or --airspace)")
     p.add_argument("--clearance-m", type=float, default=150.0, metavar="C",
                    help="least terrain clearance [m] (default 150)")
+    p.add_argument("--airspace", default=None, metavar="FILE", help="airspace GeoJSON: the volumes the glide crosses")
+    p.add_argument("--airspace-margin-m", type=float, default=100.0, metavar="M",
+                   help="kept below airspace floors and above ceilings [m] (default 100)")
     _glider_options(p)
     _common(p)
 
@@ -145,7 +148,7 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("task", metavar="TASK.toml")
     _common(p)
 
-    p = sub.add_parser("check", help="validate polar, turnpoint and task files")
+    p = sub.add_parser("check", help="validate polar, turnpoint, airspace and task files")
     p.add_argument("files", nargs="+", metavar="FILE")
     _common(p)
 

@@ -1,8 +1,9 @@
 """``glidetask check FILE...``: validate polar, turnpoint, task and terrain files (contract 4).
 
 Each file's kind comes from its name and content: ``.toml`` with a ``[task]`` table is a
-task, with a ``[polar]`` table a polar; ``.geojson``, ``.json`` and ``.csv`` are turnpoint
-files; ``.tif``/``.tiff`` elevation models. Anything else is skipped (not an error), so
+task, with a ``[polar]`` table a polar; ``.geojson`` and ``.json`` are airspace files when
+their features are polygons, else turnpoint files, as are ``.csv`` files; ``.tif``/``.tiff``
+elevation models. Anything else is skipped (not an error), so
 ``glidetask check demo_tasks/*`` works on a whole folder. A short summary is printed for
 each good file and every problem of every bad one; the exit status is 2 if any file has a
 problem, else 0. ``--json`` prints a list with one result per file.
@@ -22,6 +23,7 @@ from glidetask.formats.zone_text import zone_text
 from glidetask.units import KMH, METRIC
 
 TURNPOINT_SUFFIXES = (".geojson", ".json", ".csv")
+GEOJSON_SUFFIXES = (".geojson", ".json")
 TERRAIN_SUFFIXES = (".tif", ".tiff")
 
 
@@ -55,6 +57,40 @@ def check_turnpoints(path: str) -> dict:
         "lat_range_deg": [min(lats), max(lats)],
         "lon_range_deg": [min(lons), max(lons)],
     }
+
+
+def check_airspace(path: str) -> dict:
+    """Summary of an airspace file (raises InputError with its problems)."""
+    from glidetask.formats.airspace_file import read_airspace
+
+    airspace = read_airspace(path)
+    by_class: dict[str, int] = {}
+    for volume in airspace.volumes:
+        key = volume.airspace_class or "unclassified"
+        by_class[key] = by_class.get(key, 0) + 1
+    boxes = airspace.boxes
+    return {
+        "kind": "airspace",
+        "count": len(airspace.volumes),
+        "by_class": by_class,
+        "from_ground": sum(1 for v in airspace.volumes if v.floor.is_ground),
+        "holes": sum(len(polygon) - 1 for v in airspace.volumes for polygon in v.polygons),
+        "lat_range_deg": [float(boxes[:, 1].min()), float(boxes[:, 3].max())] if len(boxes) else None,
+        "lon_range_deg": [float(boxes[:, 0].min()), float(boxes[:, 2].max())] if len(boxes) else None,
+    }
+
+
+def _geojson_kind(path: str) -> str:
+    """``"airspace"`` when a GeoJSON file's features are polygons, else ``"turnpoints"``."""
+    import re
+
+    try:
+        text = Path(path).read_text(encoding="utf-8-sig", errors="replace")
+    except OSError:
+        return "turnpoints"  # the turnpoint reader says why it cannot be read
+    polygon = re.search(r'"type"\s*:\s*"(?:Multi)?Polygon"', text)
+    point = re.search(r'"type"\s*:\s*"Point"', text)
+    return "airspace" if polygon and not point else "turnpoints"
 
 
 def check_polar(path: str) -> dict:
@@ -150,12 +186,14 @@ def _toml_kind(path: str) -> str:
 
 
 def file_kind(path: str) -> str:
-    """What kind of glidetask file ``path`` is: task, polar, turnpoints, terrain or skipped."""
+    """What kind of glidetask file ``path`` is: task, polar, turnpoints, airspace, terrain or skipped."""
     suffix = Path(path).suffix.lower()
     if os.path.isdir(path):
         return "skipped"
     if suffix == ".toml":
         return "toml"
+    if suffix in GEOJSON_SUFFIXES:
+        return _geojson_kind(path)
     if suffix in TURNPOINT_SUFFIXES:
         return "turnpoints"
     if suffix in TERRAIN_SUFFIXES:
@@ -169,14 +207,14 @@ def check_file(path: str) -> dict:
     result: dict = {"file": path, "kind": kind}
     if kind == "skipped":
         return {**result, "ok": True, "problems": []}
-    if kind != "turnpoints" and not os.path.exists(path):
+    if kind not in ("turnpoints", "airspace") and not os.path.exists(path):
         return {**result, "ok": False, "problems": _problem_dicts([Problem(path, "file", "no such file")])}
     try:
         if kind == "toml":
             kind = _toml_kind(path)
             result["kind"] = kind
         summary = {"task": check_task, "polar": check_polar, "toml": check_polar, "turnpoints": check_turnpoints,
-                   "terrain": check_terrain}[kind](path)
+                   "airspace": check_airspace, "terrain": check_terrain}[kind](path)
     except InputError as error:
         return {**result, "ok": False, "problems": _problem_dicts(error.problems)}
     return {**result, **summary, "ok": True, "problems": []}
@@ -196,6 +234,14 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
                 f"({landable['airfield']} airfields, {landable['field']} fields), {counts['waypoint']} waypoints",
                 f"  latitude {result['lat_range_deg'][0]:.3f} to {result['lat_range_deg'][1]:.3f}, "
                 f"longitude {result['lon_range_deg'][0]:.3f} to {result['lon_range_deg'][1]:.3f}"]
+    if kind == "airspace":
+        classes = ", ".join(f"{count} {name}" for name, count in sorted(result["by_class"].items()))
+        lines = [f"  {result['count']} volumes ({classes}), {result['from_ground']} from the ground, "
+                 f"{result['holes']} holes"]
+        if result["lat_range_deg"] is not None:
+            lines.append(f"  latitude {result['lat_range_deg'][0]:.3f} to {result['lat_range_deg'][1]:.3f}, "
+                         f"longitude {result['lon_range_deg'][0]:.3f} to {result['lon_range_deg'][1]:.3f}")
+        return lines + [f"  {cautions.COMPACT}"]
     if kind == "polar":
         vertical = unit.vertical(result["min_sink_ms"])
         return [f"  {result['label']}",

@@ -39,7 +39,8 @@ def _option_problems(args: argparse.Namespace) -> list[Problem]:
                 + check_number(args, "arrival-elevation-m", minimum=-500.0, maximum=9000.0)
                 + check_number(args, "margin-m", minimum=0.0, maximum=5000.0)
                 + check_number(args, "airmass-ms", minimum=-5.0, maximum=5.0)
-                + check_number(args, "clearance-m", minimum=0.0, maximum=5000.0))
+                + check_number(args, "clearance-m", minimum=0.0, maximum=5000.0)
+                + check_number(args, "airspace-margin-m", minimum=0.0, maximum=1000.0))
     if args.wind is not None:
         try:
             parse_wind(args.wind)
@@ -73,6 +74,8 @@ def _route_problems(args: argparse.Namespace) -> list[Problem]:
         problems.append(Problem(CMDLINE, "--distance-km", "missing: give --distance-km, or --from and --to"))
     if args.terrain is not None and not all(positions):
         problems.append(Problem(CMDLINE, "--terrain", "needs --from and --to (the path to check)"))
+    if getattr(args, "airspace", None) is not None and not all(positions):
+        problems.append(Problem(CMDLINE, "--airspace", "needs --from and --to (the path to check)"))
     return problems
 
 
@@ -199,6 +202,13 @@ def run(args: argparse.Namespace) -> int:
         extra_json = dict(extra_json)
         extra_cautions += [c for c in extra_json.pop("cautions", []) if c not in extra_cautions]
         extra_cautions += [c for c in cautions.TERRAIN if c not in extra_cautions]
+    if getattr(args, "airspace", None) is not None:
+        from glidetask.commands import glide_airspace
+
+        airspace_json, airspace_text = glide_airspace.check(args, glide)
+        extra_json.update({k: v for k, v in airspace_json.items() if k != "cautions"})
+        extra_text = "\n\n".join(t for t in (extra_text, airspace_text) if t)
+        extra_cautions += [c for c in airspace_json["cautions"] if c not in extra_cautions]
     if args.json:
         payload = glide_payload(args, spec.label, polar, sigma, glide, distance_m, course_deg, wind)
         payload.update(extra_json)
