@@ -145,6 +145,15 @@ def check_terrain(path: str) -> dict:
     }
 
 
+def check_sounding(path: str) -> dict:
+    """Summary of a sounding file (contract 2.7)."""
+    from glidetask.formats.sounding_file import read_sounding
+
+    sounding = read_sounding(path)
+    return {"kind": "sounding", "levels": len(sounding.height_m),
+            "height_range_m": [float(sounding.height_m[0]), float(sounding.height_m[-1])]}
+
+
 def _toml_kind(path: str) -> str:
     """``"task"``, ``"polar"`` or InputError, from the tables a TOML file has."""
     import tomllib
@@ -167,6 +176,11 @@ def file_kind(path: str) -> str:
         return "skipped"
     if suffix == ".toml":
         return "toml"
+    if suffix == ".csv":
+        from glidetask.formats.sounding_file import looks_like_sounding
+
+        if looks_like_sounding(path):
+            return "sounding"
     if suffix in TURNPOINT_SUFFIXES:
         return "turnpoints"
     if suffix in TERRAIN_SUFFIXES:
@@ -187,7 +201,7 @@ def check_file(path: str) -> dict:
             kind = _toml_kind(path)
             result["kind"] = kind
         summary = {"task": check_task, "polar": check_polar, "toml": check_polar, "turnpoints": check_turnpoints,
-                   "terrain": check_terrain}[kind](path)
+                   "terrain": check_terrain, "sounding": check_sounding}[kind](path)
     except InputError as error:
         return {**result, "ok": False, "problems": _problem_dicts(error.problems)}
     return {**result, **summary, "ok": True, "problems": []}
@@ -213,6 +227,9 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
                 f"  at {result['reference_mass_kg']:g} kg: best glide 1:{result['best_ld']:.1f} at "
                 f"{unit.fmt_speed(result['best_ld_speed_kmh'] / 3.6)}, minimum sink {vertical:.2f} "
                 f"{unit.vertical_label} at {unit.fmt_speed(result['min_sink_speed_kmh'] / 3.6)}"]
+    if kind == "sounding":
+        low, high = result["height_range_m"]
+        return [f"  sounding of {result['levels']} levels, {unit.fmt_height(low)} to {unit.fmt_height(high)}"]
     if kind == "terrain":
         if not result.get("checked"):
             return ["  elevation model (not checked: the terrain engine is not available)"]
