@@ -97,27 +97,28 @@ def parse_sounding(text: str, file: str = "<sounding>") -> Sounding:
             if row_number > MAX_LEVELS:
                 problems.add(f"row {row_number}", f"more than {MAX_LEVELS} levels: not a sounding")
                 break
-            level = _level(problems, f"row {row_number}", row, index, len(header))
+            level, ok = _level(problems, f"row {row_number}", row, index, len(header))
             if level is not None:
-                levels.append((row_number, level))
+                levels.append((row_number, level, ok))
     except csv.Error as error:
         problems.add(f"row {row_number + 1}", f"not valid CSV: {error}")
-    _check_order(problems, levels)
+    _check_order(problems, [(number, level) for number, level, _ in levels
+                            if "height_m" in level and "pressure_hpa" in level])
     if row_number < MIN_LEVELS:
         problems.add("file", f"a sounding needs at least {MIN_LEVELS} levels, got {row_number}")
     problems.raise_if_any()
-    column = {name: np.array([level[name] for _, level in levels]) for name in COLUMNS}
+    column = {name: np.array([level[name] for _, level, _ in levels]) for name in COLUMNS}
     return Sounding(pressure_pa=column["pressure_hpa"] * 100.0, height_m=column["height_m"],
                     temperature_k=column["temperature_c"] + 273.15, dewpoint_k=column["dewpoint_c"] + 273.15,
                     wind_from_deg=column["wind_from_deg"] % 360.0, wind_speed_ms=column["wind_speed_kmh"] * KMH)
 
 
 def _level(problems: ProblemCollector, where: str, row: list[str], index: dict[str, int],
-           width: int) -> dict[str, float] | None:
-    """One level's values, or None after noting its problems."""
+           width: int) -> tuple[dict[str, float] | None, bool]:
+    """One level's good values and whether all are good, after noting its problems."""
     if len(row) != width:
         problems.add(where, f"expected {width} values as in the header, got {len(row)}")
-        return None
+        return None, False
     values, ok = {}, True
     for name in COLUMNS:
         cell = row[index[name]].strip()
@@ -137,11 +138,11 @@ def _level(problems: ProblemCollector, where: str, row: list[str], index: dict[s
             ok = False
             continue
         values[name] = value
-    if ok and values["dewpoint_c"] > values["temperature_c"]:
+    if "dewpoint_c" in values and "temperature_c" in values and values["dewpoint_c"] > values["temperature_c"]:
         problems.add(where, f"the dew point ({values['dewpoint_c']:g} C) is above the temperature "
                             f"({values['temperature_c']:g} C)")
         ok = False
-    return values if ok else None
+    return values, ok
 
 
 def _check_order(problems: ProblemCollector, levels: list[tuple[int, dict[str, float]]]) -> None:
