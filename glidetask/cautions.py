@@ -161,6 +161,9 @@ def sounding_cautions(facts, units: "UnitSystem") -> list[str]:
         elif fact.kind == "lift_before_forecast":
             out.append(f"The surface forecast starts at {_clock(fact.time_s)} with thermals already going: "
                        f"lift may start earlier.")
+        elif fact.kind == "flux_capped":
+            out.append(f"The surface forecast warms faster at {_clock(fact.time_s)} than the sun can heat the "
+                       f"convective layer: the thermal strength there is limited to what a strong sun gives.")
         elif fact.kind == "weakening_assumed":
             out.append(f"From {_clock(fact.time_s)} the surface no longer warms the layer: the thermal "
                        f"strength there is assumed to fade to nothing at the end of lift.")

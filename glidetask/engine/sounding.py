@@ -71,6 +71,12 @@ OVERDEVELOPMENT_CAPE_JKG = 500.0
 #: oxygen limits) (common practice).
 SHALLOW_LAYER_M = 1000.0
 DEEP_LAYER_M = 3000.0
+#: The largest surface kinematic heat flux taken from the warming [K m/s]: about 480 W/m^2
+#: with rho*cp = 1200 J/(m^3 K); midday sensible heat flux over dry land rarely exceeds
+#: 400-500 W/m^2 (from memory). Warming faster than that is more than the sun can do (the
+#: forecast's screen temperature runs ahead of the layer, or air is brought in by wind):
+#: the flux is capped and a fact says so, as overestimated thermals are the unsafe error.
+MAX_HEAT_FLUX_KMS = 0.4
 #: Height step of the encroachment integral [m].
 _INTEGRATION_STEP_M = 5.0
 
@@ -157,7 +163,9 @@ class SoundingFact:
     ``time_s``: its hour), ``"lift_until_forecast_ends"`` (``time_s``: the forecast's last
     time; lift may go on after it), ``"lift_before_forecast"`` (``time_s``: the first
     time; lift may start before it), ``"weakening_assumed"`` (``time_s``: the first hour
-    after the surface stops warming the layer, where the strength is our assumption).
+    after the surface stops warming the layer, where the strength is our assumption),
+    ``"flux_capped"`` (``value``: the heat flux the warming implies [K m/s], ``time_s``:
+    the first such hour; the flux was capped at :data:`MAX_HEAT_FLUX_KMS`).
     """
 
     kind: str
@@ -203,7 +211,8 @@ class DerivedDay:
     band_top_m, band_bottom_m : ndarray
         The working band during lift where it is at least ``MIN_WORKING_BAND_M`` deep, else NaN.
     heat_flux_kms : ndarray
-        Surface kinematic heat flux by encroachment [K m/s] (negative when the layer cools).
+        Surface kinematic heat flux by encroachment [K m/s] (negative when the layer cools;
+        during the lift at most :data:`MAX_HEAT_FLUX_KMS`, and fading after the warming ends).
     wstar_ms : ndarray
         Deardorff's convective velocity scale [m/s] (0 outside the lift).
     thermal_strength_ms : ndarray
@@ -416,7 +425,8 @@ def derive_day(sounding: Sounding, surface: SurfaceForecast, *, surface_elevatio
     (within the forecast). Encroachment ignores entrainment and advection, so once the
     surface stops warming it sees no flux while thermals go on: from the first such hour
     in the lift, the flux is taken to fall linearly from the last warming hour's value to
-    zero at the end of the lift (our assumption, reported as a fact).
+    zero at the end of the lift (our assumption, reported as a fact). A warming faster
+    than the sun can drive is capped at :data:`MAX_HEAT_FLUX_KMS` (also a fact).
     """
     heights = sounding.height_m
     surface_m = float(heights[0] if surface_elevation_m is None else surface_elevation_m)
@@ -451,6 +461,7 @@ def derive_day(sounding: Sounding, surface: SurfaceForecast, *, surface_elevatio
     facts: list[SoundingFact] = []
     flux = _hourly_flux(sounding, surface, times, p_surface, theta_env, surface_m)
     in_lift = np.zeros(times.shape, bool)
+    capped = flux > MAX_HEAT_FLUX_KMS
     if start is None:
         facts.append(SoundingFact("no_lift", value=trigger_c, other=float(max(surface.temperature_c))))
     else:
@@ -460,7 +471,10 @@ def derive_day(sounding: Sounding, surface: SurfaceForecast, *, surface_elevatio
             facts.append(SoundingFact("lift_before_forecast", time_s=float(surface.times_s[0])))
         if end is None:
             facts.append(SoundingFact("lift_until_forecast_ends", time_s=float(surface.times_s[-1])))
-        flux = _weakening_flux(times, flux, in_lift, lift_end, facts)
+        if (capped & in_lift).any():
+            first = int(np.argmax(capped & in_lift))
+            facts.append(SoundingFact("flux_capped", value=float(flux[first]), time_s=float(times[first])))
+        flux = _weakening_flux(times, np.minimum(flux, MAX_HEAT_FLUX_KMS), in_lift, lift_end, facts)
     depth = tops - surface_m
     wstar = np.where(in_lift, convective_velocity_scale(flux, depth, theta_parcel), 0.0)
     strength = CORE_STRENGTH_PER_WSTAR * wstar
