@@ -191,3 +191,26 @@ def test_wind_profile_is_the_soundings_winds_from_the_ground_up():
     day = snd.derive_day(sounding, surface([10, 16], [25.0, 26.0], [5.0, 5.0]), surface_elevation_m=450.0)
     assert [w.height_m for w in day.wind] == list(sounding.height_m[sounding.height_m >= 450.0])
     assert day.wind[0].speed_ms == pytest.approx(float(np.interp(500.0, sounding.height_m, sounding.wind_speed_ms)))
+
+
+def test_after_the_warming_ends_the_flux_fades_linearly_to_nothing_at_the_end_of_lift():
+    # Our assumption (documented in derive_day): from the last warming hour's flux down to
+    # zero at the lift's end, linearly in time.
+    day = _afternoon(25.0)
+    # The surface peaks at 15:00, so 14:00 is the last hour whose half hour either side warms.
+    last = int(np.argmin(np.abs(day.times_s - 14 * 3600.0)))
+    later = [i for i in range(last + 1, len(day.times_s)) if day.times_s[i] <= day.lift_end_s]
+    assert len(later) >= 3 and "weakening_assumed" in {fact.kind for fact in day.facts}
+    for i in later:
+        share = (day.lift_end_s - day.times_s[i]) / (day.lift_end_s - day.times_s[last])
+        assert day.heat_flux_kms[i] == pytest.approx(day.heat_flux_kms[last] * share)
+
+
+def test_warming_faster_than_the_sun_can_drive_is_capped():
+    # Source: MAX_HEAT_FLUX_KMS (about 480 W/m^2, from memory). A 2 km deep layer warming
+    # 3 K an hour would need 1.7 K m/s (2000 W/m^2).
+    sounding = analytic_sounding(surface_c=12.0, lapse_k_per_km=6.0, spread_c=10.0, top_m=8000.0)
+    day = snd.derive_day(sounding, surface([10, 11, 16], [20.0, 23.0, 24.0], [5.0, 5.0, 5.0]))
+    assert np.all(day.heat_flux_kms <= snd.MAX_HEAT_FLUX_KMS)
+    fact = next(f for f in day.facts if f.kind == "flux_capped")
+    assert fact.value > 1.0 and fact.time_s == 10 * 3600.0
