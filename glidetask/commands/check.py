@@ -95,7 +95,17 @@ def check_task(path: str) -> dict:
     from glidetask.engine.task import area_distance_range, nominal_distance_m, optimized_path
     from glidetask.formats.task_file import load_scenario
 
-    scenario = load_scenario(path)
+    problems, scenario, sounding = [], None, None
+    try:
+        scenario = load_scenario(path)
+    except InputError as error:
+        problems += error.problems
+    try:
+        sounding = _task_sounding(path)
+    except InputError as error:
+        problems += error.problems
+    if problems:
+        raise InputError(problems)
     task, day = scenario.task, scenario.day
     result = {
         "kind": "task",
@@ -112,12 +122,33 @@ def check_task(path: str) -> dict:
         "turnpoints": len(scenario.turnpoints),
         "landables": sum(1 for p in scenario.turnpoints if p.landable),
         "terrain_file": scenario.terrain_file,
+        "sounding": sounding,
         "cautions": cautions.general(),
     }
     if task.kind == "area":
         low, high = area_distance_range(task)
         result.update(min_distance_km=low / 1000.0, max_distance_km=high / 1000.0, min_time_s=task.min_time_s)
     return result
+
+
+def _task_sounding(path: str) -> dict | None:
+    """The task's sounding and surface forecast, read and checked (not derived: no MetPy)."""
+    from glidetask.formats.sounding_file import read_day_sounding, read_sounding
+    from glidetask.formats.toml_reader import read_toml
+
+    document, problems = read_toml(Path(path), path)
+    settings = None if document is None else read_day_sounding(document, path)
+    if settings is None:
+        return None
+    sounding = read_sounding(settings.sounding_file)
+    elevation = settings.surface_elevation_m
+    if elevation is not None and not sounding.height_m[0] <= elevation < sounding.height_m[-1]:
+        raise InputError.one(path, "[day] surface_elevation_m",
+                             f"{elevation:g} m lies outside the sounding ({sounding.height_m[0]:g} to "
+                             f"{sounding.height_m[-1]:g} m)")
+    times = settings.surface.times_s
+    return {"file": settings.sounding_file, "levels": len(sounding.height_m),
+            "surface_from": units.format_clock(times[0]), "surface_to": units.format_clock(times[-1])}
 
 
 def check_terrain(path: str) -> dict:
@@ -254,6 +285,10 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
               f"  {result['turnpoints']} turnpoints ({result['landables']} landable); terrain "
               f"{'none' if not result['terrain_file'] else os.path.basename(result['terrain_file'])}",
               f"  {cautions.COMPACT}"]
+    if result.get("sounding"):
+        sounding = result["sounding"]
+        lines.insert(-1, f"  sounding {os.path.basename(sounding['file'])}, {sounding['levels']} levels; surface "
+                         f"forecast {sounding['surface_from']} to {sounding['surface_to']} (glidetask day derives the day)")
     return lines
 
 

@@ -132,3 +132,21 @@ def test_the_day_command_does_use_metpy():
               f"    code = main(['day', {FORECAST!r}, '--json'])\n"
               "print(code, 'metpy' in sys.modules)\n")
     assert _fresh(script) == "0 True"
+
+
+def test_check_reads_a_sounding_and_a_tasks_sounding_keys(tmp_path):
+    code, out, err = _run(["check", FORECAST, str(ROOT / "demo_tasks" / "vardmoor-sounding.csv"), "--json"])
+    assert code == 0 and err == ""
+    task, sounding = json.loads(out)
+    assert task["sounding"]["levels"] == 19 and task["sounding"]["surface_from"] == "08:00"
+    assert sounding["kind"] == "sounding" and sounding["height_range_m"] == [325.0, 10000.0]
+    text = (ROOT / "demo_tasks" / "vardmoor-forecast-day.toml").read_text()
+    bad = tmp_path / "task.toml"
+    bad.write_text(text.replace('"vardmoor-sounding.csv"', '"s.csv"').replace('"vardmoor.geojson"', '"nowhere.geojson"'))
+    (tmp_path / "s.csv").write_text("pressure_hpa,height_m,temperature_c,dewpoint_c,wind_from_deg,wind_speed_kmh\n"
+                                    "970,350,18,9,250,10\n")
+    code, _, err = _run(["check", str(bad)])
+    lines = err.strip().splitlines()
+    assert code == 2 and all(ERROR_LINE.match(line) for line in lines)
+    assert any("[task] turnpoints: no such file" in line for line in lines)  # the task's problems
+    assert any("s.csv: file: a sounding needs at least 5 levels" in line for line in lines)  # and the sounding's
