@@ -449,13 +449,8 @@ def derive_day(sounding: Sounding, surface: SurfaceForecast, *, surface_elevatio
     usable_top = np.where(cumulus, lcl, tops) - band_top_margin_m
     bottom = surface_m + band_bottom_agl_m
 
-    # Trigger: the surface temperature whose thermals give the least useful working band.
-    needed_m = bottom + MIN_WORKING_BAND_M + band_top_margin_m
-    if needed_m >= heights[-1]:
-        raise SoundingTooShortError(heights[-1], needed_m=needed_m)
-    grid = np.concatenate(([surface_m], heights[(heights > surface_m) & (heights < needed_m)], [needed_m]))
-    theta_trigger = float(np.max(np.interp(grid, heights, theta_env)))
-    trigger_c = float(temperature_from_potential_k(p_surface, theta_trigger)) - 273.15
+    trigger_c = _trigger_temperature_c(sounding, theta_env, surface_m, p_surface,
+                                       bottom + MIN_WORKING_BAND_M + band_top_margin_m)
     start, end = crossing_times(surface.times_s, surface.temperature_c, trigger_c)
 
     facts: list[SoundingFact] = []
@@ -488,20 +483,45 @@ def derive_day(sounding: Sounding, surface: SurfaceForecast, *, surface_elevatio
         cape = surface_cape_jkg(sounding, surface_m, temperature_c[warmest] + 273.15, dewpoint_c[warmest] + 273.15)
         if cape >= OVERDEVELOPMENT_CAPE_JKG:
             facts.append(SoundingFact("overdevelopment", value=cape, time_s=float(times[warmest])))
-    if in_lift.any():
-        deepest = int(np.argmax(np.where(in_lift, depth, -np.inf)))
-        if depth[deepest] < SHALLOW_LAYER_M:
-            facts.append(SoundingFact("shallow_layer", value=float(depth[deepest]), time_s=float(times[deepest])))
-        elif depth[deepest] > DEEP_LAYER_M:
-            facts.append(SoundingFact("deep_layer", value=float(depth[deepest]), time_s=float(times[deepest])))
+    facts += _depth_facts(times, depth, in_lift)
 
-    return DerivedDay(
+    arrays = {name: _read_only(value) for name, value in dict(
         times_s=times, surface_temperature_c=temperature_c, surface_dewpoint_c=dewpoint_c, thermal_top_m=tops,
         lcl_m=lcl, cloud_base_m=cloud_base, cumulus=cumulus, band_top_m=band_top, band_bottom_m=band_bottom,
-        heat_flux_kms=flux, wstar_ms=wstar, thermal_strength_ms=strength, lift_start_s=start,
-        lift_end_s=None if start is None else (surface.times_s[-1] if end is None else end),
+        heat_flux_kms=flux, wstar_ms=wstar, thermal_strength_ms=strength).items()}
+    return DerivedDay(
+        **arrays, lift_start_s=start, lift_end_s=None if start is None else (surface.times_s[-1] if end is None else end),
         trigger_temperature_c=trigger_c, cape_jkg=cape, wind=wind_profile(sounding, surface_m), facts=tuple(facts),
         surface_elevation_m=surface_m, band_top_margin_m=band_top_margin_m, band_bottom_agl_m=band_bottom_agl_m)
+
+
+def _read_only(values) -> np.ndarray:
+    array = np.array(values)
+    array.flags.writeable = False
+    return array
+
+
+def _trigger_temperature_c(sounding, theta_env, surface_m, p_surface, needed_m) -> float:
+    """The surface temperature [deg C] whose dry adiabat stays warmer than the sounding up
+    to ``needed_m`` (the least useful working band's top plus the margin)."""
+    heights = sounding.height_m
+    if needed_m >= heights[-1]:
+        raise SoundingTooShortError(heights[-1], needed_m=needed_m)
+    grid = np.concatenate(([surface_m], heights[(heights > surface_m) & (heights < needed_m)], [needed_m]))
+    theta_trigger = float(np.max(np.interp(grid, heights, theta_env)))
+    return float(temperature_from_potential_k(p_surface, theta_trigger)) - 273.15
+
+
+def _depth_facts(times, depth, in_lift) -> list[SoundingFact]:
+    """A very shallow or very deep convective layer during the lift, at its deepest hour."""
+    if not in_lift.any():
+        return []
+    deepest = int(np.argmax(np.where(in_lift, depth, -np.inf)))
+    if depth[deepest] < SHALLOW_LAYER_M:
+        return [SoundingFact("shallow_layer", value=float(depth[deepest]), time_s=float(times[deepest]))]
+    if depth[deepest] > DEEP_LAYER_M:
+        return [SoundingFact("deep_layer", value=float(depth[deepest]), time_s=float(times[deepest]))]
+    return []
 
 
 def _hourly_flux(sounding, surface, times, p_surface, theta_env, surface_m):
