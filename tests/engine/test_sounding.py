@@ -11,6 +11,8 @@ import math
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from glidetask.engine import sounding as snd
 
@@ -214,3 +216,23 @@ def test_warming_faster_than_the_sun_can_drive_is_capped():
     assert np.all(day.heat_flux_kms <= snd.MAX_HEAT_FLUX_KMS)
     fact = next(f for f in day.facts if f.kind == "flux_capped")
     assert fact.value > 1.0 and fact.time_s == 10 * 3600.0
+
+
+@settings(max_examples=25, deadline=None)
+@given(lapse=st.floats(3.0, 8.0), excess=st.floats(0.5, 10.0), spread=st.floats(1.0, 20.0),
+       warmer=st.floats(0.1, 3.0))
+def test_invariants_of_the_derived_hour(lapse, excess, spread, warmer):
+    # Invariants of the method (contract 2.7): a warmer surface never lowers the thermal top;
+    # a drier one never lowers the cloud base; cumulus exactly where the LCL is below the top;
+    # the band never above the lower of base and top less the margin; strength never negative.
+    sounding = analytic_sounding(surface_c=10.0, lapse_k_per_km=lapse, spread_c=15.0, top_m=12000.0, step_m=250.0)
+    temperature = 10.0 + excess
+    day = snd.derive_day(sounding, surface([12, 13, 14], [temperature, temperature + warmer, temperature + warmer],
+                                           [temperature - spread, temperature - spread - 1.0, temperature - spread - 1.0]))
+    assert day.thermal_top_m[1] >= day.thermal_top_m[0]
+    assert day.lcl_m[1] >= day.lcl_m[0]
+    assert np.array_equal(day.cumulus, day.lcl_m < day.thermal_top_m)
+    band = np.isfinite(day.band_top_m)
+    limit = np.minimum(day.lcl_m, day.thermal_top_m) - day.band_top_margin_m
+    assert np.all(day.band_top_m[band] <= limit[band] + 1e-6)
+    assert np.all(day.thermal_strength_ms >= 0.0)
