@@ -81,7 +81,10 @@ def day_text(derived, unit: units.UnitSystem, title: str) -> str:
     else:
         lines.append(f"Lift      {units.format_clock(derived.lift_start_s)} to {units.format_clock(derived.lift_end_s)}"
                      f" (trigger temperature {derived.trigger_temperature_c:.1f} C)")
-    lines.append(f"CAPE      {derived.cape_jkg:.0f} J/kg (surface air, warmest hour with cumulus)")
+    if derived.cumulus.any():
+        lines.append(f"CAPE      {derived.cape_jkg:.0f} J/kg (surface air, warmest hour with cumulus)")
+    else:
+        lines.append("CAPE      not judged: no cumulus forms, the thermals stay below the cloud base")
     lines += ["", f"Wind from the sounding ({h} MSL, from, {unit.speed_label})"]
     lines += [f"  {unit.height(w.height_m):7.0f}  {w.from_deg:03.0f}  {unit.speed(w.speed_ms):4.0f}" for w in derived.wind]
     lines += ["", caution_block(cautions.sounding_cautions(derived.facts, unit))]

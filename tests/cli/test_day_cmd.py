@@ -150,3 +150,17 @@ def test_check_reads_a_sounding_and_a_tasks_sounding_keys(tmp_path):
     assert code == 2 and all(ERROR_LINE.match(line) for line in lines)
     assert any("[task] turnpoints: no such file" in line for line in lines)  # the task's problems
     assert any("s.csv: file: a sounding needs at least 5 levels" in line for line in lines)  # and the sounding's
+
+
+def test_a_day_that_never_triggers_says_so(tmp_path):
+    (tmp_path / "s.csv").write_text("pressure_hpa,height_m,temperature_c,dewpoint_c,wind_from_deg,wind_speed_kmh\n"
+                                    "970,350,18,9,250,10\n948,550,19,7,255,14\n915,850,19.5,5,260,18\n"
+                                    "880,1180,19,2,265,20\n845,1520,17,-1,270,22\n795,2030,14,-6,270,25\n")
+    (tmp_path / "t.toml").write_text('[day]\nsounding = "s.csv"\nsurface = [["12:00", 19.0, 5.0], ["16:00", 20.0, 5.0]]\n')
+    code, out, _ = _run(["day", str(tmp_path / "t.toml"), "--json"])
+    data = json.loads(out)
+    assert code == 0 and data["lift_start"] is None and data["lift_end"] is None
+    assert all(h["thermal_strength_ms"] == 0.0 and h["band_top_m"] is None for h in data["hours"])
+    assert any(text.startswith("No usable thermals") for text in data["cautions"])
+    code, out, _ = _run(["day", str(tmp_path / "t.toml")])
+    assert code == 0 and "Lift      none" in out and "CAPE      not judged" in out
