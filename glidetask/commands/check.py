@@ -1,8 +1,10 @@
 """``glidetask check FILE...``: validate polar, turnpoint, task and terrain files (contract 4).
 
 Each file's kind comes from its name and content: ``.toml`` with a ``[task]`` table is a
-task, with a ``[polar]`` table a polar; ``.geojson``, ``.json`` and ``.csv`` are turnpoint
-files; ``.tif``/``.tiff`` elevation models. Anything else is skipped (not an error), so
+task, with a ``[polar]`` table a polar; a ``.csv`` whose header names the sounding columns
+is a sounding (contract 2.7); other ``.csv``, ``.geojson`` and ``.json`` are turnpoint
+files; ``.tif``/``.tiff`` elevation models. A task with a sounding has its sounding and
+surface forecast read too (the day is not derived here: ``glidetask day`` does that). Anything else is skipped (not an error), so
 ``glidetask check demo_tasks/*`` works on a whole folder. A short summary is printed for
 each good file and every problem of every bad one; the exit status is 2 if any file has a
 problem, else 0. ``--json`` prints a list with one result per file.
@@ -136,7 +138,7 @@ def _task_sounding(path: str) -> dict | None:
     from glidetask.formats.sounding_file import read_day_sounding, read_sounding
     from glidetask.formats.toml_reader import read_toml
 
-    document, problems = read_toml(Path(path), path)
+    document, _ = read_toml(Path(path), path)  # a syntax error is the task reader's to report
     settings = None if document is None else read_day_sounding(document, path)
     if settings is None:
         return None
