@@ -34,7 +34,7 @@ References
 .. [2] R. B. Stull, *An Introduction to Boundary Layer Meteorology*, Kluwer, 1988:
    section 1.6 (w*), section 11.2 (mixed-layer growth by encroachment) (from memory).
 .. [3] MetPy (Unidata): ``potential_temperature``, ``lcl``, ``parcel_profile``,
-   ``cape_cin``; LCL after Romps (2017) iteration as documented by MetPy.
+   ``cape_cin``; the LCL by the exact formula of D. M. Romps, J. Atmos. Sci. 74 (2017), as MetPy documents it.
 .. [4] J. Glendening, the RASP/BLIPMAP parameter notes: w* is the typical thermal updraft
    velocity near the middle of the convective layer (from memory).
 """

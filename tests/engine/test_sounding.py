@@ -75,10 +75,10 @@ def test_cloud_base_follows_the_dew_point_spread_rule(temperature_c, dewpoint_c)
 
 
 def test_cloud_base_is_metpys_lcl_at_its_height_in_the_sounding():
-    # Source: MetPy's lcl() (Romps 2017 iteration) for the surface air; its pressure put
+    # Source: MetPy's lcl() (Romps 2017, exact) for the surface air; its pressure put
     # into the closed-form atmosphere of the sounding, z = z0 + (T0/lapse)(1 - (p/p0)^(Rd*lapse/g)).
     # Tolerance 3 m: log-pressure interpolation between 100 m levels. And Bolton's LCL
-    # temperature (Mon. Wea. Rev. 108, 1980, eq. 15) taken down the dry adiabat at
+    # temperature (Mon. Wea. Rev. 108, 1980, eq. 15; equation number from memory) taken down the dry adiabat at
     # g/cp = 9.77 K/km agrees within 1 % (Bolton's stated accuracy is 0.1 K, about 15 m;
     # the parcel, 1 K warmer than the air, cools 0.4 % faster per metre than g/cp).
     import metpy.calc as mpcalc
@@ -117,7 +117,7 @@ def test_wstar_on_a_worked_case_by_hand():
 
 
 def test_encroachment_heat_content_in_a_linear_theta_profile():
-    # Source: Stull (1988) section 11.2, encroachment into theta = theta0 + gamma*z: the
+    # Source: Stull (1988), mixed-layer growth by encroachment (section from memory) into theta = theta0 + gamma*z: the
     # layer mixed to theta_m reaches h = (theta_m - theta0)/gamma and holds gamma*h^2/2
     # of heat [K m]. gamma = 4 K/km, 6 K warmer: h = 1500 m, 4500 K m. Tolerance 0.5 %:
     # the integral on a 5 m grid.
