@@ -210,6 +210,8 @@ def plan_cautions(plan, units: "UnitSystem") -> list[str]:
     The text output, the JSON (metric), the briefing and the UI all call this."""
     own = general() + [notice_text(notice, units) for notice in plan.notices]
     return own + [text for text in dict.fromkeys(safety_cautions(plan, units)) if text not in own]
+
+
 # ---------------------------------------------------------------- airspace
 
 AIRSPACE = (
@@ -264,4 +266,47 @@ def airspace_cautions(check, units: "UnitSystem", what: str = "Leg", flight_leve
                    f"elevation of {ground_point}: the real limits may differ.")
     if flight_levels:
         out.append(FLIGHT_LEVELS)
+    return out
+
+
+# ---------------------------------------------------------------- the day from a sounding
+
+SOUNDING = (
+    "The day is derived from a forecast sounding and surface forecast: forecasts err, most of all "
+    "in cloud base, overdevelopment and the end of the day; compare with the actual sky before you go.",
+)
+
+
+def sounding_cautions(facts, units: "UnitSystem") -> list[str]:
+    """The cautions of a day derived from a sounding, general and for its
+    :class:`glidetask.engine.sounding.SoundingFact` s, in the reader's units."""
+    out = list(SOUNDING)
+    for fact in facts:
+        if fact.kind == "no_lift":
+            out.append(f"No usable thermals: the surface never reaches the trigger temperature of "
+                       f"{fact.value:.1f} C (warmest forecast {fact.other:.1f} C). Plan no cross-country flight "
+                       f"on this forecast.")
+        elif fact.kind == "overdevelopment":
+            out.append(f"Cumulus may overdevelop into showers or thunderstorms: the surface air at "
+                       f"{format_clock(fact.time_s)} has a CAPE of {fact.value:.0f} J/kg. Watch for spreading "
+                       f"cloud, showers and gust fronts; have landing options ready.")
+        elif fact.kind == "shallow_layer":
+            out.append(f"Very shallow convection: thermals reach at most {units.fmt_height(fact.value)} above "
+                       f"the ground ({format_clock(fact.time_s)}); fields must be in reach all the time.")
+        elif fact.kind == "deep_layer":
+            out.append(f"Very deep convection: thermals reach {units.fmt_height(fact.value)} above the ground "
+                       f"({format_clock(fact.time_s)}): strong, rough thermals; check airspace ceilings and oxygen "
+                       f"rules before climbing to the top.")
+        elif fact.kind == "lift_until_forecast_ends":
+            out.append(f"The surface forecast ends at {format_clock(fact.time_s)} with thermals still going: "
+                       f"the end of lift is not known from it.")
+        elif fact.kind == "lift_before_forecast":
+            out.append(f"The surface forecast starts at {format_clock(fact.time_s)} with thermals already going: "
+                       f"lift may start earlier.")
+        elif fact.kind == "flux_capped":
+            out.append(f"The surface forecast warms faster at {format_clock(fact.time_s)} than the sun can heat the "
+                       f"convective layer: the thermal strength there is limited to what a strong sun gives.")
+        elif fact.kind == "weakening_assumed":
+            out.append(f"From {format_clock(fact.time_s)} the surface no longer warms the layer: the thermal "
+                       f"strength there is assumed to fade to nothing at the end of lift.")
     return out

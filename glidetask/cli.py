@@ -15,7 +15,7 @@ import sys
 
 from glidetask.errors import InputError, Problem
 
-COMMANDS = ("plan", "glide", "polar", "sweep", "check", "export", "odds")
+COMMANDS = ("plan", "glide", "polar", "sweep", "check", "export", "odds", "day")
 CMDLINE = "command line"
 
 
@@ -164,6 +164,10 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, default=1, metavar="S", help="random seed (default 1)")
     p.add_argument("--ballast-kg", type=float, action="append", default=None, metavar="KG",
                    help="a ballast to compare (repeat for several; default: empty, half, full)")
+    _common(p)
+
+    p = sub.add_parser("day", help="the day derived from the task's forecast sounding")
+    p.add_argument("task", metavar="TASK.toml")
     _common(p)
     return parser
 

@@ -1,9 +1,12 @@
 """``glidetask check FILE...``: validate polar, turnpoint, task and terrain files (contract 4).
 
 Each file's kind comes from its name and content: ``.toml`` with a ``[task]`` table is a
-task, with a ``[polar]`` table a polar; ``.geojson`` and ``.json`` are airspace files when
-their features are polygons, else turnpoint files, as are ``.csv`` files; ``.tif``/``.tiff``
-elevation models. Anything else is skipped (not an error), so
+task, with a ``[polar]`` table a polar; a ``.csv`` whose header names the sounding columns
+is a sounding (contract 2.7), other ``.csv`` files are turnpoint files; ``.geojson`` and
+``.json`` are airspace files when their features are polygons, else turnpoint files;
+``.tif``/``.tiff`` elevation models. A task with a sounding has its sounding and surface
+forecast read too (the day is not derived here: ``glidetask day`` does that). Anything else
+is skipped (not an error), so
 ``glidetask check demo_tasks/*`` works on a whole folder. A short summary is printed for
 each good file and every problem of every bad one; the exit status is 2 if any file has a
 problem, else 0. ``--json`` prints a list with one result per file.
@@ -120,7 +123,17 @@ def check_task(path: str) -> dict:
     from glidetask.engine.task_search import area_distance_range, optimized_path
     from glidetask.formats.task_file import load_scenario
 
-    scenario = load_scenario(path)
+    problems, scenario, sounding = [], None, None
+    try:
+        scenario = load_scenario(path)
+    except InputError as error:
+        problems += error.problems
+    try:
+        sounding = _task_sounding(path)
+    except InputError as error:
+        problems += error.problems
+    if problems:
+        raise InputError(problems)
     task, day = scenario.task, scenario.day
     result = {
         "kind": "task",
@@ -137,12 +150,33 @@ def check_task(path: str) -> dict:
         "turnpoints": len(scenario.turnpoints),
         "landables": sum(1 for p in scenario.turnpoints if p.landable),
         "terrain_file": scenario.terrain_file,
+        "sounding": sounding,
         "cautions": cautions.general(),
     }
     if task.kind == "area":
         low, high = area_distance_range(task)
         result.update(min_distance_km=low / 1000.0, max_distance_km=high / 1000.0, min_time_s=task.min_time_s)
     return result
+
+
+def _task_sounding(path: str) -> dict | None:
+    """The task's sounding and surface forecast, read and checked (not derived: no MetPy)."""
+    from glidetask.formats.sounding_file import read_day_sounding, read_sounding
+    from glidetask.formats.toml_reader import read_toml
+
+    document, _ = read_toml(Path(path), path)  # a syntax error is the task reader's to report
+    settings = None if document is None else read_day_sounding(document, path)
+    if settings is None:
+        return None
+    sounding = read_sounding(settings.sounding_file)
+    elevation = settings.surface_elevation_m
+    if elevation is not None and not sounding.height_m[0] <= elevation < sounding.height_m[-1]:
+        raise InputError.one(path, "[day] surface_elevation_m",
+                             f"{elevation:g} m lies outside the sounding ({sounding.height_m[0]:g} to "
+                             f"{sounding.height_m[-1]:g} m)")
+    times = settings.surface.times_s
+    return {"file": settings.sounding_file, "levels": len(sounding.height_m),
+            "surface_from": units.format_clock(times[0]), "surface_to": units.format_clock(times[-1])}
 
 
 def check_terrain(path: str) -> dict:
@@ -170,6 +204,15 @@ def check_terrain(path: str) -> dict:
     }
 
 
+def check_sounding(path: str) -> dict:
+    """Summary of a sounding file (contract 2.7)."""
+    from glidetask.formats.sounding_file import read_sounding
+
+    sounding = read_sounding(path)
+    return {"kind": "sounding", "levels": len(sounding.height_m),
+            "height_range_m": [float(sounding.height_m[0]), float(sounding.height_m[-1])]}
+
+
 def _toml_kind(path: str) -> str:
     """``"task"``, ``"polar"`` or InputError, from the tables a TOML file has."""
     import tomllib
@@ -192,6 +235,11 @@ def file_kind(path: str) -> str:
         return "skipped"
     if suffix == ".toml":
         return "toml"
+    if suffix == ".csv":
+        from glidetask.formats.sounding_file import looks_like_sounding
+
+        if looks_like_sounding(path):
+            return "sounding"
     if suffix in GEOJSON_SUFFIXES:
         return _geojson_kind(path)
     if suffix in TURNPOINT_SUFFIXES:
@@ -214,7 +262,7 @@ def check_file(path: str) -> dict:
             kind = _toml_kind(path)
             result["kind"] = kind
         summary = {"task": check_task, "polar": check_polar, "toml": check_polar, "turnpoints": check_turnpoints,
-                   "airspace": check_airspace, "terrain": check_terrain}[kind](path)
+                   "airspace": check_airspace, "terrain": check_terrain, "sounding": check_sounding}[kind](path)
     except InputError as error:
         return {**result, "ok": False, "problems": _problem_dicts(error.problems)}
     return {**result, **summary, "ok": True, "problems": []}
@@ -248,6 +296,9 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
                 f"  at {result['reference_mass_kg']:g} kg: best glide 1:{result['best_ld']:.1f} at "
                 f"{unit.fmt_speed(result['best_ld_speed_kmh'] * KMH)}, minimum sink {vertical:.2f} "
                 f"{unit.vertical_label} at {unit.fmt_speed(result['min_sink_speed_kmh'] * KMH)}"]
+    if kind == "sounding":
+        low, high = result["height_range_m"]
+        return [f"  sounding of {result['levels']} levels, {unit.fmt_height(low)} to {unit.fmt_height(high)}"]
     if kind == "terrain":
         if not result.get("checked"):
             return ["  elevation model (not checked: the terrain engine is not available)"]
@@ -272,6 +323,10 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
               f"  {result['turnpoints']} turnpoints ({result['landables']} landable); terrain "
               f"{'none' if not result['terrain_file'] else os.path.basename(result['terrain_file'])}",
               f"  {cautions.COMPACT}"]
+    if result.get("sounding"):
+        sounding = result["sounding"]
+        lines.insert(-1, f"  sounding {os.path.basename(sounding['file'])}, {sounding['levels']} levels; surface "
+                         f"forecast {sounding['surface_from']} to {sounding['surface_to']} (glidetask day derives the day)")
     return lines
 
 

@@ -43,7 +43,9 @@ TABLES = ("task", "glider", "day", "safety", "terrain")
 TASK_KEYS = ("name", "kind", "turnpoints", "min_time_min", "points")
 GLIDER_KEYS = ("polar", "pilot_kg", "ballast_kg", "bugs_percent")
 DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind", "climb_ms",
-            "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m")
+            "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m",
+            # the day from a sounding (contract 2.7), read by glidetask.formats.sounding_file
+            "sounding", "surface", "surface_elevation_m", "band_top_margin_m", "band_bottom_agl_m")
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
