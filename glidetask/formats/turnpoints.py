@@ -27,6 +27,7 @@ from pathlib import Path
 from glidetask.engine.task import TURNPOINT_KINDS, Turnpoint
 from glidetask.errors import InputError, ProblemCollector
 from glidetask.formats.atomic import write_atomic
+from glidetask.formats.files import read_text
 
 GEOJSON_SUFFIXES = (".geojson", ".json")
 CSV_SUFFIXES = (".csv",)
@@ -64,20 +65,28 @@ def read_turnpoints(path: str | os.PathLike) -> tuple[Turnpoint, ...]:
     kind = turnpoint_format(path)
     if kind is None:
         raise InputError.one(name, "file", "a turnpoint file must end in .geojson, .json or .csv")
-    try:
-        text = Path(path).read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise InputError.one(name, "file", "no such file") from None
-    except UnicodeDecodeError as error:
-        raise InputError.one(name, "file", f"not UTF-8 text ({error.reason} at byte {error.start})") from None
-    except OSError as error:
-        raise InputError.one(name, "file", f"cannot read: {error.strerror or error}") from None
+    text = read_text(path, name, encoding="utf-8-sig")
     if kind == "geojson":
         return parse_geojson(text, name)
     return parse_csv(text, name)
 
 
 # ---------------------------------------------------------------- field checks
+
+
+def _finite(value) -> bool:
+    """A JSON number that is a finite float (not a bool, not an integer too large for a float)."""
+    return type(value) in (int, float) and -1e308 < value < 1e308
+
+
+def _show(value) -> str:
+    """A JSON value for a message: short, on one line."""
+    if isinstance(value, dict):
+        return "an object"
+    if isinstance(value, list):
+        return "a list"
+    text = json.dumps(value, ensure_ascii=False)
+    return text if len(text) <= 80 else text[:77] + "..."
 
 
 class _Fields:
@@ -102,9 +111,13 @@ class _Fields:
                 self.fail(f"{key} must be a number, got {value!r}")
                 return None
         if isinstance(value, bool) or not isinstance(value, (int, float)):
-            self.fail(f"{key} must be a number, got {json.dumps(value)}")
+            self.fail(f"{key} must be a number, got {_show(value)}")
             return None
-        value = float(value)
+        try:
+            value = float(value)
+        except OverflowError:
+            self.fail(f"{key} must be a finite number, got an integer of {len(str(abs(value)))} digits")
+            return None
         if not math.isfinite(value):
             self.fail(f"{key} must be a finite number, got {value!r}")
             return None
@@ -122,7 +135,7 @@ class _Fields:
                 self.fail(f"{key} is required")
             return None
         if not isinstance(value, str):
-            self.fail(f"{key} must be text, got {json.dumps(value)}")
+            self.fail(f"{key} must be text, got {_show(value)}")
             return None
         return value.strip()
 
@@ -133,7 +146,7 @@ class _Fields:
             return value
         if isinstance(value, str) and value.strip().lower() in ("true", "false", ""):
             return value.strip().lower() == "true"
-        self.fail(f"{key} must be true or false, got {json.dumps(value)}")
+        self.fail(f"{key} must be true or false, got {_show(value)}")
         return None
 
     def kind(self, value) -> str | None:
@@ -141,7 +154,7 @@ class _Fields:
             return "waypoint"
         if isinstance(value, str) and value.strip().lower() in TURNPOINT_KINDS:
             return value.strip().lower()
-        self.fail(f"kind must be one of {', '.join(TURNPOINT_KINDS)}, got {json.dumps(value)}")
+        self.fail(f"kind must be one of {', '.join(TURNPOINT_KINDS)}, got {_show(value)}")
         return None
 
 
@@ -215,7 +228,7 @@ def _plain_feature(feature) -> Turnpoint | None:
             and ELEVATION_RANGE_M[0] <= elevation <= ELEVATION_RANGE_M[1]
             and type(name) is str and name and name == name.strip()
             and (code is None or (type(code) is str and code and code == code.strip()))
-            and type(landable) is bool and kind in _KINDS and type(note) is str
+            and type(landable) is bool and type(kind) is str and kind in _KINDS and type(note) is str
             and (heading is None or (type(heading) in _NUMBER and 0.0 <= heading <= 360.0))
             and (length is None or (type(length) in _NUMBER and 0.0 < length < math.inf))):
         return None
@@ -231,6 +244,10 @@ def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
         document = json.loads(text)
     except json.JSONDecodeError as error:
         raise InputError.one(file, f"line {error.lineno}", f"not valid JSON: {error.msg}") from None
+    except RecursionError:
+        raise InputError.one(file, "file", "JSON nested too deeply (arrays or objects inside each other)") from None
+    except ValueError as error:  # Python's limit on the digits of an integer
+        raise InputError.one(file, "file", f"JSON number too long: {str(error).split(':')[0]}") from None
     if not isinstance(document, dict) or document.get("type") != "FeatureCollection":
         raise InputError.one(file, "top level", "expected a GeoJSON FeatureCollection")
     features = document.get("features")
@@ -268,8 +285,8 @@ def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
             third = fields.number("third coordinate", coordinates[2])
             if elevation is None:
                 elevation = third
-            elif third is not None and isinstance(elevation, (int, float)) and abs(third - elevation) > 0.5:
-                fields.fail(f"elevation_m {elevation:g} disagrees with the third coordinate {third:g}")
+            elif third is not None and _finite(elevation) and abs(third - float(elevation)) > 0.5:
+                fields.fail(f"elevation_m {_show(elevation)} disagrees with the third coordinate {third:g}")
         elif elevation is None and coordinates:
             fields.fail("elevation_m is required (a property or the third coordinate)")
         point = _turnpoint(fields, name, properties.get("code"), lat, lon, elevation,
@@ -288,6 +305,20 @@ def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
 # ---------------------------------------------------------------- CSV
 
 
+def _rows(reader, problems: ProblemCollector, skipped: int):
+    """The reader's rows; a malformed record (such as a field over the csv module's size
+    limit) is reported at its line and ends the reading."""
+    while True:
+        try:
+            row = next(reader)
+        except StopIteration:
+            return
+        except csv.Error as error:
+            problems.add(f"line {skipped + reader.line_num}", f"not valid CSV: {error}")
+            return
+        yield row
+
+
 def parse_csv(text: str, file: str = "<csv>") -> tuple[Turnpoint, ...]:
     """Turnpoints from CSV text (see the module docstring); InputError with every problem."""
     problems = ProblemCollector(file)
@@ -296,7 +327,10 @@ def parse_csv(text: str, file: str = "<csv>") -> tuple[Turnpoint, ...]:
     while skipped < len(lines) and (not lines[skipped].strip() or lines[skipped].lstrip().startswith("#")):
         skipped += 1
     reader = csv.reader(io.StringIO("".join(lines[skipped:])))
-    header = next(reader, None)
+    try:
+        header = next(reader, None)
+    except csv.Error as error:
+        raise InputError.one(file, f"line {skipped + 1}", f"not valid CSV: {error}") from None
     if header is None:
         raise InputError.one(file, "line 1", f"no header row; expected {','.join(CSV_COLUMNS)}")
     header = [column.strip().lower() for column in header]
@@ -315,7 +349,7 @@ def parse_csv(text: str, file: str = "<csv>") -> tuple[Turnpoint, ...]:
     width = len(header)
     points: list[tuple[str, Turnpoint]] = []
     lines_read = reader.line_num
-    for row in reader:
+    for row in _rows(reader, problems, skipped):
         where = f"line {skipped + lines_read + 1}"  # the line the record starts on
         lines_read = reader.line_num
         if not row or all(not cell.strip() for cell in row) or row[0].lstrip().startswith("#"):

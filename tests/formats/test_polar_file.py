@@ -52,7 +52,7 @@ def test_every_problem_is_collected_at_once(tmp_path):
     found = _problems(tmp_path, text)
     assert ("[glider] wing_area_m2", "must be a number, got 'big'") in found
     assert ("[glider] vne_kmh", "missing key") in found
-    assert ("[glider] max_ballast_kg", "must be at least 0, got -5") in found
+    assert ("[glider] max_ballast_kg", "must be in [0, 5000], got -5") in found
 
 
 @pytest.mark.parametrize("old, new, where, fragment", [
@@ -109,7 +109,7 @@ def test_unreadable_and_non_text_files(tmp_path):
     binary = tmp_path / "b.toml"
     binary.write_bytes(b"\xff\xfe\x00label")
     spec, problems = read_polar_spec(binary)
-    assert [p.what for p in problems] == ["is not UTF-8 text"]
+    assert [p.what for p in problems] == ["is not UTF-8 text (invalid start byte at byte 0)"]
 
 
 def test_load_raises_one_input_error_with_every_problem(tmp_path):
