@@ -147,12 +147,11 @@ def check_terrain(path: str) -> dict:
 
 def _toml_kind(path: str) -> str:
     """``"task"``, ``"polar"`` or InputError, from the tables a TOML file has."""
-    import tomllib
+    from glidetask.formats.toml_reader import read_toml
 
-    try:
-        document = tomllib.loads(Path(path).read_bytes().decode("utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
-        return "toml"  # unreadable or malformed: the polar reader says where and why
+    document, problems = read_toml(Path(path), path)
+    if document is None:
+        raise InputError(problems)
     if "task" in document:
         return "task"
     if "polar" in document:
@@ -176,12 +175,15 @@ def file_kind(path: str) -> str:
 
 def check_file(path: str) -> dict:
     """One file's result: ``{"file", "kind", "ok", "problems", ...summary}``."""
+    from glidetask.formats.files import file_problem
+
     kind = file_kind(path)
     result: dict = {"file": path, "kind": kind}
     if kind == "skipped":
         return {**result, "ok": True, "problems": []}
-    if kind != "turnpoints" and not os.path.exists(path):
-        return {**result, "ok": False, "problems": _problem_dicts([Problem(path, "file", "no such file")])}
+    problem = file_problem(path)
+    if problem is not None:
+        return {**result, "ok": False, "problems": _problem_dicts([Problem(path, "file", problem)])}
     try:
         if kind == "toml":
             kind = _toml_kind(path)

@@ -36,7 +36,8 @@ from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
 from glidetask.formats.atomic import write_atomic
-from glidetask.formats.toml_reader import TomlReader, is_number, read_toml, show
+from glidetask.formats.files import file_problem
+from glidetask.formats.toml_reader import TomlReader, as_float, is_number, read_toml, show
 from glidetask.units import KMH, format_clock, parse_clock
 
 TABLES = ("task", "glider", "day", "safety", "terrain")
@@ -47,6 +48,8 @@ DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
+ZONE_SIZE_LIMIT_KM = 1000.0  # far beyond any observation zone (common practice: cylinders of a few tens of km)
+PILOT_LIMIT_KG = 400.0  # two heavy pilots with parachutes in a two-seater, and then some
 DEFAULT_THERMAL_RADIUS_M = 150.0
 
 # Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
@@ -87,6 +90,16 @@ def _resolve(base: Path, value: str) -> Path:
     """A path from a task file, relative to the task file's folder (as the user can open it)."""
     path = Path(os.path.expanduser(value))
     return path if path.is_absolute() else Path(os.path.normpath(base / path))
+
+
+def _folder_of(task_path: str | os.PathLike) -> Path:
+    """The folder a task file's paths are relative to: that of the file itself, through any
+    symbolic link (a task opened through a link finds its files next to the real file)."""
+    path = Path(task_path)
+    try:
+        return Path(os.path.realpath(path)).parent if path.is_symlink() else path.parent
+    except OSError:  # unreadable: the reader says why
+        return path.parent
 
 
 # ---------------------------------------------------------------- [task]
@@ -152,11 +165,20 @@ def _zone(reader: _Reader, entry: dict, where: str, task_kind: str, role: str) -
         elif key == "angle_deg":
             values[key] = reader.number(entry, where, key, default=default, positive=True, high=360.0)
         elif key == "inner_radius_km":
-            values[key] = reader.number(entry, where, key, default=default, low=0.0, high=math.inf)
+            values[key] = reader.number(entry, where, key, default=default, low=0.0, high=ZONE_SIZE_LIMIT_KM)
         else:
-            values[key] = reader.number(entry, where, key, required=default is None, default=default, positive=True)
+            values[key] = reader.number(entry, where, key, required=default is None, default=default, positive=True,
+                                        high=ZONE_SIZE_LIMIT_KM)
     if any(v is None for v in values.values()):
         return None
+    try:
+        return _make_zone(reader, values, where, name, task_kind, role)
+    except ValueError as error:  # a combination the zone itself refuses
+        reader.add(f"{where} zone", str(error))
+        return None
+
+
+def _make_zone(reader: _Reader, values: dict, where: str, name: str, task_kind: str, role: str) -> Zone | None:
     if name == "line":
         return Zone.line(values["length_km"] * 1000.0)
     if name == "cylinder":
@@ -192,8 +214,9 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
     file_value = reader.text(table, "[task]", "turnpoints", required=True)
     if file_value is not None:
         turnpoint_file = _resolve(base, file_value)
-        if not turnpoint_file.is_file():
-            reader.add("[task] turnpoints", f"no such file: {turnpoint_file}")
+        missing = file_problem(turnpoint_file)
+        if missing is not None:
+            reader.add("[task] turnpoints", f"{missing}: {turnpoint_file}")
         else:
             from glidetask.formats.turnpoints import read_turnpoints
 
@@ -210,6 +233,7 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
         return None, turnpoints, turnpoint_file
     find = _lookup(turnpoints) if turnpoints else None
     points, ok = [], kind is not None
+    previous = None
     for number, entry in enumerate(entries, start=1):
         where = f"[[task.points]] {number}"
         reader.unknown(entry, where, ("at", "zone") + _ZONE_SIZE_KEYS)
@@ -221,6 +245,14 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
             if error:
                 reader.add(f"{where} at", error)
         zone = _zone(reader, entry, where, kind, role) if kind is not None else None
+        if point is not None and previous is not None and (point.lat, point.lon) == (previous[1].lat, previous[1].lon):
+            # Twice at one place in a row: a leg of no length (and an optimiser with nothing to choose).
+            same = "the same turnpoint as" if point is previous[1] else "at the same place as"
+            reader.add(f"{where} at", f"{at!r} is {same} point {previous[0]} ({previous[1].name}); "
+                                      "consecutive task points must be at different places")
+            ok = False
+        if point is not None:
+            previous = (number, point)
         if point is None or zone is None:
             ok = False
             continue
@@ -245,18 +277,19 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
 
 
 def _glider(reader: _Reader, table: dict, base: Path) -> GliderSetup | None:
-    from glidetask.formats.polar_file import loading_problems, read_polar_spec
+    from glidetask.formats.polar_file import MASS_LIMIT_KG, loading_problems, read_polar_spec
 
     reader.unknown(table, "[glider]", GLIDER_KEYS)
-    pilot = reader.number(table, "[glider]", "pilot_kg", default=DEFAULT_PILOT_KG, positive=True)
-    ballast = reader.number(table, "[glider]", "ballast_kg", default=0.0, low=0.0, high=math.inf)
+    pilot = reader.number(table, "[glider]", "pilot_kg", default=DEFAULT_PILOT_KG, positive=True, high=PILOT_LIMIT_KG)
+    ballast = reader.number(table, "[glider]", "ballast_kg", default=0.0, low=0.0, high=MASS_LIMIT_KG)
     bugs = reader.number(table, "[glider]", "bugs_percent", default=0.0, low=0.0, high=100.0)
     value = reader.text(table, "[glider]", "polar", required=True)
     if value is None:
         return None
     polar_file = _resolve(base, value)
-    if not polar_file.is_file():
-        reader.add("[glider] polar", f"no such file: {polar_file}")
+    missing = file_problem(polar_file)
+    if missing is not None:
+        reader.add("[glider] polar", f"{missing}: {polar_file}")
         return None
     spec, problems = read_polar_spec(polar_file)
     reader.problems.extend(problems)
@@ -289,9 +322,9 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
             reader.add(here, f"expected a local time as HH:MM, got {pair[0]!r}")
             ok = False
             continue
-        value = float(pair[1])
-        if not math.isfinite(value) or not 0.0 <= value <= 15.0:
-            reader.add(here, f"the value must be in [0, 15] m/s, got {pair[1]!r}")
+        value = as_float(pair[1])
+        if value is None or not math.isfinite(value) or not 0.0 <= value <= 15.0:
+            reader.add(here, f"the value must be in [0, 15] m/s, got {show(pair[1])}")
             ok = False
         if times and time_s <= times[-1]:
             reader.add(here, f"times must increase: {pair[0]} is not after {format_clock(times[-1])}")
@@ -343,7 +376,8 @@ def _day(reader: _Reader, table: dict) -> Day | None:
     airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
-    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True)
+    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True,
+                           high=5000.0)
     if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa, radius):
         return None
     if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
@@ -373,8 +407,9 @@ def _terrain(reader: _Reader, table: dict | None, base: Path) -> str | None:
     if value is None:
         return None
     path = _resolve(base, value)
-    if not path.is_file():
-        reader.add("[terrain] file", f"no such file: {path}")
+    missing = file_problem(path)
+    if missing is not None:
+        reader.add("[terrain] file", f"{missing}: {path}")
         return None
     return str(path.resolve())
 
@@ -412,7 +447,7 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     file = str(path)
     document = _parse_toml(Path(path), file)
     reader = _Reader(file)
-    base = Path(path).parent
+    base = _folder_of(path)
     for key in document:
         if key not in TABLES:
             reader.add(f"[{key}]", f"unknown table (expected {', '.join('[' + t + ']' for t in TABLES)})")
@@ -439,7 +474,7 @@ def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
     except InputError:
         return None
     value = document.get("task", {}).get("turnpoints") if isinstance(document.get("task"), dict) else None
-    return _resolve(Path(task_path).parent, value) if isinstance(value, str) else None
+    return _resolve(_folder_of(task_path), value) if isinstance(value, str) else None
 
 
 # ---------------------------------------------------------------- writing
