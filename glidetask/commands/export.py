@@ -4,12 +4,17 @@ The file's suffix chooses the format: ``.gpx`` (a GPX 1.1 route of the planned p
 ``.md`` (the pre-flight briefing, in the ``--units`` chosen) or ``.json`` (the
 plan as ``plan --json`` prints it). The what-if options work as for ``plan``. The file
 is written atomically: an interrupted export never leaves half a file behind.
+
+An export never replaces a file the task reads (the task itself, its polar, turnpoints,
+terrain, or any other file it names), with or without ``--force``; any other existing file
+(a read-only one included) only with ``--force``. A symbolic link is written through.
 """
 
 from __future__ import annotations
 
 import argparse
 import json
+import os
 from pathlib import Path
 
 from glidetask import cautions
@@ -20,18 +25,50 @@ from glidetask.errors import InputError, Problem
 FORMATS = {".gpx": "GPX 1.1 route", ".md": "pre-flight briefing (Markdown)", ".json": "plan JSON"}
 
 
-def target_problems(target: str) -> list[Problem]:
-    """What is wrong with ``--to``: an unknown suffix, or a folder that does not exist."""
+def target_problems(target: str, force: bool = False) -> list[Problem]:
+    """What is wrong with ``--to``: an unknown suffix, a folder that does not exist, a folder
+    given as the file, or (without ``force``) a file that exists already."""
     path = Path(target)
     problems = []
     if path.suffix.lower() not in FORMATS:
         problems.append(Problem(CMDLINE, "--to", f"unknown file type {path.suffix or '(none)'!r} in {target!r}; "
                                                  f"use .gpx, .md or .json"))
-    if not path.parent.is_dir():
+    if not os.path.isdir(path.parent):
         problems.append(Problem(CMDLINE, "--to", f"no such folder: {str(path.parent)!r}"))
-    elif path.is_dir():
+    elif os.path.isdir(path):
         problems.append(Problem(CMDLINE, "--to", f"{target!r} is a folder; give a file name"))
+    elif os.path.lexists(path) and not force:
+        problems.append(Problem(CMDLINE, "--to", f"{target!r} exists; add --force to replace it"))
     return problems
+
+
+def input_files(scenario) -> list[str]:
+    """Every file a task reads: the task file and each file it names (polar, turnpoints,
+    terrain, and any other ``*_file`` the scenario carries, such as airspace or a sounding)."""
+    files = [scenario.source, getattr(scenario.glider, "polar_file", None)]
+    files += [value for name, value in vars(scenario).items() if name.endswith("_file")]
+    return [os.fspath(f) for f in files if isinstance(f, (str, os.PathLike)) and f]
+
+
+def protected_target_problem(target: str | os.PathLike, scenario) -> str | None:
+    """Why ``target`` must never be written for this task (it is a file the task reads), or None.
+    The terminal UI's export and save use this too."""
+    from glidetask.formats.atomic import write_target
+
+    try:
+        real = os.path.normcase(str(write_target(target)))
+    except OSError:
+        return None  # writing will fail and say why
+    for source in input_files(scenario):
+        same = os.path.normcase(os.path.realpath(source)) == real
+        if not same:
+            try:
+                same = os.path.samefile(source, real)
+            except OSError:
+                same = False
+        if same:
+            return f"{os.fspath(target)!r} is {os.fspath(source)!r}, a file the task reads; choose another name"
+    return None
 
 
 def render(plan, suffix: str, unit_name: str = "metric") -> str:
@@ -59,12 +96,16 @@ def render(plan, suffix: str, unit_name: str = "metric") -> str:
 def run(args: argparse.Namespace) -> int:
     from glidetask.commands.plan import plan_from_args
 
-    plan = plan_from_args(args, target_problems(args.to))
+    force = getattr(args, "force", False)
+    plan = plan_from_args(args, target_problems(args.to, force))
+    protected = protected_target_problem(args.to, plan.scenario)
+    if protected:
+        raise InputError.one(CMDLINE, "--to", protected)
     suffix = Path(args.to).suffix.lower()
     from glidetask.formats.atomic import write_atomic
 
     try:
-        write_atomic(args.to, render(plan, suffix, args.units))
+        write_atomic(args.to, render(plan, suffix, args.units), replace_read_only=force)
     except OSError as error:
         raise InputError.one(CMDLINE, "--to", f"cannot write {args.to!r}: {error.strerror or error}") from None
     if args.json:
