@@ -7,7 +7,8 @@ all of it and reports every problem at once, each with its key path:
 ``[[task.points]] 3 zone`` (points counted from 1), ``[day] climb_ms[2]`` (pairs counted
 from 1), ``[glider] polar``. Problems inside the turnpoint or polar file carry that file's
 name. :func:`save_task` writes a scenario back (atomically), keeping the referenced files
-relative to the new task file.
+relative to the new task file, over the previous text so that comments, order and spelling
+stay for what did not change.
 
 Zone keys, sizes in km (contract 2.3):
 
@@ -581,9 +582,204 @@ def _leading_comments(path: str | os.PathLike | None) -> str | None:
     return "\n".join(comments) or None
 
 
+# ---------------------------------------------------------------- saving over the user's own text
+#
+# A save keeps the user's comments, order and spelling for everything that did not change
+# (shared/CONTRACT.md section 7): the new file is the previous text (tomlkit keeps its comments
+# and layout) with only the values that mean something else replaced, added or removed.
+# "Means the same" is judged on normalised values: a turnpoint by the point it names
+# (``at = "Kellow Hill"`` and ``at = "KLH"`` are one place), a path by the file it reaches,
+# clock times by their minute, numbers to the writer's six decimals, zones without the
+# ``area_`` prefix, and an absent key by the reader's default.
+
+_TABLE_DEFAULTS = {
+    "task": {"kind": "racing"},
+    "glider": {"pilot_kg": DEFAULT_PILOT_KG, "ballast_kg": 0.0, "bugs_percent": 0.0},
+    "day": {"thermal_radius_m": DEFAULT_THERMAL_RADIUS_M, "glide_airmass_ms": 0.0, "isa_deviation_c": 0.0},
+    "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0},
+    "terrain": {},
+}
+_PATH_KEYS = {("task", "turnpoints"), ("glider", "polar"), ("terrain", "file")}
+
+
+class _Normaliser:
+    """Values of a task document reduced to what they mean, for comparing two documents."""
+
+    def __init__(self, folder: Path, turnpoints: tuple[Turnpoint, ...], default_name: str):
+        self.folder = folder
+        self.find = _lookup(turnpoints) if turnpoints else None
+        self.default_name = default_name
+
+    def value(self, key: tuple, value: Any) -> Any:
+        if key[-2:] in _PATH_KEYS:
+            return ("path", os.path.realpath(_resolve(self.folder, value))) if isinstance(value, str) else value
+        if key[-1] == "at" and isinstance(value, str) and self.find is not None:
+            point, _ = self.find(value.strip())
+            return ("turnpoint", point.name) if point is not None else value
+        if key[-1] == "zone" and isinstance(value, str):
+            return value.strip().lower().removeprefix("area_")
+        if isinstance(value, bool):
+            return value
+        if isinstance(value, (int, float)):
+            number = as_float(value)
+            return round(number, 6) if number is not None and math.isfinite(number) else ("number", str(value))
+        if isinstance(value, str):
+            try:
+                return ("clock", parse_clock(value))
+            except ValueError:
+                return value
+        if isinstance(value, (list, tuple)):
+            return tuple(self.value(key + ("[]",), v) for v in value)
+        if isinstance(value, dict):
+            return {k: self.value(key + (k,), v) for k, v in value.items()}
+        return value
+
+    def point(self, entry: dict, kind: str, role: str) -> dict:
+        values = {k: self.value(("task", "points", k), v) for k, v in entry.items()}
+        zone = values.get("zone")
+        table = _START_FINISH if role != "turn" else _AREA_TURNS if kind == "area" else _RACING_TURNS
+        for key, default in table.get(zone, {}).items() if isinstance(zone, str) else ():
+            if default is not None:
+                values.setdefault(key, round(default, 6))
+        return values
+
+    def document(self, document: dict) -> dict:
+        """The whole document with defaults filled in (points by role)."""
+        result = {}
+        for name, defaults in _TABLE_DEFAULTS.items():
+            table = document.get(name)
+            if table is None and name in ("terrain",):
+                continue
+            table = dict(table or {})
+            values = {k: self.value((name, k), v) for k, v in table.items() if not (name == "task" and k == "points")}
+            for key, default in defaults.items():
+                values.setdefault(key, self.value((name, key), default))
+            if name == "task":
+                values.setdefault("name", self.default_name)
+                points = table.get("points") or []
+                kind = table.get("kind", "racing")
+                values["points"] = [self.point(entry, kind, "start" if i == 0 else "finish" if i == len(points) - 1
+                                               else "turn") for i, entry in enumerate(points)]
+            result[name] = values
+        return result
+
+
+def _keep_comment(old_item, new_item):
+    """``new_item`` with the end-of-line comment of the item it replaces."""
+    trivia = getattr(old_item, "trivia", None)
+    if trivia is not None and trivia.comment and hasattr(new_item, "trivia"):
+        new_item.trivia.comment = trivia.comment
+        new_item.trivia.comment_ws = trivia.comment_ws
+    return new_item
+
+
+def _merge_table(old, new, key: tuple, norm: _Normaliser, defaults: dict, same_default: bool = True) -> None:
+    """Change ``old`` (a tomlkit table) in place to mean what ``new`` means."""
+    for name in list(old.keys()):
+        if name not in new and not (key == ("task",) and name == "points"):
+            del old[name]
+    for name, value in new.items():
+        if key == ("task",) and name == "points":
+            continue
+        where = key + (name,)
+        if name in old:
+            if norm.value(where, old[name].unwrap() if hasattr(old[name], "unwrap") else old[name]) \
+                    != norm.value(where, value.unwrap() if hasattr(value, "unwrap") else value):
+                old[name] = _keep_comment(old[name], value)
+        elif not (same_default and name in defaults
+                  and norm.value(where, defaults[name]) == norm.value(where, value.unwrap())):
+            old[name] = value
+
+
+def _merge_points(old_task, new_task, norm: _Normaliser, kind: str) -> None:
+    import difflib
+
+    import tomlkit
+
+    new_points = new_task["points"]
+    old_points = old_task.get("points")
+    count = len(new_points)
+    roles = ["start" if i == 0 else "finish" if i == count - 1 else "turn" for i in range(count)]
+
+    def zone_defaults(entry, role) -> dict:
+        zone = norm.value(("task", "points", "zone"), entry.get("zone"))
+        table = _START_FINISH if role != "turn" else _AREA_TURNS if kind == "area" else _RACING_TURNS
+        return {k: v for k, v in table.get(zone, {}).items() if v is not None} if isinstance(zone, str) else {}
+
+    if not isinstance(old_points, tomlkit.items.AoT):
+        old_task["points"] = new_points
+        return
+    identity = lambda entry: norm.value(("task", "points", "at"), entry.get("at"))  # noqa: E731
+    if len(old_points) == count:
+        pairs = list(range(count))
+    else:
+        pairs = [None] * count
+        matcher = difflib.SequenceMatcher(a=[identity(e) for e in old_points], b=[identity(e) for e in new_points],
+                                          autojunk=False)
+        for block in matcher.get_matching_blocks():
+            for offset in range(block.size):
+                pairs[block.b + offset] = block.a + offset
+    tables = []
+    for index, (entry, old_index) in enumerate(zip(new_points, pairs)):
+        if old_index is None:
+            tables.append(entry)
+            continue
+        table = old_points[old_index]
+        _merge_table(table, entry, ("task", "points"), norm, zone_defaults(entry, roles[index]))
+        tables.append(table)
+    if pairs == list(range(count)) and len(old_points) == count:
+        return  # changed in place
+    while len(old_points):
+        del old_points[0]
+    for table in tables:
+        old_points.append(table)
+
+
+def _merged_text(previous: str, fresh: str, folder: Path, scenario: Scenario) -> str | None:
+    """``previous`` changed to mean what ``fresh`` means, or None if that cannot be done safely."""
+    import tomllib
+
+    import tomlkit
+
+    try:
+        old = tomlkit.parse(previous)
+        new = tomlkit.parse(fresh)
+    except Exception:  # noqa: BLE001 - anything tomlkit cannot keep: write the fresh text
+        return None
+    default_name = Path(scenario.source).stem if scenario.source else ""
+    norm = _Normaliser(folder, scenario.turnpoints or (), default_name)
+    try:
+        for name in list(old.keys()):
+            if name not in new:
+                del old[name]
+        for name, table in new.items():
+            defaults = dict(_TABLE_DEFAULTS.get(name, {}))
+            if name == "task":
+                defaults["name"] = default_name
+            if name not in old:
+                kept = {k: v for k, v in table.items()
+                        if not (k in defaults and norm.value((name, k), defaults[k]) == norm.value((name, k), v.unwrap()))}
+                if kept:
+                    old[name] = table
+                continue
+            _merge_table(old[name], table, (name,), norm, defaults)
+            if name == "task":
+                _merge_points(old[name], table, norm, str(table.get("kind", "racing")))
+        text = tomlkit.dumps(old)
+        same = norm.document(tomllib.loads(text)) == norm.document(tomllib.loads(fresh))
+    except Exception:  # noqa: BLE001 - a layout tomlkit cannot edit: write the fresh text
+        return None
+    return text if same else None
+
+
 def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: str | os.PathLike | None = None,
               header: str | None = None) -> None:
     """Write ``scenario`` as a task file (contract 2.3), atomically.
+
+    The text is the task file the scenario was read from (``scenario.source``) with only
+    what changed rewritten, so the user's comments, order and spelling stay; with no
+    readable source, a fresh file. A symbolic link is written through to its target, and
+    the paths in the file are relative to the target's folder.
 
     Parameters
     ----------
@@ -595,23 +791,46 @@ def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: s
         The turnpoint file the task refers to. Default: the ``turnpoints_file`` attribute
         of the scenario if it has one, else the file named by ``scenario.source``.
     header : str, optional
-        Comment lines for the top of the file. Default: the leading comment block of
+        Comment lines for the top of a fresh file. Default: the leading comment block of
         ``scenario.source`` (so a note such as "invented demo data" is kept).
 
     Raises
     ------
     ValueError
-        If the turnpoint file cannot be found out.
+        If the turnpoint file cannot be found out, or ``path`` is a file the task reads
+        (its polar, turnpoints or terrain).
+    OSError
+        If the file cannot be written (read-only, a name too long, no such folder).
     """
-    target = Path(path)
+    from glidetask.formats.atomic import write_atomic, write_target
+
+    target = write_target(path)
     if turnpoints_file is None:
         turnpoints_file = scenario.turnpoints_file or (
             turnpoints_file_of(scenario.source) if scenario.source else None)
     if turnpoints_file is None:
         raise ValueError("save_task needs the turnpoint file: pass turnpoints_file=")
+    reads = [turnpoints_file, scenario.glider.polar_file if scenario.glider else None, scenario.terrain_file]
+    for other in (f for f in reads if f):
+        if os.path.realpath(other) == str(target):
+            raise ValueError(f"{os.fspath(path)} is {other}, a file the task reads; save the task under another name")
     if header is None:
         header = _leading_comments(scenario.source)
-    write_atomic(target, scenario_to_toml(scenario, target.parent, turnpoints_file, header))
+    fresh = scenario_to_toml(scenario, target.parent, turnpoints_file, header)
+    previous = _previous_text(scenario.source)
+    text = _merged_text(previous, fresh, target.parent, scenario) if previous is not None else None
+    write_atomic(target, fresh if text is None else text)
+
+
+def _previous_text(source: str | os.PathLike | None) -> str | None:
+    if not source:
+        return None
+    from glidetask.formats.files import read_text
+
+    try:
+        return read_text(source, str(source))
+    except InputError:
+        return None
 
 
 __all__ = ["load_scenario", "save_task", "scenario_to_toml", "turnpoints_file_of"]
