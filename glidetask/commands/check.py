@@ -17,7 +17,7 @@ import os
 from pathlib import Path
 
 from glidetask import cautions, units
-from glidetask.errors import InputError, Problem
+from glidetask.errors import InputError, Problem, one_line
 
 TURNPOINT_SUFFIXES = (".geojson", ".json", ".csv")
 TERRAIN_SUFFIXES = (".tif", ".tiff")
@@ -252,13 +252,14 @@ def run(args: argparse.Namespace) -> int:
     else:
         unit = units.by_name(args.units)
         for result in results:
+            name = one_line(result["file"])
             if result["ok"]:
                 label = "skipped (not a glidetask file)" if result["kind"] == "skipped" else f"{result['kind']}, ok"
-                print(f"{result['file']}: {label}")
+                print(f"{name}: {label}")
                 if result["kind"] != "skipped":
                     print("\n".join(_summary_lines(result, unit)))
             else:
-                print(f"{result['file']}: {result['kind']}, {len(result['problems'])} problem(s) (listed on stderr)")
+                print(f"{name}: {result['kind']}, {len(result['problems'])} problem(s) (listed on stderr)")
     if problems:
         raise InputError(problems)
     return 0
