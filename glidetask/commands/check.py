@@ -34,15 +34,13 @@ def check_turnpoints(path: str) -> dict:
     """Summary of a turnpoint file (raises InputError with its problems)."""
     from glidetask.formats.turnpoints import read_turnpoints
 
+    from collections import Counter
+
     points = read_turnpoints(path)
-    by_kind = {kind: 0 for kind in ("airfield", "field", "waypoint")}
-    landable_by_kind = dict(by_kind)
-    lats, lons = [], []
-    for p in points:
-        by_kind[p.kind] += 1
-        landable_by_kind[p.kind] += bool(p.landable)
-        lats.append(p.lat)
-        lons.append(p.lon)
+    counts = Counter([(p.kind, bool(p.landable)) for p in points])
+    by_kind = {kind: counts[kind, False] + counts[kind, True] for kind in ("airfield", "field", "waypoint")}
+    landable_by_kind = {kind: counts[kind, True] for kind in by_kind}
+    lats, lons = [p.lat for p in points], [p.lon for p in points]
     return {
         "kind": "turnpoints",
         "count": len(points),
