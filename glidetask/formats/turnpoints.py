@@ -274,7 +274,7 @@ def _plain_feature(feature) -> Turnpoint | None:
             and (code is None or (type(code) is str and code and code == code.strip()))
             and type(landable) is bool and type(kind) is str and kind in _KINDS and type(note) is str
             and (heading is None or (type(heading) in _NUMBER and 0.0 <= heading <= 360.0))
-            and (length is None or (type(length) in _NUMBER and 0.0 < length < math.inf))):
+            and (length is None or (type(length) in _NUMBER and 0.0 < length < 1e308))):
         return None
     return _new_turnpoint(name, code, float(lat), _fold(lon), float(elevation), landable, kind,
                           None if heading is None else float(heading), None if length is None else float(length),
