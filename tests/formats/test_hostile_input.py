@@ -91,6 +91,7 @@ def _task_text(**replace: str) -> str:
     text = (DEMO / "vardmoor-out-and-return.toml").read_text(encoding="utf-8")
     text = text.replace('turnpoints = "vardmoor.geojson"', f'turnpoints = "{DEMO / "vardmoor.geojson"}"')
     text = text.replace('polar = "../polars/', f'polar = "{ROOT / "polars"}/')
+    text = text.replace('file = "terrain.tif"', f'file = "{DEMO / "terrain.tif"}"')
     for old, new in replace.items():
         assert old in text, old
         text = text.replace(old, new)
@@ -239,7 +240,7 @@ def test_folder_fifo_device_and_symlink_loop_say_what_they_are(capsys, tmp_path)
             assert_input_error(capsys, path, command, path, says=says)
     task = tmp_path / "task.toml"
     task.write_text(_task_text(**{f'"{DEMO / "vardmoor.geojson"}"': f'"{fifo}"'}), encoding="utf-8")
-    assert_input_error(capsys, task, "plan", str(task), says=f"named pipe (FIFO): {fifo}")
+    assert_input_error(capsys, task, "plan", str(task), says=f"named pipe (FIFO), not a regular file: {fifo}")
 
 
 def test_a_text_file_over_the_size_cap_is_refused_unread(tmp_path):
