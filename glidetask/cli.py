@@ -256,6 +256,12 @@ def _run_command(args: argparse.Namespace) -> int:
 def main(argv: list[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     ui_mode = not argv or (argv[0] not in COMMANDS and argv[0] not in ("-h", "--help", "--version"))
+    if ui_mode and argv and not argv[0].startswith("-"):
+        from glidetask.formats.files import file_problem
+
+        if file_problem(argv[0]) is not None:  # before parsing: "chek a.toml" is a mistyped command
+            print("\n".join(not_a_command(argv[0])), file=sys.stderr)
+            return 2
     parser = build_ui_parser() if ui_mode else build_parser()
     try:
         args = parser.parse_args(argv if ui_mode else join_negative_values(parser, argv))

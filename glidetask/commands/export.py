@@ -25,11 +25,19 @@ from glidetask.errors import InputError, Problem
 FORMATS = {".gpx": "GPX 1.1 route", ".md": "pre-flight briefing (Markdown)", ".json": "plan JSON"}
 
 
-def target_problems(target: str, force: bool = False) -> list[Problem]:
+def target_problems(target: str, force: bool = False, task: str | None = None) -> list[Problem]:
     """What is wrong with ``--to``: an unknown suffix, a folder that does not exist, a folder
-    given as the file, or (without ``force``) a file that exists already."""
+    given as the file, a file the task ``task`` reads (never replaced), or (without ``force``)
+    a file that exists already."""
     path = Path(target)
     problems = []
+    if task is not None and os.path.lexists(path):
+        from glidetask.formats.task_file import files_named_by
+
+        reads = _same_file_as(path, files_named_by(task))
+        if reads is not None:
+            return [Problem(CMDLINE, "--to", f"{target!r} is {str(reads)!r}, a file the task reads; "
+                                             "choose another name")]
     if path.suffix.lower() not in FORMATS:
         problems.append(Problem(CMDLINE, "--to", f"unknown file type {path.suffix or '(none)'!r} in {target!r}; "
                                                  f"use .gpx, .md or .json"))
@@ -40,6 +48,26 @@ def target_problems(target: str, force: bool = False) -> list[Problem]:
     elif os.path.lexists(path) and not force:
         problems.append(Problem(CMDLINE, "--to", f"{target!r} exists; add --force to replace it"))
     return problems
+
+
+def _same_file_as(target: str | os.PathLike, files) -> str | os.PathLike | None:
+    """The one of ``files`` that ``target`` would write (through links), or None."""
+    from glidetask.formats.atomic import write_target
+
+    try:
+        real = os.path.normcase(str(write_target(target)))
+    except OSError:
+        return None  # writing will fail and say why
+    for source in files:
+        same = os.path.normcase(os.path.realpath(source)) == real
+        if not same:
+            try:
+                same = os.path.samefile(source, real)
+            except OSError:
+                same = False
+        if same:
+            return source
+    return None
 
 
 def input_files(scenario) -> list[str]:
@@ -53,22 +81,10 @@ def input_files(scenario) -> list[str]:
 def protected_target_problem(target: str | os.PathLike, scenario) -> str | None:
     """Why ``target`` must never be written for this task (it is a file the task reads), or None.
     The terminal UI's export and save use this too."""
-    from glidetask.formats.atomic import write_target
-
-    try:
-        real = os.path.normcase(str(write_target(target)))
-    except OSError:
-        return None  # writing will fail and say why
-    for source in input_files(scenario):
-        same = os.path.normcase(os.path.realpath(source)) == real
-        if not same:
-            try:
-                same = os.path.samefile(source, real)
-            except OSError:
-                same = False
-        if same:
-            return f"{os.fspath(target)!r} is {os.fspath(source)!r}, a file the task reads; choose another name"
-    return None
+    source = _same_file_as(target, input_files(scenario))
+    if source is None:
+        return None
+    return f"{os.fspath(target)!r} is {os.fspath(source)!r}, a file the task reads; choose another name"
 
 
 def render(plan, suffix: str, unit_name: str = "metric") -> str:
@@ -97,7 +113,7 @@ def run(args: argparse.Namespace) -> int:
     from glidetask.commands.plan import plan_from_args
 
     force = getattr(args, "force", False)
-    plan = plan_from_args(args, target_problems(args.to, force))
+    plan = plan_from_args(args, target_problems(args.to, force, args.task))
     protected = protected_target_problem(args.to, plan.scenario)
     if protected:
         raise InputError.one(CMDLINE, "--to", protected)

@@ -468,6 +468,37 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
 
 
+def files_named_by(task_path: str | os.PathLike) -> list[Path]:
+    """The task file and every existing file its text names (turnpoints, polar, terrain, and any
+    other path such as an airspace or a sounding file), resolved as the reader resolves them.
+    Empty if the task cannot be read. For writers that must never replace a file the task reads."""
+    from glidetask.formats.files import file_problem
+
+    document, _ = read_toml(Path(task_path), str(task_path))
+    if document is None:
+        return []
+    folder = _folder_of(task_path)
+    found = [Path(task_path)]
+
+    def walk(value) -> None:
+        if isinstance(value, dict):
+            for item in value.values():
+                walk(item)
+        elif isinstance(value, list):
+            for item in value:
+                walk(item)
+        elif isinstance(value, str) and value.strip() and "\0" not in value:
+            try:
+                path = _resolve(folder, value.strip())
+            except (ValueError, RuntimeError):
+                return
+            if file_problem(path) is None:
+                found.append(path)
+
+    walk(document)
+    return found
+
+
 def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
     """The turnpoint file a task file names (resolved against its folder), or None."""
     try:
@@ -595,7 +626,8 @@ def _leading_comments(path: str | os.PathLike | None) -> str | None:
 _TABLE_DEFAULTS = {
     "task": {"kind": "racing"},
     "glider": {"pilot_kg": DEFAULT_PILOT_KG, "ballast_kg": 0.0, "bugs_percent": 0.0},
-    "day": {"thermal_radius_m": DEFAULT_THERMAL_RADIUS_M, "glide_airmass_ms": 0.0, "isa_deviation_c": 0.0},
+    "day": {"thermal_radius_m": DEFAULT_THERMAL_RADIUS_M, "glide_airmass_ms": 0.0, "isa_deviation_c": 0.0,
+            "wind": {"from_deg": 0.0, "speed_kmh": 0.0}},
     "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0},
     "terrain": {},
 }
@@ -622,7 +654,9 @@ class _Normaliser:
             return value
         if isinstance(value, (int, float)):
             number = as_float(value)
-            return round(number, 6) if number is not None and math.isfinite(number) else ("number", str(value))
+            if number is None or not math.isfinite(number):
+                return ("number", str(value))
+            return round(number % 360.0 if key[-1] == "from_deg" else number, 6)
         if isinstance(value, str):
             try:
                 return ("clock", parse_clock(value))
