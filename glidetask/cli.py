@@ -13,6 +13,7 @@ import importlib
 import math
 import re
 import sys
+from functools import lru_cache
 
 from glidetask import __version__
 from glidetask.errors import InputError, Problem, one_line
@@ -101,6 +102,7 @@ def _what_if_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--start", default=None, metavar="HH:MM", help="start time (local clock)")
 
 
+@lru_cache(maxsize=1)
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="glidetask",
@@ -170,6 +172,7 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+@lru_cache(maxsize=1)
 def build_ui_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="glidetask", description="Open the terminal UI.")
     parser.add_argument("task", nargs="?", default=None, metavar="TASK.toml",
