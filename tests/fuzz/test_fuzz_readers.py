@@ -3,7 +3,8 @@
 Each input is a valid file mutated by a generator of our own (byte flips, cuts and
 repeats; numbers swapped for hostile ones; text swapped for line breaks, NULs and long
 strings; brackets nested deep), fed to ``glidetask check`` (and ``polar`` for polars). The
-contract's outcome must hold for every one (shared/CONTRACT.md section 7): exit 0 with
+contract's outcome must hold for every one (and a task that ``check`` passes must also
+``plan``, checked on a sample) (shared/CONTRACT.md section 7): exit 0 with
 nothing on stderr, or exit 2 with only one-line ``glidetask: error: FILE: WHERE: WHAT``
 lines, at least one naming the file; never an internal error (exit 1), a traceback or a
 hang (each input has a 10 s alarm).
@@ -198,6 +199,8 @@ def test_every_mutated_input_ends_as_the_contract_says(reader, tmp_path, capfd, 
             broken = _outcome_holds(status, err, str(path)) if status != -1 else err
             if command[0] == "check" and status in outcomes:
                 outcomes[status] += 1
+            if reader == "task" and command[0] == "check" and status == 0 and len(commands) == 1 and number % 5 == 0:
+                commands.append(["plan", str(path), "--json"])  # what check passes must also plan
             if broken:
                 failures.append(f"{reader} input {number} (seed {SEED}), {command[0]}: {broken}")
         path.unlink()
