@@ -205,7 +205,7 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
     if kind is not None and kind not in ("racing", "area"):
         reader.add("[task] kind", f"unknown task kind {kind!r}; expected \"racing\" or \"area\"")
         kind = None
-    minutes = reader.number(table, "[task]", "min_time_min", positive=True)
+    minutes = reader.number(table, "[task]", "min_time_min", positive=True, high=24 * 60.0)
     if kind == "racing" and "min_time_min" in table:
         reader.add("[task] min_time_min", "a minimum time belongs to area tasks (kind = \"area\") only")
     if kind == "area" and "min_time_min" not in table:
