@@ -35,12 +35,13 @@ def check_turnpoints(path: str) -> dict:
     from glidetask.formats.turnpoints import read_turnpoints
 
     from collections import Counter
+    from operator import attrgetter
 
-    points = read_turnpoints(path)
-    counts = Counter([(p.kind, bool(p.landable)) for p in points])
+    points = read_turnpoints(path)  # C-speed passes below: files may hold 200,000 points
+    counts = Counter(map(attrgetter("kind", "landable"), points))
     by_kind = {kind: counts[kind, False] + counts[kind, True] for kind in ("airfield", "field", "waypoint")}
     landable_by_kind = {kind: counts[kind, True] for kind in by_kind}
-    lats, lons = [p.lat for p in points], [p.lon for p in points]
+    lats, lons = list(map(attrgetter("lat"), points)), list(map(attrgetter("lon"), points))
     return {
         "kind": "turnpoints",
         "count": len(points),

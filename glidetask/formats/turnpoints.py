@@ -25,9 +25,10 @@ import math
 import os
 import re
 from contextlib import contextmanager
+from operator import attrgetter
 from pathlib import Path
 
-from glidetask.engine.task import TURNPOINT_KINDS, Turnpoint
+from glidetask.engine.turnpoint import TURNPOINT_KINDS, Turnpoint
 from glidetask.errors import InputError, ProblemCollector
 from glidetask.formats.atomic import write_atomic
 from glidetask.formats.files import read_text
@@ -205,9 +206,11 @@ def _place(where: str | int, point: Turnpoint) -> str:
 
 def _unique(points: list[Turnpoint]) -> bool:
     """Whether no two of the turnpoints share a name or a code."""
-    names = {point.name for point in points}
-    codes = [point.code for point in points if point.code is not None]
-    return len(names) == len(points) and len(set(codes)) == len(codes)
+    names = set(map(_NAME, points))
+    if len(names) != len(points):
+        return False
+    codes = [code for code in map(_CODE, points) if code is not None]
+    return len(set(codes)) == len(codes)
 
 
 def _check_unique(problems: ProblemCollector, points: list[tuple[str | int, Turnpoint]]) -> None:
@@ -231,6 +234,7 @@ def _check_unique(problems: ProblemCollector, points: list[tuple[str | int, Turn
 
 
 _NUMBER = (int, float)
+_NAME, _CODE = attrgetter("name"), attrgetter("code")
 _KINDS = frozenset(TURNPOINT_KINDS)
 _FIELDS = ("name", "code", "lat", "lon", "elevation_m", "landable", "kind", "runway_heading_deg",
            "runway_length_m", "note")
@@ -294,84 +298,25 @@ def _plain_feature(feature, _low=ELEVATION_RANGE_M[0], _high=ELEVATION_RANGE_M[1
     return point
 
 
-class _NotStreamable(Exception):
-    """The text is not the plain shape :func:`_streamed` reads."""
-
-
-_SPACE = re.compile(r"[ \t\n\r]*")
-
-
-def _streamed(text: str) -> dict:
-    """The top-level object of a GeoJSON text with each well-formed feature already a
-    Turnpoint (others as parsed): each feature becomes a turnpoint as soon as it is read, so
-    a large file never exists as a whole tree of JSON objects (memory, and the time to make
-    and free them). Anything unusual raises, and the caller reads the text whole."""
-    decode = json.JSONDecoder().scan_once  # (text, index) -> (value, end); StopIteration if none there
-    space = _SPACE.match
-    index = space(text, 0).end()
-    if text[index] != "{":
-        raise _NotStreamable
-    document: dict = {}
-    index = space(text, index + 1).end()
-    if text[index] == "}":
-        index += 1
-    else:
-        while True:
-            if text[index] != '"':
-                raise _NotStreamable
-            key, index = decode(text, index)
-            index = space(text, index).end()
-            if text[index] != ":" or key in document:
-                raise _NotStreamable
-            index = space(text, index + 1).end()
-            if key == "features" and text[index] == "[":
-                document[key], index = _streamed_features(text, space(text, index + 1).end(), decode, space)
-            else:
-                document[key], index = decode(text, index)
-            index = space(text, index).end()
-            if text[index] == ",":
-                index = space(text, index + 1).end()
-                continue
-            if text[index] != "}":
-                raise _NotStreamable
-            index += 1
-            break
-    if space(text, index).end() != len(text):
-        raise _NotStreamable
-    return document
-
-
-def _streamed_features(text: str, index: int, decode, space) -> tuple[list, int]:
-    features: list = []
-    if text[index] == "]":
-        return features, index + 1
-    append = features.append
-    while True:
-        feature, index = decode(text, index)
-        append(_plain_feature(feature) or feature)
-        if text[index] == ",":  # the usual separators: "," then a space or a line break
-            index += 1
-            if text[index] != "{":
-                index = space(text, index).end()
-            continue
-        index = space(text, index).end()
-        if text[index] == ",":
-            index = space(text, index + 1).end()
-        elif text[index] == "]":
-            return features, index + 1
-        else:
-            raise _NotStreamable
+def _plain_features(features: list) -> list:
+    """Each feature's turnpoint by the quick path (None where it needs the careful one). A
+    well-formed feature is replaced in ``features`` by its turnpoint as it is read, so that
+    its JSON objects are freed at once and a large file never holds both in full."""
+    plain = []
+    append = plain.append
+    for number, feature in enumerate(features):
+        point = _plain_feature(feature)
+        append(point)
+        if point is not None:
+            features[number] = point
+    return plain
 
 
 def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
     """Turnpoints from GeoJSON text (see the module docstring); InputError with every problem."""
     problems = ProblemCollector(file)
     try:
-        document = _streamed(text)
-    except (_NotStreamable, StopIteration, ValueError, IndexError, RecursionError):
-        document = None  # the whole-document reader below says what is wrong, or reads it
-    try:
-        document = json.loads(text) if document is None else document
+        document = json.loads(text)
     except json.JSONDecodeError as error:
         raise InputError.one(file, f"line {error.lineno}", f"not valid JSON: {error.msg}") from None
     except RecursionError:
@@ -383,7 +328,7 @@ def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
     features = document.get("features")
     if not isinstance(features, list):
         raise InputError.one(file, "features", "expected a list of features")
-    plain = [feature if type(feature) is Turnpoint else _plain_feature(feature) for feature in features]
+    plain = _plain_features(features)
     if plain and not [None for point in plain if point is None] and _unique(plain):
         return tuple(plain)  # the usual case: every feature well-formed, names and codes unique
     points: list[tuple[str | int, Turnpoint]] = []
