@@ -10,6 +10,7 @@ noted beside them.
 from __future__ import annotations
 
 import json
+import os
 import re
 import signal
 from pathlib import Path
@@ -223,8 +224,6 @@ def test_the_bundled_polars_still_pass(capsys):
 
 
 def test_folder_fifo_device_and_symlink_loop_say_what_they_are(capsys, tmp_path):
-    import os
-
     fifo = tmp_path / "pipe.toml"
     os.mkfifo(fifo)
     loop = tmp_path / "loop.toml"
@@ -294,3 +293,59 @@ def test_no_library_warning_comes_before_the_error_lines(capfd, tmp_path):
     err = capfd.readouterr().err
     assert status == 2
     assert err and all(line.startswith("glidetask: error: ") for line in err.splitlines()), err
+
+
+# ---------------------------------------------------------------- terrain
+
+
+def _raster(path: Path, crs, values) -> Path:
+    import numpy as np
+    import rasterio
+    from affine import Affine
+
+    data = np.asarray(values, dtype=np.float32)
+    with rasterio.open(path, "w", driver="GTiff",
+                       height=data.shape[0], width=data.shape[1], count=1, dtype="float32", crs=crs,
+                       transform=Affine(0.01, 0.0, -33.5, 0.0, -0.01, 46.2)) as dataset:
+        dataset.write(data, 1)
+    return path
+
+
+LOCAL_CRS = ('LOCAL_CS["invented site grid",UNIT["metre",1,AUTHORITY["EPSG","9001"]],'
+             'AXIS["Easting",EAST],AXIS["Northing",NORTH]]')
+
+
+def _terrain_task(tmp_path: Path, terrain: Path) -> Path:
+    task = tmp_path / "task.toml"
+    task.write_text(_task_text(**{f'"{DEMO / "terrain.tif"}"': json.dumps(str(terrain))}), encoding="utf-8")
+    return task
+
+
+def test_terrain_with_a_local_crs_is_refused_by_check_and_plan(capsys, tmp_path):
+    from rasterio.crs import CRS
+
+    terrain = _raster(tmp_path / "local.tif", CRS.from_wkt(LOCAL_CRS), [[100.0] * 4] * 4)
+    says = "local coordinate reference system"
+    assert_input_error(capsys, terrain, "check", str(terrain), says=says)
+    assert_input_error(capsys, terrain, "plan", str(_terrain_task(tmp_path, terrain)), says=says)
+
+
+@pytest.mark.parametrize("value", [3.4e38, -3.4e38])
+def test_terrain_elevations_beyond_the_earths_are_refused_by_check_plan_and_glide(capsys, tmp_path, value):
+    values = [[300.0] * 4 for _ in range(4)]
+    values[1][2] = value
+    terrain = _raster(tmp_path / "huge.tif", "EPSG:4326", values)
+    says = "are outside -11000 to 9000 m"
+    assert_input_error(capsys, terrain, "check", str(terrain), says=says)
+    assert_input_error(capsys, terrain, "plan", str(_terrain_task(tmp_path, terrain)), says=says)
+    assert_input_error(capsys, terrain, "glide", "--polar", str(ROOT / "polars" / "club.toml"), "--height-m", "1500",
+                       "--terrain", str(terrain), "--from", "46.19,-33.49", "--to", "46.17,-33.47", says=says)
+
+
+def test_terrain_file_name_that_is_not_utf8(capsys, tmp_path):
+    import shutil
+
+    name = os.fsdecode(os.fsencode(str(tmp_path)) + b"/terrain-\xff.tif")
+    shutil.copy(DEMO / "terrain.tif", name)
+    lines = assert_input_error(capsys, tmp_path, "check", name, says="the file name is not UTF-8")
+    assert "terrain-\\xff.tif" in lines[0]
