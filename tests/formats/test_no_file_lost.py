@@ -290,3 +290,17 @@ def test_every_demo_task_saves_back_byte_for_byte(tmp_path):
         original = task.read_text(encoding="utf-8")
         save_task(task.with_name("copy.toml"), load_scenario(task))
         assert task.with_name("copy.toml").read_text(encoding="utf-8") == original, task.name
+
+
+def test_the_ui_export_never_overwrites_a_file_the_task_reads(region):
+    from glidetask.engine.planner import plan
+    from glidetask.tui.exporting import export_plan
+
+    (region / "vardmoor.geojson").rename(region / "vardmoor.json")
+    task = region / TASK
+    task.write_text(task.read_text(encoding="utf-8").replace('"vardmoor.geojson"', '"vardmoor.json"'),
+                    encoding="utf-8")
+    before = (region / "vardmoor.json").read_bytes()
+    with pytest.raises(ValueError, match="a file the task reads"):
+        export_plan(region / "vardmoor.json", plan(load_scenario(task)))
+    assert (region / "vardmoor.json").read_bytes() == before
