@@ -17,6 +17,7 @@ from functools import lru_cache
 
 from glidetask import __version__
 from glidetask.errors import InputError, Problem, one_line
+from glidetask.formats.files import file_problem
 
 COMMANDS = ("plan", "glide", "polar", "sweep", "check", "export", "odds")
 CMDLINE = "command line"
@@ -217,8 +218,6 @@ def not_a_command(word: str) -> list[str]:
     """Error lines for an argument that is neither a command nor an existing task file."""
     import difflib
 
-    from glidetask.formats.files import file_problem
-
     if word in ("help", "-help"):
         hint = " (did you mean --help?)"
     else:
@@ -259,23 +258,19 @@ def _run_command(args: argparse.Namespace) -> int:
 def main(argv: list[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
     ui_mode = not argv or (argv[0] not in COMMANDS and argv[0] not in ("-h", "--help", "--version"))
-    if ui_mode and argv and not argv[0].startswith("-"):
-        from glidetask.formats.files import file_problem
-
-        if file_problem(argv[0]) is not None:  # before parsing: "chek a.toml" is a mistyped command
-            print("\n".join(not_a_command(argv[0])), file=sys.stderr)
-            return 2
+    # Neither a command nor an existing task file: never the UI. Checked before parsing too,
+    # as "chek a.toml" would otherwise be an argparse error about the extra argument.
+    if ui_mode and argv and not argv[0].startswith("-") and file_problem(argv[0]) is not None:
+        print("\n".join(not_a_command(argv[0])), file=sys.stderr)
+        return 2
     parser = build_ui_parser() if ui_mode else build_parser()
     try:
         args = parser.parse_args(argv if ui_mode else join_negative_values(parser, argv))
     except SystemExit as stop:  # argparse prints the usage line itself
         return int(stop.code or 0)
-    if ui_mode and args.task is not None:
-        from glidetask.formats.files import file_problem
-
-        if file_problem(args.task) is not None:
-            print("\n".join(not_a_command(args.task)), file=sys.stderr)
-            return 2
+    if ui_mode and args.task is not None and file_problem(args.task) is not None:
+        print("\n".join(not_a_command(args.task)), file=sys.stderr)
+        return 2
     try:
         if ui_mode:
             return _run_ui(args)
