@@ -11,9 +11,13 @@ from __future__ import annotations
 import argparse
 import importlib
 import math
+import re
 import sys
+from functools import lru_cache
 
-from glidetask.errors import InputError, Problem
+from glidetask import __version__
+from glidetask.errors import InputError, Problem, one_line
+from glidetask.formats.files import file_problem
 
 COMMANDS = ("plan", "glide", "polar", "sweep", "check", "export", "odds", "day")
 CMDLINE = "command line"
@@ -99,6 +103,7 @@ def _what_if_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--start", default=None, metavar="HH:MM", help="start time (local clock)")
 
 
+@lru_cache(maxsize=1)
 def build_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="glidetask",
@@ -106,6 +111,7 @@ def build_parser() -> argparse.ArgumentParser:
         "A planning aid, not a navigation instrument: the pilot in command decides.",
         epilog="Run 'glidetask' with no command (or with a task file) to open the terminal UI.",
     )
+    parser.add_argument("--version", action="version", version=f"glidetask {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     p = sub.add_parser("plan", help="fly a task on paper: legs, times, heights, final glide")
@@ -155,6 +161,8 @@ def build_parser() -> argparse.ArgumentParser:
     p = sub.add_parser("export", help="write the plan as GPX route, Markdown briefing or JSON")
     p.add_argument("task", metavar="TASK.toml")
     p.add_argument("--to", dest="to", required=True, metavar="FILE", help="output file: .gpx, .md or .json")
+    p.add_argument("--force", action="store_true",
+                   help="replace FILE if it exists (never a file the task reads)")
     _what_if_options(p)
     _common(p)
 
@@ -172,13 +180,64 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+@lru_cache(maxsize=1)
 def build_ui_parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(prog="glidetask", description="Open the terminal UI.")
     parser.add_argument("task", nargs="?", default=None, metavar="TASK.toml",
                         help="task to open (default: the bundled demo)")
     parser.add_argument("--units", choices=("metric", "aviation"), default="metric")
     parser.add_argument("--debug", action="store_true")
+    parser.add_argument("--version", action="version", version=f"glidetask {__version__}")
     return parser
+
+
+# ---------------------------------------------------------------- argument checks before parsing
+
+_NEGATIVE_VALUE = re.compile(r"^-\.?[0-9]")
+
+
+def _value_options(parser: argparse.ArgumentParser, command: str) -> set[str]:
+    """The option strings of ``command`` that take a value."""
+    for action in parser._actions:  # noqa: SLF001 - argparse keeps its subparsers here
+        if isinstance(action, argparse._SubParsersAction) and command in action.choices:  # noqa: SLF001
+            return {option for sub in action.choices[command]._actions  # noqa: SLF001
+                    for option in sub.option_strings if sub.nargs != 0}
+    return set()
+
+
+def join_negative_values(parser: argparse.ArgumentParser, argv: list[str]) -> list[str]:
+    """``--from -31.2,145.8`` -> ``--from=-31.2,145.8``: argparse would take a value that starts
+    with a minus sign for an option, so southern and western positions given the natural
+    way would fail."""
+    if not argv or argv[0] not in COMMANDS:
+        return argv
+    options = _value_options(parser, argv[0])
+    joined = [argv[0]]
+    for token in argv[1:]:
+        if joined[-1] in options and _NEGATIVE_VALUE.match(token) and len(joined) > 1:
+            joined[-1] = f"{joined[-1]}={token}"
+        else:
+            joined.append(token)
+    return joined
+
+
+def not_a_command(word: str) -> list[str]:
+    """Error lines for an argument that is neither a command nor an existing task file."""
+    import difflib
+
+    if word in ("help", "-help"):
+        hint = " (did you mean --help?)"
+    else:
+        close = difflib.get_close_matches(word, COMMANDS, n=1, cutoff=0.5)
+        hint = f" (did you mean '{close[0]}'?)" if close else ""
+    if word.endswith(".toml") or "/" in word or "." in word:  # meant as a file
+        first = Problem(word, "file", f"{file_problem(word) or 'not a task file'}; not a command either{hint}")
+    else:
+        first = Problem(CMDLINE, repr(word), f"no such command or task file{hint}")
+    return [str(first),
+            str(Problem(CMDLINE, "usage", "glidetask COMMAND ... with COMMAND one of "
+                                          f"{', '.join(COMMANDS)}; or glidetask [TASK.toml] for the "
+                                          "terminal UI; glidetask --help for more"))]
 
 
 # ---------------------------------------------------------------- entry point
@@ -190,19 +249,39 @@ def _run_ui(args: argparse.Namespace) -> int:
     return run_app(args.task, units=args.units)
 
 
+def _run_command(args: argparse.Namespace) -> int:
+    """Run a command. Library warnings (numpy's RuntimeWarning and the like) mean nothing to a
+    pilot and must never come before an error line: they are shown only with --debug."""
+    import warnings
+
+    module = importlib.import_module(f"glidetask.commands.{args.command}")
+    if getattr(args, "debug", False):
+        return int(module.run(args))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return int(module.run(args))
+
+
 def main(argv: list[str] | None = None) -> int:
     argv = list(sys.argv[1:] if argv is None else argv)
-    ui_mode = not argv or (argv[0] not in COMMANDS and argv[0] not in ("-h", "--help"))
+    ui_mode = not argv or (argv[0] not in COMMANDS and argv[0] not in ("-h", "--help", "--version"))
+    # Neither a command nor an existing task file: never the UI. Checked before parsing too,
+    # as "chek a.toml" would otherwise be an argparse error about the extra argument.
+    if ui_mode and argv and not argv[0].startswith("-") and file_problem(argv[0]) is not None:
+        print("\n".join(not_a_command(argv[0])), file=sys.stderr)
+        return 2
     parser = build_ui_parser() if ui_mode else build_parser()
     try:
-        args = parser.parse_args(argv)
+        args = parser.parse_args(argv if ui_mode else join_negative_values(parser, argv))
     except SystemExit as stop:  # argparse prints the usage line itself
         return int(stop.code or 0)
+    if ui_mode and args.task is not None and file_problem(args.task) is not None:
+        print("\n".join(not_a_command(args.task)), file=sys.stderr)
+        return 2
     try:
         if ui_mode:
             return _run_ui(args)
-        module = importlib.import_module(f"glidetask.commands.{args.command}")
-        return int(module.run(args))
+        return _run_command(args)
     except InputError as error:
         for problem in error.problems:
             print(problem, file=sys.stderr)
@@ -216,8 +295,8 @@ def main(argv: list[str] | None = None) -> int:
             import traceback
 
             traceback.print_exc()
-        print(f"glidetask: internal error: {type(error).__name__}: {error} (run with --debug for details)",
-              file=sys.stderr)
+        print(f"glidetask: internal error: {type(error).__name__}: {one_line(str(error))[:300]} "
+              "(run with --debug for details)", file=sys.stderr)
         return 1
 
 

@@ -30,7 +30,25 @@ class Problem:
     what: str
 
     def __str__(self) -> str:
-        return f"glidetask: error: {self.file}: {self.where}: {self.what}"
+        return f"glidetask: error: {one_line(self.file)}: {one_line(self.where)}: {one_line(self.what)}"
+
+
+def one_line(text: str) -> str:
+    """``text`` safe to print as part of one line: line breaks and other control characters
+    as backslash escapes (``\\n``), bytes of a non-UTF-8 file name as ``\\xNN``."""
+    text = str(text)
+    if text.isprintable():
+        return text
+    out = []
+    for char in text:
+        code = ord(char)
+        if 0xDC80 <= code <= 0xDCFF:  # a byte that was not UTF-8 (surrogateescape)
+            out.append(f"\\x{code - 0xDC00:02x}")
+        elif char.isprintable():
+            out.append(char)
+        else:
+            out.append(repr(char)[1:-1] if 0xD800 > code or code > 0xDFFF else f"\\u{code:04x}")
+    return "".join(out)
 
 
 class InputError(Exception):

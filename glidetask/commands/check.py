@@ -21,7 +21,7 @@ import os
 from pathlib import Path
 
 from glidetask import cautions, units
-from glidetask.errors import InputError, Problem
+from glidetask.errors import InputError, Problem, one_line
 from glidetask.formats.zone_text import zone_text
 from glidetask.units import KMH, METRIC
 
@@ -41,15 +41,14 @@ def check_turnpoints(path: str) -> dict:
     """Summary of a turnpoint file (raises InputError with its problems)."""
     from glidetask.formats.turnpoints import read_turnpoints
 
-    points = read_turnpoints(path)
-    by_kind = {kind: 0 for kind in ("airfield", "field", "waypoint")}
-    landable_by_kind = dict(by_kind)
-    lats, lons = [], []
-    for p in points:
-        by_kind[p.kind] += 1
-        landable_by_kind[p.kind] += bool(p.landable)
-        lats.append(p.lat)
-        lons.append(p.lon)
+    from collections import Counter
+    from operator import attrgetter
+
+    points = read_turnpoints(path)  # C-speed passes below: files may hold 200,000 points
+    counts = Counter(map(attrgetter("kind", "landable"), points))
+    by_kind = {kind: counts[kind, False] + counts[kind, True] for kind in ("airfield", "field", "waypoint")}
+    landable_by_kind = {kind: counts[kind, True] for kind in by_kind}
+    lats, lons = list(map(attrgetter("lat"), points)), list(map(attrgetter("lon"), points))
     return {
         "kind": "turnpoints",
         "count": len(points),
@@ -87,9 +86,13 @@ def _geojson_kind(path: str) -> str:
     """``"airspace"`` when a GeoJSON file's features are polygons, else ``"turnpoints"``."""
     import re
 
+    from glidetask.formats.files import file_problem, read_text
+
+    if file_problem(path) is not None:
+        return "turnpoints"  # not a regular file: check_file says what it is
     try:
-        text = Path(path).read_text(encoding="utf-8-sig", errors="replace")
-    except OSError:
+        text = read_text(path, path, encoding="utf-8-sig")
+    except InputError:
         return "turnpoints"  # the turnpoint reader says why it cannot be read
     polygon = re.search(r'"type"\s*:\s*"(?:Multi)?Polygon"', text)
     point = re.search(r'"type"\s*:\s*"Point"', text)
@@ -215,12 +218,11 @@ def check_sounding(path: str) -> dict:
 
 def _toml_kind(path: str) -> str:
     """``"task"``, ``"polar"`` or InputError, from the tables a TOML file has."""
-    import tomllib
+    from glidetask.formats.toml_reader import read_toml
 
-    try:
-        document = tomllib.loads(Path(path).read_bytes().decode("utf-8"))
-    except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError):
-        return "toml"  # unreadable or malformed: the polar reader says where and why
+    document, problems = read_toml(Path(path), path)
+    if document is None:
+        raise InputError(problems)
     if "task" in document:
         return "task"
     if "polar" in document:
@@ -251,12 +253,15 @@ def file_kind(path: str) -> str:
 
 def check_file(path: str) -> dict:
     """One file's result: ``{"file", "kind", "ok", "problems", ...summary}``."""
+    from glidetask.formats.files import file_problem
+
     kind = file_kind(path)
     result: dict = {"file": path, "kind": kind}
     if kind == "skipped":
         return {**result, "ok": True, "problems": []}
-    if kind not in ("turnpoints", "airspace") and not os.path.exists(path):
-        return {**result, "ok": False, "problems": _problem_dicts([Problem(path, "file", "no such file")])}
+    problem = file_problem(path)
+    if problem is not None:
+        return {**result, "ok": False, "problems": _problem_dicts([Problem(path, "file", problem)])}
     try:
         if kind == "toml":
             kind = _toml_kind(path)
@@ -340,13 +345,14 @@ def run(args: argparse.Namespace) -> int:
     else:
         unit = units.by_name(args.units)
         for result in results:
+            name = one_line(result["file"])
             if result["ok"]:
                 label = "skipped (not a glidetask file)" if result["kind"] == "skipped" else f"{result['kind']}, ok"
-                print(f"{result['file']}: {label}")
+                print(f"{name}: {label}")
                 if result["kind"] != "skipped":
                     print("\n".join(_summary_lines(result, unit)))
             else:
-                print(f"{result['file']}: {result['kind']}, {len(result['problems'])} problem(s) (listed on stderr)")
+                print(f"{name}: {result['kind']}, {len(result['problems'])} problem(s) (listed on stderr)")
     if problems:
         raise InputError(problems)
     return 0

@@ -20,46 +20,10 @@ from functools import cached_property
 import numpy as np
 
 from glidetask.engine import geodesy
+from glidetask.engine.turnpoint import TURNPOINT_KINDS, Turnpoint  # noqa: F401 - re-exported
 from glidetask.engine.zones import AREA_KINDS, START_FINISH_KINDS, TURN_KINDS, Zone, boundary, contains, zone_axes
 
-TURNPOINT_KINDS = ("airfield", "field", "waypoint")
 TASK_KINDS = ("racing", "area")
-
-
-@dataclass(frozen=True)
-class Turnpoint:
-    """A named point from a turnpoint file (shared/CONTRACT.md 2.2).
-
-    Attributes
-    ----------
-    name : str
-        Unique name.
-    code : str or None
-        Optional unique short code.
-    lat, lon : float
-        Position [deg], longitude in [-180, 180).
-    elevation_m : float
-        Ground elevation [m MSL].
-    landable : bool
-        Whether a glider may land there (airfields, fields).
-    kind : str
-        ``airfield``, ``field`` or ``waypoint``.
-    runway_heading_deg, runway_length_m : float or None
-        Main runway or landing direction [deg] and length [m], if known.
-    note : str
-        Free text.
-    """
-
-    name: str
-    code: str | None
-    lat: float
-    lon: float
-    elevation_m: float
-    landable: bool = False
-    kind: str = "waypoint"
-    runway_heading_deg: float | None = None
-    runway_length_m: float | None = None
-    note: str = ""
 
 
 @dataclass(frozen=True)

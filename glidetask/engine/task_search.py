@@ -192,24 +192,32 @@ def _with_neighbours(windows, own: list[_Candidates], overlapping: list[bool]) -
     can share one point."""
     out = list(own)
 
-    def take(i: int, source: _Candidates) -> None:
+    def inside_of(i: int, source: _Candidates) -> _Candidates | None:
         window = windows[i]
         inside = np.atleast_1d(contains(window.zone, window.lat, window.lon, source.lats, source.lons,
                                         window.axis_deg, tolerance_m=_INSIDE_M))
         count = int(inside.sum())
-        if count:
-            mine = out[i]
-            out[i] = _Candidates(np.concatenate([mine.lats, source.lats[inside]]),
-                                 np.concatenate([mine.lons, source.lons[inside]]),
-                                 np.concatenate([mine.loop, np.full(count, -1)]),
-                                 np.concatenate([mine.s, np.zeros(count)]))
+        if not count:
+            return None
+        return _Candidates(source.lats[inside], source.lons[inside], np.full(count, -1), np.zeros(count))
+
+    def joined(mine: _Candidates, extra: _Candidates | None) -> _Candidates:
+        if extra is None:
+            return mine
+        return _Candidates(*(np.concatenate([np.asarray(getattr(mine, f)), np.asarray(getattr(extra, f))])
+                             for f in ("lats", "lons", "loop", "s")))
 
     for i in range(1, len(windows)):  # forwards: what zone i-1 may use, zone i may share
         if overlapping[i - 1]:
-            take(i, out[i - 1])
-    for i in range(len(windows) - 2, -1, -1):  # backwards: zone i+1's own points and what it took
-        if overlapping[i]:
-            take(i, _Candidates(*(np.asarray(getattr(out[i + 1], f)) for f in ("lats", "lons", "loop", "s"))))
+            out[i] = joined(out[i], inside_of(i, out[i - 1]))
+    # Backwards: zone i+1's own points and what it took backwards. (Not what it took forwards:
+    # those are zone i's points already, and passing them back doubled the candidates at
+    # every zone of a run of overlapping zones.)
+    behind = own[-1]
+    for i in range(len(windows) - 2, -1, -1):
+        taken = inside_of(i, behind) if overlapping[i] else None
+        out[i] = joined(out[i], taken)
+        behind = joined(own[i], taken)
     return out
 
 

@@ -202,6 +202,9 @@ def load_terrain(path) -> Terrain:
     size), so repeated plans of a task do not read the file again.
     """
     name = os.fspath(path)
+    unusable = terrain_name_problem(name)
+    if unusable:
+        raise TerrainError(name, unusable)
     try:
         status = os.stat(name)
     except FileNotFoundError:
@@ -222,6 +225,42 @@ def load_terrain(path) -> Terrain:
         while len(_CACHE) > _CACHE_SIZE:
             _CACHE.popitem(last=False)
     return terrain
+
+
+# Checks of a model before it is used: self-contained, so they can move with the loader.
+ELEVATION_LIMITS_M = (-11000.0, 9000.0)  # the deepest ocean trench to above the highest summit (from memory)
+
+
+def terrain_name_problem(name) -> str | None:
+    """Why the raster library cannot open a file of this name (not UTF-8), or None."""
+    try:
+        os.fsencode(name).decode("utf-8")
+    except UnicodeDecodeError:
+        return "the file name is not UTF-8, which the raster library needs; rename the file"
+    return None
+
+
+def terrain_value_problem(crs, values: np.ndarray) -> str | None:
+    """Why a model with this CRS and these elevations [m] cannot be used, or None.
+
+    The CRS must be geographic or projected (a local engineering CRS has no place on the
+    earth) and reachable from WGS84; every known elevation must lie between the deepest
+    ocean floor and above the highest summit (values such as 3.4e38 are unflagged no-data).
+    """
+    if not (crs.is_geographic or crs.is_projected):
+        return ("has a local coordinate reference system (neither geographic nor projected): "
+                "it cannot be placed on the earth")
+    try:
+        _transformer(crs.to_wkt())
+    except Exception:  # noqa: BLE001 - PROJ's own errors vary by version
+        return "its coordinate reference system cannot be converted from latitude and longitude (WGS84)"
+    known = values[np.isfinite(values)]
+    if known.size:
+        low, high = float(known.min()), float(known.max())
+        if low < ELEVATION_LIMITS_M[0] or high > ELEVATION_LIMITS_M[1]:
+            return (f"elevations from {low:.6g} to {high:.6g} m are outside {ELEVATION_LIMITS_M[0]:g} to "
+                    f"{ELEVATION_LIMITS_M[1]:g} m; is the no-data value set, and are the units metres?")
+    return None
 
 
 def _renamed(terrain: Terrain, source: str) -> Terrain:
@@ -258,9 +297,13 @@ def _read(name: str) -> Terrain:
     dtype = np.float64 if band.dtype == np.float64 else np.float32
     values = band.astype(dtype).filled(np.nan)
     values[~np.isfinite(values)] = np.nan
-    values = values * dtype(scale or 1.0) + dtype(offset or 0.0)
-    if unit in _FEET_UNITS:
-        values = values * dtype(FOOT)
+    with np.errstate(over="ignore", invalid="ignore"):
+        values = values * dtype(scale or 1.0) + dtype(offset or 0.0)
+        if unit in _FEET_UNITS:
+            values = values * dtype(FOOT)
+    unusable = terrain_value_problem(crs, values)
+    if unusable:
+        raise TerrainError(name, unusable)
     values.setflags(write=False)
     epsg = crs.to_epsg()
     return Terrain(

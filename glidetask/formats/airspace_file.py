@@ -23,6 +23,7 @@ import numpy as np
 
 from glidetask.engine.airspace import CLASSES, FOOT_M, REFS, UNITS, Airspace, Limit, Volume
 from glidetask.errors import InputError, ProblemCollector
+from glidetask.formats.files import read_text
 
 #: Limits beyond these are not airspace [m, ft, FL]: a mistyped number, not a volume.
 LIMIT_RANGE = {"m": (-500.0, 30000.0), "ft": (-1600.0, 100000.0), "FL": (0.0, 1000.0)}
@@ -36,14 +37,7 @@ _METRES_PER = {"m": 1.0, "ft": FOOT_M, "FL": 100.0 * FOOT_M}  # a flight level a
 def read_airspace(path: str | os.PathLike) -> Airspace:
     """Read and validate an airspace file; InputError with every problem found."""
     name = str(path)
-    try:
-        text = Path(path).read_text(encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise InputError.one(name, "file", "no such file") from None
-    except UnicodeDecodeError as error:
-        raise InputError.one(name, "file", f"not UTF-8 text ({error.reason} at byte {error.start})") from None
-    except OSError as error:
-        raise InputError.one(name, "file", f"cannot read: {error.strerror or error}") from None
+    text = read_text(path, name, encoding="utf-8-sig")
     return parse_airspace(text, name)
 
 

@@ -21,7 +21,7 @@ from typing import Any
 
 from glidetask.engine.polar import PolarSpec, fit_quadratic
 from glidetask.errors import InputError, Problem
-from glidetask.formats.toml_reader import TomlReader, is_number, read_toml
+from glidetask.formats.toml_reader import TomlReader, as_float, is_number, read_toml, show
 
 KMH = 1000.0 / 3600.0  # m/s per km/h
 DEFAULT_PILOT_ALLOWANCE_KG = 90.0  # empty mass defaults to reference mass minus this
@@ -33,6 +33,13 @@ STALL_PLAUSIBLE_RATIO = 1.5
 GLIDER_KEYS = ("label", "wing_area_m2", "reference_mass_kg", "empty_mass_kg", "max_ballast_kg",
                "max_mass_kg", "vne_kmh", "min_speed_kmh", "stall_speed_kmh")
 POLAR_KEYS = ("points",)
+# Bounds no sailplane comes near, so that a slip of the keyboard (or 1e300) is caught here
+# and never reaches the fit (common practice: generous limits around every type flying).
+SPEED_LIMIT_KMH = 600.0
+SINK_LIMIT_MS = 30.0
+MASS_LIMIT_KG = 5000.0
+WING_AREA_LIMIT_M2 = 100.0
+BEST_LD_LIMIT = 80.0  # beyond any sailplane built (the best open class reach about 1:70, from memory)
 
 
 def _points(checker: TomlReader, polar: dict, min_kmh: float | None, vne_kmh: float | None):
@@ -51,17 +58,25 @@ def _points(checker: TomlReader, polar: dict, min_kmh: float | None, vne_kmh: fl
     for number, point in enumerate(raw, start=1):
         here = f"{where}[{number}]"
         if not (isinstance(point, list) and len(point) == 2 and all(is_number(x) for x in point)):
-            checker.add(here, f"must be a pair [IAS km/h, sink m/s] of numbers, got {point!r}")
+            shown = f"[{', '.join(show(x) for x in point)}]" if isinstance(point, list) else show(point)
+            checker.add(here, f"must be a pair [IAS km/h, sink m/s] of numbers, got {shown}")
             ok = False
             continue
-        speed, sink = float(point[0]), float(point[1])
-        if not (math.isfinite(speed) and math.isfinite(sink)):
-            checker.add(here, f"must be finite numbers, got {point!r}")
+        speed, sink = as_float(point[0]), as_float(point[1])
+        if speed is None or sink is None or not (math.isfinite(speed) and math.isfinite(sink)):
+            checker.add(here, f"must be finite numbers, got [{show(point[0])}, {show(point[1])}]")
             ok = False
             continue
         if sink <= 0.0:
             checker.add(here, f"sink rate must be positive (m/s downward), got {sink:g}")
             ok = False
+        elif sink > SINK_LIMIT_MS:
+            checker.add(here, f"sink rate {sink:g} m/s is beyond any sailplane (at most {SINK_LIMIT_MS:g})")
+            ok = False
+        if not 0.0 < speed <= SPEED_LIMIT_KMH:
+            checker.add(here, f"speed {speed:g} km/h must be in (0, {SPEED_LIMIT_KMH:g}]")
+            ok = False
+            continue
         if min_kmh is not None and vne_kmh is not None and not min_kmh <= speed <= vne_kmh:
             checker.add(here, f"speed {speed:g} km/h is outside min_speed_kmh..vne_kmh "
                               f"({min_kmh:g}..{vne_kmh:g})")
@@ -91,6 +106,32 @@ def _fit_problems(checker: TomlReader, points, min_kmh: float | None, vne_kmh: f
     if least <= 0.0:
         checker.add(where, f"the fitted polar's minimum sink is {least:.3g} m/s at "
                            f"{vertex / KMH:.0f} km/h; it must be positive")
+        return
+    speeds = [s for s, _ in points]
+    slowest, fastest = min(speeds), max(speeds)
+    least_sink_kmh = -b / (2.0 * a) / KMH
+    if least_sink_kmh > fastest - 0.1 * (fastest - slowest):
+        checker.add(where, f"the fitted minimum sink is at {least_sink_kmh:.0f} km/h, at or beyond the fastest "
+                           f"point ({fastest:g} km/h): the sink falls over the measured speeds, so the "
+                           "minimum sink lies outside the measured speeds; measure points on both sides of it")
+        return
+    if least_sink_kmh < slowest - 0.25 * (fastest - slowest):
+        checker.add(where, f"the fitted minimum sink is at {least_sink_kmh:.0f} km/h, far below the slowest "
+                           f"point ({slowest:g} km/h); check the points")
+        return
+    best_ld, best_kmh = _best_ld(a, b, c, lo, hi)
+    if best_ld > BEST_LD_LIMIT:
+        checker.add(where, f"the fitted polar glides 1:{best_ld:.0f} at {best_kmh:.0f} km/h, beyond any "
+                           f"sailplane (at most 1:{BEST_LD_LIMIT:g}); check the points")
+
+
+def _best_ld(a: float, b: float, c: float, lo: float, hi: float) -> tuple[float, float]:
+    """Best glide ratio v/sink(v) for v in [lo, hi] m/s of the quadratic, and its speed [km/h].
+    v/sink is largest where sink/v = a*v + b + c/v is least: at sqrt(c/a), or an end."""
+    candidates = [lo, hi] + ([math.sqrt(c / a)] if c > 0.0 and lo < math.sqrt(c / a) < hi else [])
+    ratios = [(v / ((a * v + b) * v + c), v) for v in candidates if (a * v + b) * v + c > 0.0]
+    ratio, speed = max(ratios) if ratios else (math.inf, lo)
+    return ratio, speed / KMH
 
 
 def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Problem]]:
@@ -123,12 +164,18 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
         if not isinstance(label, str):
             checker.add("[glider] label", f"must be text, got {label!r}")
         values["label"] = str(label)
-        for key in ("wing_area_m2", "reference_mass_kg", "vne_kmh", "min_speed_kmh"):
-            values[key] = checker.number(glider, "[glider]", key, required=True, positive=True)
-        values["empty_mass_kg"] = checker.number(glider, "[glider]", "empty_mass_kg", positive=True)
-        values["max_ballast_kg"] = checker.number(glider, "[glider]", "max_ballast_kg", low=0.0)
-        values["max_mass_kg"] = checker.number(glider, "[glider]", "max_mass_kg", positive=True)
-        values["stall_speed_kmh"] = checker.number(glider, "[glider]", "stall_speed_kmh", positive=True)
+        limits = {"wing_area_m2": WING_AREA_LIMIT_M2, "reference_mass_kg": MASS_LIMIT_KG,
+                  "vne_kmh": SPEED_LIMIT_KMH, "min_speed_kmh": SPEED_LIMIT_KMH}
+        for key, limit in limits.items():
+            values[key] = checker.number(glider, "[glider]", key, required=True, positive=True, high=limit)
+        values["empty_mass_kg"] = checker.number(glider, "[glider]", "empty_mass_kg", positive=True,
+                                                 high=MASS_LIMIT_KG)
+        values["max_ballast_kg"] = checker.number(glider, "[glider]", "max_ballast_kg", low=0.0,
+                                                  high=MASS_LIMIT_KG)
+        values["max_mass_kg"] = checker.number(glider, "[glider]", "max_mass_kg", positive=True,
+                                               high=MASS_LIMIT_KG)
+        values["stall_speed_kmh"] = checker.number(glider, "[glider]", "stall_speed_kmh", positive=True,
+                                                   high=SPEED_LIMIT_KMH)
         _limit_problems(checker, glider, values)
     min_kmh, vne_kmh = values.get("min_speed_kmh"), values.get("vne_kmh")
     if min_kmh is not None and vne_kmh is not None and min_kmh >= vne_kmh:
@@ -137,7 +184,7 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
     if polar is not None:
         checker.unknown(polar, "[polar]", POLAR_KEYS)
         points = _points(checker, polar, min_kmh, vne_kmh)
-        if points is not None:
+        if points is not None and not checker.problems:  # a fit of bad numbers tells nothing new
             stall_kmh = values.get("stall_speed_kmh")
             low_kmh = min_kmh if stall_kmh is None or min_kmh is None else min(stall_kmh, min_kmh)
             _fit_problems(checker, points, low_kmh, vne_kmh)

@@ -37,6 +37,7 @@ from glidetask.engine.sounding import (
     SurfaceForecast,
 )
 from glidetask.errors import InputError, Problem, ProblemCollector
+from glidetask.formats.files import file_problem, read_text
 from glidetask.formats.toml_reader import TomlReader, is_number, show
 from glidetask.units import KMH, format_clock, parse_clock
 
@@ -159,24 +160,14 @@ def _check_order(problems: ProblemCollector, levels: list[tuple[int, dict[str, f
 def read_sounding(path: str | os.PathLike, file: str | None = None) -> Sounding:
     """Read a sounding file (contract 2.7); InputError naming ``file`` (default ``path``)."""
     file = str(path) if file is None else file
-    try:
-        size = os.path.getsize(path)
-        if size > MAX_FILE_BYTES:
-            raise InputError.one(file, "file", f"{size} bytes is far larger than a sounding")
-        text = Path(path).read_bytes().decode("utf-8")
-    except FileNotFoundError:
-        raise InputError.one(file, "file", "no such file") from None
-    except UnicodeDecodeError:
-        raise InputError.one(file, "file", "is not UTF-8 text") from None
-    except IsADirectoryError:
-        raise InputError.one(file, "file", "is a folder, not a sounding file") from None
-    except OSError as error:
-        raise InputError.one(file, "file", f"cannot read it: {error.strerror or error}") from None
+    text = read_text(path, file, limit=MAX_FILE_BYTES)
     return parse_sounding(text, file)
 
 
 def looks_like_sounding(path: str | os.PathLike) -> bool:
     """True if the file's first line names the sounding columns (used by ``check``)."""
+    if file_problem(path) is not None:
+        return False  # not a regular file: the reader that gets it says what it is
     try:
         with open(path, encoding="utf-8", errors="replace") as handle:
             first = handle.readline(4096).removeprefix("\ufeff")

@@ -7,7 +7,8 @@ all of it and reports every problem at once, each with its key path:
 ``[[task.points]] 3 zone`` (points counted from 1), ``[day] climb_ms[2]`` (pairs counted
 from 1), ``[glider] polar``. Problems inside the turnpoint or polar file carry that file's
 name. :func:`save_task` writes a scenario back (atomically), keeping the referenced files
-relative to the new task file.
+relative to the new task file, over the previous text so that comments, order and spelling
+stay for what did not change.
 
 Zone keys, sizes in km (contract 2.3):
 
@@ -36,7 +37,8 @@ from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
 from glidetask.formats.atomic import write_atomic
-from glidetask.formats.toml_reader import TomlReader, is_number, read_toml, show
+from glidetask.formats.files import file_problem
+from glidetask.formats.toml_reader import TomlReader, as_float, is_number, read_toml, show
 from glidetask.units import KMH, format_clock, parse_clock
 
 TABLES = ("task", "glider", "day", "safety", "terrain")
@@ -49,6 +51,8 @@ DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
+ZONE_SIZE_LIMIT_KM = 1000.0  # far beyond any observation zone (common practice: cylinders of a few tens of km)
+PILOT_LIMIT_KG = 400.0  # two heavy pilots with parachutes in a two-seater, and then some
 DEFAULT_THERMAL_RADIUS_M = 150.0
 
 # Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
@@ -89,6 +93,16 @@ def _resolve(base: Path, value: str) -> Path:
     """A path from a task file, relative to the task file's folder (as the user can open it)."""
     path = Path(os.path.expanduser(value))
     return path if path.is_absolute() else Path(os.path.normpath(base / path))
+
+
+def _folder_of(task_path: str | os.PathLike) -> Path:
+    """The folder a task file's paths are relative to: that of the file itself, through any
+    symbolic link (a task opened through a link finds its files next to the real file)."""
+    path = Path(task_path)
+    try:
+        return Path(os.path.realpath(path)).parent if path.is_symlink() else path.parent
+    except OSError:  # unreadable: the reader says why
+        return path.parent
 
 
 # ---------------------------------------------------------------- [task]
@@ -154,11 +168,20 @@ def _zone(reader: _Reader, entry: dict, where: str, task_kind: str, role: str) -
         elif key == "angle_deg":
             values[key] = reader.number(entry, where, key, default=default, positive=True, high=360.0)
         elif key == "inner_radius_km":
-            values[key] = reader.number(entry, where, key, default=default, low=0.0, high=math.inf)
+            values[key] = reader.number(entry, where, key, default=default, low=0.0, high=ZONE_SIZE_LIMIT_KM)
         else:
-            values[key] = reader.number(entry, where, key, required=default is None, default=default, positive=True)
+            values[key] = reader.number(entry, where, key, required=default is None, default=default, positive=True,
+                                        high=ZONE_SIZE_LIMIT_KM)
     if any(v is None for v in values.values()):
         return None
+    try:
+        return _make_zone(reader, values, where, name, task_kind, role)
+    except ValueError as error:  # a combination the zone itself refuses
+        reader.add(f"{where} zone", str(error))
+        return None
+
+
+def _make_zone(reader: _Reader, values: dict, where: str, name: str, task_kind: str, role: str) -> Zone | None:
     if name == "line":
         return Zone.line(values["length_km"] * 1000.0)
     if name == "cylinder":
@@ -184,7 +207,7 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
     if kind is not None and kind not in ("racing", "area"):
         reader.add("[task] kind", f"unknown task kind {kind!r}; expected \"racing\" or \"area\"")
         kind = None
-    minutes = reader.number(table, "[task]", "min_time_min", positive=True)
+    minutes = reader.number(table, "[task]", "min_time_min", positive=True, high=24 * 60.0)
     if kind == "racing" and "min_time_min" in table:
         reader.add("[task] min_time_min", "a minimum time belongs to area tasks (kind = \"area\") only")
     if kind == "area" and "min_time_min" not in table:
@@ -194,8 +217,9 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
     file_value = reader.text(table, "[task]", "turnpoints", required=True)
     if file_value is not None:
         turnpoint_file = _resolve(base, file_value)
-        if not turnpoint_file.is_file():
-            reader.add("[task] turnpoints", f"no such file: {turnpoint_file}")
+        missing = file_problem(turnpoint_file)
+        if missing is not None:
+            reader.add("[task] turnpoints", f"{missing}: {turnpoint_file}")
         else:
             from glidetask.formats.turnpoints import read_turnpoints
 
@@ -212,6 +236,7 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
         return None, turnpoints, turnpoint_file
     find = _lookup(turnpoints) if turnpoints else None
     points, ok = [], kind is not None
+    previous = None
     for number, entry in enumerate(entries, start=1):
         where = f"[[task.points]] {number}"
         reader.unknown(entry, where, ("at", "zone") + _ZONE_SIZE_KEYS)
@@ -223,6 +248,14 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
             if error:
                 reader.add(f"{where} at", error)
         zone = _zone(reader, entry, where, kind, role) if kind is not None else None
+        if point is not None and previous is not None and (point.lat, point.lon) == (previous[1].lat, previous[1].lon):
+            # Twice at one place in a row: a leg of no length (and an optimiser with nothing to choose).
+            same = "the same turnpoint as" if point is previous[1] else "at the same place as"
+            reader.add(f"{where} at", f"{at!r} is {same} point {previous[0]} ({previous[1].name}); "
+                                      "consecutive task points must be at different places")
+            ok = False
+        if point is not None:
+            previous = (number, point)
         if point is None or zone is None:
             ok = False
             continue
@@ -247,18 +280,19 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
 
 
 def _glider(reader: _Reader, table: dict, base: Path) -> GliderSetup | None:
-    from glidetask.formats.polar_file import loading_problems, read_polar_spec
+    from glidetask.formats.polar_file import MASS_LIMIT_KG, loading_problems, read_polar_spec
 
     reader.unknown(table, "[glider]", GLIDER_KEYS)
-    pilot = reader.number(table, "[glider]", "pilot_kg", default=DEFAULT_PILOT_KG, positive=True)
-    ballast = reader.number(table, "[glider]", "ballast_kg", default=0.0, low=0.0, high=math.inf)
+    pilot = reader.number(table, "[glider]", "pilot_kg", default=DEFAULT_PILOT_KG, positive=True, high=PILOT_LIMIT_KG)
+    ballast = reader.number(table, "[glider]", "ballast_kg", default=0.0, low=0.0, high=MASS_LIMIT_KG)
     bugs = reader.number(table, "[glider]", "bugs_percent", default=0.0, low=0.0, high=100.0)
     value = reader.text(table, "[glider]", "polar", required=True)
     if value is None:
         return None
     polar_file = _resolve(base, value)
-    if not polar_file.is_file():
-        reader.add("[glider] polar", f"no such file: {polar_file}")
+    missing = file_problem(polar_file)
+    if missing is not None:
+        reader.add("[glider] polar", f"{missing}: {polar_file}")
         return None
     spec, problems = read_polar_spec(polar_file)
     reader.problems.extend(problems)
@@ -291,9 +325,9 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
             reader.add(here, f"expected a local time as HH:MM, got {pair[0]!r}")
             ok = False
             continue
-        value = float(pair[1])
-        if not math.isfinite(value) or not 0.0 <= value <= 15.0:
-            reader.add(here, f"the value must be in [0, 15] m/s, got {pair[1]!r}")
+        value = as_float(pair[1])
+        if value is None or not math.isfinite(value) or not 0.0 <= value <= 15.0:
+            reader.add(here, f"the value must be in [0, 15] m/s, got {show(pair[1])}")
             ok = False
         if times and time_s <= times[-1]:
             reader.add(here, f"times must increase: {pair[0]} is not after {format_clock(times[-1])}")
@@ -345,7 +379,8 @@ def _day(reader: _Reader, table: dict) -> Day | None:
     airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
-    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True)
+    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True,
+                           high=5000.0)
     if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa, radius):
         return None
     if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
@@ -375,8 +410,9 @@ def _terrain(reader: _Reader, table: dict | None, base: Path) -> str | None:
     if value is None:
         return None
     path = _resolve(base, value)
-    if not path.is_file():
-        reader.add("[terrain] file", f"no such file: {path}")
+    missing = file_problem(path)
+    if missing is not None:
+        reader.add("[terrain] file", f"{missing}: {path}")
         return None
     return str(path.resolve())
 
@@ -414,7 +450,7 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     file = str(path)
     document = _parse_toml(Path(path), file)
     reader = _Reader(file)
-    base = Path(path).parent
+    base = _folder_of(path)
     for key in document:
         if key not in TABLES:
             reader.add(f"[{key}]", f"unknown table (expected {', '.join('[' + t + ']' for t in TABLES)})")
@@ -434,6 +470,37 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
 
 
+def files_named_by(task_path: str | os.PathLike) -> list[Path]:
+    """The task file and every existing file its text names (turnpoints, polar, terrain, and any
+    other path such as an airspace or a sounding file), resolved as the reader resolves them.
+    Empty if the task cannot be read. For writers that must never replace a file the task reads."""
+    from glidetask.formats.files import file_problem
+
+    document, _ = read_toml(Path(task_path), str(task_path))
+    if document is None:
+        return []
+    folder = _folder_of(task_path)
+    found = [Path(task_path)]
+
+    def walk(value) -> None:
+        if isinstance(value, dict):
+            for item in value.values():
+                walk(item)
+        elif isinstance(value, list):
+            for item in value:
+                walk(item)
+        elif isinstance(value, str) and value.strip() and "\0" not in value:
+            try:
+                path = _resolve(folder, value.strip())
+            except (ValueError, RuntimeError):
+                return
+            if file_problem(path) is None:
+                found.append(path)
+
+    walk(document)
+    return found
+
+
 def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
     """The turnpoint file a task file names (resolved against its folder), or None."""
     try:
@@ -441,7 +508,7 @@ def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
     except InputError:
         return None
     value = document.get("task", {}).get("turnpoints") if isinstance(document.get("task"), dict) else None
-    return _resolve(Path(task_path).parent, value) if isinstance(value, str) else None
+    return _resolve(_folder_of(task_path), value) if isinstance(value, str) else None
 
 
 # ---------------------------------------------------------------- writing
@@ -548,9 +615,207 @@ def _leading_comments(path: str | os.PathLike | None) -> str | None:
     return "\n".join(comments) or None
 
 
+# ---------------------------------------------------------------- saving over the user's own text
+#
+# A save keeps the user's comments, order and spelling for everything that did not change
+# (shared/CONTRACT.md section 7): the new file is the previous text (tomlkit keeps its comments
+# and layout) with only the values that mean something else replaced, added or removed.
+# "Means the same" is judged on normalised values: a turnpoint by the point it names
+# (``at = "Kellow Hill"`` and ``at = "KLH"`` are one place), a path by the file it reaches,
+# clock times by their minute, numbers to the writer's six decimals, zones without the
+# ``area_`` prefix, and an absent key by the reader's default.
+
+_TABLE_DEFAULTS = {
+    "task": {"kind": "racing"},
+    "glider": {"pilot_kg": DEFAULT_PILOT_KG, "ballast_kg": 0.0, "bugs_percent": 0.0},
+    "day": {"thermal_radius_m": DEFAULT_THERMAL_RADIUS_M, "glide_airmass_ms": 0.0, "isa_deviation_c": 0.0,
+            "wind": {"from_deg": 0.0, "speed_kmh": 0.0}},
+    "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0},
+    "terrain": {},
+}
+_PATH_KEYS = {("task", "turnpoints"), ("glider", "polar"), ("terrain", "file")}
+
+
+class _Normaliser:
+    """Values of a task document reduced to what they mean, for comparing two documents."""
+
+    def __init__(self, folder: Path, turnpoints: tuple[Turnpoint, ...], default_name: str):
+        self.folder = folder
+        self.find = _lookup(turnpoints) if turnpoints else None
+        self.default_name = default_name
+
+    def value(self, key: tuple, value: Any) -> Any:
+        if key[-2:] in _PATH_KEYS:
+            return ("path", os.path.realpath(_resolve(self.folder, value))) if isinstance(value, str) else value
+        if key[-1] == "at" and isinstance(value, str) and self.find is not None:
+            point, _ = self.find(value.strip())
+            return ("turnpoint", point.name) if point is not None else value
+        if key[-1] == "zone" and isinstance(value, str):
+            return value.strip().lower().removeprefix("area_")
+        if isinstance(value, bool):
+            return value
+        if isinstance(value, (int, float)):
+            number = as_float(value)
+            if number is None or not math.isfinite(number):
+                return ("number", str(value))
+            return round(number % 360.0 if key[-1] == "from_deg" else number, 6)
+        if isinstance(value, str):
+            try:
+                return ("clock", parse_clock(value))
+            except ValueError:
+                return value
+        if isinstance(value, (list, tuple)):
+            return tuple(self.value(key + ("[]",), v) for v in value)
+        if isinstance(value, dict):
+            return {k: self.value(key + (k,), v) for k, v in value.items()}
+        return value
+
+    def point(self, entry: dict, kind: str, role: str) -> dict:
+        values = {k: self.value(("task", "points", k), v) for k, v in entry.items()}
+        zone = values.get("zone")
+        table = _START_FINISH if role != "turn" else _AREA_TURNS if kind == "area" else _RACING_TURNS
+        for key, default in table.get(zone, {}).items() if isinstance(zone, str) else ():
+            if default is not None:
+                values.setdefault(key, round(default, 6))
+        return values
+
+    def document(self, document: dict) -> dict:
+        """The whole document with defaults filled in (points by role)."""
+        result = {}
+        for name, defaults in _TABLE_DEFAULTS.items():
+            table = document.get(name)
+            if table is None and name in ("terrain",):
+                continue
+            table = dict(table or {})
+            values = {k: self.value((name, k), v) for k, v in table.items() if not (name == "task" and k == "points")}
+            for key, default in defaults.items():
+                values.setdefault(key, self.value((name, key), default))
+            if name == "task":
+                values.setdefault("name", self.default_name)
+                points = table.get("points") or []
+                kind = table.get("kind", "racing")
+                values["points"] = [self.point(entry, kind, "start" if i == 0 else "finish" if i == len(points) - 1
+                                               else "turn") for i, entry in enumerate(points)]
+            result[name] = values
+        return result
+
+
+def _keep_comment(old_item, new_item):
+    """``new_item`` with the end-of-line comment of the item it replaces."""
+    trivia = getattr(old_item, "trivia", None)
+    if trivia is not None and trivia.comment and hasattr(new_item, "trivia"):
+        new_item.trivia.comment = trivia.comment
+        new_item.trivia.comment_ws = trivia.comment_ws
+    return new_item
+
+
+def _merge_table(old, new, key: tuple, norm: _Normaliser, defaults: dict, same_default: bool = True) -> None:
+    """Change ``old`` (a tomlkit table) in place to mean what ``new`` means."""
+    for name in list(old.keys()):
+        if name not in new and not (key == ("task",) and name == "points"):
+            del old[name]
+    for name, value in new.items():
+        if key == ("task",) and name == "points":
+            continue
+        where = key + (name,)
+        if name in old:
+            if norm.value(where, old[name].unwrap() if hasattr(old[name], "unwrap") else old[name]) \
+                    != norm.value(where, value.unwrap() if hasattr(value, "unwrap") else value):
+                old[name] = _keep_comment(old[name], value)
+        elif not (same_default and name in defaults
+                  and norm.value(where, defaults[name]) == norm.value(where, value.unwrap())):
+            old[name] = value
+
+
+def _merge_points(old_task, new_task, norm: _Normaliser, kind: str) -> None:
+    import difflib
+
+    import tomlkit
+
+    new_points = new_task["points"]
+    old_points = old_task.get("points")
+    count = len(new_points)
+    roles = ["start" if i == 0 else "finish" if i == count - 1 else "turn" for i in range(count)]
+
+    def zone_defaults(entry, role) -> dict:
+        zone = norm.value(("task", "points", "zone"), entry.get("zone"))
+        table = _START_FINISH if role != "turn" else _AREA_TURNS if kind == "area" else _RACING_TURNS
+        return {k: v for k, v in table.get(zone, {}).items() if v is not None} if isinstance(zone, str) else {}
+
+    if not isinstance(old_points, tomlkit.items.AoT):
+        old_task["points"] = new_points
+        return
+    identity = lambda entry: norm.value(("task", "points", "at"), entry.get("at"))  # noqa: E731
+    if len(old_points) == count:
+        pairs = list(range(count))
+    else:
+        pairs = [None] * count
+        matcher = difflib.SequenceMatcher(a=[identity(e) for e in old_points], b=[identity(e) for e in new_points],
+                                          autojunk=False)
+        for block in matcher.get_matching_blocks():
+            for offset in range(block.size):
+                pairs[block.b + offset] = block.a + offset
+    tables = []
+    for index, (entry, old_index) in enumerate(zip(new_points, pairs)):
+        if old_index is None:
+            tables.append(entry)
+            continue
+        table = old_points[old_index]
+        _merge_table(table, entry, ("task", "points"), norm, zone_defaults(entry, roles[index]))
+        tables.append(table)
+    if pairs == list(range(count)) and len(old_points) == count:
+        return  # changed in place
+    while len(old_points):
+        del old_points[0]
+    for table in tables:
+        old_points.append(table)
+
+
+def _merged_text(previous: str, fresh: str, folder: Path, scenario: Scenario) -> str | None:
+    """``previous`` changed to mean what ``fresh`` means, or None if that cannot be done safely."""
+    import tomllib
+
+    import tomlkit
+
+    try:
+        old = tomlkit.parse(previous)
+        new = tomlkit.parse(fresh)
+    except Exception:  # noqa: BLE001 - anything tomlkit cannot keep: write the fresh text
+        return None
+    default_name = Path(scenario.source).stem if scenario.source else ""
+    norm = _Normaliser(folder, scenario.turnpoints or (), default_name)
+    try:
+        for name in list(old.keys()):
+            if name not in new:
+                del old[name]
+        for name, table in new.items():
+            defaults = dict(_TABLE_DEFAULTS.get(name, {}))
+            if name == "task":
+                defaults["name"] = default_name
+            if name not in old:
+                kept = {k: v for k, v in table.items()
+                        if not (k in defaults and norm.value((name, k), defaults[k]) == norm.value((name, k), v.unwrap()))}
+                if kept:
+                    old[name] = table
+                continue
+            _merge_table(old[name], table, (name,), norm, defaults)
+            if name == "task":
+                _merge_points(old[name], table, norm, str(table.get("kind", "racing")))
+        text = tomlkit.dumps(old)
+        same = norm.document(tomllib.loads(text)) == norm.document(tomllib.loads(fresh))
+    except Exception:  # noqa: BLE001 - a layout tomlkit cannot edit: write the fresh text
+        return None
+    return text if same else None
+
+
 def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: str | os.PathLike | None = None,
               header: str | None = None) -> None:
     """Write ``scenario`` as a task file (contract 2.3), atomically.
+
+    The text is the task file the scenario was read from (``scenario.source``) with only
+    what changed rewritten, so the user's comments, order and spelling stay; with no
+    readable source, a fresh file. A symbolic link is written through to its target, and
+    the paths in the file are relative to the target's folder.
 
     Parameters
     ----------
@@ -562,23 +827,46 @@ def save_task(path: str | os.PathLike, scenario: Scenario, *, turnpoints_file: s
         The turnpoint file the task refers to. Default: the ``turnpoints_file`` attribute
         of the scenario if it has one, else the file named by ``scenario.source``.
     header : str, optional
-        Comment lines for the top of the file. Default: the leading comment block of
+        Comment lines for the top of a fresh file. Default: the leading comment block of
         ``scenario.source`` (so a note such as "invented demo data" is kept).
 
     Raises
     ------
     ValueError
-        If the turnpoint file cannot be found out.
+        If the turnpoint file cannot be found out, or ``path`` is a file the task reads
+        (its polar, turnpoints or terrain).
+    OSError
+        If the file cannot be written (read-only, a name too long, no such folder).
     """
-    target = Path(path)
+    from glidetask.formats.atomic import write_atomic, write_target
+
+    target = write_target(path)
     if turnpoints_file is None:
         turnpoints_file = scenario.turnpoints_file or (
             turnpoints_file_of(scenario.source) if scenario.source else None)
     if turnpoints_file is None:
         raise ValueError("save_task needs the turnpoint file: pass turnpoints_file=")
+    reads = [turnpoints_file, scenario.glider.polar_file if scenario.glider else None, scenario.terrain_file]
+    for other in (f for f in reads if f):
+        if os.path.realpath(other) == str(target):
+            raise ValueError(f"{os.fspath(path)} is {other}, a file the task reads; save the task under another name")
     if header is None:
         header = _leading_comments(scenario.source)
-    write_atomic(target, scenario_to_toml(scenario, target.parent, turnpoints_file, header))
+    fresh = scenario_to_toml(scenario, target.parent, turnpoints_file, header)
+    previous = _previous_text(scenario.source)
+    text = _merged_text(previous, fresh, target.parent, scenario) if previous is not None else None
+    write_atomic(target, fresh if text is None else text)
+
+
+def _previous_text(source: str | os.PathLike | None) -> str | None:
+    if not source:
+        return None
+    from glidetask.formats.files import read_text
+
+    try:
+        return read_text(source, str(source))
+    except InputError:
+        return None
 
 
 __all__ = ["load_scenario", "save_task", "scenario_to_toml", "turnpoints_file_of"]

@@ -10,12 +10,21 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from glidetask.errors import Problem, ProblemCollector
+from glidetask.errors import InputError, Problem, ProblemCollector
+from glidetask.formats.files import read_text
 
 
 def is_number(value: Any) -> bool:
     """A TOML integer or float (TOML booleans are not numbers)."""
     return isinstance(value, (int, float)) and not isinstance(value, bool)
+
+
+def as_float(value: Any) -> float | None:
+    """A TOML number as a float; None for an integer too large for a float."""
+    try:
+        return float(value)
+    except OverflowError:
+        return None
 
 
 def show(value: Any) -> str:
@@ -26,6 +35,8 @@ def show(value: Any) -> str:
         return "a table"
     if isinstance(value, list):
         return "a list"
+    if isinstance(value, int) and not isinstance(value, bool) and abs(value) > 10**30:
+        return f"an integer of {len(str(abs(value)))} digits"
     return json.dumps(value) if isinstance(value, (bool, int, float)) else repr(value)
 
 
@@ -33,13 +44,9 @@ def read_toml(path: Path, file: str) -> tuple[dict | None, list[Problem]]:
     """``(document, [])``, or ``(None, [problem])`` for an unreadable file or a syntax error
     (placed at its line, as :mod:`tomllib` reports it)."""
     try:
-        text = path.read_bytes().decode("utf-8")
-    except FileNotFoundError:
-        return None, [Problem(file, "file", "no such file")]
-    except UnicodeDecodeError:
-        return None, [Problem(file, "file", "is not UTF-8 text")]
-    except OSError as error:
-        return None, [Problem(file, "file", f"cannot read it: {error.strerror or error}")]
+        text = read_text(path, file)
+    except InputError as error:
+        return None, error.problems
     try:
         return tomllib.loads(text), []
     except tomllib.TOMLDecodeError as error:
@@ -49,6 +56,10 @@ def read_toml(path: Path, file: str) -> tuple[dict | None, list[Problem]]:
             return None, [Problem(file, "file", f"TOML syntax error: {message}")]
         line, _, column = message[marker + len(" (at line "):].rstrip(")").partition(", column ")
         return None, [Problem(file, f"line {line}", f"TOML syntax error: {message[:marker]} (column {column})")]
+    except RecursionError:
+        return None, [Problem(file, "file", "TOML nested too deeply (arrays or tables inside each other)")]
+    except ValueError as error:  # Python's limit on the digits of an integer
+        return None, [Problem(file, "file", f"TOML number too long: {str(error).split(':')[0]}")]
 
 
 class TomlReader:
@@ -92,10 +103,11 @@ class TomlReader:
         if not is_number(value):
             self.add(here, f"must be a number, got {show(value)}")
             return None
-        value = float(value)
-        if not math.isfinite(value):
+        number = as_float(value)
+        if number is None or not math.isfinite(number):
             self.add(here, f"must be a finite number, got {show(value)}")
             return None
+        value = number
         if positive and value <= 0.0:
             self.add(here, f"must be greater than 0, got {value:g}")
             return None
@@ -104,6 +116,9 @@ class TomlReader:
             return None
         if low is not None and high is None and value < low:
             self.add(here, f"must be at least {low:g}, got {value:g}")
+            return None
+        if high is not None and (low is None) and value > high:
+            self.add(here, f"must be at most {high:g}, got {value:g}")
             return None
         return value
 

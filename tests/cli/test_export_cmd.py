@@ -44,7 +44,9 @@ def test_markdown_export_is_the_briefing_in_the_chosen_units(capsys, tmp_path):
 def test_export_overwrites_atomically_and_leaves_no_temporary_files(capsys, tmp_path):
     target = tmp_path / "plan.md"
     target.write_text("old", encoding="utf-8")
-    assert main(["export", TASK, "--to", str(target)]) == 0
+    assert main(["export", TASK, "--to", str(target)]) == 2  # an existing file needs --force
+    assert target.read_text(encoding="utf-8") == "old"
+    assert main(["export", TASK, "--to", str(target), "--force"]) == 0
     assert target.read_text(encoding="utf-8").startswith("# Pre-flight briefing")
     assert sorted(p.name for p in tmp_path.iterdir()) == ["plan.md"]
 

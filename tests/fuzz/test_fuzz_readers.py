@@ -1,0 +1,209 @@
+"""Seeded fuzzing of every reader: polar, task, GeoJSON and CSV turnpoints, GeoTIFF terrain.
+
+Each input is a valid file mutated by a generator of our own (byte flips, cuts and
+repeats; numbers swapped for hostile ones; text swapped for line breaks, NULs and long
+strings; brackets nested deep), fed to ``glidetask check`` (and ``polar`` for polars). The
+contract's outcome must hold for every one (and a task that ``check`` passes must also
+``plan``, checked on a sample) (shared/CONTRACT.md section 7): exit 0 with
+nothing on stderr, or exit 2 with only one-line ``glidetask: error: FILE: WHERE: WHAT``
+lines, at least one naming the file; never an internal error (exit 1), a traceback or a
+hang (each input has a 10 s alarm).
+
+The default run is a few thousand inputs in seconds. For a longer run multiply the count:
+``GLIDETASK_FUZZ=20 python -m pytest tests/fuzz`` (and ``GLIDETASK_FUZZ_SEED=N`` for other
+inputs). A failure prints the reader, the input number and the seed, which reproduce it.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+import random
+import re
+import signal
+from pathlib import Path
+
+import pytest
+
+from glidetask.cli import main
+from polar_text import GOOD as GOOD_POLAR
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMO = ROOT / "demo_tasks"
+SCALE = float(os.environ.get("GLIDETASK_FUZZ", "1"))
+SEED = int(os.environ.get("GLIDETASK_FUZZ_SEED", "14"))
+ERROR_LINE = re.compile(r"^glidetask: error: [^\n]+: [^\n]+: [^\n]+$")
+
+HOSTILE_NUMBERS = ["0", "-0.0", "-1", "1e308", "-1e308", "1e400", "1" + "0" * 400, "-" + "9" * 400,
+                   "1" + "0" * 4400, "nan", "inf", "-inf", "900", "1e-320", "0x7f", "1_0", "3.4e38", "65535",
+                   "[]", "{}", '"12"', "true"]
+HOSTILE_TEXT = ["", " ", "\n", "\\n", "\x00", "\u2028", "x" * 5000, "é\u0301", "\ud800", "KLH", "VAR",
+                "../" * 50 + "x", "/dev/zero", "p" * 300]
+
+
+def _mutate_text(text: str, rng: random.Random) -> str:
+    """One to three text-level mutations of ``text``."""
+    for _ in range(rng.randint(1, 3)):
+        choice = rng.randrange(9)
+        numbers = list(re.finditer(r"-?\d+(\.\d+)?([eE][-+]?\d+)?", text))
+        strings = list(re.finditer(r'"[^"\n]*"', text))
+        if choice == 0 and numbers:
+            m = rng.choice(numbers)
+            text = text[:m.start()] + rng.choice(HOSTILE_NUMBERS) + text[m.end():]
+        elif choice == 1 and strings:
+            m = rng.choice(strings)
+            hostile = rng.choice(HOSTILE_TEXT)
+            text = text[:m.start()] + json.dumps(hostile, ensure_ascii=rng.random() < 0.5) + text[m.end():]
+        elif choice == 2 and text:
+            i = rng.randrange(len(text))
+            text = text[:i] + text[i + rng.randint(1, 40):]
+        elif choice == 3 and text:
+            i, j = sorted(rng.randrange(len(text)) for _ in range(2))
+            text = text[:j] + text[i:j] + text[j:]
+        elif choice == 4:
+            depth = rng.choice([50, 999, 1001, 5000])
+            i = rng.randrange(len(text) + 1)
+            text = text[:i] + "[" * depth + "]" * depth * rng.randint(0, 1) + text[i:]
+        elif choice == 5:
+            lines = text.splitlines(keepends=True)
+            rng.shuffle(lines)
+            text = "".join(lines)
+        elif choice == 6 and text:
+            i = rng.randrange(len(text))
+            text = text[:i] + chr(rng.choice([0, 9, 10, 13, 34, 39, 44, 91, 93, 123, 125, 0xFEFF, 0x2028])) + text[i:]
+        elif choice == 7:
+            lines = text.splitlines(keepends=True)
+            if lines:
+                k = rng.randrange(len(lines))
+                lines[k:k] = [lines[k]] * rng.randint(1, 30)
+            text = "".join(lines)
+        else:
+            text = text[:rng.randrange(len(text) + 1)]
+    return text
+
+
+def _mutate_bytes(data: bytes, rng: random.Random) -> bytes:
+    """One to four byte-level mutations (for binary files and encodings)."""
+    data = bytearray(data)
+    for _ in range(rng.randint(1, 4)):
+        choice = rng.randrange(4)
+        if choice == 0 and data:
+            data[rng.randrange(len(data))] = rng.randrange(256)
+        elif choice == 1 and data:
+            i = rng.randrange(len(data))
+            data[i:i + 4] = rng.choice([b"\xff\xff\xff\xff", b"\x00\x00\x00\x00", b"\x7f\x7f\xff\xff",
+                                        b"\xff\xff\x7f\x7f", bytes(rng.randrange(256) for _ in range(4))])
+        elif choice == 2 and data:
+            i = rng.randrange(len(data))
+            del data[i:i + rng.randint(1, 64)]
+        else:
+            data = data[:rng.randrange(len(data) + 1)]
+    return bytes(data)
+
+
+def _task_seed() -> str:
+    text = (DEMO / "vardmoor-triangle-300.toml").read_text(encoding="utf-8")
+    text = text.replace('"vardmoor.geojson"', json.dumps(str(DEMO / "vardmoor.geojson")))
+    text = text.replace('"../polars/', '"' + str(ROOT / "polars") + "/")
+    return text.replace('file = "terrain.tif"', f"file = {json.dumps(str(DEMO / 'terrain.tif'))}")
+
+
+def _geojson_seed() -> str:
+    lines = (DEMO / "vardmoor.geojson").read_text(encoding="utf-8").splitlines()
+    return "\n".join(lines[:12]).rstrip(",") + "\n]}\n"  # the first few points
+
+
+def _csv_seed() -> str:
+    return "\n".join((DEMO / "vardmoor.csv").read_text(encoding="utf-8").splitlines()[:12]) + "\n"
+
+
+def _tiff_seed(folder: Path) -> bytes:
+    import numpy as np
+    import rasterio
+    from affine import Affine
+
+    path = folder / "seed.tif"
+    data = (np.arange(64, dtype=np.float32).reshape(8, 8) * 10.0) + 100.0
+    with rasterio.open(path, "w", driver="GTiff", height=8, width=8, count=1, dtype="float32", crs="EPSG:4326",
+                       transform=Affine(0.1, 0.0, -34.0, 0.0, -0.1, 47.0), nodata=-9999.0) as dataset:
+        dataset.write(data, 1)
+    return path.read_bytes()
+
+
+# name, suffix, count in the default run, and whether mutations work on text
+READERS = {
+    "polar": (".toml", 1000, True),
+    "task": (".toml", 500, True),
+    "geojson": (".geojson", 1000, True),
+    "csv": (".csv", 1000, True),
+    "geotiff": (".tif", 300, False),
+}
+
+
+@pytest.fixture
+def alarm():
+    def stop(signum, frame):
+        raise TimeoutError("a reader hung")
+
+    previous = signal.signal(signal.SIGALRM, stop)
+    yield lambda seconds: signal.alarm(seconds)
+    signal.alarm(0)
+    signal.signal(signal.SIGALRM, previous)
+
+
+def _outcome_holds(status: int, err: str, path: str) -> str | None:
+    """What breaks the contract in one run's exit status and stderr, or None."""
+    lines = err.splitlines()
+    if status == 0:
+        return None if not err.strip() else f"exit 0 with stderr {err[:300]!r}"
+    if status != 2:
+        return f"exit {status}: {err[:300]!r}"
+    if not lines:
+        return "exit 2 without an error line"
+    bad = [line for line in lines if not ERROR_LINE.match(line)]
+    if bad or err.count("\n") != len(lines):
+        return f"a line that is not a one-line error: {bad[:2]!r}"
+    if not any(path in line for line in lines):
+        return f"no line names the file: {lines[:2]!r}"
+    return None
+
+
+@pytest.mark.parametrize("reader", sorted(READERS))
+def test_every_mutated_input_ends_as_the_contract_says(reader, tmp_path, capfd, alarm):
+    suffix, count, textual = READERS[reader]
+    seed_text = {"polar": lambda: GOOD_POLAR, "task": _task_seed, "geojson": _geojson_seed,
+                 "csv": _csv_seed}.get(reader)
+    seed = seed_text().encode("utf-8") if seed_text else _tiff_seed(tmp_path)
+    rng = random.Random(f"{SEED}-{reader}")
+    failures, outcomes = [], {0: 0, 2: 0}
+    for number in range(int(count * SCALE)):
+        if textual and rng.random() < 0.85:
+            data = _mutate_text(seed.decode("utf-8"), rng).encode("utf-8", "surrogatepass")
+        else:
+            data = _mutate_bytes(seed, rng)
+        path = tmp_path / f"{reader}-{number}{suffix}"  # a new name each time: no cache sees an old file
+        path.write_bytes(data)
+        commands = [["check", str(path)]] + ([["polar", str(path), "--json"]] if reader == "polar" and number % 4 == 0
+                                              else [])
+        for command in commands:
+            alarm(10)
+            try:
+                status = main(command)
+            except TimeoutError:
+                status, err = -1, "hung for 10 s"
+            else:
+                err = capfd.readouterr().err
+            finally:
+                alarm(0)
+            capfd.readouterr()
+            broken = _outcome_holds(status, err, str(path)) if status != -1 else err
+            if command[0] == "check" and status in outcomes:
+                outcomes[status] += 1
+            if reader == "task" and command[0] == "check" and status == 0 and len(commands) == 1 and number % 5 == 0:
+                commands.append(["plan", str(path), "--json"])  # what check passes must also plan
+            if broken:
+                failures.append(f"{reader} input {number} (seed {SEED}), {command[0]}: {broken}")
+        path.unlink()
+    assert not failures, f"{len(failures)} broken outcomes, the first: " + "\n".join(failures[:5])
+    # The generator must reach both outcomes, or it tests only one side of each reader.
+    assert min(outcomes.values()) >= 0.02 * count * SCALE, outcomes
