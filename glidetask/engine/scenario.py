@@ -90,6 +90,68 @@ class Wind:
     speed_ms: float = 0.0
 
 
+def _wind_vector(from_deg, speed_ms):
+    """The (east, north) components [m/s] of the air's motion for a wind blowing FROM ``from_deg``."""
+    to = np.radians(np.asarray(from_deg, dtype=float) + 180.0)
+    return speed_ms * np.sin(to), speed_ms * np.cos(to)
+
+
+def _wind_from_vector(east_ms: float, north_ms: float) -> Wind:
+    speed = math.hypot(east_ms, north_ms)
+    if speed < 1e-9:
+        return Wind(0.0, 0.0)
+    return Wind(math.degrees(math.atan2(-east_ms, -north_ms)) % 360.0, speed)
+
+
+@dataclass(frozen=True)
+class WindLevel:
+    """One level of a wind profile: the direction the wind blows FROM [deg true] and its
+    speed [m/s] at ``height_m`` [m MSL]."""
+
+    height_m: float
+    from_deg: float
+    speed_ms: float
+
+
+@dataclass(frozen=True)
+class WindProfile:
+    """The wind by height: levels from the ground up, the wind vector linear in height
+    between them and held beyond the lowest and the highest.
+
+    Interpolating the vector (not direction and speed apart) is what a mixed layer's
+    winds do between two levels; through a veer it gives a lighter wind in between.
+    """
+
+    levels: tuple[WindLevel, ...]
+
+    def __post_init__(self):
+        heights = [level.height_m for level in self.levels]
+        if not heights or any(b <= a for a, b in zip(heights, heights[1:])):
+            raise ValueError("a wind profile needs levels with increasing heights")
+
+    def _vectors(self):
+        heights = np.array([level.height_m for level in self.levels])
+        east, north = _wind_vector([level.from_deg for level in self.levels],
+                                   np.array([level.speed_ms for level in self.levels]))
+        return heights, east, north
+
+    def at(self, height_m: float) -> Wind:
+        """The wind at ``height_m`` [m MSL]."""
+        heights, east, north = self._vectors()
+        return _wind_from_vector(float(np.interp(height_m, heights, east)), float(np.interp(height_m, heights, north)))
+
+    def mean_between(self, low_m: float, high_m: float) -> Wind:
+        """The height-weighted mean wind vector from ``low_m`` to ``high_m`` [m MSL] (the
+        wind at ``low_m`` when they are equal)."""
+        if not high_m > low_m:
+            return self.at(low_m)
+        heights, east, north = self._vectors()
+        z = np.union1d(heights[(heights > low_m) & (heights < high_m)], [low_m, high_m])
+        depth = high_m - low_m
+        return _wind_from_vector(float(np.trapezoid(np.interp(z, heights, east), z)) / depth,
+                                 float(np.trapezoid(np.interp(z, heights, north), z)) / depth)
+
+
 @dataclass(frozen=True)
 class Profile:
     """A quantity through the day: ``[time, value]`` pairs, linear in between,
@@ -159,7 +221,7 @@ class Day:
     band_top_m: float
     band_bottom_m: float
     lift_ends_s: float
-    wind: Wind = field(default_factory=Wind)
+    wind: Wind = field(default_factory=Wind)  # a Wind, or a WindProfile (read with wind_at)
     climb: Profile | None = None
     thermal_strength: Profile | None = None
     start_height_m: float | None = None  # None: the band top
@@ -167,6 +229,10 @@ class Day:
     isa_deviation_c: float = 0.0
     mc_ms: float | None = None  # None: the achieved climb at that moment
     thermal_radius_m: float = 150.0  # e-folding radius of the Gaussian thermal core
+
+    def wind_at(self, height_m: float) -> Wind:
+        """The wind at ``height_m`` [m MSL]: the steady wind, or the profile's there."""
+        return self.wind.at(height_m) if isinstance(self.wind, WindProfile) else self.wind
 
     @property
     def band_middle_m(self) -> float:

@@ -47,6 +47,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from glidetask.engine.scenario import WindLevel
+
 #: Gravity [m/s^2] (ISO 2533 standard value).
 G = 9.80665
 #: Reference pressure of potential temperature [Pa].
@@ -139,16 +141,6 @@ class SurfaceForecast:
         """``(temperature_c, dewpoint_c)`` at ``time_s``, held beyond the ends."""
         return (np.interp(time_s, self.times_s, self.temperature_c),
                 np.interp(time_s, self.times_s, self.dewpoint_c))
-
-
-@dataclass(frozen=True)
-class WindLevel:
-    """One level of the wind profile: the direction the wind blows FROM [deg true] and its
-    speed [m/s] at ``height_m`` [m MSL]."""
-
-    height_m: float
-    from_deg: float
-    speed_ms: float
 
 
 @dataclass(frozen=True)
