@@ -62,9 +62,10 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
     if not day.start_time_s < day.lift_ends_s:
         out.append(("[day] start_time", f"the start ({format_clock(day.start_time_s)}) must be before lift ends "
                                         f"({format_clock(day.lift_ends_s)})"))
-    if not day.band_top_m > day.band_bottom_m:
+    lowest_top = day.band_top_m if day.band_top_profile is None else min(day.band_top_profile.values)
+    if not lowest_top > day.band_bottom_m:
         out.append(("[day] band_top_m", "the band top must be above band_bottom_m"))
-    if day.start_height_m is not None and day.start_height_m > day.band_top_m:
+    if day.start_height_m is not None and day.start_height_m > day.band_top_at(day.start_time_s):
         out.append(("[day] start_height_m", "the start height is above band_top_m"))
     return out
 
@@ -229,6 +230,16 @@ class Day:
     isa_deviation_c: float = 0.0
     mc_ms: float | None = None  # None: the achieved climb at that moment
     thermal_radius_m: float = 150.0  # e-folding radius of the Gaussian thermal core
+    #: The band top through the day [m MSL] (None: ``band_top_m`` all day). When set,
+    #: ``band_top_m`` is its highest value (the density of the cruise, the checks).
+    band_top_profile: Profile | None = None
+
+    def band_top_at(self, time_s):
+        """The band top [m MSL] at ``time_s``: the profile's value (held beyond its ends),
+        never above ``band_top_m``; ``band_top_m`` without a profile."""
+        if self.band_top_profile is None:
+            return self.band_top_m
+        return scalar_or_array(np.minimum(np.asarray(self.band_top_profile.at(time_s), dtype=float), self.band_top_m))
 
     def wind_at(self, height_m: float) -> Wind:
         """The wind at ``height_m`` [m MSL]: the steady wind, or the profile's there."""
@@ -241,7 +252,8 @@ class Day:
 
     @property
     def effective_start_height_m(self) -> float:
-        return self.band_top_m if self.start_height_m is None else self.start_height_m
+        """The start height: given, or the band top at the start time."""
+        return float(self.band_top_at(self.start_time_s)) if self.start_height_m is None else self.start_height_m
 
     def lift_profile_at(self, time_s):
         """The profile value (achieved climb or thermal strength) at ``time_s``; 0 after lift ends."""
