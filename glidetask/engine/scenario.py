@@ -290,6 +290,10 @@ class Scenario:
     terrain_file: str | None = None
     source: str | None = None
     turnpoints_file: str | None = None
+    #: Where the day came from when the task file names a sounding
+    #: (:class:`glidetask.engine.sounding.DaySource`); None for a typed day. The plan
+    #: flies ``day`` only; this is for showing and saving the source.
+    day_source: object = None
 
 
 # ---------------------------------------------------------------- what-ifs

@@ -282,13 +282,29 @@ def load_derived_day(task_path: str | os.PathLike):
     sounding file's row) for bad input, a sounding that does not reach the thermal top
     included.
     """
-    from glidetask.engine.sounding import derive_day
     from glidetask.formats.toml_reader import read_toml
 
     file = str(task_path)
     document, problems = read_toml(Path(task_path), file)
     if document is None:
         raise InputError(problems)
+    settings, _, derived = derive_task_day(document, task_path)
+    return settings, derived
+
+
+def derive_task_day(document: dict, task_path: str | os.PathLike):
+    """The day derived from a parsed task file's sounding keys (shared by ``glidetask day``
+    and the task reader): ``(DaySounding, Sounding, DerivedDay)``.
+
+    Raises
+    ------
+    InputError
+        No ``[day] sounding``; a bad key; a bad sounding file (naming its row); a sounding
+        that does not reach the thermal top.
+    """
+    from glidetask.engine.sounding import derive_day
+
+    file = str(task_path)
     settings = read_day_sounding(document, task_path)
     if settings is None:
         raise InputError.one(file, "[day] sounding", "missing key: name a sounding file to derive the day from "
@@ -305,7 +321,7 @@ def load_derived_day(task_path: str | os.PathLike):
                              band_bottom_agl_m=settings.band_bottom_agl_m)
     except SoundingTooShortError as error:
         raise InputError([_too_short(settings.sounding_file, len(sounding.height_m), error)]) from None
-    return settings, derived
+    return settings, sounding, derived
 
 
 def _too_short(file: str, levels: int, error: SoundingTooShortError) -> Problem:
@@ -319,4 +335,4 @@ def _too_short(file: str, levels: int, error: SoundingTooShortError) -> Problem:
 
 
 __all__ = ["COLUMNS", "DAY_SOUNDING_KEYS", "DaySounding", "parse_sounding", "read_sounding", "read_day_sounding",
-           "load_derived_day", "looks_like_sounding"]
+           "load_derived_day", "derive_task_day", "looks_like_sounding"]

@@ -46,6 +46,9 @@ DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind
             "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m",
             # the day from a sounding (contract 2.7), read by glidetask.formats.sounding_file
             "sounding", "surface", "surface_elevation_m", "band_top_margin_m", "band_bottom_agl_m")
+#: The typed [day] keys that override a derived day's values (climb_ms overrides the
+#: derived thermal strength).
+OVERRIDING_KEYS = ("band_top_m", "band_bottom_m", "thermal_strength_ms", "climb_ms", "lift_ends", "wind")
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
@@ -272,7 +275,8 @@ def _glider(reader: _Reader, table: dict, base: Path) -> GliderSetup | None:
     return GliderSetup(spec, pilot, ballast, bugs, polar_file=str(polar_file.resolve()))
 
 
-def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
+def _profile(reader: _Reader, table: dict, key: str, low: float = 0.0, high: float = 15.0,
+             unit: str = "m/s") -> Profile | None:
     where = f"[day] {key}"
     raw = table[key]
     if not isinstance(raw, list) or not raw:
@@ -282,7 +286,7 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
     for number, pair in enumerate(raw, start=1):
         here = f"{where}[{number}]"
         if not (isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str) and is_number(pair[1])):
-            reader.add(here, f"must be a pair [\"HH:MM\", m/s], got {show(pair)}")
+            reader.add(here, f"must be a pair [\"HH:MM\", {unit}], got {show(pair)}")
             ok = False
             continue
         try:
@@ -292,8 +296,8 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
             ok = False
             continue
         value = float(pair[1])
-        if not math.isfinite(value) or not 0.0 <= value <= 15.0:
-            reader.add(here, f"the value must be in [0, 15] m/s, got {pair[1]!r}")
+        if not math.isfinite(value) or not low <= value <= high:
+            reader.add(here, f"the value must be in [{low:g}, {high:g}] {unit}, got {pair[1]!r}")
             ok = False
         if times and time_s <= times[-1]:
             reader.add(here, f"times must increase: {pair[0]} is not after {format_clock(times[-1])}")
@@ -318,30 +322,64 @@ def _wind(reader: _Reader, table: dict) -> Wind | None:
     return Wind(direction % 360.0, speed * KMH)
 
 
-def _day(reader: _Reader, table: dict) -> Day | None:
+def _band_top(reader: _Reader, table: dict, derived) -> tuple[float | None, Profile | None]:
+    """``(band_top_m, profile or None)``: a typed height, a typed band top through the day
+    (``[["HH:MM", m], ...]``, band_top_m its highest value), or the derived day's."""
+    if "band_top_m" not in table:
+        if derived is not None:
+            return derived.band_top_m, derived.band_top
+        reader.number(table, "[day]", "band_top_m", required=True)
+        return None, None
+    if isinstance(table["band_top_m"], list):
+        profile = _profile(reader, table, "band_top_m", low=-500.0, high=15000.0, unit="m")
+        return (None, None) if profile is None else (max(profile.values), profile)
+    return reader.number(table, "[day]", "band_top_m", required=True, low=-500.0, high=15000.0), None
+
+
+def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = False) -> Day | None:
+    """The [day] table as a Day; with a sounding (``source``, a
+    :class:`glidetask.engine.sounding.DaySource`) the keys it derives may be left out, and
+    typed ones override them. ``sounding_failed``: the sounding's problems are reported
+    already, so the keys it would have given are not reported missing."""
     reader.unknown(table, "[day]", DAY_KEYS)
+    derived = None if source is None else source.inputs
+    optional = derived is not None or sounding_failed
     start = reader.clock(table, "[day]", "start_time", required=True)
-    lift_ends = reader.clock(table, "[day]", "lift_ends", required=True)
-    top = reader.number(table, "[day]", "band_top_m", required=True, low=-500.0, high=15000.0)
-    bottom = reader.number(table, "[day]", "band_bottom_m", required=True, low=-500.0, high=15000.0)
+    lift_ends = reader.clock(table, "[day]", "lift_ends", required=not optional)
+    if lift_ends is None and "lift_ends" not in table and derived is not None:
+        lift_ends = derived.lift_ends_s
+    if optional and "band_top_m" not in table:
+        top, top_profile = (None, None) if derived is None else (derived.band_top_m, derived.band_top)
+    else:
+        top, top_profile = _band_top(reader, table, derived)
+    bottom = reader.number(table, "[day]", "band_bottom_m", required=not optional, low=-500.0, high=15000.0)
+    if bottom is None and "band_bottom_m" not in table and derived is not None:
+        bottom = derived.band_bottom_m
     start_height = reader.number(table, "[day]", "start_height_m", low=-500.0, high=15000.0)
-    if top is not None and bottom is not None and top <= bottom:
-        reader.add("[day] band_top_m", f"the band top ({top:g} m) must be above band_bottom_m ({bottom:g} m)")
-    if start_height is not None and top is not None and start_height > top:
-        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above band_top_m ({top:g} m)")
+    lowest_top = top if top_profile is None else min(top_profile.values)
+    if lowest_top is not None and bottom is not None and lowest_top <= bottom:
+        reader.add("[day] band_top_m", f"the band top ({lowest_top:g} m) must be above band_bottom_m ({bottom:g} m)")
+    start_top = top if top_profile is None or start is None else min(float(top_profile.at(start)), top)
+    if start_height is not None and start_top is not None and start_height > start_top:
+        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above the band top "
+                                           f"({start_top:g} m)")
     if start is not None and lift_ends is not None and start >= lift_ends:
         reader.add("[day] start_time", f"the start ({format_clock(start)}) must be before lift_ends "
                                        f"({format_clock(lift_ends)})")
     given = [key for key in ("climb_ms", "thermal_strength_ms") if key in table]
     climb = strength = None
-    if len(given) != 1:
+    if not given and derived is not None:
+        strength = derived.thermal_strength
+    elif not given and sounding_failed:
+        pass
+    elif len(given) != 1:
         reader.add("[day] climb_ms", "give exactly one of climb_ms (achieved climb) and thermal_strength_ms "
                                      f"(thermal core strength), got {' and '.join(given) or 'neither'}")
     elif given[0] == "climb_ms":
         climb = _profile(reader, table, "climb_ms")
     else:
         strength = _profile(reader, table, "thermal_strength_ms")
-    wind = _wind(reader, table)
+    wind = derived.wind if "wind" not in table and derived is not None else _wind(reader, table)
     airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
@@ -352,9 +390,35 @@ def _day(reader: _Reader, table: dict) -> Day | None:
         return None
     return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
                climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
-               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius)
+               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius, band_top_profile=top_profile)
 
 
+def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
+    """``(DaySource or None, failed)`` for a task whose [day] names a sounding: the
+    derived day (MetPy is imported only here) and the keys typed over it."""
+    day = document.get("day")
+    if not isinstance(day, dict) or "sounding" not in day:
+        return None, False
+    from glidetask.engine.sounding import DaySource, NoWorkingBandError, day_inputs
+    from glidetask.formats.sounding_file import derive_task_day
+
+    try:
+        settings, _, derived = derive_task_day(document, path)
+    except InputError as error:
+        reader.problems.extend(error.problems)
+        return None, True
+    try:
+        inputs = day_inputs(derived)
+    except NoWorkingBandError:
+        typed = all(key in day for key in ("band_top_m", "band_bottom_m", "lift_ends")) and (
+            "climb_ms" in day or "thermal_strength_ms" in day)
+        if not typed:
+            reader.add("[day] sounding", "the day derived from the sounding has no working band (no usable "
+                                         "thermals; see `glidetask day`): there is no cross-country day to plan")
+            return None, True
+        inputs = None
+    overridden = tuple(key for key in OVERRIDING_KEYS if key in day)
+    return DaySource(settings.sounding_file, derived, inputs, overridden, settings), False
 def _safety(reader: _Reader, table: dict | None) -> Safety | None:
     if table is None:
         return Safety()
@@ -425,12 +489,13 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     if task_table is not None:
         task, turnpoints, turnpoint_file = _task(reader, task_table, base, Path(path).stem)
     glider = _glider(reader, glider_table, base) if glider_table is not None else None
-    day = _day(reader, day_table) if day_table is not None else None
+    source, sounding_failed = _day_source(reader, document, path) if day_table is not None else (None, False)
+    day = _day(reader, day_table, source, sounding_failed) if day_table is not None else None
     safety = _safety(reader, reader.table(document, "safety", required=False))
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
     reader.problems.raise_if_any()
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
-                    terrain_file=terrain, source=file,
+                    terrain_file=terrain, source=file, day_source=source,
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
 
 
