@@ -605,6 +605,10 @@ class DayInputs:
 def day_inputs(derived: DerivedDay) -> DayInputs:
     """Map a :class:`DerivedDay` onto the plan's day (pure numpy: no MetPy).
 
+    The values are rounded as a pilot types them, so the same day typed by hand plans the
+    same: heights to the metre, thermal strength to 0.01 m/s, the wind to the degree and
+    0.1 km/h, the lift's start up and its end down to the whole minute (the cautious side).
+
     Raises
     ------
     NoWorkingBandError
@@ -614,17 +618,26 @@ def day_inputs(derived: DerivedDay) -> DayInputs:
     if derived.lift_start_s is None or not band.any():
         raise NoWorkingBandError("the derived day has no working band")
     times = derived.times_s
-    band_top = Profile(tuple(float(t) for t in times[band]), tuple(float(v) for v in derived.band_top_m[band]))
+    band_top = Profile(tuple(float(t) for t in times[band]), tuple(_rounded(derived.band_top_m[band], 0)))
     lift = np.nonzero(derived.thermal_strength_ms > 0.0)[0]
     first = max(int(lift[0]) - 1, 0) if lift.size else 0
     last = min(int(lift[-1]) + 1, times.size - 1) if lift.size else times.size - 1
     strength = Profile(tuple(float(t) for t in times[first:last + 1]),
-                       tuple(float(v) for v in derived.thermal_strength_ms[first:last + 1]))
-    bottom = float(derived.surface_elevation_m + derived.band_bottom_agl_m)
+                       tuple(_rounded(derived.thermal_strength_ms[first:last + 1], 2)))
+    bottom = round(float(derived.surface_elevation_m + derived.band_bottom_agl_m))
     profile = WindProfile(tuple(derived.wind))
-    return DayInputs(band_top=band_top, band_bottom_m=bottom, thermal_strength=strength,
-                     lift_start_s=float(derived.lift_start_s), lift_ends_s=float(derived.lift_end_s),
-                     wind_profile=profile, wind=profile.mean_between(bottom, max(band_top.values)))
+    mean = profile.mean_between(bottom, max(band_top.values))
+    wind = Wind(round(mean.from_deg) % 360.0, round(mean.speed_ms / _KMH, 1) * _KMH)
+    return DayInputs(band_top=band_top, band_bottom_m=float(bottom), thermal_strength=strength,
+                     lift_start_s=math.ceil(derived.lift_start_s / 60.0) * 60.0,
+                     lift_ends_s=math.floor(derived.lift_end_s / 60.0) * 60.0, wind_profile=profile, wind=wind)
+
+
+_KMH = 1000.0 / 3600.0  # m/s per km/h
+
+
+def _rounded(values, digits: int) -> list[float]:
+    return [float(round(float(v), digits)) for v in values]
 
 
 @dataclass(frozen=True)
