@@ -661,8 +661,8 @@ class DaySource:
     """
 
     sounding_file: str
-    derived: DerivedDay
-    inputs: DayInputs
+    derived: DerivedDay = field(compare=False)  # arrays; the inputs and settings say the same
+    inputs: DayInputs | None = None
     overridden: tuple[str, ...] = ()
     settings: object = None
 

@@ -361,7 +361,8 @@ def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = Fals
         reader.add("[day] band_top_m", f"the band top ({lowest_top:g} m) must be above band_bottom_m ({bottom:g} m)")
     start_top = top if top_profile is None or start is None else min(float(top_profile.at(start)), top)
     if start_height is not None and start_top is not None and start_height > start_top:
-        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above the band top "
+        top_name = "band_top_m" if top_profile is None else "the band top at the start"
+        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above {top_name} "
                                            f"({start_top:g} m)")
     if start is not None and lift_ends is not None and start >= lift_ends:
         reader.add("[day] start_time", f"the start ({format_clock(start)}) must be before lift_ends "
@@ -557,6 +558,36 @@ def _profile_value(profile: Profile) -> list:
     return [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)]
 
 
+def _typed_day_keys(scenario: Scenario) -> set[str]:
+    """The [day] keys of the derivable values a saved task must type: all of them for a
+    typed day; for a day from a sounding, those typed over it and those edited away from
+    the derived value (the rest the sounding gives again when the task is read)."""
+    every = {"band_top_m", "band_bottom_m", "wind", "thermal_strength_ms", "lift_ends"}
+    source, day = scenario.day_source, scenario.day
+    if source is None or source.inputs is None or source.settings is None:
+        return every
+    derived = source.inputs
+    same = {"band_top_m": day.band_top_profile == derived.band_top and day.band_top_m == derived.band_top_m,
+            "band_bottom_m": day.band_bottom_m == derived.band_bottom_m,
+            "wind": day.wind == derived.wind,
+            "thermal_strength_ms": day.climb is None and day.thermal_strength == derived.thermal_strength,
+            "lift_ends": day.lift_ends_s == derived.lift_ends_s}
+    return {key for key in every if key in source.overridden or not same[key]}
+
+
+def _sounding_lines(settings, folder: Path) -> list[str]:
+    """The [day] sounding keys as read (:class:`glidetask.formats.sounding_file.DaySounding`)."""
+    surface = settings.surface
+    rows = [[format_clock(t), temperature, dewpoint]
+            for t, temperature, dewpoint in zip(surface.times_s, surface.temperature_c, surface.dewpoint_c)]
+    lines = [f"sounding = {_toml_value(_relative(settings.sounding_file, folder))}",
+             f"surface = {_toml_value(rows)}"]
+    if settings.surface_elevation_m is not None:
+        lines.append(f"surface_elevation_m = {_toml_value(settings.surface_elevation_m)}")
+    return lines + [f"band_top_margin_m = {_toml_value(settings.band_top_margin_m)}",
+                    f"band_bottom_agl_m = {_toml_value(settings.band_bottom_agl_m)}"]
+
+
 def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
                      header: str | None = None) -> str:
     """The TOML text of a task file for ``scenario``, with paths relative to ``folder``."""
@@ -573,19 +604,29 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
     lines += ["", "[glider]", f"polar = {_toml_value(_relative(glider.polar_file, folder))}",
               f"pilot_kg = {_toml_value(glider.pilot_kg)}", f"ballast_kg = {_toml_value(glider.ballast_kg)}",
               f"bugs_percent = {_toml_value(glider.bugs_percent)}"]
-    lines += ["", "[day]", f"start_time = {_toml_value(format_clock(day.start_time_s))}"]
+    lines += ["", "[day]"]
+    typed = _typed_day_keys(scenario)
+    if scenario.day_source is not None and scenario.day_source.settings is not None:
+        lines += _sounding_lines(scenario.day_source.settings, folder)
+    lines.append(f"start_time = {_toml_value(format_clock(day.start_time_s))}")
     if day.start_height_m is not None:
         lines.append(f"start_height_m = {_toml_value(day.start_height_m)}")
-    lines += [f"band_top_m = {_toml_value(day.band_top_m)}", f"band_bottom_m = {_toml_value(day.band_bottom_m)}",
-              f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}"]
+    if "band_top_m" in typed:
+        top = day.band_top_m if day.band_top_profile is None else _profile_value(day.band_top_profile)
+        lines.append(f"band_top_m = {_toml_value(top)}")
+    if "band_bottom_m" in typed:
+        lines.append(f"band_bottom_m = {_toml_value(day.band_bottom_m)}")
+    if "wind" in typed:
+        lines.append(f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}")
     if day.climb is not None:
         lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
-    else:
+    elif "thermal_strength_ms" in typed:
         lines.append(f"thermal_strength_ms = {_toml_value(_profile_value(day.thermal_strength))}")
     # The circling model uses the thermal radius with either profile (ballast comparisons, odds).
     lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
-    lines += [f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}",
-              f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
+    if "lift_ends" in typed:
+        lines.append(f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}")
+    lines += [f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
               f"isa_deviation_c = {_toml_value(day.isa_deviation_c)}"]
     if day.mc_ms is not None:
         lines.append(f"mc_ms = {_toml_value(day.mc_ms)}")

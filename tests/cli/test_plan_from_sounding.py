@@ -180,3 +180,26 @@ def test_a_sounding_day_without_a_working_band_is_a_clear_error(capsys, tmp_path
     err = capsys.readouterr().err.strip().splitlines()
     assert err == [f"glidetask: error: {task}: [day] sounding: the day derived from the sounding has no working band "
                    f"(no usable thermals; see `glidetask day`): there is no cross-country day to plan"]
+
+
+def test_a_saved_task_keeps_its_sounding_and_types_only_what_was_edited(tmp_path):
+    # Nothing the user saved is lost: the sounding keys are written back, the derived keys
+    # are not typed (the sounding gives them again), an edited value is.
+    import dataclasses
+
+    from glidetask.formats.task_file import save_task
+
+    scenario = load_scenario(FORECAST)
+    target = tmp_path / "saved.toml"
+    save_task(target, scenario)
+    text = target.read_text(encoding="utf-8")
+    for key in SOUNDING_KEYS:
+        assert f"\n{key} = " in text
+    for key in ("band_top_m", "band_bottom_m", "thermal_strength_ms", "lift_ends", "wind"):
+        assert f"\n{key} = " not in text
+    again = load_scenario(target)
+    assert again.day == scenario.day and again.day_source == scenario.day_source
+    edited = dataclasses.replace(scenario, day=dataclasses.replace(scenario.day, band_bottom_m=1100.0))
+    save_task(target, edited)
+    reread = load_scenario(target)
+    assert reread.day.band_bottom_m == 1100.0 and reread.day_source.overridden == ("band_bottom_m",)
