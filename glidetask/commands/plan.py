@@ -115,26 +115,9 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     return lines
 
 
-#: How the plan text names each derived key.
-_DERIVED_WORDS = {"band_top_m": "band top through the day", "band_bottom_m": "band bottom",
-                  "thermal_strength_ms": "thermal strength", "lift_ends": "lift end",
-                  "wind": "wind (the mean of the highest band)"}
-
-
-def source_summary(source) -> str | None:
-    """Where a derived day comes from, in words (the plan text, the briefing); None for a typed day."""
-    if source is None:
-        return None
-    from pathlib import Path
-
-    derived = ", ".join(_DERIVED_WORDS[key] for key in source.derived_keys) or "nothing"
-    text = f"from sounding {Path(source.sounding_file).name}: {derived}"
-    if source.overridden:
-        text += f"; typed over it: {', '.join(source.overridden)}"
-    return text
-
-
 def _source_lines(source) -> list[str]:
+    from glidetask.formats.sounding_file import source_summary
+
     text = source_summary(source)
     return [] if text is None else [f"            day {text}"]
 

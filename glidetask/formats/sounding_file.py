@@ -324,6 +324,23 @@ def derive_task_day(document: dict, task_path: str | os.PathLike):
     return settings, sounding, derived
 
 
+#: How the plan text names each derived key.
+_DERIVED_WORDS = {"band_top_m": "band top through the day", "band_bottom_m": "band bottom",
+                  "thermal_strength_ms": "thermal strength", "lift_ends": "lift end",
+                  "wind": "wind (the mean of the highest band)"}
+
+
+def source_summary(source) -> str | None:
+    """Where a derived day comes from, in words (the plan text, the briefing); None for a typed day."""
+    if source is None:
+        return None
+    derived = ", ".join(_DERIVED_WORDS[key] for key in source.derived_keys) or "nothing"
+    text = f"from sounding {Path(source.sounding_file).name}: {derived}"
+    if source.overridden:
+        text += f"; typed over it: {', '.join(source.overridden)}"
+    return text
+
+
 def _too_short(file: str, levels: int, error: SoundingTooShortError) -> Problem:
     if error.time_s is not None:
         what = (f"the sounding ends at {error.top_m:g} m, below the thermal top at {format_clock(error.time_s)} "
@@ -335,4 +352,5 @@ def _too_short(file: str, levels: int, error: SoundingTooShortError) -> Problem:
 
 
 __all__ = ["COLUMNS", "DAY_SOUNDING_KEYS", "DaySounding", "parse_sounding", "read_sounding", "read_day_sounding",
-           "load_derived_day", "derive_task_day", "looks_like_sounding"]
+           "load_derived_day", "derive_task_day", "looks_like_sounding",
+           "source_summary"]
