@@ -655,6 +655,8 @@ class DaySource:
     overridden : tuple of str
         The ``[day]`` keys of :data:`DERIVED_KEYS` typed in the task file, which the plan
         takes instead of the derived values (``climb_ms`` overrides ``thermal_strength_ms``).
+    sounding : Sounding
+        The sounding itself (:func:`sounding_drawing` draws it with ``derived``).
     settings : object
         The task file's sounding keys as read (:class:`glidetask.formats.sounding_file.DaySounding`),
         so a saved task keeps them.
@@ -665,6 +667,7 @@ class DaySource:
     inputs: DayInputs | None = None
     overridden: tuple[str, ...] = ()
     settings: object = None
+    sounding: Sounding | None = field(default=None, compare=False)  # for drawing (sounding_drawing)
 
     @property
     def derived_keys(self) -> tuple[str, ...]:

@@ -404,7 +404,7 @@ def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
     from glidetask.formats.sounding_file import derive_task_day
 
     try:
-        settings, _, derived = derive_task_day(document, path)
+        settings, sounding, derived = derive_task_day(document, path)
     except InputError as error:
         reader.problems.extend(error.problems)
         return None, True
@@ -419,7 +419,7 @@ def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
             return None, True
         inputs = None
     overridden = tuple(key for key in OVERRIDING_KEYS if key in day)
-    return DaySource(settings.sounding_file, derived, inputs, overridden, settings), False
+    return DaySource(settings.sounding_file, derived, inputs, overridden, settings, sounding), False
 def _safety(reader: _Reader, table: dict | None) -> Safety | None:
     if table is None:
         return Safety()

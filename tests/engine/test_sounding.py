@@ -293,3 +293,14 @@ def test_a_day_without_a_working_band_gives_the_plan_nothing():
     derived = snd.derive_day(sounding, surface([10, 16], [15.5, 16.0], [5.0, 5.0]))  # never triggers
     with pytest.raises(snd.NoWorkingBandError):
         snd.day_inputs(derived)
+
+
+def test_a_task_s_day_source_carries_what_the_drawing_needs():
+    from pathlib import Path
+
+    from glidetask.formats.task_file import load_scenario
+
+    source = load_scenario(Path(__file__).resolve().parents[2] / "demo_tasks" / "vardmoor-forecast-day.toml").day_source
+    drawing = snd.sounding_drawing(source.sounding, source.derived)
+    assert drawing.height_m[0] == source.derived.surface_elevation_m  # the demo sounding has a level at the ground
+    np.testing.assert_array_equal(drawing.times_s, source.derived.times_s)
