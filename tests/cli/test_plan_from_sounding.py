@@ -9,7 +9,7 @@ from pathlib import Path
 
 import pytest
 
-from glidetask import cautions
+from glidetask import cautions, units
 from glidetask.cli import main
 from glidetask.engine.sounding import DERIVED_KEYS, day_inputs
 from glidetask.formats.sounding_file import load_derived_day
@@ -139,7 +139,11 @@ def test_the_same_day_typed_by_hand_plans_the_same(capsys, tmp_path, inputs, com
         derived, typed = _strip_source(derived), _strip_source(typed)
         assert "source" not in typed["day"]
     else:
-        derived.pop("cautions", None), typed.pop("cautions", None)
+        notes = derived.pop("cautions"), typed.pop("cautions")
+        # The derived day's cautions travel with every output (and only they differ).
+        assert cautions.SOUNDING[0] in notes[0] and cautions.SOUNDING[0] not in notes[1]
+        assert [text for text in notes[0] if text not in notes[1]] == cautions.day_source_cautions(
+            load_scenario(derived_task).day_source, units.METRIC)
     assert json.dumps(derived, sort_keys=True) == json.dumps(typed, sort_keys=True)
 
 
