@@ -208,7 +208,8 @@ def plan_cautions(plan, units: "UnitSystem") -> list[str]:
     """Every caution of a :class:`glidetask.engine.plan.Plan` in ``units``: the general ones,
     then the plan's own (its notices), then its terrain and landable cautions, each once.
     The text output, the JSON (metric), the briefing and the UI all call this."""
-    own = general() + [notice_text(notice, units) for notice in plan.notices]
+    own = general() + day_source_cautions(plan.scenario.day_source, units, plan.scenario.day.start_time_s)
+    own += [notice_text(notice, units) for notice in plan.notices]
     return own + [text for text in dict.fromkeys(safety_cautions(plan, units)) if text not in own]
 
 
@@ -310,3 +311,27 @@ def sounding_cautions(facts, units: "UnitSystem") -> list[str]:
             out.append(f"From {format_clock(fact.time_s)} the surface no longer warms the layer: the thermal "
                        f"strength there is assumed to fade to nothing at the end of lift.")
     return out
+
+
+def overridden_text(overridden) -> str | None:
+    """The note naming the task file's keys typed over a derived day, or None."""
+    if not overridden:
+        return None
+    keys = ", ".join(f"[day] {key}" for key in overridden)
+    return (f"Typed in the task file, overriding the day derived from the sounding: {keys}. The plan flies "
+            f"the typed value{'s' if len(overridden) > 1 else ''}.")
+
+
+def day_source_cautions(source, units: "UnitSystem", start_time_s: float | None = None) -> list[str]:
+    """The cautions of a plan whose day comes from a sounding
+    (:class:`glidetask.engine.sounding.DaySource`): the keys typed over it, a start before
+    the derived lift starts, then the sounding's own cautions; none for a typed day."""
+    if source is None:
+        return []
+    out = [text for text in (overridden_text(source.overridden),) if text]
+    if source.inputs is None:
+        out.append("The day derived from the sounding has no working band: the plan flies the typed day only.")
+    elif start_time_s is not None and start_time_s < source.inputs.lift_start_s:
+        out.append(f"The task starts at {format_clock(start_time_s)}, before thermals start "
+                   f"({format_clock(source.inputs.lift_start_s)}) on the derived day.")
+    return out + sounding_cautions(source.derived.facts, units)

@@ -247,9 +247,12 @@ def test_each_task_finishes_on_its_day_at_a_credible_speed(plans, path):
     low, high = TASK_SPEED_KMH[Path(result.scenario.glider.polar_file).name]
     assert low <= result.task_speed_ms / KMH <= high
     # Source (common practice): achieved climbs of 1.2-2.8 m/s on such a day (for the
-    # area task, what the circling model makes of the forecast thermal strength).
+    # area task, what the circling model makes of the forecast thermal strength); on the
+    # day derived from a sounding a club glider's afternoon climb of 1.0-1.2 m/s is a
+    # weak-average thermal, still a soaring day (common practice).
     climbs = np.array([leg.climb_ms for leg in result.legs])
-    assert np.all((climbs >= 1.2) & (climbs <= 2.8))
+    least = 1.0 if result.scenario.day_source is not None else 1.2
+    assert np.all((climbs >= least) & (climbs <= 2.8))
     # A final glide from within the working band, ending at the arrival margin or above.
     assert 0.0 < result.final_glide_from_m < result.planned_distance_m
     assert result.arrival_floor_m < result.final_glide_height_m <= day.band_top_m + 1e-6

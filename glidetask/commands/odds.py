@@ -64,8 +64,10 @@ def run(args: argparse.Namespace) -> int:
         raise InputError(problems)
     ballasts = None if not args.ballast_kg else list(dict.fromkeys(args.ballast_kg))
     odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts)
+    from glidetask.commands.sweep import with_day_source_notes
+
     if args.json:
-        print_json(strategy_report.odds_to_dict(odds))
+        print_json(strategy_report.odds_to_dict(with_day_source_notes(odds, scenario, "metric")))
     else:
-        print(strategy_report.odds_text(odds, args.units))
+        print(strategy_report.odds_text(with_day_source_notes(odds, scenario, args.units), args.units))
     return 0

@@ -99,16 +99,27 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     kind = "climb" if day.climb is not None else "thermal strength"
     lift = ", ".join(f"{units.format_clock(t)} {unit.vertical(v):.1f}" for t, v in zip(profile.times_s, profile.values))
     wind = "calm" if day.wind.speed_ms == 0.0 else f"{day.wind.from_deg:03.0f}/{unit.fmt_speed(day.wind.speed_ms)}"
+    top = unit.fmt_height(day.band_top_m)
+    if day.band_top_profile is not None:
+        top = f"{unit.fmt_height(day.band_top_at(day.start_time_s))} at the start (highest {top})"
     lines.append(f"  Day       start {units.format_clock(day.start_time_s)} at "
                  f"{unit.fmt_height(day.effective_start_height_m)}, band {unit.fmt_height(day.band_bottom_m)}"
-                 f" - {unit.fmt_height(day.band_top_m)}, wind {wind}")
+                 f" - {top}, wind {wind}")
     lines.append(f"            {kind} [{unit.vertical_label}] {lift}; lift ends {units.format_clock(day.lift_ends_s)}")
+    lines += _source_lines(scenario.day_source)
     mc = "the climb of each thermal" if day.mc_ms is None else unit.fmt_vertical(day.mc_ms)
     fg = "the cruise setting" if safety.final_glide_mc_ms is None else unit.fmt_vertical(safety.final_glide_mc_ms)
     lines.append(f"            MacCready {mc}; final glide at {fg}; arrival "
                  f"{unit.fmt_height(safety.arrival_margin_m)} over the finish "
                  f"({unit.fmt_height(plan.arrival_floor_m)})")
     return lines
+
+
+def _source_lines(source) -> list[str]:
+    from glidetask.formats.sounding_file import source_summary
+
+    text = source_summary(source)
+    return [] if text is None else [f"            day {text}"]
 
 
 def _legs_table(plan, unit: units.UnitSystem) -> list[str]:

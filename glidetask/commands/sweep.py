@@ -19,9 +19,21 @@ def run(args: argparse.Namespace) -> int:
     from glidetask.formats import strategy_report
     from glidetask.formats.task_file import load_scenario
 
-    sweep = ballast_sweep(load_scenario(args.task))
+    scenario = load_scenario(args.task)
+    sweep = ballast_sweep(scenario)
     if args.json:
-        print_json(strategy_report.sweep_to_dict(sweep))
+        print_json(strategy_report.sweep_to_dict(with_day_source_notes(sweep, scenario, "metric")))
     else:
-        print(strategy_report.sweep_text(sweep, args.units))
+        print(strategy_report.sweep_text(with_day_source_notes(sweep, scenario, args.units), args.units))
     return 0
+
+
+def with_day_source_notes(result, scenario, unit_name: str):
+    """A sweep or odds result whose notes carry the cautions of a day derived from a
+    sounding (the keys typed over it, the sounding's own), in ``unit_name``."""
+    import dataclasses
+
+    from glidetask import cautions, units
+
+    extra = cautions.day_source_cautions(scenario.day_source, units.by_name(unit_name), scenario.day.start_time_s)
+    return dataclasses.replace(result, notes=tuple(extra) + tuple(result.notes)) if extra else result

@@ -76,8 +76,10 @@ def stack_flights(flights: Sequence[Flights]) -> Flights:
     first = flights[0]
     for other in flights[1:]:
         if (other.spec != first.spec or other.lift_is_strength != first.lift_is_strength
-                or tuple(np.atleast_1d(other.lift_times_s)) != tuple(np.atleast_1d(first.lift_times_s))):
-            raise ValueError("stacked flights must share the polar and the lift profile's times")
+                or tuple(np.atleast_1d(other.lift_times_s)) != tuple(np.atleast_1d(first.lift_times_s))
+                or tuple(other.band_top_times_s) != tuple(first.band_top_times_s)
+                or tuple(other.band_top_values) != tuple(first.band_top_values)):
+            raise ValueError("stacked flights must share the polar, the lift profile's times and the band top")
     columns = {name: np.array([np.asarray(getattr(f, name), dtype=float) for f in flights])
                for name in Flights._PER_FLIGHT}
     values = np.array([np.atleast_1d(np.asarray(f.lift_values, dtype=float)) for f in flights])

@@ -118,7 +118,14 @@ class Flights:
     start_time_s, start_height_m : array_like
         Start [s after midnight], [m MSL].
     band_top_m, band_bottom_m : array_like
-        Working band [m MSL]; top above bottom.
+        Working band [m MSL]; top above bottom. With a band top through the day
+        (``band_top_times_s``), ``band_top_m`` is its highest value, the band top the
+        density of the cruise's polar is taken from (contract section 3).
+    band_top_times_s, band_top_values : array_like, shape (B,)
+        The band top through the day (shared): times [s after midnight], strictly
+        increasing, and tops [m MSL], linear between, held beyond; a climb's top is the
+        value when the climb starts (capped at ``band_top_m``). Empty: the band top is
+        ``band_top_m`` all day.
     lift_ends_s : array_like
         No climbs from this time on [s after midnight].
     lift_times_s : array_like, shape (P,)
@@ -166,6 +173,8 @@ class Flights:
     arrival_margin_m: object = 200.0
     glide_airmass_ms: object = 0.0
     isa_deviation_c: object = 0.0
+    band_top_times_s: object = ()
+    band_top_values: object = ()
 
     _PER_FLIGHT = ("mass_kg", "start_time_s", "start_height_m", "band_top_m", "band_bottom_m", "lift_ends_s",
                    "finish_elevation_m", "bugs_percent", "wind_from_deg", "wind_speed_ms", "lift_scale",
@@ -377,6 +386,8 @@ def flights_for(scenario: Scenario) -> Flights:
         start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
         band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
         lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
+        band_top_times_s=() if day.band_top_profile is None else tuple(day.band_top_profile.times_s),
+        band_top_values=() if day.band_top_profile is None else tuple(day.band_top_profile.values),
         lift_is_strength=day.climb is None, thermal_radius_m=day.thermal_radius_m,
         mc_ms=nan if day.mc_ms is None else day.mc_ms,
         final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,

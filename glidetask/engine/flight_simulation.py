@@ -69,6 +69,10 @@ class Simulation(FinalGlideRequirement):
         self.best_ground_speed = np.broadcast_to(best.ground_speed_ms, (n, legs))
         self.final_per_metre_bound = self._final_glide_bound()
         self.lift = LiftClock(flights, inputs, self.band_polar)
+        self.band_top_times = np.atleast_1d(np.asarray(flights.band_top_times_s, dtype=float))
+        self.band_top_values = np.atleast_1d(np.asarray(flights.band_top_values, dtype=float))
+        if self.band_top_values.size != self.band_top_times.size or np.any(np.diff(self.band_top_times) <= 0.0):
+            raise ValueError("the band top through the day needs one top per time and increasing times")
         self._allocate(n, legs)
         self.time[:] = inputs["start_time_s"]
         self.height[:] = inputs["start_height_m"]
@@ -233,6 +237,14 @@ class Simulation(FinalGlideRequirement):
         self.climbs[rows] += 1
         self.mode[rows] = _CLIMB
 
+    def band_top(self, rows, time_s):
+        """The band top [m MSL] for flights ``rows`` at ``time_s``: the day's band top then
+        (``Flights.band_top_times_s``), never above the flight's ``band_top_m``."""
+        top = self.inputs["band_top_m"][rows]
+        if not self.band_top_times.size:
+            return top
+        return np.minimum(np.interp(time_s, self.band_top_times, self.band_top_values), top)
+
     def _climb(self, rows) -> None:
         k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
         drift = self.wind_along[rows, k]
@@ -241,7 +253,8 @@ class Simulation(FinalGlideRequirement):
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
             to_final = np.where(gap >= 0.0, 0.0, np.where(closing > 0.0, -gap / closing, np.inf))
             to_leg_end = np.where(drift > 0.0, (self.leg_length[k] - s) / drift, np.inf)
-        to_top = np.maximum(self.inputs["band_top_m"][rows] - h, 0.0) / rate
+        band_top = self.band_top(rows, t)  # the top when the climb (or this part of it) starts
+        to_top = np.maximum(band_top - h, 0.0) / rate
         to_lift_end = np.maximum(self.inputs["lift_ends_s"][rows] - t, 0.0)
         candidates = np.stack([to_final, to_top, to_leg_end, to_lift_end])
         event = np.argmin(candidates, axis=0)
@@ -254,7 +267,7 @@ class Simulation(FinalGlideRequirement):
         self.last_climb_end[ended] = self.time[ended]
         self._reached_requirement(rows[event == 0])
         top = rows[event == 1]
-        self.height[top] = self.inputs["band_top_m"][top]
+        self.height[top] = np.maximum(band_top[event == 1], h[event == 1])
         self.mode[top] = _GLIDE
         self._leg_end(rows[event == 2])
         self._glide_on(rows[event == 3], LIFT_ENDED)

@@ -62,9 +62,10 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
     if not day.start_time_s < day.lift_ends_s:
         out.append(("[day] start_time", f"the start ({format_clock(day.start_time_s)}) must be before lift ends "
                                         f"({format_clock(day.lift_ends_s)})"))
-    if not day.band_top_m > day.band_bottom_m:
+    lowest_top = day.band_top_m if day.band_top_profile is None else min(day.band_top_profile.values)
+    if not lowest_top > day.band_bottom_m:
         out.append(("[day] band_top_m", "the band top must be above band_bottom_m"))
-    if day.start_height_m is not None and day.start_height_m > day.band_top_m:
+    if day.start_height_m is not None and day.start_height_m > day.band_top_at(day.start_time_s):
         out.append(("[day] start_height_m", "the start height is above band_top_m"))
     return out
 
@@ -88,6 +89,68 @@ class Wind:
 
     from_deg: float = 0.0
     speed_ms: float = 0.0
+
+
+def _wind_vector(from_deg, speed_ms):
+    """The (east, north) components [m/s] of the air's motion for a wind blowing FROM ``from_deg``."""
+    to = np.radians(np.asarray(from_deg, dtype=float) + 180.0)
+    return speed_ms * np.sin(to), speed_ms * np.cos(to)
+
+
+def _wind_from_vector(east_ms: float, north_ms: float) -> Wind:
+    speed = math.hypot(east_ms, north_ms)
+    if speed < 1e-9:
+        return Wind(0.0, 0.0)
+    return Wind(math.degrees(math.atan2(-east_ms, -north_ms)) % 360.0, speed)
+
+
+@dataclass(frozen=True)
+class WindLevel:
+    """One level of a wind profile: the direction the wind blows FROM [deg true] and its
+    speed [m/s] at ``height_m`` [m MSL]."""
+
+    height_m: float
+    from_deg: float
+    speed_ms: float
+
+
+@dataclass(frozen=True)
+class WindProfile:
+    """The wind by height: levels from the ground up, the wind vector linear in height
+    between them and held beyond the lowest and the highest.
+
+    Interpolating the vector (not direction and speed apart) is what a mixed layer's
+    winds do between two levels; through a veer it gives a lighter wind in between.
+    """
+
+    levels: tuple[WindLevel, ...]
+
+    def __post_init__(self):
+        heights = [level.height_m for level in self.levels]
+        if not heights or any(b <= a for a, b in zip(heights, heights[1:])):
+            raise ValueError("a wind profile needs levels with increasing heights")
+
+    def _vectors(self):
+        heights = np.array([level.height_m for level in self.levels])
+        east, north = _wind_vector([level.from_deg for level in self.levels],
+                                   np.array([level.speed_ms for level in self.levels]))
+        return heights, east, north
+
+    def at(self, height_m: float) -> Wind:
+        """The wind at ``height_m`` [m MSL]."""
+        heights, east, north = self._vectors()
+        return _wind_from_vector(float(np.interp(height_m, heights, east)), float(np.interp(height_m, heights, north)))
+
+    def mean_between(self, low_m: float, high_m: float) -> Wind:
+        """The height-weighted mean wind vector from ``low_m`` to ``high_m`` [m MSL] (the
+        wind at ``low_m`` when they are equal)."""
+        if not high_m > low_m:
+            return self.at(low_m)
+        heights, east, north = self._vectors()
+        z = np.union1d(heights[(heights > low_m) & (heights < high_m)], [low_m, high_m])
+        depth = high_m - low_m
+        return _wind_from_vector(float(np.trapezoid(np.interp(z, heights, east), z)) / depth,
+                                 float(np.trapezoid(np.interp(z, heights, north), z)) / depth)
 
 
 @dataclass(frozen=True)
@@ -159,7 +222,7 @@ class Day:
     band_top_m: float
     band_bottom_m: float
     lift_ends_s: float
-    wind: Wind = field(default_factory=Wind)
+    wind: Wind = field(default_factory=Wind)  # a Wind, or a WindProfile (read with wind_at)
     climb: Profile | None = None
     thermal_strength: Profile | None = None
     start_height_m: float | None = None  # None: the band top
@@ -167,6 +230,20 @@ class Day:
     isa_deviation_c: float = 0.0
     mc_ms: float | None = None  # None: the achieved climb at that moment
     thermal_radius_m: float = 150.0  # e-folding radius of the Gaussian thermal core
+    #: The band top through the day [m MSL] (None: ``band_top_m`` all day). When set,
+    #: ``band_top_m`` is its highest value (the density of the cruise, the checks).
+    band_top_profile: Profile | None = None
+
+    def band_top_at(self, time_s):
+        """The band top [m MSL] at ``time_s``: the profile's value (held beyond its ends),
+        never above ``band_top_m``; ``band_top_m`` without a profile."""
+        if self.band_top_profile is None:
+            return self.band_top_m
+        return scalar_or_array(np.minimum(np.asarray(self.band_top_profile.at(time_s), dtype=float), self.band_top_m))
+
+    def wind_at(self, height_m: float) -> Wind:
+        """The wind at ``height_m`` [m MSL]: the steady wind, or the profile's there."""
+        return self.wind.at(height_m) if isinstance(self.wind, WindProfile) else self.wind
 
     @property
     def band_middle_m(self) -> float:
@@ -175,7 +252,8 @@ class Day:
 
     @property
     def effective_start_height_m(self) -> float:
-        return self.band_top_m if self.start_height_m is None else self.start_height_m
+        """The start height: given, or the band top at the start time."""
+        return float(self.band_top_at(self.start_time_s)) if self.start_height_m is None else self.start_height_m
 
     def lift_profile_at(self, time_s):
         """The profile value (achieved climb or thermal strength) at ``time_s``; 0 after lift ends."""
@@ -212,6 +290,10 @@ class Scenario:
     terrain_file: str | None = None
     source: str | None = None
     turnpoints_file: str | None = None
+    #: Where the day came from when the task file names a sounding
+    #: (:class:`glidetask.engine.sounding.DaySource`); None for a typed day. The plan
+    #: flies ``day`` only; this is for showing and saving the source.
+    day_source: object = None
 
 
 # ---------------------------------------------------------------- what-ifs

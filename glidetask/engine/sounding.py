@@ -47,6 +47,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from glidetask.engine.scenario import Profile, Wind, WindLevel, WindProfile
+
 #: Gravity [m/s^2] (ISO 2533 standard value).
 G = 9.80665
 #: Reference pressure of potential temperature [Pa].
@@ -139,16 +141,6 @@ class SurfaceForecast:
         """``(temperature_c, dewpoint_c)`` at ``time_s``, held beyond the ends."""
         return (np.interp(time_s, self.times_s, self.temperature_c),
                 np.interp(time_s, self.times_s, self.dewpoint_c))
-
-
-@dataclass(frozen=True)
-class WindLevel:
-    """One level of the wind profile: the direction the wind blows FROM [deg true] and its
-    speed [m/s] at ``height_m`` [m MSL]."""
-
-    height_m: float
-    from_deg: float
-    speed_ms: float
 
 
 @dataclass(frozen=True)
@@ -562,7 +554,191 @@ def wind_profile(sounding: Sounding, surface_m: float) -> tuple[WindLevel, ...]:
                  zip(sounding.height_m[keep], sounding.wind_from_deg[keep], sounding.wind_speed_ms[keep]))
 
 
-__all__ = ["Sounding", "SurfaceForecast", "WindLevel", "SoundingFact", "DerivedDay", "SoundingTooShortError",
+# ---------------------------------------------------------------- the day the plan flies
+
+
+#: The task file's ``[day]`` keys a derived day supplies (typed ones override them).
+DERIVED_KEYS = ("band_top_m", "band_bottom_m", "thermal_strength_ms", "lift_ends", "wind")
+
+
+class NoWorkingBandError(ValueError):
+    """The derived day has no hour with a working band (no lift, or too shallow): nothing
+    to plan a cross-country flight on."""
+
+
+@dataclass(frozen=True)
+class DayInputs:
+    """What a derived day gives the plan's :class:`glidetask.engine.scenario.Day`.
+
+    Attributes
+    ----------
+    band_top : Profile
+        The band top through the day [m MSL]: the hours with a working band, held beyond.
+    band_bottom_m : float
+        The band bottom [m MSL] (the ground plus ``band_bottom_agl_m``).
+    thermal_strength : Profile
+        The hourly thermal strength [m/s], from the last hour without lift before the
+        first with it (0) to the first hour after the lift (0); linear between hours.
+    lift_start_s, lift_ends_s : float
+        When thermals start and end [s after midnight].
+    wind_profile : WindProfile
+        The sounding's winds from the ground up.
+    wind : Wind
+        The mean wind of the highest working band (:meth:`WindProfile.mean_between`): the
+        steady wind the plan flies while ``Day.wind`` takes a single wind.
+    """
+
+    band_top: Profile
+    band_bottom_m: float
+    thermal_strength: Profile
+    lift_start_s: float
+    lift_ends_s: float
+    wind_profile: WindProfile
+    wind: Wind
+
+    @property
+    def band_top_m(self) -> float:
+        """The highest band top of the day [m MSL]."""
+        return max(self.band_top.values)
+
+
+def day_inputs(derived: DerivedDay) -> DayInputs:
+    """Map a :class:`DerivedDay` onto the plan's day (pure numpy: no MetPy).
+
+    The values are rounded as a pilot types them, so the same day typed by hand plans the
+    same: heights to the metre, thermal strength to 0.01 m/s, the wind to the degree and
+    0.1 km/h, the lift's start up and its end down to the whole minute (the cautious side).
+
+    Raises
+    ------
+    NoWorkingBandError
+        If no hour has a working band.
+    """
+    band = np.isfinite(derived.band_top_m)
+    if derived.lift_start_s is None or not band.any():
+        raise NoWorkingBandError("the derived day has no working band")
+    times = derived.times_s
+    band_top = Profile(tuple(float(t) for t in times[band]), tuple(_rounded(derived.band_top_m[band], 0)))
+    lift = np.nonzero(derived.thermal_strength_ms > 0.0)[0]
+    first = max(int(lift[0]) - 1, 0) if lift.size else 0
+    last = min(int(lift[-1]) + 1, times.size - 1) if lift.size else times.size - 1
+    strength = Profile(tuple(float(t) for t in times[first:last + 1]),
+                       tuple(_rounded(derived.thermal_strength_ms[first:last + 1], 2)))
+    bottom = round(float(derived.surface_elevation_m + derived.band_bottom_agl_m))
+    profile = WindProfile(tuple(derived.wind))
+    mean = profile.mean_between(bottom, max(band_top.values))
+    wind = Wind(round(mean.from_deg) % 360.0, round(mean.speed_ms / _KMH, 1) * _KMH)
+    return DayInputs(band_top=band_top, band_bottom_m=float(bottom), thermal_strength=strength,
+                     lift_start_s=math.ceil(derived.lift_start_s / 60.0) * 60.0,
+                     lift_ends_s=math.floor(derived.lift_end_s / 60.0) * 60.0, wind_profile=profile, wind=wind)
+
+
+_KMH = 1000.0 / 3600.0  # m/s per km/h
+
+
+def _rounded(values, digits: int) -> list[float]:
+    return [float(round(float(v), digits)) for v in values]
+
+
+@dataclass(frozen=True)
+class DaySource:
+    """Where a scenario's day came from when its task file names a sounding.
+
+    Attributes
+    ----------
+    sounding_file : str
+        The sounding file as resolved against the task file's folder.
+    derived : DerivedDay
+    inputs : DayInputs or None
+        What the derived day gives the plan (None: no working band, the typed keys give
+        the whole day).
+    overridden : tuple of str
+        The ``[day]`` keys of :data:`DERIVED_KEYS` typed in the task file, which the plan
+        takes instead of the derived values (``climb_ms`` overrides ``thermal_strength_ms``).
+    sounding : Sounding
+        The sounding itself (:func:`sounding_drawing` draws it with ``derived``).
+    settings : object
+        The task file's sounding keys as read (:class:`glidetask.formats.sounding_file.DaySounding`),
+        so a saved task keeps them.
+    """
+
+    sounding_file: str
+    derived: DerivedDay = field(compare=False)  # arrays; the inputs and settings say the same
+    inputs: DayInputs | None = None
+    overridden: tuple[str, ...] = ()
+    settings: object = None
+    sounding: Sounding | None = field(default=None, compare=False)  # for drawing (sounding_drawing)
+
+    @property
+    def derived_keys(self) -> tuple[str, ...]:
+        """The ``[day]`` keys the plan takes from the sounding (none when the derived day
+        has no working band and the typed keys give the whole day)."""
+        if self.inputs is None:
+            return ()
+        typed = set(self.overridden) | ({"thermal_strength_ms"} if "climb_ms" in self.overridden else set())
+        return tuple(key for key in DERIVED_KEYS if key not in typed)
+
+
+# ---------------------------------------------------------------- what to draw
+
+
+@dataclass(frozen=True)
+class SoundingDrawing:
+    """What a drawing of the sounding shows, in SI (arrays over the levels or the hours).
+
+    Attributes
+    ----------
+    height_m, temperature_k, dewpoint_k : ndarray
+        The sounding's levels from the ground up [m MSL], [K].
+    parcel_height_m, parcel_temperature_k : ndarray
+        The surface parcel's dry adiabat at the warmest hour, from the ground to its
+        thermal top [m MSL], [K].
+    parcel_time_s : float
+        That hour [s after midnight].
+    times_s, thermal_top_m, cloud_base_m, band_top_m, band_bottom_m : ndarray
+        The derived day hour by hour (NaN where there is none), as :class:`DerivedDay`.
+    lift_start_s, lift_end_s : float or None
+    """
+
+    height_m: np.ndarray
+    temperature_k: np.ndarray
+    dewpoint_k: np.ndarray
+    parcel_height_m: np.ndarray
+    parcel_temperature_k: np.ndarray
+    parcel_time_s: float
+    times_s: np.ndarray
+    thermal_top_m: np.ndarray
+    cloud_base_m: np.ndarray
+    band_top_m: np.ndarray
+    band_bottom_m: np.ndarray
+    lift_start_s: float | None
+    lift_end_s: float | None
+
+
+def sounding_drawing(sounding: Sounding, derived: DerivedDay, *, step_m: float = 50.0) -> SoundingDrawing:
+    """What to draw for a sounding and its derived day: the temperature and dew point by
+    height, the surface parcel's dry adiabat at the warmest hour (up to its thermal top)
+    and the band through the day. Pure numpy (the adiabat by Poisson's equation with
+    R/cp = 0.2857, as MetPy's dry adiabat [3]; the pressure log-linear between levels).
+    """
+    warmest = int(np.argmax(derived.surface_temperature_c))
+    surface = derived.surface_elevation_m
+    top = float(derived.thermal_top_m[warmest])
+    z = np.append(np.arange(surface, top, step_m), top) if top > surface else np.array([surface])
+    kappa = 0.2857  # R/cp of dry air (MetPy's constants.kappa, 2/7) (from memory)
+    theta = (derived.surface_temperature_c[warmest] + 273.15) * (P0 / sounding.pressure_at(surface)) ** kappa
+    parcel = theta * (sounding.pressure_at(z) / P0) ** kappa
+    keep = sounding.height_m >= surface
+    return SoundingDrawing(
+        height_m=sounding.height_m[keep], temperature_k=sounding.temperature_k[keep],
+        dewpoint_k=sounding.dewpoint_k[keep], parcel_height_m=z, parcel_temperature_k=np.asarray(parcel),
+        parcel_time_s=float(derived.times_s[warmest]), times_s=derived.times_s, thermal_top_m=derived.thermal_top_m,
+        cloud_base_m=derived.cloud_base_m, band_top_m=derived.band_top_m, band_bottom_m=derived.band_bottom_m,
+        lift_start_s=derived.lift_start_s, lift_end_s=derived.lift_end_s)
+
+
+__all__ = ["DERIVED_KEYS", "DayInputs", "DaySource", "NoWorkingBandError", "SoundingDrawing", "day_inputs",
+           "sounding_drawing", "Sounding", "SurfaceForecast", "WindLevel", "SoundingFact", "DerivedDay", "SoundingTooShortError",
            "derive_day", "convective_velocity_scale", "encroachment_heat_content", "crossing_times",
            "potential_temperature_k", "temperature_from_potential_k", "lcl_pressure_pa", "surface_cape_jkg",
            "hourly_times", "wind_profile"]

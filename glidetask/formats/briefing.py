@@ -6,13 +6,16 @@ final-glide setting and at MacCready 0, 1, 2 and 3), the day the plan assumes, a
 the task time answers to the day (sensitivity). Page two, when the task has an elevation
 model or landable fields: the final glide over the terrain (verdict, what decided the
 height, an ASCII profile), the landable fields along the task (coverage, gaps,
-alternates per leg); then the cautions. Each page prints on one sheet (a page break
+alternates per leg). Page three, for a day from a sounding: the derived day (hourly table,
+band, strength, cloud base or blue, wind profile, its cautions). Then the cautions. Each page prints on one sheet (a page break
 between them for printing from HTML).
 """
 
 from __future__ import annotations
 
 import math
+
+import numpy as np
 
 from glidetask import cautions, units
 from glidetask.engine.plan import CARD_MC_MS, final_glide_card
@@ -152,6 +155,58 @@ def _day(plan, unit) -> list[str]:
     ]
 
 
+#: Wind levels shown: up to this far above the highest thermal top [m].
+WIND_ABOVE_TOP_M = 1000.0
+
+
+def derived_day_markdown(source, unit) -> list[str]:
+    """The "Day from the sounding" section for a plan whose day comes from a sounding
+    (:class:`glidetask.engine.sounding.DaySource`): where it comes from, the hourly table
+    (surface temperature and dew point, thermal top, cloud base or blue, the band, w* and
+    thermal strength), the lift, the wind profile through the band and the sounding's
+    cautions, in ``unit``. Empty for a typed day."""
+    if source is None:
+        return []
+    from glidetask.formats.sounding_file import source_summary
+
+    derived = source.derived
+    h, v = unit.height_label, unit.vertical_label
+    lines = ["## Day from the sounding", "",
+             f"The day {source_summary(source)}. Ground {unit.fmt_height(derived.surface_elevation_m)}; band top "
+             f"{unit.fmt_height(derived.band_top_margin_m)} below cloud base or thermal top, band bottom "
+             f"{unit.fmt_height(derived.band_bottom_agl_m)} above the ground; heights MSL.", ""]
+    head = ["Time", "Surface C", f"Thermal top {h}", f"Cloud base {h}", f"Band {h}", f"w* {v}", f"Strength {v}"]
+    rows = []
+    for i, time_s in enumerate(derived.times_s):
+        base = _num(unit.height(derived.cloud_base_m[i])) if derived.cumulus[i] else "blue"
+        band = "-" if not math.isfinite(derived.band_top_m[i]) else \
+            f"{unit.height(derived.band_bottom_m[i]):.0f}-{unit.height(derived.band_top_m[i]):.0f}"
+        rows.append([format_clock(time_s), f"{derived.surface_temperature_c[i]:.1f}/{derived.surface_dewpoint_c[i]:.1f}",
+                     _num(unit.height(derived.thermal_top_m[i])), base, band,
+                     f"{unit.vertical(derived.wstar_ms[i]):.1f}", f"{unit.vertical(derived.thermal_strength_ms[i]):.1f}"])
+    lines += _table(head, rows)
+    if derived.lift_start_s is None:
+        lift = f"none: the surface never reaches the trigger temperature of {derived.trigger_temperature_c:.1f} C"
+    else:
+        lift = (f"{format_clock(derived.lift_start_s)} to {format_clock(derived.lift_end_s)} (trigger temperature "
+                f"{derived.trigger_temperature_c:.1f} C)")
+    lines += ["", f"Lift {lift}. Surface temperature/dew point in C; w*: the convective velocity scale; strength: "
+                  f"the thermal core strength the circling model turns into this glider's climb."]
+    tops = derived.thermal_top_m[np.isfinite(derived.thermal_top_m)]
+    ceiling = (float(tops.max()) if tops.size else derived.surface_elevation_m) + WIND_ABOVE_TOP_M
+    wind_rows = [[_num(unit.height(w.height_m)), f"{w.from_deg:03.0f}", _num(unit.speed(w.speed_ms))]
+                 for w in derived.wind if w.height_m <= ceiling]
+    lines += ["", f"Wind from the sounding (up to {unit.fmt_height(WIND_ABOVE_TOP_M)} above the highest thermal top):",
+              ""] + _table([f"Height {h}", "From deg", f"Speed {unit.speed_label}"], wind_rows, right=0)
+    if source.inputs is not None and "wind" in source.derived_keys:
+        wind = source.inputs.wind
+        lines += ["", f"The plan flies the mean wind of the highest band, from {wind.from_deg:03.0f} at "
+                      f"{unit.fmt_speed(wind.speed_ms)}."]
+    lines += ["", "Cautions of the derived day:", ""]
+    lines += [f"> - {text}" for text in cautions.day_source_cautions(source, unit)]
+    return lines
+
+
 def _sensitivity(sensitivity, unit) -> list[str]:
     if sensitivity is None:
         return []
@@ -203,7 +258,9 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     lines = _summary(plan, unit) + [""] + _legs(plan, unit) + [""] + _heights(plan, unit) + [""] + _day(plan, unit)
     lines += _sensitivity(sensitivity, unit)
     safety = _safety_pages(plan, unit)
-    if safety:
-        lines += ["", PAGE_BREAK, ""] + safety
+    day = derived_day_markdown(plan.scenario.day_source, unit)
+    for page in (safety, day):
+        if page:
+            lines += ["", PAGE_BREAK, ""] + page
     lines += ["", "## Cautions", ""] + [f"- {text}" for text in cautions.plan_cautions(plan, unit)]
     return "\n".join(lines) + "\n"

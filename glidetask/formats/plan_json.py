@@ -94,7 +94,22 @@ def _day(plan) -> dict[str, Any]:
         "arrival_margin_m": _number(safety.arrival_margin_m, digits=0),
         "glide_airmass_ms": _number(day.glide_airmass_ms, digits=2),
         "isa_deviation_c": _number(day.isa_deviation_c, digits=1),
+        **_band_top_and_source(plan.scenario),
     }
+
+
+def _band_top_and_source(scenario) -> dict[str, Any]:
+    """``band_top`` (the band top through the day, ``[["HH:MM", m], ...]``, when there is
+    one; ``band_top_m`` is then its highest value) and ``source`` (for a day from a
+    sounding: ``sounding`` file, the keys ``derived`` from it and those ``typed`` over it)."""
+    day, source, out = scenario.day, scenario.day_source, {}
+    if day.band_top_profile is not None:
+        out["band_top"] = [[format_clock(t), _number(v, digits=0)]
+                           for t, v in zip(day.band_top_profile.times_s, day.band_top_profile.values)]
+    if source is not None:
+        out["source"] = {"sounding": source.sounding_file, "derived": list(source.derived_keys),
+                         "typed": list(source.overridden)}
+    return out
 
 
 _DIGITS = (("_km", 3), ("_m", 1), ("_percent", 2), ("_deg", 1), ("lat", 6), ("lon", 6))

@@ -273,13 +273,29 @@ def load_derived_day(task_path: str | os.PathLike):
     sounding file's row) for bad input, a sounding that does not reach the thermal top
     included.
     """
-    from glidetask.engine.sounding import derive_day
     from glidetask.formats.toml_reader import read_toml
 
     file = str(task_path)
     document, problems = read_toml(Path(task_path), file)
     if document is None:
         raise InputError(problems)
+    settings, _, derived = derive_task_day(document, task_path)
+    return settings, derived
+
+
+def derive_task_day(document: dict, task_path: str | os.PathLike):
+    """The day derived from a parsed task file's sounding keys (shared by ``glidetask day``
+    and the task reader): ``(DaySounding, Sounding, DerivedDay)``.
+
+    Raises
+    ------
+    InputError
+        No ``[day] sounding``; a bad key; a bad sounding file (naming its row); a sounding
+        that does not reach the thermal top.
+    """
+    from glidetask.engine.sounding import derive_day
+
+    file = str(task_path)
     settings = read_day_sounding(document, task_path)
     if settings is None:
         raise InputError.one(file, "[day] sounding", "missing key: name a sounding file to derive the day from "
@@ -296,7 +312,24 @@ def load_derived_day(task_path: str | os.PathLike):
                              band_bottom_agl_m=settings.band_bottom_agl_m)
     except SoundingTooShortError as error:
         raise InputError([_too_short(settings.sounding_file, len(sounding.height_m), error)]) from None
-    return settings, derived
+    return settings, sounding, derived
+
+
+#: How the plan text names each derived key.
+_DERIVED_WORDS = {"band_top_m": "band top through the day", "band_bottom_m": "band bottom",
+                  "thermal_strength_ms": "thermal strength", "lift_ends": "lift end",
+                  "wind": "wind (the mean of the highest band)"}
+
+
+def source_summary(source) -> str | None:
+    """Where a derived day comes from, in words (the plan text, the briefing); None for a typed day."""
+    if source is None:
+        return None
+    derived = ", ".join(_DERIVED_WORDS[key] for key in source.derived_keys) or "nothing"
+    text = f"from sounding {Path(source.sounding_file).name}: {derived}"
+    if source.overridden:
+        text += f"; typed over it: {', '.join(source.overridden)}"
+    return text
 
 
 def _too_short(file: str, levels: int, error: SoundingTooShortError) -> Problem:
@@ -310,4 +343,5 @@ def _too_short(file: str, levels: int, error: SoundingTooShortError) -> Problem:
 
 
 __all__ = ["COLUMNS", "DAY_SOUNDING_KEYS", "DaySounding", "parse_sounding", "read_sounding", "read_day_sounding",
-           "load_derived_day", "looks_like_sounding"]
+           "load_derived_day", "derive_task_day", "looks_like_sounding",
+           "source_summary"]

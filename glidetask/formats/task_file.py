@@ -48,6 +48,9 @@ DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind
             "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m",
             # the day from a sounding (contract 2.7), read by glidetask.formats.sounding_file
             "sounding", "surface", "surface_elevation_m", "band_top_margin_m", "band_bottom_agl_m")
+#: The typed [day] keys that override a derived day's values (climb_ms overrides the
+#: derived thermal strength).
+OVERRIDING_KEYS = ("band_top_m", "band_bottom_m", "thermal_strength_ms", "climb_ms", "lift_ends", "wind")
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
@@ -306,7 +309,8 @@ def _glider(reader: _Reader, table: dict, base: Path) -> GliderSetup | None:
     return GliderSetup(spec, pilot, ballast, bugs, polar_file=str(polar_file.resolve()))
 
 
-def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
+def _profile(reader: _Reader, table: dict, key: str, low: float = 0.0, high: float = 15.0,
+             unit: str = "m/s") -> Profile | None:
     where = f"[day] {key}"
     raw = table[key]
     if not isinstance(raw, list) or not raw:
@@ -316,7 +320,7 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
     for number, pair in enumerate(raw, start=1):
         here = f"{where}[{number}]"
         if not (isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str) and is_number(pair[1])):
-            reader.add(here, f"must be a pair [\"HH:MM\", m/s], got {show(pair)}")
+            reader.add(here, f"must be a pair [\"HH:MM\", {unit}], got {show(pair)}")
             ok = False
             continue
         try:
@@ -326,8 +330,8 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
             ok = False
             continue
         value = as_float(pair[1])
-        if value is None or not math.isfinite(value) or not 0.0 <= value <= 15.0:
-            reader.add(here, f"the value must be in [0, 15] m/s, got {show(pair[1])}")
+        if value is None or not math.isfinite(value) or not low <= value <= high:
+            reader.add(here, f"the value must be in [{low:g}, {high:g}] {unit}, got {show(pair[1])}")
             ok = False
         if times and time_s <= times[-1]:
             reader.add(here, f"times must increase: {pair[0]} is not after {format_clock(times[-1])}")
@@ -352,30 +356,65 @@ def _wind(reader: _Reader, table: dict) -> Wind | None:
     return Wind(direction % 360.0, speed * KMH)
 
 
-def _day(reader: _Reader, table: dict) -> Day | None:
+def _band_top(reader: _Reader, table: dict, derived) -> tuple[float | None, Profile | None]:
+    """``(band_top_m, profile or None)``: a typed height, a typed band top through the day
+    (``[["HH:MM", m], ...]``, band_top_m its highest value), or the derived day's."""
+    if "band_top_m" not in table:
+        if derived is not None:
+            return derived.band_top_m, derived.band_top
+        reader.number(table, "[day]", "band_top_m", required=True)
+        return None, None
+    if isinstance(table["band_top_m"], list):
+        profile = _profile(reader, table, "band_top_m", low=-500.0, high=15000.0, unit="m")
+        return (None, None) if profile is None else (max(profile.values), profile)
+    return reader.number(table, "[day]", "band_top_m", required=True, low=-500.0, high=15000.0), None
+
+
+def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = False) -> Day | None:
+    """The [day] table as a Day; with a sounding (``source``, a
+    :class:`glidetask.engine.sounding.DaySource`) the keys it derives may be left out, and
+    typed ones override them. ``sounding_failed``: the sounding's problems are reported
+    already, so the keys it would have given are not reported missing."""
     reader.unknown(table, "[day]", DAY_KEYS)
+    derived = None if source is None else source.inputs
+    optional = derived is not None or sounding_failed
     start = reader.clock(table, "[day]", "start_time", required=True)
-    lift_ends = reader.clock(table, "[day]", "lift_ends", required=True)
-    top = reader.number(table, "[day]", "band_top_m", required=True, low=-500.0, high=15000.0)
-    bottom = reader.number(table, "[day]", "band_bottom_m", required=True, low=-500.0, high=15000.0)
+    lift_ends = reader.clock(table, "[day]", "lift_ends", required=not optional)
+    if lift_ends is None and "lift_ends" not in table and derived is not None:
+        lift_ends = derived.lift_ends_s
+    if optional and "band_top_m" not in table:
+        top, top_profile = (None, None) if derived is None else (derived.band_top_m, derived.band_top)
+    else:
+        top, top_profile = _band_top(reader, table, derived)
+    bottom = reader.number(table, "[day]", "band_bottom_m", required=not optional, low=-500.0, high=15000.0)
+    if bottom is None and "band_bottom_m" not in table and derived is not None:
+        bottom = derived.band_bottom_m
     start_height = reader.number(table, "[day]", "start_height_m", low=-500.0, high=15000.0)
-    if top is not None and bottom is not None and top <= bottom:
-        reader.add("[day] band_top_m", f"the band top ({top:g} m) must be above band_bottom_m ({bottom:g} m)")
-    if start_height is not None and top is not None and start_height > top:
-        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above band_top_m ({top:g} m)")
+    lowest_top = top if top_profile is None else min(top_profile.values)
+    if lowest_top is not None and bottom is not None and lowest_top <= bottom:
+        reader.add("[day] band_top_m", f"the band top ({lowest_top:g} m) must be above band_bottom_m ({bottom:g} m)")
+    start_top = top if top_profile is None or start is None else min(float(top_profile.at(start)), top)
+    if start_height is not None and start_top is not None and start_height > start_top:
+        top_name = "band_top_m" if top_profile is None else "the band top at the start"
+        reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above {top_name} "
+                                           f"({start_top:g} m)")
     if start is not None and lift_ends is not None and start >= lift_ends:
         reader.add("[day] start_time", f"the start ({format_clock(start)}) must be before lift_ends "
                                        f"({format_clock(lift_ends)})")
     given = [key for key in ("climb_ms", "thermal_strength_ms") if key in table]
     climb = strength = None
-    if len(given) != 1:
+    if not given and derived is not None:
+        strength = derived.thermal_strength
+    elif not given and sounding_failed:
+        pass
+    elif len(given) != 1:
         reader.add("[day] climb_ms", "give exactly one of climb_ms (achieved climb) and thermal_strength_ms "
                                      f"(thermal core strength), got {' and '.join(given) or 'neither'}")
     elif given[0] == "climb_ms":
         climb = _profile(reader, table, "climb_ms")
     else:
         strength = _profile(reader, table, "thermal_strength_ms")
-    wind = _wind(reader, table)
+    wind = derived.wind if "wind" not in table and derived is not None else _wind(reader, table)
     airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
@@ -387,9 +426,35 @@ def _day(reader: _Reader, table: dict) -> Day | None:
         return None
     return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
                climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
-               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius)
+               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius, band_top_profile=top_profile)
 
 
+def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
+    """``(DaySource or None, failed)`` for a task whose [day] names a sounding: the
+    derived day (MetPy is imported only here) and the keys typed over it."""
+    day = document.get("day")
+    if not isinstance(day, dict) or "sounding" not in day:
+        return None, False
+    from glidetask.engine.sounding import DaySource, NoWorkingBandError, day_inputs
+    from glidetask.formats.sounding_file import derive_task_day
+
+    try:
+        settings, sounding, derived = derive_task_day(document, path)
+    except InputError as error:
+        reader.problems.extend(error.problems)
+        return None, True
+    try:
+        inputs = day_inputs(derived)
+    except NoWorkingBandError:
+        typed = all(key in day for key in ("band_top_m", "band_bottom_m", "lift_ends")) and (
+            "climb_ms" in day or "thermal_strength_ms" in day)
+        if not typed:
+            reader.add("[day] sounding", "the day derived from the sounding has no working band (no usable "
+                                         "thermals; see `glidetask day`): there is no cross-country day to plan")
+            return None, True
+        inputs = None
+    overridden = tuple(key for key in OVERRIDING_KEYS if key in day)
+    return DaySource(settings.sounding_file, derived, inputs, overridden, settings, sounding), False
 def _safety(reader: _Reader, table: dict | None) -> Safety | None:
     if table is None:
         return Safety()
@@ -461,12 +526,13 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     if task_table is not None:
         task, turnpoints, turnpoint_file = _task(reader, task_table, base, Path(path).stem)
     glider = _glider(reader, glider_table, base) if glider_table is not None else None
-    day = _day(reader, day_table) if day_table is not None else None
+    source, sounding_failed = _day_source(reader, document, path) if day_table is not None else (None, False)
+    day = _day(reader, day_table, source, sounding_failed) if day_table is not None else None
     safety = _safety(reader, reader.table(document, "safety", required=False))
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
     reader.problems.raise_if_any()
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
-                    terrain_file=terrain, source=file,
+                    terrain_file=terrain, source=file, day_source=source,
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
 
 
@@ -559,6 +625,36 @@ def _profile_value(profile: Profile) -> list:
     return [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)]
 
 
+def _typed_day_keys(scenario: Scenario) -> set[str]:
+    """The [day] keys of the derivable values a saved task must type: all of them for a
+    typed day; for a day from a sounding, those typed over it and those edited away from
+    the derived value (the rest the sounding gives again when the task is read)."""
+    every = {"band_top_m", "band_bottom_m", "wind", "thermal_strength_ms", "lift_ends"}
+    source, day = scenario.day_source, scenario.day
+    if source is None or source.inputs is None or source.settings is None:
+        return every
+    derived = source.inputs
+    same = {"band_top_m": day.band_top_profile == derived.band_top and day.band_top_m == derived.band_top_m,
+            "band_bottom_m": day.band_bottom_m == derived.band_bottom_m,
+            "wind": day.wind == derived.wind,
+            "thermal_strength_ms": day.climb is None and day.thermal_strength == derived.thermal_strength,
+            "lift_ends": day.lift_ends_s == derived.lift_ends_s}
+    return {key for key in every if key in source.overridden or not same[key]}
+
+
+def _sounding_lines(settings, folder: Path) -> list[str]:
+    """The [day] sounding keys as read (:class:`glidetask.formats.sounding_file.DaySounding`)."""
+    surface = settings.surface
+    rows = [[format_clock(t), temperature, dewpoint]
+            for t, temperature, dewpoint in zip(surface.times_s, surface.temperature_c, surface.dewpoint_c)]
+    lines = [f"sounding = {_toml_value(_relative(settings.sounding_file, folder))}",
+             f"surface = {_toml_value(rows)}"]
+    if settings.surface_elevation_m is not None:
+        lines.append(f"surface_elevation_m = {_toml_value(settings.surface_elevation_m)}")
+    return lines + [f"band_top_margin_m = {_toml_value(settings.band_top_margin_m)}",
+                    f"band_bottom_agl_m = {_toml_value(settings.band_bottom_agl_m)}"]
+
+
 def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
                      header: str | None = None) -> str:
     """The TOML text of a task file for ``scenario``, with paths relative to ``folder``."""
@@ -575,19 +671,29 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
     lines += ["", "[glider]", f"polar = {_toml_value(_relative(glider.polar_file, folder))}",
               f"pilot_kg = {_toml_value(glider.pilot_kg)}", f"ballast_kg = {_toml_value(glider.ballast_kg)}",
               f"bugs_percent = {_toml_value(glider.bugs_percent)}"]
-    lines += ["", "[day]", f"start_time = {_toml_value(format_clock(day.start_time_s))}"]
+    lines += ["", "[day]"]
+    typed = _typed_day_keys(scenario)
+    if scenario.day_source is not None and scenario.day_source.settings is not None:
+        lines += _sounding_lines(scenario.day_source.settings, folder)
+    lines.append(f"start_time = {_toml_value(format_clock(day.start_time_s))}")
     if day.start_height_m is not None:
         lines.append(f"start_height_m = {_toml_value(day.start_height_m)}")
-    lines += [f"band_top_m = {_toml_value(day.band_top_m)}", f"band_bottom_m = {_toml_value(day.band_bottom_m)}",
-              f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}"]
+    if "band_top_m" in typed:
+        top = day.band_top_m if day.band_top_profile is None else _profile_value(day.band_top_profile)
+        lines.append(f"band_top_m = {_toml_value(top)}")
+    if "band_bottom_m" in typed:
+        lines.append(f"band_bottom_m = {_toml_value(day.band_bottom_m)}")
+    if "wind" in typed:
+        lines.append(f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}")
     if day.climb is not None:
         lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
-    else:
+    elif "thermal_strength_ms" in typed:
         lines.append(f"thermal_strength_ms = {_toml_value(_profile_value(day.thermal_strength))}")
     # The circling model uses the thermal radius with either profile (ballast comparisons, odds).
     lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
-    lines += [f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}",
-              f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
+    if "lift_ends" in typed:
+        lines.append(f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}")
+    lines += [f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
               f"isa_deviation_c = {_toml_value(day.isa_deviation_c)}"]
     if day.mc_ms is not None:
         lines.append(f"mc_ms = {_toml_value(day.mc_ms)}")

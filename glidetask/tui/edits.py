@@ -189,7 +189,10 @@ def apply_field(scenario: Scenario, field_id: str, text: str, units: UnitSystem)
     """A new scenario with the field set from ``text``; InputError if it does not make sense."""
     spec = FIELDS[field_id]
     value = parse_value(spec, text, units)
-    part = replace(getattr(scenario, spec.section), **{_attribute(spec): value})
+    changes = {_attribute(spec): value}
+    if changes.keys() == {"band_top_m"}:
+        changes["band_top_profile"] = None  # one band top typed: it replaces a band top through the day
+    part = replace(getattr(scenario, spec.section), **changes)
     updated = replace(scenario, **{spec.section: part})
     check_consistency(updated, units, spec)
     return updated

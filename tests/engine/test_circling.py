@@ -212,8 +212,12 @@ def test_climbs_carried_to_another_mass_and_back_are_unchanged(climb, radius, ow
     # Compared as climbs, to the forward model's own resolution (achieved_climb's refined grid
     # resolves a climb to a few 1e-6 m/s): in a narrow thermal a heavy glider's climb hardly
     # moves with the strength, so the strength is ill-conditioned there (60 m, 300 -> 484 kg).
-    assert climb_for_strength(own, back, radius) == pytest.approx(climb, abs=1e-5)
-    assert (there <= climb + 1e-9) == (other_mass >= own_mass)
+    # A glider that cannot climb in this core at all (it sinks: 60 m, 300 -> 513 kg) sinks the
+    # same at any strength, so its sink carries no strength back: no round trip to check.
+    if there > 0.0:
+        assert climb_for_strength(own, back, radius) == pytest.approx(climb, abs=1e-5)
+    if abs(other_mass - own_mass) > 0.01:  # loadings a rounding apart climb the same
+        assert (there <= climb + 1e-9) == (other_mass >= own_mass)
 
 
 # ---------------------------------------------------------------- a coach's reading

@@ -282,3 +282,38 @@ def test_the_lift_is_zero_after_lift_ends_not_at_it_and_no_climb_starts_at_it():
     flown = fly(TRIANGLE, calm_day(start_time_s=19 * HOUR - 1.0, lift_ends_s=19 * HOUR))
     assert int(flown.climbs[0]) == 0
     assert int(flown.reason[0]) == flight.LIFT_ENDED
+
+
+def test_a_band_top_through_the_day_held_at_band_top_m_changes_nothing():
+    # Source: the contract's band top (section 3): a band top through the day that never
+    # moves is the day's band top.
+    plain = fly(TRIANGLE, calm_day())
+    held = fly(TRIANGLE, calm_day(band_top_times_s=(10 * HOUR, 16 * HOUR), band_top_values=(1800.0, 1800.0)))
+    for name in ("total_time_s", "climbs", "final_glide_from_m", "leg_arrival_height_m"):
+        np.testing.assert_array_equal(getattr(held, name), getattr(plain, name))
+
+
+def test_climbs_end_at_the_band_top_of_their_time():
+    # Source: MacCready cycle arithmetic (as in the first test): the number of climbs is set
+    # by the band's depth, so a band top of 1300 m from the start flies the cycles of a
+    # 1300 m band; only the cruise's density (the middle of the highest band) differs, which
+    # moves the time by about the square root of the density ratio (a few per cent at most).
+    low = calm_day(band_top_m=1300.0, start_height_m=1300.0)
+    through_day = calm_day(start_height_m=1300.0, band_top_times_s=(11 * HOUR,), band_top_values=(1300.0,))
+    a, b = fly(TRIANGLE, low), fly(TRIANGLE, through_day)
+    assert b.finished[0] and a.finished[0]
+    assert abs(int(b.climbs[0]) - int(a.climbs[0])) <= 1  # the density may move the final glide one cycle
+    assert b.climbs[0] > fly(TRIANGLE, calm_day()).climbs[0] + 2  # more, shallower cycles than a 1800 m top
+    ratio = np.sqrt(density_ratio(1050.0) / density_ratio(1300.0))  # middles of the 1300 and the 1800 m bands
+    assert 1.0 / ratio - 1e-3 <= b.total_time_s[0] / a.total_time_s[0] <= ratio + 1e-3
+
+
+def test_a_band_top_that_falls_in_the_afternoon_shortens_the_later_climbs():
+    # Source: contract section 3 (climbs end at the band top); a top falling to 1000 m from
+    # 14:00 leaves later cycles 200 m deep: the flight needs more climbs than one with the
+    # morning's top all day.
+    day = calm_day(band_top_times_s=(13.9 * HOUR, 14 * HOUR), band_top_values=(1800.0, 1000.0))
+    falling, steady = fly(TRIANGLE, day), fly(TRIANGLE, calm_day())
+    assert falling.climbs[0] > steady.climbs[0]
+    arrivals = falling.leg_arrival_height_m[0]
+    assert np.all(arrivals[np.isfinite(arrivals)] <= 1800.0 + 1e-6)

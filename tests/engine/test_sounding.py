@@ -236,3 +236,71 @@ def test_invariants_of_the_derived_hour(lapse, excess, spread, warmer):
     limit = np.minimum(day.lcl_m, day.thermal_top_m) - day.band_top_margin_m
     assert np.all(day.band_top_m[band] <= limit[band] + 1e-6)
     assert np.all(day.thermal_strength_ms >= 0.0)
+
+
+# ---------------------------------------------------------------- what the plan flies, what to draw
+
+
+def test_the_drawing_s_adiabat_is_the_dry_adiabat_and_meets_the_sounding_at_the_thermal_top():
+    # Source: the dry adiabatic lapse rate g/cp = 9.8 K/km (ISO 2533 g, cp = 1004 J/(kg K);
+    # handbook value) and MetPy's dry_lapse as an independent reference; the thermal top is
+    # where the parcel is as warm as the air (the parcel method).
+    import metpy.calc as mpcalc
+    from metpy.units import units
+
+    sounding = analytic_sounding()
+    derived = snd.derive_day(sounding, surface([10, 14, 18], [18.0, 24.0, 17.0], [8.0, 8.0, 8.0]))
+    drawing = snd.sounding_drawing(sounding, derived)
+    warmest = int(np.argmax(derived.surface_temperature_c))
+    assert drawing.parcel_time_s == derived.times_s[warmest]
+    assert drawing.parcel_height_m[0] == derived.surface_elevation_m
+    assert drawing.parcel_height_m[-1] == pytest.approx(derived.thermal_top_m[warmest])
+    rise_km = (drawing.parcel_height_m[-1] - drawing.parcel_height_m[0]) / 1000.0
+    cooling = drawing.parcel_temperature_k[0] - drawing.parcel_temperature_k[-1]
+    assert cooling / rise_km == pytest.approx(9.8, abs=0.15)
+    reference = mpcalc.dry_lapse(sounding.pressure_at(drawing.parcel_height_m) * units.Pa,
+                                 drawing.parcel_temperature_k[0] * units.K).m_as("K")
+    np.testing.assert_allclose(drawing.parcel_temperature_k, reference, atol=0.01)
+    air_at_top = np.interp(drawing.parcel_height_m[-1], sounding.height_m, sounding.temperature_k)
+    assert drawing.parcel_temperature_k[-1] == pytest.approx(air_at_top, abs=0.05)
+    np.testing.assert_array_equal(drawing.band_top_m, derived.band_top_m)
+    assert drawing.height_m[0] >= derived.surface_elevation_m and drawing.temperature_k.shape == drawing.height_m.shape
+
+
+def test_day_inputs_are_the_derived_day_rounded_as_a_pilot_types_it():
+    # The plan's day: the band top of each hour with a working band (whole metres), the band
+    # bottom, hourly strength (0.01 m/s) with one hour of no lift each side, the lift's end
+    # down to the minute, the band's mean wind (WindProfile.mean_between).
+    derived = _afternoon(26.0)
+    inputs = snd.day_inputs(derived)
+    band = np.isfinite(derived.band_top_m)
+    assert inputs.band_top.times_s == tuple(derived.times_s[band])
+    assert inputs.band_top.values == tuple(float(round(v)) for v in derived.band_top_m[band])
+    assert inputs.band_top_m == max(inputs.band_top.values)
+    assert inputs.band_bottom_m == round(derived.surface_elevation_m + derived.band_bottom_agl_m)
+    strength = dict(zip(derived.times_s, derived.thermal_strength_ms))
+    assert inputs.thermal_strength.values[0] == 0.0 and inputs.thermal_strength.values[-1] == 0.0
+    assert all(v == pytest.approx(strength[t], abs=0.005) for t, v in zip(*[inputs.thermal_strength.times_s,
+                                                                          inputs.thermal_strength.values]))
+    assert 0.0 <= derived.lift_end_s - inputs.lift_ends_s < 60.0 and inputs.lift_ends_s % 60.0 == 0.0
+    mean = inputs.wind_profile.mean_between(inputs.band_bottom_m, inputs.band_top_m)
+    assert inputs.wind.speed_ms == pytest.approx(mean.speed_ms, abs=0.05 / 3.6 + 1e-12)
+    assert inputs.wind.from_deg == pytest.approx(mean.from_deg, abs=0.5)
+
+
+def test_a_day_without_a_working_band_gives_the_plan_nothing():
+    sounding = analytic_sounding(surface_c=15.0, lapse_k_per_km=3.0, spread_c=10.0)
+    derived = snd.derive_day(sounding, surface([10, 16], [15.5, 16.0], [5.0, 5.0]))  # never triggers
+    with pytest.raises(snd.NoWorkingBandError):
+        snd.day_inputs(derived)
+
+
+def test_a_task_s_day_source_carries_what_the_drawing_needs():
+    from pathlib import Path
+
+    from glidetask.formats.task_file import load_scenario
+
+    source = load_scenario(Path(__file__).resolve().parents[2] / "demo_tasks" / "vardmoor-forecast-day.toml").day_source
+    drawing = snd.sounding_drawing(source.sounding, source.derived)
+    assert drawing.height_m[0] == source.derived.surface_elevation_m  # the demo sounding has a level at the ground
+    np.testing.assert_array_equal(drawing.times_s, source.derived.times_s)

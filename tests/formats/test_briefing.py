@@ -76,3 +76,39 @@ def test_briefing_in_aviation_units_and_for_a_plan_that_ends_short():
     assert "Ends short" in text and "not completed" in text
     assert re.search(r"Dist NM", text) and "Need ft" in text
     assert "MC 0 | MC 2 | MC 4 | MC 6" in text  # the aviation card in knots
+
+
+@pytest.mark.parametrize("unit_name", ["metric", "aviation"])
+def test_a_day_from_a_sounding_gets_its_own_page_with_the_derived_day(unit_name):
+    # The section shows the derived day itself (glidetask day's figures) in the chosen units.
+    from glidetask import units
+    from glidetask.commands.day import day_to_dict
+
+    p = plan(load_scenario(ROOT / "demo_tasks" / "vardmoor-forecast-day.toml"))
+    text = plan_to_markdown(p, unit_name)
+    unit = units.by_name(unit_name)
+    pages = text.split(PAGE_BREAK)
+    assert len(pages) == 3 and "## Day from the sounding" in pages[2]
+    assert all(len(page.strip().splitlines()) <= 60 for page in pages)
+    assert "from sounding vardmoor-sounding.csv" in pages[2]
+    day = day_to_dict(p.scenario.day_source.derived)
+    tables = _table_after(text, "## Day from the sounding")  # the hourly table, then the wind's
+    rows, wind = tables[:1 + len(day["hours"])], tables[1 + len(day["hours"]):]
+    assert rows[0][2] == f"Thermal top {unit.height_label}"
+    assert wind[0] == [f"Height {unit.height_label}", "From deg", f"Speed {unit.speed_label}"]
+    shown = [w for w in day["wind"] if w["height_m"] <= max(h["thermal_top_m"] for h in day["hours"]) + 1000.0]
+    assert wind[1:] == [[f"{unit.height(w['height_m']):.0f}", f"{w['from_deg']:03.0f}",
+                         f"{unit.speed(w['speed_kmh'] * units.KMH):.0f}"] for w in shown]
+    for row, hour in zip(rows[1:], day["hours"]):
+        assert row[0] == hour["time"]
+        assert row[2] == f"{unit.height(hour['thermal_top_m']):.0f}"
+        assert row[3] == ("blue" if not hour["cumulus"] else f"{unit.height(hour['cloud_base_m']):.0f}")
+        if hour["band_top_m"] is not None:
+            assert row[4] == f"{unit.height(hour['band_bottom_m']):.0f}-{unit.height(hour['band_top_m']):.0f}"
+        assert row[6] == f"{unit.vertical(hour['thermal_strength_ms']):.1f}"
+    for caution in cautions.day_source_cautions(p.scenario.day_source, unit):
+        assert f"> - {caution}" in pages[2] and f"- {caution}" in text.split("## Cautions")[1]
+
+
+def test_a_typed_day_has_no_sounding_page(triangle):
+    assert "## Day from the sounding" not in triangle[1]

@@ -175,4 +175,4 @@ def test_the_task_reader_accepts_the_sounding_keys():
     from glidetask.formats.task_file import load_scenario
 
     scenario = load_scenario(DEMO / "vardmoor-forecast-day.toml")
-    assert scenario.day.band_top_m == 1850.0
+    assert scenario.day_source is not None and scenario.day.band_top_profile is not None
