@@ -143,7 +143,31 @@ def terrain_dict(plan) -> dict[str, Any] | None:
         out["task_covered_percent"] = _number(100.0 * path.profile.covered_share, digits=1)
         out["task_uncovered"] = [{"from_km": _number(a, 1000.0), "to_km": _number(b, 1000.0)}
                                  for a, b in path.profile.uncovered_ranges()]
+    out["floors"] = [{"from_km": _number(f.from_m, 1000.0), "to_km": _number(f.to_m, 1000.0),
+                      "floor_m": _number(f.floor_m, digits=0)} for f in plan.floors]
+    out["uncovered"] = [{"from_km": _number(a, 1000.0), "to_km": _number(b, 1000.0)} for a, b in plan.uncovered]
     return _rounded(out)
+
+
+def profile_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``profile`` (5.3 addition): the planned height of the whole flight, lists
+    of equal length (``terrain_m`` null where unknown)."""
+    p = plan.profile
+    if p is None:
+        return None
+    return {"distance_km": [_number(d, 1000.0) for d in p.distance_m.tolist()],
+            "height_m": [_number(h, digits=0) for h in p.height_m.tolist()],
+            "terrain_m": [_number(t, digits=0) for t in p.terrain_m.tolist()],
+            "phase": list(p.phase)}
+
+
+def landout_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``landout`` (5.3 addition), null when the plan finishes."""
+    landout = plan.landout
+    if landout is None:
+        return None
+    return {"at_km": _number(landout.at_m, 1000.0), "field": landout.field, "lat": _number(landout.lat, digits=5),
+            "lon": _number(landout.lon, digits=5), "elevation_m": _number(landout.elevation_m, digits=0)}
 
 
 def landables_dict(plan) -> dict[str, Any] | None:
@@ -206,6 +230,8 @@ def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
         "day": _day(plan),
         "cautions": list(plan.cautions),
     }
+    out["profile"] = profile_dict(plan)
+    out["landout"] = landout_dict(plan)
     terrain, landables = terrain_dict(plan), landables_dict(plan)
     if terrain is not None:
         out["terrain"] = terrain
