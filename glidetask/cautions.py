@@ -217,6 +217,11 @@ def safety_cautions(plan, units: "UnitSystem") -> list[str]:
         out += landables_cautions(plan.landables, units)
     elif plan.scenario.turnpoints:
         out.append(NO_LANDABLES)
+    if plan.airspace is not None:
+        volumes = plan.scenario.airspace.volumes
+        levels = any(volumes[s.volume].floor.unit == "FL" or volumes[s.volume].ceiling.unit == "FL"
+                     for s in plan.airspace.stretches)
+        out += airspace_cautions(plan.airspace, units, "Leg", levels)
     return out
 
 

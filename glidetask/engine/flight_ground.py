@@ -122,3 +122,45 @@ def glide_allowance(ground: GroundFloor, leg_start, leg, position, height, remai
         allowance[rows[hit]] = before[hit] + d[hit] * per_metre[rows[hit], j]
         open_[rows[hit]] = False
     return allowance
+
+
+class Ceiling:
+    """The band top lowered under airspace along a course (:mod:`glidetask.engine.plan_airspace`).
+
+    Parameters
+    ----------
+    distance_m : ndarray, shape (K,)
+        Positions along the course where the top is lowered, increasing [m].
+    top_m : ndarray, shape (K,)
+        The lowered top there [m MSL] (an airspace floor minus the margin).
+    spacing_m : float
+        The sampling of the positions: a lowered top holds from ``spacing_m`` before its sample.
+
+    Notes
+    -----
+    A climb at ``x`` stops at the lowest of the band top and, for every lowered sample
+    ``s_k`` ahead, ``top_k + hpm (s_k - x)``: the glide that follows enters each capped
+    stretch under its top. ``hpm`` is the flattest glide of the flight (best glide in the
+    leg with the most favourable wind), so any faster glide enters lower still.
+    """
+
+    def __init__(self, distance_m, top_m, spacing_m: float = 250.0):
+        self.distance = np.asarray(distance_m, dtype=float)
+        self.top_m = np.asarray(top_m, dtype=float)
+        self.spacing = float(spacing_m)
+
+    def top(self, position_m, band_top_m, per_metre) -> np.ndarray:
+        """The highest a climb at ``position_m`` (n,) may go [m MSL]."""
+        position = np.asarray(position_m, dtype=float)
+        out = np.asarray(band_top_m, dtype=float).copy()
+        if not self.distance.size:
+            return out
+        first = np.searchsorted(self.distance, position - self.spacing, side="left")
+        count = self.distance.size - first
+        flight = np.repeat(np.arange(position.size), count)
+        offset = np.arange(flight.size) - np.repeat(np.cumsum(count) - count, count)
+        k = np.repeat(first, count) + offset
+        ahead = np.maximum(self.distance[k] - position[flight], 0.0)
+        limit = self.top_m[k] + np.asarray(per_metre, dtype=float)[flight] * ahead
+        np.minimum.at(out, flight, limit)
+        return out

@@ -52,7 +52,11 @@ class Simulation(FinalGlideRequirement):
 
     def __init__(self, course, flights, search, requirement, record=False):
         inputs = flights.columns()
-        # The ground under every glide (flight_ground) and the first flight's path (flight_profile).
+        # The ground under every glide and the band top under airspace (flight_ground), and the
+        # first flight's path (flight_profile). A corridor hook carries its terrain and its ceiling.
+        self.ceiling = getattr(requirement, "ceiling", None)
+        if self.ceiling is not None:
+            requirement = requirement.terrain
         self.ground = GroundFloor.from_hook(requirement)
         self.trace = [] if record else None
         n, legs = inputs["mass_kg"].size, course.legs
@@ -74,6 +78,7 @@ class Simulation(FinalGlideRequirement):
         self.best_ground_speed = np.broadcast_to(best.ground_speed_ms, (n, legs))
         self.final_per_metre_bound = self._final_glide_bound()
         self.lift = LiftClock(flights, inputs, self.band_polar)
+        self.flattest = np.min(np.where(self.best_per_metre > 0.0, self.best_per_metre, np.inf), axis=1)
         self._allocate(n, legs)
         self.time[:] = inputs["start_time_s"]
         self.height[:] = inputs["start_height_m"]
@@ -199,7 +204,7 @@ class Simulation(FinalGlideRequirement):
         """A glide has come down to terrain + clearance: climb there, unless the band top is no higher."""
         if not rows.size:
             return
-        blocked = self.height[rows] >= self.inputs["band_top_m"][rows] - 1e-6
+        blocked = self.height[rows] >= self._climb_top(rows) - 1e-6
         self._landed(rows[blocked], TERRAIN_ABOVE_BAND)
         self._reached_stop(rows[~blocked])
 
@@ -258,15 +263,30 @@ class Simulation(FinalGlideRequirement):
         self.climbs[rows] += 1
         self.mode[rows] = _CLIMB
 
+    def _climb_top(self, rows):
+        """How high a climb of flights ``rows`` may go where they are: the band top, lowered
+        under airspace ahead (flight_ground.Ceiling)."""
+        top = self.inputs["band_top_m"][rows]
+        if self.ceiling is None:
+            return top
+        here = self.leg_start[self.leg[rows]] + self.position[rows]
+        capped = self.ceiling.top(here, top, self.flattest[rows])
+        # Where the climb's drift would carry it (the top is no higher further on): safe for the glide after.
+        with np.errstate(invalid="ignore", divide="ignore"):
+            drift = np.where(self.climb_rate[rows] > 0.0, np.maximum(capped - self.height[rows], 0.0)
+                             / self.climb_rate[rows] * np.maximum(self.wind_along[rows, self.leg[rows]], 0.0), 0.0)
+        return self.ceiling.top(here + np.nan_to_num(drift), top, self.flattest[rows])
+
     def _climb(self, rows) -> None:
         k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
+        band_top = self._climb_top(rows)
         drift = self.wind_along[rows, k]
         gap = h - self.required(rows)
         closing = rate + self.final_per_metre[rows, k] * drift  # the gap grows by this per second
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
             to_final = np.where(gap >= 0.0, 0.0, np.where(closing > 0.0, -gap / closing, np.inf))
             to_leg_end = np.where(drift > 0.0, (self.leg_length[k] - s) / drift, np.inf)
-        to_top = np.maximum(self.inputs["band_top_m"][rows] - h, 0.0) / rate
+        to_top = np.maximum(band_top - h, 0.0) / rate
         to_lift_end = np.maximum(self.inputs["lift_ends_s"][rows] - t, 0.0)
         candidates = np.stack([to_final, to_top, to_leg_end, to_lift_end])
         event = np.argmin(candidates, axis=0)
@@ -279,8 +299,9 @@ class Simulation(FinalGlideRequirement):
         ended = rows[event != 2]
         self.last_climb_end[ended] = self.time[ended]
         self._reached_requirement(rows[event == 0])
-        top = rows[event == 1]
-        self.height[top] = self.inputs["band_top_m"][top]
+        top = event == 1
+        self.height[rows[top]] = band_top[top]
+        top = rows[top]
         self.mode[top] = _GLIDE
         self._leg_end(rows[event == 2])
         self._glide_on(rows[event == 3], LIFT_ENDED)

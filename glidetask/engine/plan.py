@@ -41,7 +41,10 @@ from glidetask.engine import flight
 from glidetask.engine import task as task_geometry
 from glidetask.engine import task_search
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
-from glidetask.engine.plan_ground import Floor, Landout, PlannedProfile, ground_facts
+from glidetask.engine.plan_airspace import airspace_check, corridor
+from glidetask.engine.clearance import TerrainPoint, nearest_landmark
+from glidetask.engine.plan_airspace import airspace_check, corridor
+from glidetask.engine.plan_ground import Floor, Landout, PlannedProfile, ground_facts, point_at
 from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
 from glidetask.engine.scenario import Scenario, Wind, with_what_ifs
 from glidetask.units import METRIC
@@ -313,6 +316,8 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     model = load_terrain_for(scenario)
     if requirement_for is None and model is not None:
         requirement_for = terrain_requirement(model)
+    if scenario.airspace is not None:  # the band top capped under the task's airspace (plan_airspace)
+        requirement_for = _under_airspace(requirement_for, model)
     task = scenario.task
     flights = flights_for(scenario)
     optimized = task_search.optimized_path(task)
@@ -336,7 +341,16 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     profile, floors, uncovered, landout = ground_facts(scenario, path, flown, hook)
     result = dataclasses.replace(result, profile=profile, floors=floors, uncovered=uncovered, landout=landout)
     result = dataclasses.replace(result, notices=_ground_notices(result))
-    return with_safety(result, hook, model)
+    result = with_safety(result, hook, model)
+    return dataclasses.replace(result, airspace=airspace_check(result))
+
+
+def _under_airspace(requirement_for, model):
+    """``requirement_for`` wrapped in the airspace corridor of each path flown."""
+    def corridor_for(scenario, path):
+        inner = None if requirement_for is None else requirement_for(scenario, path)
+        return corridor(scenario, path, inner, model)
+    return corridor_for
 
 
 def _area_path(scenario: Scenario, fly_path):
@@ -501,7 +515,6 @@ def _ground_notices(plan: Plan) -> tuple[Notice, ...]:
     The ``ends_short`` notice (first when the plan ends short) gets the land-out and, when
     terrain above the band stopped the flight, the place (nearest turnpoint, bearing, terrain).
     """
-    from glidetask.engine.clearance import TerrainPoint, nearest_landmark
     out: list[Notice] = []
     notices = list(plan.notices)
     if plan.landout is not None and notices and notices[0].code == "ends_short":
@@ -510,7 +523,6 @@ def _ground_notices(plan: Plan) -> tuple[Notice, ...]:
         facts.update(field=landout.field, field_elevation_m=landout.elevation_m,
                      terrain=plan.terrain_source is not None)
         if facts["why"] == "terrain_above_band" or plan.terrain_source is not None:
-            from glidetask.engine.plan_ground import point_at
             lat, lon = point_at(plan.path, landout.at_m)
             landmarks = plan.scenario.turnpoints or tuple(p.turnpoint for p in plan.scenario.task.points)
             near, near_m, near_deg = nearest_landmark(lat, lon, landmarks)

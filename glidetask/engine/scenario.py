@@ -192,6 +192,7 @@ class Safety:
     arrival_margin_m: float = 200.0
     terrain_clearance_m: float = 150.0
     final_glide_mc_ms: float | None = None  # None: the cruise MacCready setting at that moment
+    airspace_margin_m: float = 100.0  # kept below every airspace floor and above every ceiling (common practice)
 
 
 @dataclass(frozen=True)
@@ -201,7 +202,9 @@ class Scenario:
     ``turnpoints`` is the whole turnpoint collection the task file referenced (the
     landables among them feed the coverage check); ``terrain_file`` is an absolute
     path or None; ``source`` the task file's path (for messages), if any;
-    ``turnpoints_file`` the turnpoint file's absolute path (a saved task refers to it).
+    ``turnpoints_file`` the turnpoint file's absolute path (a saved task refers to it);
+    ``airspace`` the task's airspace (a :class:`glidetask.engine.airspace.Airspace`, read by
+    the task file reader from ``[airspace] file``, whose absolute path is ``airspace_file``).
     """
 
     task: "Task"
@@ -212,6 +215,8 @@ class Scenario:
     terrain_file: str | None = None
     source: str | None = None
     turnpoints_file: str | None = None
+    airspace: object | None = None
+    airspace_file: str | None = None
 
 
 # ---------------------------------------------------------------- what-ifs

@@ -161,6 +161,26 @@ def profile_dict(plan) -> dict[str, Any] | None:
             "phase": list(p.phase)}
 
 
+def airspace_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``airspace`` (5.3 addition): ``source``, ``ok``, ``conflicts`` (legs from 1,
+    heights MSL; a floor at the ground is null) and ``capped``; None without airspace."""
+    check = plan.airspace
+    if check is None:
+        return None
+
+    def height(value):
+        return None if value is None or not math.isfinite(value) else _number(value, digits=0)
+
+    conflicts = [{"name": c.name, "class": c.airspace_class, "leg": c.leg, "from_km": _number(c.from_m, 1000.0),
+                  "to_km": _number(c.to_m, 1000.0), "floor_m": height(c.floor_m), "ceiling_m": height(c.ceiling_m),
+                  "planned_min_m": height(c.planned_min_m), "planned_max_m": height(c.planned_max_m)}
+                 for c in check.conflicts]
+    capped = [{"from_km": _number(c.from_m, 1000.0), "to_km": _number(c.to_m, 1000.0), "top_m": height(c.top_m),
+               "name": c.name} for c in check.caps]
+    return {"source": check.source, "ok": bool(check.ok), "margin_m": plan.scenario.safety.airspace_margin_m,
+            "conflicts": conflicts, "capped": capped}
+
+
 def landout_dict(plan) -> dict[str, Any] | None:
     """The contract's ``landout`` (5.3 addition), null when the plan finishes."""
     landout = plan.landout
@@ -232,6 +252,8 @@ def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
     }
     out["profile"] = profile_dict(plan)
     out["landout"] = landout_dict(plan)
+    if plan.airspace is not None:
+        out["airspace"] = airspace_dict(plan)
     terrain, landables = terrain_dict(plan), landables_dict(plan)
     if terrain is not None:
         out["terrain"] = terrain
