@@ -24,6 +24,9 @@ CARD_MC_KT = tuple(k * KNOT for k in (0.0, 2.0, 4.0, 6.0))  # the aviation card'
 PAGE_BREAK = '<div style="page-break-before: always"></div>'
 
 
+from glidetask.formats.profile_art import profile_ascii  # noqa: E402  (rendered on every briefing)
+
+
 def _num(value: float, fmt: str = "{:.0f}") -> str:
     return "-" if value is None or not math.isfinite(value) else fmt.format(value)
 
@@ -187,6 +190,29 @@ def _safety_pages(plan, unit) -> list[str]:
     return lines
 
 
+def _profile_page(plan, unit) -> list[str]:
+    """The planned height of the whole flight as text art, in a code block (legible printed)."""
+    art = profile_ascii(plan, unit)
+    return ["## Planned profile", "", "```", *art.splitlines(), "```", ""] if art else []
+
+
+def _airspace_page(plan, unit) -> list[str]:
+    """The airspace section: band caps and conflicts; empty without airspace."""
+    check = plan.airspace
+    if check is None:
+        return []
+    lines = ["", "## Airspace", "", f"Airspace file: `{check.source}`; margin "
+             f"{unit.fmt_height(plan.scenario.safety.airspace_margin_m)} below floors and above ceilings.", ""]
+    rows = [["capped", c.name, "", f"{unit.fmt_distance(c.from_m)} to {unit.fmt_distance(c.to_m)}",
+             f"top {unit.fmt_height(c.top_m)}"] for c in check.caps]
+    rows += [["**conflict**", c.name, str(c.leg), f"{unit.fmt_distance(c.from_m)} to {unit.fmt_distance(c.to_m)}",
+              f"planned {unit.fmt_height(c.planned_min_m)} to {unit.fmt_height(c.planned_max_m)}"]
+             for c in check.conflicts]
+    if not rows:
+        return lines + ["The planned flight meets no volume in the file."]
+    return lines + _table(["", "volume", "leg", "stretch", "heights"], rows, right=5)
+
+
 def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     """The briefing for ``plan`` as Markdown text, in metric or aviation units.
 
@@ -202,7 +228,7 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     unit = units.by_name(unit_name)
     lines = _summary(plan, unit) + [""] + _legs(plan, unit) + [""] + _heights(plan, unit) + [""] + _day(plan, unit)
     lines += _sensitivity(sensitivity, unit)
-    safety = _safety_pages(plan, unit)
+    safety = _profile_page(plan, unit) + _safety_pages(plan, unit) + _airspace_page(plan, unit)
     if safety:
         lines += ["", PAGE_BREAK, ""] + safety
     lines += ["", "## Cautions", ""] + [f"- {text}" for text in cautions.plan_cautions(plan, unit)]
