@@ -340,8 +340,8 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     result = _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
     profile, floors, uncovered, landout = ground_facts(scenario, path, flown, hook)
     result = dataclasses.replace(result, profile=profile, floors=floors, uncovered=uncovered, landout=landout)
-    result = dataclasses.replace(result, notices=_ground_notices(result))
     result = with_safety(result, hook, model)
+    result = dataclasses.replace(result, notices=_ground_notices(result))
     return dataclasses.replace(result, airspace=airspace_check(result))
 
 
