@@ -215,7 +215,7 @@ class Scenario:
     terrain_file: str | None = None
     source: str | None = None
     turnpoints_file: str | None = None
-    airspace: object | None = None
+    airspace: object | None = field(default=None, compare=False)  # read from airspace_file (compared)
     airspace_file: str | None = None
 
 
