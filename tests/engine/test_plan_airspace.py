@@ -96,3 +96,24 @@ def test_a_land_out_over_the_ground_ends_in_a_field_in_reach_or_says_none_is(tri
         assert distance <= bound
     else:
         assert "no landable field is in reach" in text
+
+
+def test_the_odds_of_one_forecast_day_land_out_where_the_plan_does(triangle):
+    # The odds fly the plan's own route and hook (terrain and airspace) with the same core:
+    # with no spread every simulated day is the forecast, so every one lands out where the plan does.
+    from glidetask.engine.compare import planned_route, stack_flights
+    from glidetask.engine.flight import course_for, flights_for, fly
+    from glidetask.engine.simulate import DaySpread, simulate_days
+
+    scenario = triangle.scenario
+    day = dataclasses.replace(scenario.day, lift_ends_s=scenario.day.start_time_s + 2.0 * 3600.0)
+    short = dataclasses.replace(scenario, day=day)
+    planned = plan(short)
+    assert not planned.finished
+    path, requirement = planned_route(short)
+    flown = fly(course_for(path), stack_flights([flights_for(short)] * 4), requirement=requirement, detail=False)
+    np.testing.assert_allclose(flown.landout_m, planned.landout_m, rtol=0.0, atol=1e-6)
+    odds = simulate_days(short, runs=40, spread=DaySpread(0.0, 0.0, 0.0, 0.0, 0.0))
+    leg = int(np.searchsorted(planned.path.cumulative_m, planned.landout_m, side="right")) - 1
+    [choice] = [c for c in odds.choices if c.ballast_kg == short.glider.ballast_kg]
+    assert choice.finished == 0 and choice.landouts_by_leg[leg] == choice.runs
