@@ -201,7 +201,7 @@ def _airspace_page(plan, unit) -> list[str]:
     check = plan.airspace
     if check is None:
         return []
-    lines = ["", "## Airspace", "", f"Airspace file: `{check.source}`; margin "
+    lines = ["## Airspace", "", f"Airspace file: `{check.source}`; margin "
              f"{unit.fmt_height(plan.scenario.safety.airspace_margin_m)} below floors and above ceilings.", ""]
     rows = [["capped", c.name, "", f"{unit.fmt_distance(c.from_m)} to {unit.fmt_distance(c.to_m)}",
              f"top {unit.fmt_height(c.top_m)}"] for c in check.caps]
@@ -228,7 +228,10 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     unit = units.by_name(unit_name)
     lines = _summary(plan, unit) + [""] + _legs(plan, unit) + [""] + _heights(plan, unit) + [""] + _day(plan, unit)
     lines += _sensitivity(sensitivity, unit)
-    safety = _profile_page(plan, unit) + _safety_pages(plan, unit) + _airspace_page(plan, unit)
+    flight = _profile_page(plan, unit) + _airspace_page(plan, unit)
+    if flight:  # a page of its own: the whole flight's profile and its airspace
+        lines += ["", PAGE_BREAK, ""] + flight
+    safety = _safety_pages(plan, unit)
     if safety:
         lines += ["", PAGE_BREAK, ""] + safety
     lines += ["", "## Cautions", ""] + [f"- {text}" for text in cautions.plan_cautions(plan, unit)]

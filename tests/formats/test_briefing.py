@@ -38,8 +38,9 @@ def test_briefing_has_every_section_and_each_page_fits_a_sheet(triangle):
                     "## Landable fields along the task", "## Cautions"):
         assert heading in text
     pages = text.split(PAGE_BREAK)
-    assert len(pages) == 2  # the plan, then safety over the ground
-    assert "## Final glide over the terrain" in pages[1] and "## Legs" in pages[0]
+    assert len(pages) == 3  # the plan, the whole flight's profile and airspace, then safety over the ground
+    assert "## Legs" in pages[0] and "## Planned profile" in pages[1] and "## Airspace" in pages[1]
+    assert "## Final glide over the terrain" in pages[2]
     # A printed page holds about 60 lines (common practice for A4/letter at 10-11 pt).
     assert all(len(page.strip().splitlines()) <= 60 for page in pages)
 
