@@ -141,7 +141,8 @@ class Ceiling:
     A climb at ``x`` stops at the lowest of the band top and, for every lowered sample
     ``s_k`` ahead, ``top_k + hpm (s_k - x)``: the glide that follows enters each capped
     stretch under its top. ``hpm`` is the flattest glide of the flight (best glide in the
-    leg with the most favourable wind), so any faster glide enters lower still.
+    leg with the most favourable wind), so any faster glide enters lower still. Each flight
+    uses its own slope, so a flight flies the same alone and in a batch.
     """
 
     def __init__(self, distance_m, top_m, spacing_m: float = 250.0):
@@ -150,17 +151,25 @@ class Ceiling:
         self.spacing = float(spacing_m)
 
     def top(self, position_m, band_top_m, per_metre) -> np.ndarray:
-        """The highest a climb at ``position_m`` (n,) may go [m MSL]."""
+        """The highest a climb at ``position_m`` (n,) may go [m MSL], for flights whose glides
+        lose at least ``per_metre`` (n,) [m/m]. Only the lowered samples close enough ahead to
+        matter are examined: beyond ``(band top - lowest top) / per_metre`` none can lower it."""
         position = np.asarray(position_m, dtype=float)
-        out = np.asarray(band_top_m, dtype=float).copy()
+        top = np.asarray(band_top_m, dtype=float)
+        out = top.copy()
         if not self.distance.size:
             return out
+        slope = np.asarray(per_metre, dtype=float)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            reach = np.where(slope > 0.0, np.maximum(top - self.top_m.min(), 0.0) / slope, np.inf)
         first = np.searchsorted(self.distance, position - self.spacing, side="left")
-        count = self.distance.size - first
+        last = np.searchsorted(self.distance, position + reach, side="right")
+        count = np.maximum(last - first, 0)
+        if not count.any():
+            return out
         flight = np.repeat(np.arange(position.size), count)
         offset = np.arange(flight.size) - np.repeat(np.cumsum(count) - count, count)
         k = np.repeat(first, count) + offset
         ahead = np.maximum(self.distance[k] - position[flight], 0.0)
-        limit = self.top_m[k] + np.asarray(per_metre, dtype=float)[flight] * ahead
-        np.minimum.at(out, flight, limit)
+        np.minimum.at(out, flight, self.top_m[k] + slope[flight] * ahead)
         return out

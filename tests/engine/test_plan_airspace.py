@@ -118,3 +118,23 @@ def test_the_odds_of_one_forecast_day_land_out_where_the_plan_does(triangle):
     leg = int(np.searchsorted(planned.path.cumulative_m, planned.landout_m, side="right")) - 1
     [choice] = [c for c in odds.choices if c.ballast_kg == short.glider.ballast_kg]
     assert choice.finished == 0 and choice.landouts_by_leg[leg] == choice.runs
+
+
+def test_under_airspace_a_flight_flies_the_same_alone_and_in_a_batch(triangle):
+    # The core's promise (same inputs, same numbers in any batch) holds with a capped band.
+    from glidetask.engine.compare import stack_flights
+    from glidetask.engine.flight import course_for, flights_for, fly
+    from glidetask.engine.scenario import Wind
+
+    scenario = triangle.scenario
+    setups = []
+    for ballast, wind in ((0.0, Wind(200.0, 3.0)), (100.0, Wind(250.0, 6.0)), (170.0, Wind(320.0, 9.0))):
+        glider = dataclasses.replace(scenario.glider, ballast_kg=ballast)
+        day = dataclasses.replace(scenario.day, wind=wind)
+        setups.append(flights_for(dataclasses.replace(scenario, glider=glider, day=day)))
+    course, hook = course_for(triangle.path), triangle.requirement
+    batch = fly(course, stack_flights(setups), requirement=hook, detail=False)
+    for i, setup in enumerate(setups):
+        alone = fly(course, setup, requirement=hook, detail=False)
+        assert batch.total_time_s[i] == alone.total_time_s[0]
+        assert batch.climbs[i] == alone.climbs[0]
