@@ -8,7 +8,7 @@ volume's floor minus ``[safety] airspace_margin_m`` where the path runs under it
 the band bottom or below there is no room to fly under the volume: the core keeps the band
 (a conflict is a legal problem for the pilot to solve, not a physics limit) and
 :func:`airspace_check` reports it, with every other stretch of the planned profile inside a
-volume (:func:`glidetask.engine.airspace.check_path`), the final glide included.
+volume (:func:`glidetask.engine.airspace.conflicts`, on the crossings the corridor found), the final glide included.
 
 AGL limits stand on the terrain model, or on the nearest turnpoint's elevation without one
 (the check says so).
@@ -20,7 +20,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from glidetask.engine.airspace import AirspaceCheck, band_top_cap, check_path, nearest_point_ground
+from glidetask.engine.airspace import AirspaceCheck, band_top_cap, conflicts, nearest_point_ground, path_stretches
 from glidetask.engine.flight_ground import Ceiling
 
 SPACING_M = 250.0  # the path is sampled this often for the airspace [m]
@@ -42,6 +42,9 @@ class Corridor:
     along_m: np.ndarray
     ground: object
     ground_is_estimate: bool
+    stretches: tuple = ()
+    caps: tuple = ()
+    agl_from_points: bool = False
 
     def __call__(self, position_m, height_per_metre, floor_m):
         if self.terrain is None:
@@ -69,11 +72,13 @@ def corridor(scenario, path, terrain_hook, model=None) -> Corridor:
     day = scenario.day
     lats, lons, along = path.sample(SPACING_M)
     ground, estimate = _ground(scenario, model)
+    stretches = tuple(path_stretches(scenario.airspace, lats, lons, along))
     cap = band_top_cap(scenario.airspace, lats, lons, along, day.band_top_m, day.band_bottom_m,
-                       scenario.safety.airspace_margin_m, ground, day.isa_deviation_c, estimate)
+                       scenario.safety.airspace_margin_m, ground, day.isa_deviation_c, estimate, stretches)
     lowered = (cap.top_m < day.band_top_m) & (cap.top_m > day.band_bottom_m)
     ceiling = Ceiling(along[lowered], cap.top_m[lowered], SPACING_M)
-    return Corridor(terrain_hook, ceiling, lats, lons, along, ground, estimate)
+    return Corridor(terrain_hook, ceiling, lats, lons, along, ground, estimate, stretches, cap.caps,
+                    cap.agl_from_points)
 
 
 def airspace_check(plan) -> AirspaceCheck | None:
@@ -82,12 +87,13 @@ def airspace_check(plan) -> AirspaceCheck | None:
     hook = plan.requirement
     if scenario.airspace is None or not isinstance(hook, Corridor) or plan.profile is None:
         return None
-    day = scenario.day
-    check = check_path(scenario.airspace, hook.lats, hook.lons, hook.along_m, plan.profile.distance_m,
-                       plan.profile.height_m, band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m,
-                       leg_starts_m=plan.path.cumulative_m[:-1], margin_m=scenario.safety.airspace_margin_m,
-                       ground=hook.ground, isa_deviation_c=day.isa_deviation_c,
-                       ground_is_estimate=hook.ground_is_estimate)
+    day, airspace = scenario.day, scenario.airspace
+    found = conflicts(airspace, hook.lats, hook.lons, hook.along_m, plan.profile.distance_m, plan.profile.height_m,
+                      plan.path.cumulative_m[:-1], scenario.safety.airspace_margin_m, day.band_bottom_m, hook.ground,
+                      day.isa_deviation_c, hook.ground_is_estimate, hook.stretches)
+    used_agl = any(airspace.volumes[s.volume].floor.is_agl or airspace.volumes[s.volume].ceiling.is_agl
+                   for s in hook.stretches)
+    agl = hook.agl_from_points or (used_agl and hook.ground_is_estimate)
     source = scenario.airspace.source
     if scenario.airspace_file:
         import os
@@ -98,4 +104,4 @@ def airspace_check(plan) -> AirspaceCheck | None:
                       else os.path.basename(scenario.airspace_file))
         except ValueError:  # on another drive
             source = Path(scenario.airspace_file).as_posix()
-    return AirspaceCheck(source, check.conflicts, check.caps, check.stretches, check.agl_from_points)
+    return AirspaceCheck(source, tuple(found), hook.caps, hook.stretches, agl)
