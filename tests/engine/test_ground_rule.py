@@ -134,3 +134,34 @@ def test_odds_and_plan_land_out_in_the_same_place(tmp_path):
     ground = np.interp(distance, hook.profile.distance_m, hook.profile.elevation_m)
     assert np.all(height - ground >= CLEARANCE_M - 1e-6)
     assert one.landout_m[0] < along(CREST_LAT)  # on the south flank, not through the ridge
+
+
+def test_a_capped_band_costs_nothing_in_the_pure_macready_model_and_is_kept_under():
+    # Source: MacCready theory (P. B. MacCready 1958; H. Reichmann, Cross-Country Soaring,
+    # 1978, from memory): with one constant climb rate and no time lost centring, the average
+    # speed of climb-and-glide cycles m v / (m + sink(v)) does not depend on how high the
+    # climbs go, so a leg under a lowered band top is exactly as fast: it costs only more,
+    # shorter cycles. The plan must keep the whole profile under the cap there.
+    from types import SimpleNamespace
+
+    from glidetask.engine.flight_ground import Ceiling
+
+    course = Course([150e3, 150e3], [0.0, 90.0])
+    day = Flights(spec=SPEC, mass_kg=380.0, start_time_s=11 * HOUR, start_height_m=TOP_M, band_top_m=TOP_M,
+                  band_bottom_m=BOTTOM_M, lift_ends_s=20 * HOUR, lift_times_s=[0.0], lift_values=[2.0],
+                  finish_elevation_m=BASE_M, arrival_margin_m=200.0)
+    cap_from, cap_to, cap_top = 60e3, 120e3, 1500.0  # a floor of 1600 m with a 100 m margin
+    along = np.arange(cap_from, cap_to + 1.0, 250.0)
+    hook = SimpleNamespace(ceiling=Ceiling(along, np.full(along.size, cap_top)), terrain=None)
+    free = fly(course, day, record=True)
+    capped = fly(course, day, requirement=hook, record=True)
+    assert free.finished[0] and capped.finished[0]
+    distance, height, _ = profile_samples(capped.trace)
+    under = (distance >= cap_from) & (distance <= cap_to)
+    assert under.sum() > 100 and np.all(height[under] <= cap_top + 1e-6)
+    free_distance, free_height, _ = profile_samples(free.trace)
+    assert free_height[(free_distance >= cap_from) & (free_distance <= cap_to)].max() > cap_top + 500.0
+    assert capped.climbs[0] > free.climbs[0]  # more, shorter cycles
+    # The whole task takes the same time (leg times differ by where the cycles fall: height
+    # carried over a leg's end is time moved between legs).
+    assert capped.total_time_s[0] == pytest.approx(free.total_time_s[0], abs=1.0)
