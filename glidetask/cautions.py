@@ -145,9 +145,21 @@ def _ends_short(f: dict, units: "UnitSystem") -> str:
         "wind_too_strong": f"the wind ({f['wind_from_deg']:03.0f}/{units.fmt_speed(f['wind_speed_ms'])}) is too "
                            f"strong for this glider to make progress with climbs",
         "below_floor": "the plan reaches the finish below the arrival margin",
+        "terrain_above_band": "the terrain plus the clearance reaches the band top, so the glides cannot clear it",
     }.get(f["why"], "the plan cannot be completed")
-    return (f"Task not completed: {why}; the plan ends {units.fmt_distance(f['at_m'])} along the task, on the leg "
-            f"{f['leg_from']} -> {f['leg_to']}, gliding on at MacCready 0 down to {units.fmt_height(f['floor_m'])} "
+    where = (f"Task not completed: {why}; the plan ends {units.fmt_distance(f['at_m'])} along the task, on the leg "
+             f"{f['leg_from']} -> {f['leg_to']}")
+    if f.get("place") is not None:
+        where += f", at {place(f['place'], units)}"
+    if f["why"] == "terrain_above_band":
+        return where + ": the task cannot be flown as set; set it around the high ground or wait for a higher band."
+    if f.get("field"):
+        return (where + f", gliding on at MacCready 0 while it keeps the terrain clearance; it lands in "
+                f"{f['field']} ({units.fmt_height(f['field_elevation_m'])}), in reach from where the climbs stop.")
+    if f.get("terrain"):
+        return (where + ", gliding on at MacCready 0 while it keeps the terrain clearance; no landable field is in "
+                "reach from where the climbs stop: plan where to land before you go.")
+    return (where + f", gliding on at MacCready 0 down to {units.fmt_height(f['floor_m'])} "
             f"(finish elevation plus the arrival margin, taken as the ground).")
 
 
@@ -156,6 +168,10 @@ def notice_text(notice, units: "UnitSystem") -> str:
     f, code = notice.facts, notice.code
     if code == "ends_short":
         return _ends_short(f, units)
+    if code == "raised_floor":
+        return (f"High ground from {units.fmt_distance(f['from_m'])} to {units.fmt_distance(f['to_m'])}: terrain plus "
+                f"the clearance reaches {units.fmt_height(f['floor_m'])}, above the band bottom "
+                f"({units.fmt_height(f['band_bottom_m'])}); the plan climbs before it and glides no lower there.")
     if code == "lift_ends_before_final_glide":
         return (f"Lift ends ({format_clock(f['stop_time_s'])}) before the planned final glide: the plan glides home "
                 f"at MacCready 0 from {units.fmt_distance(f['final_glide_from_m'])}, arriving "
@@ -201,6 +217,11 @@ def safety_cautions(plan, units: "UnitSystem") -> list[str]:
         out += landables_cautions(plan.landables, units)
     elif plan.scenario.turnpoints:
         out.append(NO_LANDABLES)
+    if plan.airspace is not None:
+        volumes = plan.scenario.airspace.volumes
+        levels = any(volumes[s.volume].floor.unit == "FL" or volumes[s.volume].ceiling.unit == "FL"
+                     for s in plan.airspace.stretches)
+        out += airspace_cautions(plan.airspace, units, "Leg", levels)
     return out
 
 

@@ -35,7 +35,8 @@ def test_the_plans_own_cautions_follow_the_chosen_units(demo_dir):
     assert "The plan counts on rising air while gliding (+0.6 kt): if it is not there, every glide loses " \
            "more height." in aviation
     short = next(text for text in aviation if text.startswith("Task not completed"))
-    assert " NM along the task" in short and " ft (finish elevation" in short
+    # With the demo's terrain the plan lands in a field in reach, its elevation in feet.
+    assert " NM along the task" in short and re.search(r"lands in [A-Za-z ]+ \(\d+ ft\)", short)
     for text in aviation:
         assert not METRIC_QUANTITY.search(text), text
 
@@ -47,3 +48,23 @@ def test_the_metric_wording_is_the_plans_json_cautions(demo_dir):
     assert metric[: len(cautions.GENERAL)] == list(cautions.GENERAL)
     assert "The arrival margin of 100 m is thin: most pilots plan 150-300 m over the finish." in metric
     assert len(set(metric)) == len(metric)  # each caution once
+
+
+def test_the_whole_flight_cautions_follow_the_chosen_units():
+    # Source: units by definition: 1 ft = 0.3048 m, 1 NM = 1852 m (ICAO Annex 5).
+    from glidetask.engine.clearance import TerrainPoint
+    from glidetask.engine.plan import Notice
+    from glidetask.units import by_name
+
+    aviation = by_name("aviation")
+    floor = Notice("raised_floor", dict(from_m=18520.0, to_m=37040.0, floor_m=1524.0, band_bottom_m=1219.2,
+                                        band_top_m=2438.4))
+    text = cautions.notice_text(floor, aviation)
+    assert "10.0 NM to 20.0 NM" in text and "5000 ft" in text and "4000 ft" in text
+    place = TerrainPoint(18520.0, 45.0, -34.0, 1524.0, 150.0, 1674.0, "Kellow Hill", 3704.0, 90.0)
+    short = Notice("ends_short", dict(why="terrain_above_band", stop_time_s=0.0, lift_ends_s=0.0, wind_from_deg=0.0,
+                                      wind_speed_ms=0.0, at_m=18520.0, leg_from="A", leg_to="B", floor_m=500.0,
+                                      place=place))
+    text = cautions.notice_text(short, aviation)
+    assert "10.0 NM along the task" in text and "terrain of 5000 ft" in text and "2.0 NM E of Kellow Hill" in text
+    assert "cannot be flown as set" in text

@@ -213,6 +213,30 @@ def terrain_section(plan, unit: units.UnitSystem) -> list[str]:
     return lines
 
 
+def profile_section(plan, unit: units.UnitSystem) -> list[str]:
+    """The planned height of the whole flight as text art (formats/profile_art.py)."""
+    from glidetask.formats.profile_art import profile_ascii
+
+    art = profile_ascii(plan, unit)
+    return ["Planned profile (height along the task)"] + ["  " + row for row in art.splitlines()] if art else []
+
+
+def airspace_section(plan, unit: units.UnitSystem) -> list[str]:
+    """The band caps and conflicts of the plan under its airspace; empty without airspace."""
+    check = plan.airspace
+    if check is None:
+        return []
+    lines = [f"Airspace ({check.source}, margin {unit.fmt_height(plan.scenario.safety.airspace_margin_m)})"]
+    lines += [f"  capped     {c.name}: top {unit.fmt_height(c.top_m)} from {unit.fmt_distance(c.from_m)} "
+              f"to {unit.fmt_distance(c.to_m)}" for c in check.caps]
+    lines += [f"  CONFLICT   leg {c.leg}, {c.name}: {unit.fmt_distance(c.from_m)} to {unit.fmt_distance(c.to_m)}, "
+              f"planned {unit.fmt_height(c.planned_min_m)} to {unit.fmt_height(c.planned_max_m)}"
+              for c in check.conflicts]
+    if len(lines) == 1:
+        lines.append("  the planned flight meets no volume in the file")
+    return lines
+
+
 def landables_section(plan, unit: units.UnitSystem) -> list[str]:
     """Landable coverage from the band bottom: coverage, gaps, alternates per leg."""
     from glidetask.formats import safety_report
@@ -235,7 +259,8 @@ def plan_text(plan, unit_name: str = "metric", sensitivity=None) -> str:
     unit = units.by_name(unit_name)
     lines = _header(plan, unit) + [""] + _legs_table(plan, unit) + [""] + _totals(plan, unit)
     lines += [""] + _required_card(plan, unit)
-    for section in (terrain_section(plan, unit), landables_section(plan, unit),
+    for section in (profile_section(plan, unit), terrain_section(plan, unit), airspace_section(plan, unit),
+                    landables_section(plan, unit),
                     sensitivity_section(sensitivity, unit)):
         if section:
             lines += [""] + section

@@ -58,12 +58,14 @@ from typing import Callable
 import numpy as np
 
 from glidetask.engine.flight_simulation import (  # the reasons a flight ends, named where the core sets them
-    BELOW_FLOOR, FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, NO_THERMAL_FOUND, REASONS, UNREACHABLE, UNRESOLVED, Simulation,
+    BELOW_FLOOR, FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, NO_THERMAL_FOUND, REASONS, TERRAIN_ABOVE_BAND, UNREACHABLE,
+    UNRESOLVED, Simulation,
 )
 from glidetask.engine.polar import PolarSpec
 from glidetask.engine.scenario import Scenario
 
-__all__ = ["BELOW_FLOOR", "FINAL_GLIDE", "LIFT_ENDED", "NO_CLIMB", "NO_THERMAL_FOUND", "REASONS", "UNREACHABLE",
+__all__ = ["BELOW_FLOOR", "FINAL_GLIDE", "LIFT_ENDED", "NO_CLIMB", "NO_THERMAL_FOUND", "REASONS", "TERRAIN_ABOVE_BAND",
+           "UNREACHABLE",
            "UNRESOLVED", "Course", "Flights", "Flown", "RequirementHook", "SearchHook", "course_for", "flights_for",
            "fly", "requirement_card"]
 
@@ -292,10 +294,12 @@ class Flown:
     leg_heading_deg: np.ndarray
     leg_ground_speed_ms: np.ndarray
     leg_cruise_speed_ms: np.ndarray
+    trace: tuple | None = None  # the first flight's profile vertices (distance_m, height_m, phase) with record=True
 
     def flight(self, i: int) -> "Flown":
-        """The results of flight ``i`` alone (arrays of length 1)."""
-        return Flown(**{f.name: getattr(self, f.name)[i:i + 1] for f in fields(self)})
+        """The results of flight ``i`` alone (arrays of length 1; the trace stays with flight 0)."""
+        return Flown(**{f.name: getattr(self, f.name)[i:i + 1] for f in fields(self) if f.name != "trace"},
+                     trace=self.trace if i == 0 else None)
 
 
 #: ``search(flights, climb_number) -> distance_m``: called when flights (indices, shape (n,))
@@ -316,7 +320,8 @@ RequirementHook = Callable[[np.ndarray, np.ndarray, np.ndarray], np.ndarray]
 
 
 def fly(course: Course, flights: Flights, *, search: SearchHook | None = None,
-        requirement: RequirementHook | None = None, detail: bool = True, max_events: int = 5000) -> Flown:
+        requirement: RequirementHook | None = None, detail: bool = True, record: bool = False,
+        max_events: int = 5000) -> Flown:
     """Fly N flights over one course, vectorised over the flights.
 
     Parameters
@@ -330,10 +335,16 @@ def fly(course: Course, flights: Flights, *, search: SearchHook | None = None,
         (Monte-Carlo days); a flight that reaches the arrival floor first lands out
         there (:data:`NO_THERMAL_FOUND`). Default: every climb is found at the bottom.
     requirement : RequirementHook, optional
-        Extra final-glide height along the path (terrain); default none.
+        Extra final-glide height along the path (terrain); default none. A terrain hook
+        (:class:`glidetask.engine.clearance_hook.PathTerrain`) also keeps every glide the
+        clearance above the ground (:mod:`glidetask.engine.flight_ground`).
     detail : bool, default True
         Compute ``leg_required_height_m`` (one more final-glide solve over every leg
         reached); NaN when False, which saves that work for large batches.
+    record : bool, default False
+        Record the first flight's planned profile (``Flown.trace``: a vertex at every event,
+        each climb's bottom and top, every leg end of its final glide); the planner asks for
+        it, the many-flight callers (sweep, odds) skip it.
     max_events : int
         Safety cap on the event loop; flights still flying are marked :data:`UNRESOLVED`.
 
@@ -352,13 +363,14 @@ def fly(course: Course, flights: Flights, *, search: SearchHook | None = None,
     Only the final-glide speed to fly needs a solver: one vectorised call per cycle for
     the flights starting a climb. See the module docstring for the model.
     """
-    simulation = Simulation(course, flights, search, requirement)
+    simulation = Simulation(course, flights, search, requirement, record)
     for _ in range(max_events):
         if not simulation.step():
             break
     else:
         simulation.give_up()
-    return Flown(**simulation.result(detail))
+    trace = None if simulation.trace is None else tuple(simulation.trace)
+    return Flown(**simulation.result(detail), trace=trace)
 
 
 # ---------------------------------------------------------------- the core's inputs from a scenario

@@ -15,6 +15,7 @@ from __future__ import annotations
 import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.flight_ground import GroundFloor, glide_allowance
 from glidetask.engine.flight_lift import LiftClock
 from glidetask.engine.flight_requirement import FinalGlideRequirement, polar_rows
 from glidetask.engine.polar import scaled_polar
@@ -24,9 +25,10 @@ from glidetask.engine.wind import correction_angle_deg, ground_speed, heading_fo
 
 # Why a flight ended (``Flown.reason``). A finished flight has FINAL_GLIDE, or the reason
 # its climbs stopped if it then glided home at MacCready 0.
-FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, UNREACHABLE, NO_THERMAL_FOUND, BELOW_FLOOR, UNRESOLVED = range(7)
+FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, UNREACHABLE, NO_THERMAL_FOUND, BELOW_FLOOR, UNRESOLVED, TERRAIN_ABOVE_BAND = range(8)
 REASONS = ("final glide", "lift ended", "no climb in the profile", "wind too strong for the glider",
-           "no thermal found", "reached the finish below the arrival floor", "unresolved")
+           "no thermal found", "reached the finish below the arrival floor", "unresolved",
+           "terrain plus clearance above the working band")
 
 _GLIDE, _CLIMB_START, _CLIMB, _DONE = range(4)  # what each flight is doing
 
@@ -48,8 +50,15 @@ class Simulation(FinalGlideRequirement):
     glide a flight actually flew.
     """
 
-    def __init__(self, course, flights, search, requirement):
+    def __init__(self, course, flights, search, requirement, record=False):
         inputs = flights.columns()
+        # The ground under every glide and the band top under airspace (flight_ground), and the
+        # first flight's path (flight_profile). A corridor hook carries its terrain and its ceiling.
+        self.ceiling = getattr(requirement, "ceiling", None)
+        if self.ceiling is not None:
+            requirement = requirement.terrain
+        self.ground = GroundFloor.from_hook(requirement)
+        self.trace = [] if record else None
         n, legs = inputs["mass_kg"].size, course.legs
         self.n, self.legs, self.spec = n, legs, flights.spec
         self.inputs, self.search_hook, self.requirement_hook = inputs, search, requirement
@@ -73,6 +82,7 @@ class Simulation(FinalGlideRequirement):
         self.band_top_values = np.atleast_1d(np.asarray(flights.band_top_values, dtype=float))
         if self.band_top_values.size != self.band_top_times.size or np.any(np.diff(self.band_top_times) <= 0.0):
             raise ValueError("the band top through the day needs one top per time and increasing times")
+        self.flattest = np.min(np.where(self.best_per_metre > 0.0, self.best_per_metre, np.inf), axis=1)
         self._allocate(n, legs)
         self.time[:] = inputs["start_time_s"]
         self.height[:] = inputs["start_height_m"]
@@ -81,6 +91,12 @@ class Simulation(FinalGlideRequirement):
         self._set_cycle(everyone, self.lift.climb(everyone, self.time))
         self.leg_climb[:, 0], self.leg_mc[:, 0] = np.maximum(self.climb_rate, 0.0), self.cycle_mc
         self.leg_final_mc[:, 0] = self.final_mc
+        self._mark(everyone, "glide")
+
+    def _mark(self, rows, phase: str) -> None:
+        """Record the first flight's position and height (a vertex of its planned profile)."""
+        if self.trace is not None and rows.size and np.any(rows == 0):
+            self.trace.append((float(self.leg_start[self.leg[0]] + self.position[0]), float(self.height[0]), phase))
 
     def _allocate(self, n: int, legs: int) -> None:
         nan_n, nan_nl = (lambda: np.full(n, np.nan)), (lambda: np.full((n, legs), np.nan))
@@ -166,7 +182,11 @@ class Simulation(FinalGlideRequirement):
             to_final = np.where(closing > 0.0, -gap / closing, np.inf)
             to_stop = np.where(hpm > 0.0, np.maximum(h - self.stop_height[rows], 0.0) / hpm, np.inf)
         to_leg_end = self.leg_length[k] - s
-        candidates = np.stack([to_final, to_leg_end, to_stop, self.search_left_m[rows]])
+        to_ground = np.full(rows.size, np.inf)
+        if self.ground is not None:  # the glide stops where it would come closer to the ground than the clearance
+            limit = np.minimum(np.minimum(to_leg_end, to_stop), np.minimum(self.search_left_m[rows], to_final))
+            to_ground = self.ground.contact(self.leg_start[k] + s, h, hpm, limit, self.stop_height[rows])
+        candidates = np.stack([to_final, to_leg_end, to_stop, self.search_left_m[rows], to_ground])
         event = np.argmin(candidates, axis=0)
         d = candidates[event, np.arange(rows.size)]
         dt = d / gs
@@ -179,8 +199,18 @@ class Simulation(FinalGlideRequirement):
         self._leg_end(rows[event == 1])
         at_stop = rows[event == 2]
         self.height[at_stop] = self.stop_height[at_stop]
+        self._mark(rows, "glide")
         self._reached_stop(at_stop)
         self._searched(rows[event == 3])
+        self._reached_ground(rows[event == 4])
+
+    def _reached_ground(self, rows) -> None:
+        """A glide has come down to terrain + clearance: climb there, unless the band top is no higher."""
+        if not rows.size:
+            return
+        blocked = self.height[rows] >= self._climb_top(rows) - 1e-6
+        self._landed(rows[blocked], TERRAIN_ABOVE_BAND)
+        self._reached_stop(rows[~blocked])
 
     def _reached_requirement(self, rows) -> None:
         """The height has come up to (or down onto) the requirement: the final glide starts."""
@@ -245,15 +275,29 @@ class Simulation(FinalGlideRequirement):
             return top
         return np.minimum(np.interp(time_s, self.band_top_times, self.band_top_values), top)
 
+    def _climb_top(self, rows):
+        """How high a climb of flights ``rows`` may go where and when they are: the band top
+        at that time (:meth:`band_top`), lowered under airspace ahead (flight_ground.Ceiling)."""
+        top = self.band_top(rows, self.time[rows])
+        if self.ceiling is None:
+            return top
+        here = self.leg_start[self.leg[rows]] + self.position[rows]
+        capped = self.ceiling.top(here, top, self.flattest[rows])
+        # Where the climb's drift would carry it (the top is no higher further on): safe for the glide after.
+        with np.errstate(invalid="ignore", divide="ignore"):
+            drift = np.where(self.climb_rate[rows] > 0.0, np.maximum(capped - self.height[rows], 0.0)
+                             / self.climb_rate[rows] * np.maximum(self.wind_along[rows, self.leg[rows]], 0.0), 0.0)
+        return self.ceiling.top(here + np.nan_to_num(drift), top, self.flattest[rows])
+
     def _climb(self, rows) -> None:
         k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
+        band_top = self._climb_top(rows)
         drift = self.wind_along[rows, k]
         gap = h - self.required(rows)
         closing = rate + self.final_per_metre[rows, k] * drift  # the gap grows by this per second
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
             to_final = np.where(gap >= 0.0, 0.0, np.where(closing > 0.0, -gap / closing, np.inf))
             to_leg_end = np.where(drift > 0.0, (self.leg_length[k] - s) / drift, np.inf)
-        band_top = self.band_top(rows, t)  # the top when the climb (or this part of it) starts
         to_top = np.maximum(band_top - h, 0.0) / rate
         to_lift_end = np.maximum(self.inputs["lift_ends_s"][rows] - t, 0.0)
         candidates = np.stack([to_final, to_top, to_leg_end, to_lift_end])
@@ -263,11 +307,13 @@ class Simulation(FinalGlideRequirement):
         self.position[rows] = s + drift * tau
         self.time[rows] = t + tau
         self.leg_time[rows, k] += tau
+        self._mark(rows, "climb")
         ended = rows[event != 2]
         self.last_climb_end[ended] = self.time[ended]
         self._reached_requirement(rows[event == 0])
-        top = rows[event == 1]
-        self.height[top] = np.maximum(band_top[event == 1], h[event == 1])
+        top = event == 1
+        self.height[rows[top]] = np.maximum(band_top[top], h[top])
+        top = rows[top]
         self.mode[top] = _GLIDE
         self._leg_end(rows[event == 2])
         self._glide_on(rows[event == 3], LIFT_ENDED)
@@ -334,18 +380,25 @@ class Simulation(FinalGlideRequirement):
             self.final_per_metre[rows], self.final_height_after[rows] = hpm, self._tail(hpm)
         self.end_time[rows] = t + cumulative_time[:, -1]
         self.finished[rows], self.reason[rows], self.mode[rows] = True, reason, _DONE
+        if self.trace is not None and rows[0] == 0:
+            self._mark_legs(k[0], h[0] - np.cumsum(used[0]), self.legs - 1, None, "final")
 
     def _glide_on(self, rows, reason: int) -> None:
         """No more climbs: glide on at MacCready 0 to the arrival floor; home if it reaches."""
         if not rows.size:
             return
         self.stop_time[rows] = self.time[rows]
+        self._mark(rows, "stop")  # where the climbs stopped: the land-out's field is chosen in reach of it
         remaining = self._remaining(rows)
         hpm, gs = self.best_per_metre[rows], self.best_ground_speed[rows]
         with np.errstate(invalid="ignore"):
             used = np.where(remaining != 0.0, np.where(np.isfinite(hpm), remaining * hpm, np.inf), 0.0)
         cumulative = np.cumsum(used, axis=1)
         available = self.height[rows] - self.floor[rows]
+        if self.ground is not None:  # it glides on only while it keeps the clearance
+            available = np.minimum(available, glide_allowance(
+                self.ground, self.leg_start, self.leg[rows], self.position[rows], self.height[rows], remaining, hpm,
+                cumulative, self.floor[rows]))
         home = cumulative[:, -1] <= available
         if home.any():
             self._final(rows[home], reason, hpm[home], gs[home], np.zeros(int(home.sum())))
@@ -379,8 +432,20 @@ class Simulation(FinalGlideRequirement):
         self.leg_final_mc[rows] = np.where(entered, self.final_mc[rows][:, None], self.leg_final_mc[rows])
         self.landout_at[rows] = self.leg_start[land_leg] + np.where(land_leg == k, self.position[rows], 0.0) + into
         self.landout_leg[rows] = land_leg
+        if self.trace is not None and rows[0] == 0:
+            self._mark_legs(k[0], self.height[0] - cumulative[0], land_leg[0], float(self.landout_at[0]), "glide",
+                            float(self.height[0] - (before[0] + into[0] * hpm[0, land_leg[0]])))
         self.end_time[rows] = self.time[rows] + time.sum(axis=1)
         self.reason[rows], self.mode[rows] = reason, _DONE
+
+    def _mark_legs(self, k, height_after, last, end_m, phase, end_height=None) -> None:
+        """Record the first flight's vertices at the leg ends it glides past, from leg ``k`` to
+        ``last`` (the finish), or to ``end_m`` [m along the course] on leg ``last``."""
+        for j in range(int(k), int(last) + 1):
+            if end_m is not None and j == last:
+                self.trace.append((end_m, end_height, phase))
+            else:
+                self.trace.append((float(self.leg_start[j + 1]), float(height_after[j]), phase))
 
     def _landed(self, rows, reason: int) -> None:
         """Flights that reached the arrival floor where they are (searching for a climb)."""

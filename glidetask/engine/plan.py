@@ -41,6 +41,10 @@ from glidetask.engine import flight
 from glidetask.engine import task as task_geometry
 from glidetask.engine import task_search
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
+from glidetask.engine.plan_airspace import airspace_check, corridor
+from glidetask.engine.clearance import TerrainPoint, nearest_landmark
+from glidetask.engine.plan_airspace import airspace_check, corridor
+from glidetask.engine.plan_ground import Floor, Landout, PlannedProfile, ground_facts, point_at
 from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
 from glidetask.engine.scenario import Scenario, Wind, with_what_ifs
 from glidetask.units import METRIC
@@ -188,6 +192,16 @@ class Plan:
         The elevation model's file when the task has one (even when no final glide
         could be checked), as the task names it: relative to the task file
         (:func:`shown_terrain_source`); ``terrain.source`` is the same.
+    profile : PlannedProfile or None
+        The planned height of the whole flight (:mod:`glidetask.engine.plan_ground`).
+    floors : tuple of Floor
+        Where terrain + clearance raised the glides' floor above the band bottom.
+    uncovered : tuple of (from_m, to_m)
+        Stretches of the planned path the elevation model does not cover.
+    landout : Landout or None
+        Where a plan that ends short lands, and in which field; None when finished.
+    airspace : AirspaceCheck or None
+        The planned path checked against the task's airspace (:mod:`glidetask.engine.airspace`).
     """
 
     scenario: Scenario
@@ -216,6 +230,11 @@ class Plan:
     landables: object | None = None
     requirement: object | None = None
     terrain_source: str | None = None
+    profile: "PlannedProfile | None" = None
+    floors: "tuple[Floor, ...]" = ()
+    uncovered: tuple[tuple[float, float], ...] = ()
+    landout: "Landout | None" = None
+    airspace: object | None = None
 
     @property
     def cautions(self) -> tuple[str, ...]:
@@ -297,6 +316,8 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     model = load_terrain_for(scenario)
     if requirement_for is None and model is not None:
         requirement_for = terrain_requirement(model)
+    if scenario.airspace is not None:  # the band top capped under the task's airspace (plan_airspace)
+        requirement_for = _under_airspace(requirement_for, model)
     task = scenario.task
     flights = flights_for(scenario)
     optimized = task_search.optimized_path(task)
@@ -307,7 +328,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     def fly_path(path):
         hook = None if requirement_for is None else requirement_for(scenario, path)
         hooks.append((path, hook))
-        return fly(course_for(path), flights, requirement=hook)
+        return fly(course_for(path), flights, requirement=hook, record=True)
 
     if task.kind == "area":
         path, flown, area, notes = _area_path(scenario, fly_path)
@@ -317,7 +338,19 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     if model is not None:
         check_model_covers(scenario, model, hook)
     result = _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
-    return with_safety(result, hook, model)
+    profile, floors, uncovered, landout = ground_facts(scenario, path, flown, hook)
+    result = dataclasses.replace(result, profile=profile, floors=floors, uncovered=uncovered, landout=landout)
+    result = with_safety(result, hook, model)
+    result = dataclasses.replace(result, notices=_ground_notices(result))
+    return dataclasses.replace(result, airspace=airspace_check(result))
+
+
+def _under_airspace(requirement_for, model):
+    """``requirement_for`` wrapped in the airspace corridor of each path flown."""
+    def corridor_for(scenario, path):
+        inner = None if requirement_for is None else requirement_for(scenario, path)
+        return corridor(scenario, path, inner, model)
+    return corridor_for
 
 
 def _area_path(scenario: Scenario, fly_path):
@@ -437,7 +470,7 @@ def _leg_at(plan: Plan, distance_m: float) -> LegPlan:
 
 
 _WHY_SHORT = {flight.LIFT_ENDED: "lift_ended", flight.NO_CLIMB: "no_climb", flight.UNREACHABLE: "wind_too_strong",
-              flight.BELOW_FLOOR: "below_floor"}
+              flight.BELOW_FLOOR: "below_floor", flight.TERRAIN_ABOVE_BAND: "terrain_above_band"}
 
 
 def plan_notices(plan: Plan) -> tuple[Notice, ...]:
@@ -474,6 +507,37 @@ def plan_notices(plan: Plan) -> tuple[Notice, ...]:
     if day.glide_airmass_ms > 0.0:
         out.append(Notice("rising_air_counted", dict(airmass_ms=day.glide_airmass_ms)))
     return tuple(out)
+
+
+def _ground_notices(plan: Plan) -> tuple[Notice, ...]:
+    """The facts of the whole flight over the ground: the land-out's field, each raised floor.
+
+    The ``ends_short`` notice (first when the plan ends short) gets the land-out and, when
+    terrain above the band stopped the flight, the place (nearest turnpoint, bearing, terrain).
+    """
+    out: list[Notice] = []
+    notices = list(plan.notices)
+    if plan.landout is not None and notices and notices[0].code == "ends_short":
+        facts = dict(notices[0].facts)
+        landout = plan.landout
+        facts.update(field=landout.field, field_elevation_m=landout.elevation_m,
+                     terrain=plan.terrain_source is not None)
+        if facts["why"] == "terrain_above_band" or plan.terrain_source is not None:
+            lat, lon = point_at(plan.path, landout.at_m)
+            landmarks = plan.scenario.turnpoints or tuple(p.turnpoint for p in plan.scenario.task.points)
+            near, near_m, near_deg = nearest_landmark(lat, lon, landmarks)
+            ground = math.nan
+            if plan.profile is not None and np.any(np.isfinite(plan.profile.terrain_m)):
+                ground = float(np.interp(landout.at_m, plan.profile.distance_m, plan.profile.terrain_m))
+            facts["place"] = TerrainPoint(landout.at_m, lat, lon, ground, plan.scenario.safety.terrain_clearance_m,
+                                          ground + plan.scenario.safety.terrain_clearance_m, near, near_m, near_deg)
+        notices[0] = Notice("ends_short", facts)
+    for floor in plan.floors:
+        out.append(Notice("raised_floor", dict(from_m=floor.from_m, to_m=floor.to_m, floor_m=floor.floor_m,
+                                               band_bottom_m=plan.scenario.day.band_bottom_m,
+                                               band_top_m=plan.scenario.day.band_top_m)))
+    # plan.notices is replaced whole: the amended ends_short first, then the rest, then the floors
+    return tuple(notices[:1]) + tuple(out) + tuple(notices[1:]) if notices else tuple(out)
 
 
 # ---------------------------------------------------------------- cards

@@ -28,6 +28,9 @@ CMDLINE = "command line"
 #: The command-line option of each what-if, by the task-file key it replaces.
 WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
                    "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
+#: Kept below every airspace floor and above every ceiling unless the task says otherwise [m]
+#: (common practice).
+DEFAULT_AIRSPACE_MARGIN_M = 100.0
 #: The strongest wind any input may give [km/h] (the task file's limit, one for every input).
 MAX_WIND_SPEED_KMH = 200.0
 
@@ -270,6 +273,7 @@ class Safety:
     arrival_margin_m: float = 200.0
     terrain_clearance_m: float = 150.0
     final_glide_mc_ms: float | None = None  # None: the cruise MacCready setting at that moment
+    airspace_margin_m: float = DEFAULT_AIRSPACE_MARGIN_M
 
 
 @dataclass(frozen=True)
@@ -279,7 +283,9 @@ class Scenario:
     ``turnpoints`` is the whole turnpoint collection the task file referenced (the
     landables among them feed the coverage check); ``terrain_file`` is an absolute
     path or None; ``source`` the task file's path (for messages), if any;
-    ``turnpoints_file`` the turnpoint file's absolute path (a saved task refers to it).
+    ``turnpoints_file`` the turnpoint file's absolute path (a saved task refers to it);
+    ``airspace`` the task's airspace (a :class:`glidetask.engine.airspace.Airspace`, read by
+    the task file reader from ``[airspace] file``, whose absolute path is ``airspace_file``).
     """
 
     task: "Task"
@@ -294,6 +300,8 @@ class Scenario:
     #: (:class:`glidetask.engine.sounding.DaySource`); None for a typed day. The plan
     #: flies ``day`` only; this is for showing and saving the source.
     day_source: object = None
+    airspace: object | None = field(default=None, compare=False)  # read from airspace_file (compared)
+    airspace_file: str | None = None
 
 
 # ---------------------------------------------------------------- what-ifs

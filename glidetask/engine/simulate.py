@@ -63,6 +63,7 @@ LANDOUT_REASONS = {
     flight.NO_THERMAL_FOUND: ("no_thermal_found", "no climb found low down"),
     flight.BELOW_FLOOR: ("below_floor", "reached the finish below the margin"),
     flight.UNRESOLVED: ("unresolved", "unresolved"),
+    flight.TERRAIN_ABOVE_BAND: ("terrain_above_band", "terrain above the working band"),
 }
 WARP_STEP_S = 300.0  # time grid of a stretched afternoon profile [s]
 SHORTEST_DECAY_S = 600.0  # an early end of lift never squeezes the decay below this [s]

@@ -3,12 +3,13 @@
 Page one: the task and the verdict (with the terrain and landable verdicts in a line
 each), the legs table, the heights needed at each turnpoint to get home (at the plan's
 final-glide setting and at MacCready 0, 1, 2 and 3), the day the plan assumes, and how
-the task time answers to the day (sensitivity). Page two, when the task has an elevation
-model or landable fields: the final glide over the terrain (verdict, what decided the
-height, an ASCII profile), the landable fields along the task (coverage, gaps,
-alternates per leg). Page three, for a day from a sounding: the derived day (hourly table,
-band, strength, cloud base or blue, wind profile, its cautions). Then the cautions. Each page prints on one sheet (a page break
-between them for printing from HTML).
+the task time answers to the day (sensitivity). Then, each on a page of its own when there
+is something to show: the whole flight's planned profile over the terrain and its airspace
+(band caps, conflicts); the final glide over the terrain (verdict, what decided the height)
+and the landable fields along the task (coverage, gaps, alternates per leg); for a day from
+a sounding, the derived day (hourly table, band, strength, cloud base or blue, wind
+profile). Then the cautions. Each page prints on one sheet (a page break between them for
+printing from HTML).
 """
 
 from __future__ import annotations
@@ -25,6 +26,9 @@ from glidetask.units import KNOT, format_clock, format_duration
 
 CARD_MC_KT = tuple(k * KNOT for k in (0.0, 2.0, 4.0, 6.0))  # the aviation card's settings [m/s]
 PAGE_BREAK = '<div style="page-break-before: always"></div>'
+
+
+from glidetask.formats.profile_art import profile_ascii  # noqa: E402  (rendered on every briefing)
 
 
 def _num(value: float, fmt: str = "{:.0f}") -> str:
@@ -242,6 +246,29 @@ def _safety_pages(plan, unit) -> list[str]:
     return lines
 
 
+def _profile_page(plan, unit) -> list[str]:
+    """The planned height of the whole flight as text art, in a code block (legible printed)."""
+    art = profile_ascii(plan, unit)
+    return ["## Planned profile", "", "```", *art.splitlines(), "```", ""] if art else []
+
+
+def _airspace_page(plan, unit) -> list[str]:
+    """The airspace section: band caps and conflicts; empty without airspace."""
+    check = plan.airspace
+    if check is None:
+        return []
+    lines = ["## Airspace", "", f"Airspace file: `{check.source}`; margin "
+             f"{unit.fmt_height(plan.scenario.safety.airspace_margin_m)} below floors and above ceilings.", ""]
+    rows = [["capped", c.name, "", f"{unit.fmt_distance(c.from_m)} to {unit.fmt_distance(c.to_m)}",
+             f"top {unit.fmt_height(c.top_m)}"] for c in check.caps]
+    rows += [["**conflict**", c.name, str(c.leg), f"{unit.fmt_distance(c.from_m)} to {unit.fmt_distance(c.to_m)}",
+              f"planned {unit.fmt_height(c.planned_min_m)} to {unit.fmt_height(c.planned_max_m)}"]
+             for c in check.conflicts]
+    if not rows:
+        return lines + ["The planned flight meets no volume in the file."]
+    return lines + _table(["", "volume", "leg", "stretch", "heights"], rows, right=5)
+
+
 def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     """The briefing for ``plan`` as Markdown text, in metric or aviation units.
 
@@ -257,6 +284,9 @@ def plan_to_markdown(plan, unit_name: str = "metric", sensitivity=None) -> str:
     unit = units.by_name(unit_name)
     lines = _summary(plan, unit) + [""] + _legs(plan, unit) + [""] + _heights(plan, unit) + [""] + _day(plan, unit)
     lines += _sensitivity(sensitivity, unit)
+    flight = _profile_page(plan, unit) + _airspace_page(plan, unit)
+    if flight:  # a page of its own: the whole flight's profile and its airspace
+        lines += ["", PAGE_BREAK, ""] + flight
     safety = _safety_pages(plan, unit)
     day = derived_day_markdown(plan.scenario.day_source, unit)
     for page in (safety, day):

@@ -158,7 +158,51 @@ def terrain_dict(plan) -> dict[str, Any] | None:
         out["task_covered_percent"] = _number(100.0 * path.profile.covered_share, digits=1)
         out["task_uncovered"] = [{"from_km": _number(a, 1000.0), "to_km": _number(b, 1000.0)}
                                  for a, b in path.profile.uncovered_ranges()]
+    out["floors"] = [{"from_km": _number(f.from_m, 1000.0), "to_km": _number(f.to_m, 1000.0),
+                      "floor_m": _number(f.floor_m, digits=0)} for f in plan.floors]
+    out["uncovered"] = [{"from_km": _number(a, 1000.0), "to_km": _number(b, 1000.0)} for a, b in plan.uncovered]
     return _rounded(out)
+
+
+def profile_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``profile`` (5.3 addition): the planned height of the whole flight, lists
+    of equal length (``terrain_m`` null where unknown)."""
+    p = plan.profile
+    if p is None:
+        return None
+    return {"distance_km": [_number(d, 1000.0) for d in p.distance_m.tolist()],
+            "height_m": [_number(h, digits=0) for h in p.height_m.tolist()],
+            "terrain_m": [_number(t, digits=0) for t in p.terrain_m.tolist()],
+            "phase": list(p.phase)}
+
+
+def airspace_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``airspace`` (5.3 addition): ``source``, ``ok``, ``conflicts`` (legs from 1,
+    heights MSL; a floor at the ground is null) and ``capped``; None without airspace."""
+    check = plan.airspace
+    if check is None:
+        return None
+
+    def height(value):
+        return None if value is None or not math.isfinite(value) else _number(value, digits=0)
+
+    conflicts = [{"name": c.name, "class": c.airspace_class, "leg": c.leg, "from_km": _number(c.from_m, 1000.0),
+                  "to_km": _number(c.to_m, 1000.0), "floor_m": height(c.floor_m), "ceiling_m": height(c.ceiling_m),
+                  "planned_min_m": height(c.planned_min_m), "planned_max_m": height(c.planned_max_m)}
+                 for c in check.conflicts]
+    capped = [{"from_km": _number(c.from_m, 1000.0), "to_km": _number(c.to_m, 1000.0), "top_m": height(c.top_m),
+               "name": c.name} for c in check.caps]
+    return {"source": check.source, "ok": bool(check.ok), "margin_m": plan.scenario.safety.airspace_margin_m,
+            "conflicts": conflicts, "capped": capped}
+
+
+def landout_dict(plan) -> dict[str, Any] | None:
+    """The contract's ``landout`` (5.3 addition), null when the plan finishes."""
+    landout = plan.landout
+    if landout is None:
+        return None
+    return {"at_km": _number(landout.at_m, 1000.0), "field": landout.field, "lat": _number(landout.lat, digits=5),
+            "lon": _number(landout.lon, digits=5), "elevation_m": _number(landout.elevation_m, digits=0)}
 
 
 def landables_dict(plan) -> dict[str, Any] | None:
@@ -221,6 +265,10 @@ def plan_to_dict(plan, sensitivity=None) -> dict[str, Any]:
         "day": _day(plan),
         "cautions": list(plan.cautions),
     }
+    out["profile"] = profile_dict(plan)
+    out["landout"] = landout_dict(plan)
+    if plan.airspace is not None:
+        out["airspace"] = airspace_dict(plan)
     terrain, landables = terrain_dict(plan), landables_dict(plan)
     if terrain is not None:
         out["terrain"] = terrain

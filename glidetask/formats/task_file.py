@@ -32,7 +32,8 @@ import os
 from pathlib import Path
 from typing import Any
 
-from glidetask.engine.scenario import MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.scenario import (DEFAULT_AIRSPACE_MARGIN_M, MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety,
+                                       Scenario, Wind)
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
@@ -41,7 +42,7 @@ from glidetask.formats.files import file_problem
 from glidetask.formats.toml_reader import TomlReader, as_float, is_number, read_toml, show
 from glidetask.units import KMH, format_clock, parse_clock
 
-TABLES = ("task", "glider", "day", "safety", "terrain")
+TABLES = ("task", "glider", "day", "safety", "terrain", "airspace")
 TASK_KEYS = ("name", "kind", "turnpoints", "min_time_min", "points")
 GLIDER_KEYS = ("polar", "pilot_kg", "ballast_kg", "bugs_percent")
 DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind", "climb_ms",
@@ -51,8 +52,9 @@ DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind
 #: The typed [day] keys that override a derived day's values (climb_ms overrides the
 #: derived thermal strength).
 OVERRIDING_KEYS = ("band_top_m", "band_bottom_m", "thermal_strength_ms", "climb_ms", "lift_ends", "wind")
-SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
+SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms", "airspace_margin_m")
 TERRAIN_KEYS = ("file",)
+AIRSPACE_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
 ZONE_SIZE_LIMIT_KM = 1000.0  # far beyond any observation zone (common practice: cylinders of a few tens of km)
 PILOT_LIMIT_KG = 400.0  # two heavy pilots with parachutes in a two-seater, and then some
@@ -462,9 +464,35 @@ def _safety(reader: _Reader, table: dict | None) -> Safety | None:
     margin = reader.number(table, "[safety]", "arrival_margin_m", default=200.0, low=0.0, high=5000.0)
     clearance = reader.number(table, "[safety]", "terrain_clearance_m", default=150.0, low=0.0, high=5000.0)
     mc = reader.number(table, "[safety]", "final_glide_mc_ms", low=0.0, high=10.0)
-    if margin is None or clearance is None or ("final_glide_mc_ms" in table and mc is None):
+    # Source: 100 m below an airspace floor is a common planning margin (common practice).
+    airspace_margin = reader.number(table, "[safety]", "airspace_margin_m", default=DEFAULT_AIRSPACE_MARGIN_M, low=0.0, high=1000.0)
+    if margin is None or clearance is None or airspace_margin is None or ("final_glide_mc_ms" in table and mc is None):
         return None
-    return Safety(margin, clearance, mc)
+    return Safety(margin, clearance, mc, airspace_margin)
+
+
+def _airspace(reader: _Reader, table: dict | None, base: Path):
+    """``(airspace, absolute path)`` of ``[airspace] file``, or ``(None, None)``; the airspace
+    file's own problems are reported under its name (contract 2.6)."""
+    if table is None:
+        return None, None
+    reader.unknown(table, "[airspace]", AIRSPACE_KEYS)
+    value = reader.text(table, "[airspace]", "file", required=True)
+    if value is None:
+        return None, None
+    path = _resolve(base, value)
+    missing = file_problem(path)
+    if missing is not None:
+        reader.add("[airspace] file", f"{missing}: {path}")
+        return None, None
+    from glidetask.formats.airspace_file import read_airspace  # only for tasks with airspace
+
+    try:
+        airspace = read_airspace(path)
+    except InputError as error:
+        reader.problems.extend(error.problems)
+        return None, None
+    return airspace, str(path.resolve())
 
 
 def _terrain(reader: _Reader, table: dict | None, base: Path) -> str | None:
@@ -530,9 +558,11 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     day = _day(reader, day_table, source, sounding_failed) if day_table is not None else None
     safety = _safety(reader, reader.table(document, "safety", required=False))
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
+    airspace, airspace_file = _airspace(reader, reader.table(document, "airspace", required=False), base)
     reader.problems.raise_if_any()
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
-                    terrain_file=terrain, source=file, day_source=source,
+                    terrain_file=terrain, source=file, day_source=source, airspace=airspace,
+                    airspace_file=airspace_file,
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
 
 
@@ -699,10 +729,14 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
         lines.append(f"mc_ms = {_toml_value(day.mc_ms)}")
     if scenario.terrain_file:
         lines += ["", "[terrain]", f"file = {_toml_value(_relative(scenario.terrain_file, folder))}"]
+    if scenario.airspace_file:
+        lines += ["", "[airspace]", f"file = {_toml_value(_relative(scenario.airspace_file, folder))}"]
     lines += ["", "[safety]", f"arrival_margin_m = {_toml_value(safety.arrival_margin_m)}",
               f"terrain_clearance_m = {_toml_value(safety.terrain_clearance_m)}"]
     if safety.final_glide_mc_ms is not None:
         lines.append(f"final_glide_mc_ms = {_toml_value(safety.final_glide_mc_ms)}")
+    if safety.airspace_margin_m != DEFAULT_AIRSPACE_MARGIN_M:
+        lines.append(f"airspace_margin_m = {_toml_value(safety.airspace_margin_m)}")
     return "\n".join(lines) + "\n"
 
 
@@ -736,7 +770,7 @@ _TABLE_DEFAULTS = {
     "glider": {"pilot_kg": DEFAULT_PILOT_KG, "ballast_kg": 0.0, "bugs_percent": 0.0},
     "day": {"thermal_radius_m": DEFAULT_THERMAL_RADIUS_M, "glide_airmass_ms": 0.0, "isa_deviation_c": 0.0,
             "wind": {"from_deg": 0.0, "speed_kmh": 0.0}},
-    "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0},
+    "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0, "airspace_margin_m": DEFAULT_AIRSPACE_MARGIN_M},
     "terrain": {},
 }
 _PATH_KEYS = {("task", "turnpoints"), ("glider", "polar"), ("terrain", "file")}

@@ -35,6 +35,7 @@ def _without_terrain(folder: Path) -> Path:
     text = TRIANGLE.read_text(encoding="utf-8")
     text = re.sub(r"\[terrain\]\s*\nfile = \"[^\"]*\"\n", "", text)
     text = text.replace('turnpoints = "vardmoor.geojson"', f'turnpoints = "{DEMO / "vardmoor.geojson"}"')
+    text = text.replace('file = "vardmoor-airspace.geojson"', f'file = "{DEMO / "vardmoor-airspace.geojson"}"')
     text = re.sub(r'polar = "\.\./polars/([^"]+)"', lambda m: f'polar = "{ROOT / "polars" / m.group(1)}"', text)
     assert "[terrain]" not in text
     path = folder / "triangle-no-terrain.toml"

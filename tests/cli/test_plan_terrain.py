@@ -32,6 +32,7 @@ def _task_copy(tmp_path: Path, source: str, terrain: str | None) -> Path:
     text = text.replace('turnpoints = "vardmoor.geojson"', f'turnpoints = "{DEMO / "vardmoor.geojson"}"')
     text = re.sub(r'polar = "\.\./polars/([^"]+)"', lambda m: f'polar = "{ROOT / "polars" / m.group(1)}"', text)
     text = text.replace('file = "terrain.tif"', f'file = "{terrain}"' if terrain else 'file = "terrain.tif"')
+    text = text.replace('file = "vardmoor-airspace.geojson"', f'file = "{DEMO / "vardmoor-airspace.geojson"}"')
     task = tmp_path / "task.toml"
     task.write_text(text, encoding="utf-8")
     return task

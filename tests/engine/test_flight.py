@@ -145,6 +145,8 @@ def _varied_flights(count: int, seed: int) -> Flights:
 
 def _assert_same(batch, single, i):
     for field in dataclasses.fields(batch):
+        if field.name == "trace":  # only with record=True, for the first flight
+            continue
         np.testing.assert_array_equal(getattr(batch, field.name)[i], getattr(single, field.name)[0],
                                       err_msg=field.name)
 

@@ -38,8 +38,9 @@ def test_briefing_has_every_section_and_each_page_fits_a_sheet(triangle):
                     "## Landable fields along the task", "## Cautions"):
         assert heading in text
     pages = text.split(PAGE_BREAK)
-    assert len(pages) == 2  # the plan, then safety over the ground
-    assert "## Final glide over the terrain" in pages[1] and "## Legs" in pages[0]
+    assert len(pages) == 3  # the plan, the whole flight's profile and airspace, then safety over the ground
+    assert "## Legs" in pages[0] and "## Planned profile" in pages[1] and "## Airspace" in pages[1]
+    assert "## Final glide over the terrain" in pages[2]
     # A printed page holds about 60 lines (common practice for A4/letter at 10-11 pt).
     assert all(len(page.strip().splitlines()) <= 60 for page in pages)
 
@@ -88,9 +89,10 @@ def test_a_day_from_a_sounding_gets_its_own_page_with_the_derived_day(unit_name)
     text = plan_to_markdown(p, unit_name)
     unit = units.by_name(unit_name)
     pages = text.split(PAGE_BREAK)
-    assert len(pages) == 3 and "## Day from the sounding" in pages[2]
+    # The plan, the whole flight's profile, safety over the ground, then the derived day.
+    assert len(pages) == 4 and "## Day from the sounding" in pages[3]
     assert all(len(page.strip().splitlines()) <= 60 for page in pages)
-    assert "from sounding vardmoor-sounding.csv" in pages[2]
+    assert "from sounding vardmoor-sounding.csv" in pages[3]
     day = day_to_dict(p.scenario.day_source.derived)
     tables = _table_after(text, "## Day from the sounding")  # the hourly table, then the wind's
     rows, wind = tables[:1 + len(day["hours"])], tables[1 + len(day["hours"]):]
@@ -107,7 +109,7 @@ def test_a_day_from_a_sounding_gets_its_own_page_with_the_derived_day(unit_name)
             assert row[4] == f"{unit.height(hour['band_bottom_m']):.0f}-{unit.height(hour['band_top_m']):.0f}"
         assert row[6] == f"{unit.vertical(hour['thermal_strength_ms']):.1f}"
     for caution in cautions.day_source_cautions(p.scenario.day_source, unit):
-        assert f"> - {caution}" in pages[2] and f"- {caution}" in text.split("## Cautions")[1]
+        assert f"> - {caution}" in pages[3] and f"- {caution}" in text.split("## Cautions")[1]
 
 
 def test_a_typed_day_has_no_sounding_page(triangle):

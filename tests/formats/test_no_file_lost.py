@@ -26,10 +26,11 @@ TASK = "vardmoor-triangle-300.toml"
 
 @pytest.fixture
 def region(tmp_path) -> Path:
-    """A copy of the demo region with its polars, as a pilot keeps it: task, turnpoints, terrain."""
+    """A copy of the demo region with its polars, as a pilot keeps it: task, turnpoints,
+    terrain, airspace."""
     folder = tmp_path / "region"
     folder.mkdir()
-    for name in (TASK, "vardmoor.geojson", "terrain.tif"):
+    for name in (TASK, "vardmoor.geojson", "terrain.tif", "vardmoor-airspace.geojson"):
         shutil.copy(DEMO / name, folder / name)
     shutil.copytree(ROOT / "polars", tmp_path / "polars")
     return folder
