@@ -1,13 +1,15 @@
-"""Seeded fuzzing of every reader: polar, task, GeoJSON and CSV turnpoints, GeoTIFF terrain.
+"""Seeded fuzzing of every reader: polar, task, GeoJSON and CSV turnpoints, GeoTIFF terrain,
+GeoJSON airspace and CSV soundings.
 
 Each input is a valid file mutated by a generator of our own (byte flips, cuts and
 repeats; numbers swapped for hostile ones; text swapped for line breaks, NULs and long
-strings; brackets nested deep), fed to ``glidetask check`` (and ``polar`` for polars). The
-contract's outcome must hold for every one (and a task that ``check`` passes must also
-``plan``, checked on a sample) (shared/CONTRACT.md section 7): exit 0 with
-nothing on stderr, or exit 2 with only one-line ``glidetask: error: FILE: WHERE: WHAT``
-lines, at least one naming the file; never an internal error (exit 1), a traceback or a
-hang (each input has a 10 s alarm).
+strings; brackets nested deep), fed to ``glidetask check`` and, on a sample, to the
+commands that use the reader: ``polar`` for polars, ``plan`` for a task that ``check``
+passes, ``glide --airspace`` for airspace, and ``check`` and ``day`` of a task naming the
+sounding for soundings. The contract's outcome must hold for every one
+(shared/CONTRACT.md section 7): exit 0 with nothing on stderr, or exit 2 with only
+one-line ``glidetask: error: FILE: WHERE: WHAT`` lines, at least one naming the file;
+never an internal error (exit 1), a traceback or a hang (each input has a 10 s alarm).
 
 The default run is a few thousand inputs in seconds. For a longer run multiply the count:
 ``GLIDETASK_FUZZ=20 python -m pytest tests/fuzz`` (and ``GLIDETASK_FUZZ_SEED=N`` for other
@@ -21,6 +23,7 @@ import os
 import random
 import re
 import signal
+from collections import Counter
 from pathlib import Path
 
 import pytest
@@ -44,7 +47,7 @@ HOSTILE_TEXT = ["", " ", "\n", "\\n", "\x00", "\u2028", "x" * 5000, "é\u0301", 
 def _mutate_text(text: str, rng: random.Random) -> str:
     """One to three text-level mutations of ``text``."""
     for _ in range(rng.randint(1, 3)):
-        choice = rng.randrange(9)
+        choice = rng.randrange(10)
         numbers = list(re.finditer(r"-?\d+(\.\d+)?([eE][-+]?\d+)?", text))
         strings = list(re.finditer(r'"[^"\n]*"', text))
         if choice == 0 and numbers:
@@ -77,6 +80,10 @@ def _mutate_text(text: str, rng: random.Random) -> str:
                 k = rng.randrange(len(lines))
                 lines[k:k] = [lines[k]] * rng.randint(1, 30)
             text = "".join(lines)
+        elif choice == 8 and numbers:  # a plausible value nearby: reaches what lies past the range checks
+            m = rng.choice(numbers)
+            value = float(m.group()) * rng.choice([-1.0, 0.0, 0.5, 0.9, 0.99, 1.01, 1.1, 2.0]) + rng.uniform(-5.0, 5.0)
+            text = text[:m.start()] + f"{value:.{rng.randint(0, 4)}f}" + text[m.end():]
         else:
             text = text[:rng.randrange(len(text) + 1)]
     return text
@@ -117,6 +124,45 @@ def _csv_seed() -> str:
     return "\n".join((DEMO / "vardmoor.csv").read_text(encoding="utf-8").splitlines()[:12]) + "\n"
 
 
+def _airspace_seed() -> str:
+    """The demo airspace, each outline thinned to every sixth corner (so that mutations
+    reach the properties as often as the coordinates), plus a MultiPolygon with a hole."""
+    document = json.loads((DEMO / "vardmoor-airspace.geojson").read_text(encoding="utf-8"))
+    for feature in document["features"]:
+        feature["geometry"]["coordinates"] = [ring[:-1:6] + [ring[0]] for ring in feature["geometry"]["coordinates"]]
+    square = lambda lon, lat, d: [[lon - d, lat - d], [lon + d, lat - d], [lon + d, lat + d],  # noqa: E731
+                                  [lon - d, lat + d], [lon - d, lat - d]]
+    document["features"].append({
+        "type": "Feature",
+        "properties": {"name": "Fuzz Pair", "class": "restricted", "floor": {"value": 2000, "unit": "ft", "ref": "AGL"},
+                       "ceiling": {"value": 65, "unit": "FL"}, "note": "invented"},
+        "geometry": {"type": "MultiPolygon", "coordinates": [[square(-34.0, 45.48, 0.05), square(-34.0, 45.48, 0.01)[::-1]],
+                                                             [square(-33.9, 45.48, 0.02)]]}})
+    lines = [json.dumps(feature) for feature in document["features"]]
+    return '{"type": "FeatureCollection",\n "features": [\n  ' + ",\n  ".join(lines) + "\n]}\n"
+
+
+def _sounding_seed() -> str:
+    return (DEMO / "vardmoor-sounding.csv").read_text(encoding="utf-8")
+
+
+def _sounding_task(sounding: Path) -> str:
+    """The forecast-day demo task naming ``sounding``, its other files by absolute path, and
+    no ``surface_elevation_m`` (the sounding's lowest level is the ground), so that the day
+    is derived from whatever levels the mutated sounding keeps."""
+    text = (DEMO / "vardmoor-forecast-day.toml").read_text(encoding="utf-8")
+    text = text.replace('"vardmoor-sounding.csv"', json.dumps(str(sounding)))
+    text = text.replace('"vardmoor.geojson"', json.dumps(str(DEMO / "vardmoor.geojson")))
+    text = text.replace('"../polars/', '"' + str(ROOT / "polars") + "/")
+    text = text.replace('file = "terrain.tif"', f"file = {json.dumps(str(DEMO / 'terrain.tif'))}")
+    return re.sub(r"(?m)^surface_elevation_m = .*\n", "", text)
+
+
+# The glide of tests/cli/test_airspace_cli.py: west to east through the Brennick zone.
+GLIDE = ["glide", "--polar", str(ROOT / "polars" / "club.toml"), "--height-m", "1300", "--arrival-elevation-m", "312",
+         "--from", "45.5,-34.45", "--to", "45.46,-33.85"]
+
+
 def _tiff_seed(folder: Path) -> bytes:
     import numpy as np
     import rasterio
@@ -137,7 +183,23 @@ READERS = {
     "geojson": (".geojson", 1000, True),
     "csv": (".csv", 1000, True),
     "geotiff": (".tif", 300, False),
+    "airspace": (".geojson", 1000, True),
+    "sounding": (".csv", 1000, True),
 }
+
+
+def _commands(reader: str, path: Path, number: int) -> list[list[str]]:
+    """The commands each input goes through: ``check`` always, the reader's users on a sample."""
+    commands = [["check", str(path)]]
+    if reader == "polar" and number % 4 == 0:
+        commands.append(["polar", str(path), "--json"])
+    elif reader == "airspace" and number % 2 == 0:
+        commands.append(GLIDE + ["--airspace", str(path)] + (["--json"] if number % 4 == 0 else []))
+    elif reader == "sounding" and number % 2 == 0:
+        task = path.with_suffix(".toml")
+        task.write_text(_sounding_task(path), encoding="utf-8")
+        commands += [["check", str(task)], ["day", str(task)] + (["--json"] if number % 4 == 0 else [])]
+    return commands
 
 
 @pytest.fixture
@@ -172,10 +234,10 @@ def _outcome_holds(status: int, err: str, path: str) -> str | None:
 def test_every_mutated_input_ends_as_the_contract_says(reader, tmp_path, capfd, alarm):
     suffix, count, textual = READERS[reader]
     seed_text = {"polar": lambda: GOOD_POLAR, "task": _task_seed, "geojson": _geojson_seed,
-                 "csv": _csv_seed}.get(reader)
+                 "csv": _csv_seed, "airspace": _airspace_seed, "sounding": _sounding_seed}.get(reader)
     seed = seed_text().encode("utf-8") if seed_text else _tiff_seed(tmp_path)
     rng = random.Random(f"{SEED}-{reader}")
-    failures, outcomes = [], {0: 0, 2: 0}
+    failures, outcomes = [], Counter()  # (command, exit status) -> inputs
     for number in range(int(count * SCALE)):
         if textual and rng.random() < 0.85:
             data = _mutate_text(seed.decode("utf-8"), rng).encode("utf-8", "surrogatepass")
@@ -183,8 +245,7 @@ def test_every_mutated_input_ends_as_the_contract_says(reader, tmp_path, capfd, 
             data = _mutate_bytes(seed, rng)
         path = tmp_path / f"{reader}-{number}{suffix}"  # a new name each time: no cache sees an old file
         path.write_bytes(data)
-        commands = [["check", str(path)]] + ([["polar", str(path), "--json"]] if reader == "polar" and number % 4 == 0
-                                              else [])
+        commands = _commands(reader, path, number)
         for command in commands:
             alarm(10)
             try:
@@ -197,13 +258,16 @@ def test_every_mutated_input_ends_as_the_contract_says(reader, tmp_path, capfd, 
                 alarm(0)
             capfd.readouterr()
             broken = _outcome_holds(status, err, str(path)) if status != -1 else err
-            if command[0] == "check" and status in outcomes:
-                outcomes[status] += 1
+            outcomes[f"{command[0]} {Path(command[1]).suffix}" if command[0] == "check" else command[0], status] += 1
             if reader == "task" and command[0] == "check" and status == 0 and len(commands) == 1 and number % 5 == 0:
                 commands.append(["plan", str(path), "--json"])  # what check passes must also plan
             if broken:
                 failures.append(f"{reader} input {number} (seed {SEED}), {command[0]}: {broken}")
         path.unlink()
+        path.with_suffix(".toml").unlink(missing_ok=True)
+    print(f"{reader}: {int(count * SCALE)} inputs, outcomes {dict(sorted(outcomes.items()))}")
     assert not failures, f"{len(failures)} broken outcomes, the first: " + "\n".join(failures[:5])
-    # The generator must reach both outcomes, or it tests only one side of each reader.
-    assert min(outcomes.values()) >= 0.02 * count * SCALE, outcomes
+    # The generator must reach both outcomes of check, or it tests only one side of each reader;
+    # and each command fed on a sample must succeed sometimes, or it never gets past the reader.
+    assert min(outcomes[f"check {suffix}", 0], outcomes[f"check {suffix}", 2]) >= 0.02 * count * SCALE, outcomes
+    assert all(outcomes[command, 0] > 0 for command, _ in list(outcomes)), outcomes
