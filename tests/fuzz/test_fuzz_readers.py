@@ -11,6 +11,10 @@ sounding for soundings. The contract's outcome must hold for every one
 one-line ``glidetask: error: FILE: WHERE: WHAT`` lines, at least one naming the file;
 never an internal error (exit 1), a traceback or a hang (each input has a 10 s alarm).
 
+A second generator draws valid but awkward airspace (tiny, huge, star-shaped, clockwise,
+holed, split, at the poles and the antimeridian, limits in every unit) and flies random
+glides through it, with and without terrain, to reach the airspace engine past the reader.
+
 The default run is a few thousand inputs in seconds. For a longer run multiply the count:
 ``GLIDETASK_FUZZ=20 python -m pytest tests/fuzz`` (and ``GLIDETASK_FUZZ_SEED=N`` for other
 inputs). A failure prints the reader, the input number and the seed, which reproduce it.
@@ -19,6 +23,7 @@ inputs). A failure prints the reader, the input number and the seed, which repro
 from __future__ import annotations
 
 import json
+import math
 import os
 import random
 import re
@@ -271,3 +276,86 @@ def test_every_mutated_input_ends_as_the_contract_says(reader, tmp_path, capfd, 
     # and each command fed on a sample must succeed sometimes, or it never gets past the reader.
     assert min(outcomes[f"check {suffix}", 0], outcomes[f"check {suffix}", 2]) >= 0.02 * count * SCALE, outcomes
     assert all(outcomes[command, 0] > 0 for command, _ in list(outcomes)), outcomes
+
+
+def _ring(rng: random.Random, lat: float, lon: float, radius_deg: float, corners: int, star: bool, clockwise: bool):
+    """A closed ring round (lat, lon): a polygon, or a star when ``star`` (still simple)."""
+    positions = []
+    for i in range(corners):
+        angle = 2.0 * math.pi * i / corners * (-1.0 if clockwise else 1.0)
+        r = radius_deg * (rng.uniform(0.2, 1.0) if star else 1.0)
+        x = lon + r * math.cos(angle) / max(0.01, math.cos(math.radians(lat)))
+        y = lat + r * math.sin(angle)
+        digits = rng.choice([4, 6, 9])
+        positions.append([round(min(max(x, -180.0), 180.0), digits), round(min(max(y, -90.0), 90.0), digits)])
+    return positions + [positions[0]]
+
+
+def _limits(rng: random.Random) -> tuple[dict, dict]:
+    """A floor and a ceiling in any units, the floor below (if the generator can tell)."""
+    def one():
+        unit = rng.choice(["m", "ft", "FL"])
+        low, high = {"m": (-500.0, 30000.0), "ft": (-1600.0, 100000.0), "FL": (0.0, 1000.0)}[unit]
+        value = rng.choice([0, round(rng.uniform(low, high)), rng.uniform(low, high)])
+        limit = {"value": value, "unit": unit}
+        if unit != "FL":
+            limit["ref"] = rng.choice(["MSL", "AGL"]) if value >= 0 else "MSL"
+        return limit
+
+    metres = {"m": 1.0, "ft": 0.3048, "FL": 30.48}
+    a, b = one(), one()
+    return (a, b) if a["value"] * metres[a["unit"]] <= b["value"] * metres[b["unit"]] else (b, a)
+
+
+def _random_airspace(rng: random.Random) -> tuple[dict, float, float]:
+    lat = rng.choice([rng.uniform(-89.0, 89.0), 45.5, rng.choice([89.99, -89.99, 0.0])])
+    lon = rng.choice([rng.uniform(-180.0, 180.0), -34.0, rng.choice([179.999, -179.999, 0.0])])
+    features = []
+    for k in range(rng.randint(1, 6)):
+        r = rng.choice([1e-3, 0.01, 0.05, 0.5, 5.0, 40.0])
+        clat = min(max(lat + rng.uniform(-2 * r, 2 * r), -89.0), 89.0)
+        clon = lon + rng.uniform(-2 * r, 2 * r)
+        outline = _ring(rng, clat, clon, r, rng.choice([3, 4, 7, 72, 500]), rng.random() < 0.3, rng.random() < 0.5)
+        rings = [outline] + ([_ring(rng, clat, clon, 0.1 * r, 8, False, True)] if rng.random() < 0.3 else [])
+        geometry = ({"type": "Polygon", "coordinates": rings} if rng.random() < 0.7 else
+                    {"type": "MultiPolygon", "coordinates": [rings, [_ring(rng, min(clat + 3 * r, 89.0), clon, r, 5,
+                                                                           False, False)]]})
+        floor, ceiling = _limits(rng)
+        features.append({"type": "Feature", "geometry": geometry,
+                         "properties": {"name": f"Fuzz {k}", "class": rng.choice(["A", "D", "danger", None]),
+                                        "floor": floor, "ceiling": ceiling}})
+    return {"type": "FeatureCollection", "features": features}, lat, lon
+
+
+def test_random_airspace_and_glides_end_as_the_contract_says(tmp_path, capfd, alarm):
+    rng = random.Random(f"{SEED}-random-airspace")
+    failures, outcomes = [], Counter()
+    count = int(150 * SCALE)
+    for number in range(count):
+        document, lat, lon = _random_airspace(rng)
+        path = tmp_path / f"airspace-{number}.geojson"
+        path.write_text(json.dumps(document), encoding="utf-8")
+        near = lambda: f"{min(max(lat + rng.uniform(-1, 1), -90.0), 90.0):.6f},{lon + rng.uniform(-1, 1):.6f}"  # noqa: E731
+        start = near()
+        glide = ["glide", "--polar", str(ROOT / "polars" / "club.toml"), "--height-m", str(rng.choice([300, 1300, 5000])),
+                 "--from", start, "--to", rng.choice([start, near()]), "--airspace", str(path)]
+        if rng.random() < 0.3:
+            glide += ["--terrain", str(DEMO / "terrain.tif"), "--arrival-elevation-m", "300"]
+        for command in (["check", str(path)], glide, glide + ["--json"], glide + ["--units", "aviation"]):
+            alarm(10)
+            try:
+                status = main(command)
+            except TimeoutError:
+                status, err = -1, "hung for 10 s"
+            else:
+                err = capfd.readouterr().err
+            finally:
+                alarm(0)
+            capfd.readouterr()
+            outcomes[command[0], status] += 1
+            broken = _outcome_holds(status, err, str(path)) if status != -1 else err
+            if broken:
+                failures.append(f"random airspace {number} (seed {SEED}), {' '.join(command[:1] + command[3:])}: {broken}")
+    print(f"random airspace: {count} files, outcomes {dict(sorted(outcomes.items()))}")
+    assert not failures, f"{len(failures)} broken outcomes, the first: " + "\n".join(failures[:5])
+    assert min(outcomes["check", 0], outcomes["glide", 0]) >= 0.1 * count, outcomes
