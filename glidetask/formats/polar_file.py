@@ -24,6 +24,7 @@ from glidetask.engine.scenario import Day, GliderSetup, Scenario, scenario_probl
 from glidetask.errors import InputError, Problem
 from glidetask.formats.toml_reader import TomlReader, as_float, is_number, read_toml, show
 from glidetask.units import KMH
+
 DEFAULT_PILOT_ALLOWANCE_KG = 90.0  # empty mass defaults to reference mass minus this
 # A stall speed this many times below min_speed_kmh puts the circling speeds far below the
 # polar's points (or is in the wrong unit): a polar is measured down to about 1.1-1.3 times
