@@ -13,6 +13,7 @@ import importlib
 import math
 import re
 import sys
+import warnings
 from functools import lru_cache
 
 from glidetask import __version__
@@ -103,23 +104,17 @@ def _what_if_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--start", default=None, metavar="HH:MM", help="start time (local clock)")
 
 
-@lru_cache(maxsize=1)
-def build_parser() -> argparse.ArgumentParser:
-    parser = argparse.ArgumentParser(
-        prog="glidetask",
-        description="Pre-flight planner for cross-country glider pilots and task setters. "
-        "A planning aid, not a navigation instrument: the pilot in command decides.",
-        epilog="Run 'glidetask' with no command (or with a task file) to open the terminal UI.",
-    )
-    parser.add_argument("--version", action="version", version=f"glidetask {__version__}")
-    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+def _task_argument(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("task", metavar="TASK.toml")
 
-    p = sub.add_parser("plan", help="fly a task on paper: legs, times, heights, final glide")
-    p.add_argument("task", metavar="TASK.toml")
-    _what_if_options(p)
-    _common(p)
 
-    p = sub.add_parser("glide", help="final-glide check from one point")
+def _plan_options(parser: argparse.ArgumentParser) -> None:
+    _task_argument(parser)
+    _what_if_options(parser)
+
+
+def _glide_options(parser: argparse.ArgumentParser) -> None:
+    p = parser
     p.add_argument("--polar", required=True, metavar="FILE", help="polar file (TOML)")
     p.add_argument("--distance-km", type=float, default=None, metavar="D", help="distance to go [km]")
     p.add_argument("--height-m", type=float, required=True, metavar="H", help="present height [m MSL]")
@@ -141,42 +136,62 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--airspace-margin-m", type=float, default=100.0, metavar="M",
                    help="kept below airspace floors and above ceilings [m] (default 100)")
     _glider_options(p)
-    _common(p)
 
-    p = sub.add_parser("polar", help="polar figures and a speed-to-fly card")
-    p.add_argument("file", metavar="FILE")
-    p.add_argument("--altitude-m", type=float, default=0.0, metavar="H", help="altitude [m MSL] (default 0)")
-    p.add_argument("--isa-deviation-c", type=float, default=0.0, metavar="T", help="ISA temperature deviation [C]")
-    _glider_options(p)
-    _common(p)
 
-    p = sub.add_parser("sweep", help="ballast against thermal strength for a task")
-    p.add_argument("task", metavar="TASK.toml")
-    _common(p)
+def _polar_options(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("file", metavar="FILE")
+    parser.add_argument("--altitude-m", type=float, default=0.0, metavar="H", help="altitude [m MSL] (default 0)")
+    parser.add_argument("--isa-deviation-c", type=float, default=0.0, metavar="T", help="ISA temperature deviation [C]")
+    _glider_options(parser)
 
-    p = sub.add_parser("check", help="validate polar, turnpoint, airspace and task files")
-    p.add_argument("files", nargs="+", metavar="FILE")
-    _common(p)
 
-    p = sub.add_parser("export", help="write the plan as GPX route, Markdown briefing or JSON")
-    p.add_argument("task", metavar="TASK.toml")
-    p.add_argument("--to", dest="to", required=True, metavar="FILE", help="output file: .gpx, .md or .json")
-    p.add_argument("--force", action="store_true",
-                   help="replace FILE if it exists (never a file the task reads)")
-    _what_if_options(p)
-    _common(p)
+def _check_options(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument("files", nargs="+", metavar="FILE")
 
-    p = sub.add_parser("odds", help="odds of getting home: the task over a spread of days (Monte Carlo)")
-    p.add_argument("task", metavar="TASK.toml")
-    p.add_argument("--runs", type=int, default=2000, metavar="N", help="simulated flights per ballast (default 2000)")
-    p.add_argument("--seed", type=int, default=1, metavar="S", help="random seed (default 1)")
-    p.add_argument("--ballast-kg", type=float, action="append", default=None, metavar="KG",
-                   help="a ballast to compare (repeat for several; default: empty, half, full)")
-    _common(p)
 
-    p = sub.add_parser("day", help="the day derived from the task's forecast sounding")
-    p.add_argument("task", metavar="TASK.toml")
-    _common(p)
+def _export_options(parser: argparse.ArgumentParser) -> None:
+    _task_argument(parser)
+    parser.add_argument("--to", dest="to", required=True, metavar="FILE", help="output file: .gpx, .md or .json")
+    parser.add_argument("--force", action="store_true", help="replace FILE if it exists (never a file the task reads)")
+    _what_if_options(parser)
+
+
+def _odds_options(parser: argparse.ArgumentParser) -> None:
+    _task_argument(parser)
+    parser.add_argument("--runs", type=int, default=2000, metavar="N", help="simulated flights per ballast (default 2000)")
+    parser.add_argument("--seed", type=int, default=1, metavar="S", help="random seed (default 1)")
+    parser.add_argument("--ballast-kg", type=float, action="append", default=None, metavar="KG",
+                        help="a ballast to compare (repeat for several; default: empty, half, full)")
+
+
+#: Each command's one-line help and the function adding its own arguments, in COMMANDS order.
+_COMMAND_OPTIONS = {
+    "plan": ("fly a task on paper: legs, times, heights, final glide", _plan_options),
+    "glide": ("final-glide check from one point", _glide_options),
+    "polar": ("polar figures and a speed-to-fly card", _polar_options),
+    "sweep": ("ballast against thermal strength for a task", _task_argument),
+    "check": ("validate polar, turnpoint, airspace and task files", _check_options),
+    "export": ("write the plan as GPX route, Markdown briefing or JSON", _export_options),
+    "odds": ("odds of getting home: the task over a spread of days (Monte Carlo)", _odds_options),
+    "day": ("the day derived from the task's forecast sounding", _task_argument),
+}
+
+
+@lru_cache(maxsize=1)
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="glidetask",
+        description="Pre-flight planner for cross-country glider pilots and task setters. "
+        "A planning aid, not a navigation instrument: the pilot in command decides.",
+        epilog="Run 'glidetask' with no command (or with a task file) to open the terminal UI.",
+    )
+    parser.add_argument("--version", action="version", version=f"glidetask {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for command in COMMANDS:
+        help_text, add_options = _COMMAND_OPTIONS[command]
+        p = sub.add_parser(command, help=help_text)
+        add_options(p)
+        _common(p)
     return parser
 
 
@@ -223,7 +238,7 @@ def join_negative_values(parser: argparse.ArgumentParser, argv: list[str]) -> li
 
 def not_a_command(word: str) -> list[str]:
     """Error lines for an argument that is neither a command nor an existing task file."""
-    import difflib
+    import difflib  # lazy: only a mistyped command needs it, and cli is on every start-up path
 
     if word in ("help", "-help"):
         hint = " (did you mean --help?)"
@@ -244,7 +259,7 @@ def not_a_command(word: str) -> list[str]:
 
 
 def _run_ui(args: argparse.Namespace) -> int:
-    from glidetask.tui.app import run_app
+    from glidetask.tui.app import run_app  # lazy: Textual is slow to import and no command needs it
 
     return run_app(args.task, units=args.units)
 
@@ -252,8 +267,6 @@ def _run_ui(args: argparse.Namespace) -> int:
 def _run_command(args: argparse.Namespace) -> int:
     """Run a command. Library warnings (numpy's RuntimeWarning and the like) mean nothing to a
     pilot and must never come before an error line: they are shown only with --debug."""
-    import warnings
-
     module = importlib.import_module(f"glidetask.commands.{args.command}")
     if getattr(args, "debug", False):
         return int(module.run(args))
@@ -292,7 +305,7 @@ def main(argv: list[str] | None = None) -> int:
         return 0
     except Exception as error:  # an internal fault: short message, traceback on request
         if getattr(args, "debug", False):
-            import traceback
+            import traceback  # lazy: only --debug shows a traceback
 
             traceback.print_exc()
         print(f"glidetask: internal error: {type(error).__name__}: {one_line(str(error))[:300]} "

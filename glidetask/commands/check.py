@@ -11,17 +11,22 @@ is skipped (not an error), so
 each good file and every problem of every bad one; the exit status is 2 if any file has a
 problem, else 0. ``--json`` prints a list with one result per file.
 
-Imports stay lazy: each kind of file pulls in only the readers it needs.
+The readers' imports stay lazy: each kind of file pulls in only the readers it needs.
 """
 
 from __future__ import annotations
 
 import argparse
 import os
+import re
+from collections import Counter
+from operator import attrgetter
 from pathlib import Path
 
 from glidetask import cautions, units
+from glidetask.commands._output import print_json
 from glidetask.errors import InputError, Problem, one_line
+from glidetask.formats.files import file_problem, read_text
 from glidetask.formats.zone_text import zone_text
 from glidetask.units import KMH, METRIC
 
@@ -39,10 +44,7 @@ def _problem_dicts(problems: list[Problem]) -> list[dict]:
 
 def check_turnpoints(path: str) -> dict:
     """Summary of a turnpoint file (raises InputError with its problems)."""
-    from glidetask.formats.turnpoints import read_turnpoints
-
-    from collections import Counter
-    from operator import attrgetter
+    from glidetask.formats.turnpoints import read_turnpoints  # lazy: each kind of file loads only its reader
 
     points = read_turnpoints(path)  # C-speed passes below: files may hold 200,000 points
     counts = Counter(map(attrgetter("kind", "landable"), points))
@@ -63,7 +65,7 @@ def check_turnpoints(path: str) -> dict:
 
 def check_airspace(path: str) -> dict:
     """Summary of an airspace file (raises InputError with its problems)."""
-    from glidetask.formats.airspace_file import read_airspace
+    from glidetask.formats.airspace_file import read_airspace  # lazy: numpy and the airspace engine
 
     airspace = read_airspace(path)
     by_class: dict[str, int] = {}
@@ -84,10 +86,6 @@ def check_airspace(path: str) -> dict:
 
 def _geojson_kind(path: str) -> str:
     """``"airspace"`` when a GeoJSON file's features are polygons, else ``"turnpoints"``."""
-    import re
-
-    from glidetask.formats.files import file_problem, read_text
-
     if file_problem(path) is not None:
         return "turnpoints"  # not a regular file: check_file says what it is
     try:
@@ -101,7 +99,7 @@ def _geojson_kind(path: str) -> str:
 
 def check_polar(path: str) -> dict:
     """Summary of a polar file at its reference mass in still sea-level air."""
-    from glidetask.engine.polar import scaled_polar
+    from glidetask.engine.polar import scaled_polar  # lazy: numpy and the fit, for polar files only
     from glidetask.formats.polar_file import load_polar_spec
 
     spec = load_polar_spec(path)
@@ -122,6 +120,7 @@ def check_polar(path: str) -> dict:
 
 def check_task(path: str) -> dict:
     """Summary of a task file: the task, its distances, glider and day."""
+    # lazy: the task engine (pyproj) and the task reader, for task files only
     from glidetask.engine.task import nominal_distance_m
     from glidetask.engine.task_search import area_distance_range, optimized_path
     from glidetask.formats.task_file import load_scenario
@@ -164,6 +163,7 @@ def check_task(path: str) -> dict:
 
 def _task_sounding(path: str) -> dict | None:
     """The task's sounding and surface forecast, read and checked (not derived: no MetPy)."""
+    # lazy: numpy and the sounding reader, and the TOML reader, for task files only
     from glidetask.formats.sounding_file import read_day_sounding, read_sounding
     from glidetask.formats.toml_reader import read_toml
 
@@ -185,10 +185,10 @@ def _task_sounding(path: str) -> dict | None:
 def check_terrain(path: str) -> dict:
     """Summary of an elevation model, if the terrain engine is available."""
     try:
-        from glidetask.engine.terrain import TerrainError, load_terrain
+        from glidetask.engine.terrain import TerrainError, load_terrain  # lazy: numpy, pyproj, rasterio
     except ImportError:  # the terrain engine (rasterio) is missing: nothing to check with
         return {"kind": "terrain", "checked": False}
-    import numpy as np
+    import numpy as np  # lazy: loaded with the terrain engine above; other kinds of file may not need it
 
     try:
         terrain = load_terrain(path)
@@ -209,7 +209,7 @@ def check_terrain(path: str) -> dict:
 
 def check_sounding(path: str) -> dict:
     """Summary of a sounding file (contract 2.7)."""
-    from glidetask.formats.sounding_file import read_sounding
+    from glidetask.formats.sounding_file import read_sounding  # lazy: numpy, for soundings only
 
     sounding = read_sounding(path)
     return {"kind": "sounding", "levels": len(sounding.height_m),
@@ -218,7 +218,7 @@ def check_sounding(path: str) -> dict:
 
 def _toml_kind(path: str) -> str:
     """``"task"``, ``"polar"`` or InputError, from the tables a TOML file has."""
-    from glidetask.formats.toml_reader import read_toml
+    from glidetask.formats.toml_reader import read_toml  # lazy: the TOML libraries, for .toml files only
 
     document, problems = read_toml(Path(path), path)
     if document is None:
@@ -238,7 +238,7 @@ def file_kind(path: str) -> str:
     if suffix == ".toml":
         return "toml"
     if suffix == ".csv":
-        from glidetask.formats.sounding_file import looks_like_sounding
+        from glidetask.formats.sounding_file import looks_like_sounding  # lazy: numpy, for .csv files only
 
         if looks_like_sounding(path):
             return "sounding"
@@ -253,8 +253,6 @@ def file_kind(path: str) -> str:
 
 def check_file(path: str) -> dict:
     """One file's result: ``{"file", "kind", "ok", "problems", ...summary}``."""
-    from glidetask.formats.files import file_problem
-
     kind = file_kind(path)
     result: dict = {"file": path, "kind": kind}
     if kind == "skipped":
@@ -336,8 +334,6 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.commands._output import print_json
-
     results = [check_file(path) for path in args.files]
     problems = [Problem(p["file"], p["where"], p["what"]) for r in results for p in r["problems"]]
     if args.json:

@@ -15,9 +15,11 @@ from __future__ import annotations
 
 import argparse
 import math
+from pathlib import Path
 
 from glidetask import cautions, units
 from glidetask.commands._output import caution_block, print_json
+from glidetask.formats.sounding_file import load_derived_day
 
 
 def _number(value: float):
@@ -92,14 +94,10 @@ def day_text(derived, unit: units.UnitSystem, title: str) -> str:
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.formats.sounding_file import load_derived_day
-
     _, derived = load_derived_day(args.task)
     unit = units.by_name(args.units)
     if args.json:
         print_json(day_to_dict(derived, unit))
     else:
-        from pathlib import Path
-
         print(day_text(derived, unit, Path(args.task).name))
     return 0

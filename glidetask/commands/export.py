@@ -19,8 +19,11 @@ from pathlib import Path
 from glidetask import cautions
 from glidetask.cli import CMDLINE
 from glidetask.commands._output import print_json
+from glidetask.commands.plan import plan_from_args
 from glidetask.errors import InputError, Problem
+from glidetask.formats.atomic import write_atomic
 from glidetask.formats.export import protected_target_problem, render, same_file_as
+from glidetask.formats.task_file import files_named_by
 
 FORMATS = {".gpx": "GPX 1.1 route", ".md": "pre-flight briefing (Markdown)", ".json": "plan JSON"}
 
@@ -32,8 +35,6 @@ def target_problems(target: str, force: bool = False, task: str | None = None) -
     path = Path(target)
     problems = []
     if task is not None and os.path.lexists(path):
-        from glidetask.formats.task_file import files_named_by
-
         reads = same_file_as(path, files_named_by(task))
         if reads is not None:
             return [Problem(CMDLINE, "--to", f"{target!r} is {str(reads)!r}, a file the task reads; "
@@ -51,16 +52,12 @@ def target_problems(target: str, force: bool = False, task: str | None = None) -
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.commands.plan import plan_from_args
-
     force = getattr(args, "force", False)
     plan = plan_from_args(args, target_problems(args.to, force, args.task))
     protected = protected_target_problem(args.to, plan.scenario)
     if protected:
         raise InputError.one(CMDLINE, "--to", protected)
     suffix = Path(args.to).suffix.lower()
-    from glidetask.formats.atomic import write_atomic
-
     try:
         write_atomic(args.to, render(plan, suffix, args.units), replace_read_only=force)
     except OSError as error:

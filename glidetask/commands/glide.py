@@ -20,8 +20,8 @@ from glidetask.commands._output import caution_block, print_json
 from glidetask.commands.polar import glider_problems
 from glidetask.engine.atmosphere import density_ratio, ias_from_tas_at
 from glidetask.engine.finalglide import MC_TO_ARRIVE_CAP_MS, FinalGlide, density_height_m, final_glide
-from glidetask.engine.polar import Polar, scaled_polar
-from glidetask.engine.scenario import Wind
+from glidetask.engine.polar import Polar
+from glidetask.engine.scenario import GliderSetup, Wind
 from glidetask.errors import InputError, Problem
 from glidetask.units import KMH
 
@@ -82,7 +82,7 @@ def _route_problems(args: argparse.Namespace) -> list[Problem]:
 def _resolve_route(args: argparse.Namespace) -> tuple[float, float]:
     """Distance [m] and course [deg]; from the WGS84 geodesic if positions were given."""
     if args.from_latlon is not None and args.to_latlon is not None:
-        from glidetask.engine.geodesy import inverse
+        from glidetask.engine.geodesy import inverse  # lazy: pyproj, only with --from and --to
 
         distance_m, course_deg, _ = inverse(*args.from_latlon, *args.to_latlon)
         return distance_m, course_deg
@@ -177,7 +177,7 @@ def run(args: argparse.Namespace) -> int:
     goal_cautions: list[str] = []
     args.goal_model_m = math.nan
     if args.terrain is not None:
-        from glidetask.commands import glide_terrain
+        from glidetask.commands import glide_terrain  # lazy: the terrain modules, only with --terrain
 
         args.arrival_elevation_source = "option" if args.arrival_elevation_m is not None else "terrain"
         args.arrival_elevation_m, args.goal_model_m, goal_cautions = glide_terrain.goal_elevation(args)
@@ -188,7 +188,8 @@ def run(args: argparse.Namespace) -> int:
     from_deg, speed_kmh = parse_wind(args.wind) if args.wind is not None else (0.0, 0.0)
     wind = Wind(from_deg=from_deg, speed_ms=speed_kmh * KMH)
     sigma = density_ratio(_mid_height_m(args), args.isa_deviation_c)
-    polar = scaled_polar(spec, spec.empty_mass_kg + args.pilot_kg + args.ballast_kg, args.bugs_percent, sigma)
+    polar = GliderSetup(spec, args.pilot_kg, args.ballast_kg, args.bugs_percent).polar_at(_mid_height_m(args),
+                                                                                          args.isa_deviation_c)
     glide = final_glide(polar, distance_m, args.height_m, course_deg=course_deg, wind=wind, mc_ms=args.mc_ms,
                         arrival_elevation_m=args.arrival_elevation_m, margin_m=args.margin_m,
                         airmass_ms=args.airmass_ms)
@@ -196,14 +197,14 @@ def run(args: argparse.Namespace) -> int:
     extra_json: dict = {}
     extra_text = ""
     if args.terrain is not None:
-        from glidetask.commands import glide_terrain
+        from glidetask.commands import glide_terrain  # lazy: as above (imported there already)
 
         extra_json, extra_text = glide_terrain.check(args, polar, glide)
         extra_json = dict(extra_json)
         extra_cautions += [c for c in extra_json.pop("cautions", []) if c not in extra_cautions]
         extra_cautions += [c for c in cautions.TERRAIN if c not in extra_cautions]
     if getattr(args, "airspace", None) is not None:
-        from glidetask.commands import glide_airspace
+        from glidetask.commands import glide_airspace  # lazy: the airspace modules, only with --airspace
 
         airspace_json, airspace_text = glide_airspace.check(args, glide)
         extra_json.update({k: v for k, v in airspace_json.items() if k != "cautions"})

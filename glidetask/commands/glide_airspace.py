@@ -19,6 +19,9 @@ import numpy as np
 
 from glidetask import cautions as caution_text
 from glidetask import units as unit_systems
+from glidetask.engine import geodesy
+from glidetask.engine.airspace import check_path, limit_msl_m, nearest_point_ground
+from glidetask.formats.airspace_file import read_airspace
 
 SPACING_M = 250.0  # sample spacing along the glide [m]
 WHAT = "The glide"
@@ -26,10 +29,8 @@ WHAT = "The glide"
 
 def _ground(args: argparse.Namespace):
     """The ground function for AGL limits, and whether it is only the goal's elevation."""
-    from glidetask.engine.airspace import nearest_point_ground
-
     if args.terrain is not None:
-        from glidetask.commands.glide_terrain import _load
+        from glidetask.commands.glide_terrain import _load  # lazy: the terrain modules, only with --terrain
 
         model = _load(args.terrain)
         return (lambda lats, lons: np.asarray(model.sample(lats, lons), dtype=float)), False
@@ -50,10 +51,6 @@ def check(args: argparse.Namespace, result) -> tuple[dict, str]:
     extra_text : str
         The readable section.
     """
-    from glidetask.engine import geodesy
-    from glidetask.engine.airspace import check_path, limit_msl_m
-    from glidetask.formats.airspace_file import read_airspace
-
     airspace = read_airspace(args.airspace)
     shown = unit_systems.by_name(args.units)
     caution_units = unit_systems.METRIC if args.json else shown

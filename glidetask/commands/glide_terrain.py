@@ -17,6 +17,9 @@ import math
 
 from glidetask import units as unit_systems
 from glidetask.cli import CMDLINE
+from glidetask.engine import geodesy
+from glidetask.engine.clearance import final_glide_over_terrain
+from glidetask.engine.terrain import TerrainError, load_terrain
 from glidetask.errors import InputError
 from glidetask.formats import safety_report
 
@@ -25,8 +28,6 @@ GOAL_DISAGREEMENT_M = 50.0  # caution when the given goal elevation and the mode
 
 
 def _load(path: str):
-    from glidetask.engine.terrain import TerrainError, load_terrain
-
     try:
         return load_terrain(path)
     except TerrainError as error:
@@ -102,9 +103,6 @@ def check(args: argparse.Namespace, polar, result) -> tuple[dict, str]:
     InputError
         The terrain file is missing, not a raster, or has no CRS.
     """
-    from glidetask.engine import geodesy
-    from glidetask.engine.clearance import final_glide_over_terrain
-
     model = _load(args.terrain)
     shown = unit_systems.by_name(args.units)
     caution_units = unit_systems.METRIC if args.json else shown

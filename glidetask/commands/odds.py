@@ -14,7 +14,11 @@ import math
 
 from glidetask.cli import CMDLINE
 from glidetask.commands._output import print_json
+from glidetask.engine.scenario import with_what_ifs
+from glidetask.engine.simulate import simulate_days
 from glidetask.errors import InputError, Problem
+from glidetask.formats import strategy_report
+from glidetask.formats.task_file import load_scenario
 
 MAX_RUNS = 100_000  # per ballast choice: memory for the drawn days stays near 50 MB
 
@@ -36,8 +40,6 @@ def option_problems(args: argparse.Namespace) -> list[Problem]:
 
 def ballast_problems(scenario, ballasts) -> list[Problem]:
     """Each ballast against the glider (the planner's check: polar maximum, maximum mass)."""
-    from glidetask.engine.scenario import with_what_ifs
-
     problems: list[Problem] = []
     for value in ballasts:
         try:
@@ -48,10 +50,6 @@ def ballast_problems(scenario, ballasts) -> list[Problem]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.engine.simulate import simulate_days
-    from glidetask.formats import strategy_report
-    from glidetask.formats.task_file import load_scenario
-
     problems = option_problems(args)
     scenario = None
     try:

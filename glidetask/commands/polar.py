@@ -15,7 +15,8 @@ from glidetask import cautions, units
 from glidetask.cli import CMDLINE, check_number
 from glidetask.commands._output import caution_block, print_json
 from glidetask.engine.atmosphere import density_ratio, ias_from_tas_at
-from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
+from glidetask.engine.polar import Polar, PolarSpec
+from glidetask.engine.scenario import GliderSetup
 from glidetask.engine.speedtofly import cruise_in_wind, speed_to_fly_still_air
 from glidetask.errors import InputError, Problem
 from glidetask.formats.polar_file import loading_problems, read_polar_spec
@@ -36,8 +37,10 @@ def glider_problems(args: argparse.Namespace, polar_file: str) -> tuple[PolarSpe
     spec, file_problems = read_polar_spec(polar_file)
     problems += file_problems
     if spec is not None and not loading:
-        problems += loading_problems(spec, args.pilot_kg, args.ballast_kg, file=CMDLINE,
-                                     pilot_where="--pilot-kg", ballast_where="--ballast-kg")
+        # The limits are the file's: say so, as the options may be defaults the user never typed.
+        problems += [Problem(p.file, p.where, f"{p.what} (limits from {polar_file})")
+                     for p in loading_problems(spec, args.pilot_kg, args.ballast_kg, file=CMDLINE,
+                                               pilot_where="--pilot-kg", ballast_where="--ballast-kg")]
     return spec, problems
 
 
@@ -123,8 +126,8 @@ def run(args: argparse.Namespace) -> int:
     if problems:
         raise InputError(problems)
     sigma = density_ratio(args.altitude_m, args.isa_deviation_c)
-    mass = spec.empty_mass_kg + args.pilot_kg + args.ballast_kg
-    polar = scaled_polar(spec, mass, args.bugs_percent, sigma)
+    polar = GliderSetup(spec, args.pilot_kg, args.ballast_kg, args.bugs_percent).polar_at(args.altitude_m,
+                                                                                          args.isa_deviation_c)
     if args.json:
         print_json(polar_payload(args, spec, polar, sigma))
     else:

@@ -12,13 +12,12 @@ from __future__ import annotations
 import argparse
 
 from glidetask.commands._output import print_json
+from glidetask.engine.compare import ballast_sweep
+from glidetask.formats import strategy_report
+from glidetask.formats.task_file import load_scenario
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.engine.compare import ballast_sweep
-    from glidetask.formats import strategy_report
-    from glidetask.formats.task_file import load_scenario
-
     scenario = load_scenario(args.task)
     sweep = ballast_sweep(scenario)
     if args.json:

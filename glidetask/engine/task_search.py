@@ -97,8 +97,10 @@ class _Window:
 
     def recentre(self, loop_index: int, s: float, own: bool) -> None:
         """Centre the next window on the chosen sample: smaller, unless the choice was on the
-        edge of this window (then the same size); at the fine spacing it keeps its size."""
+        edge of this window (then the same size, and twice the size when it was on the edge
+        the round before too); at the fine spacing it keeps its size until it travels."""
         loop = self.loops[loop_index]
+        travelling = self.at_edge
         if self.loop < 0:
             moved, self.at_edge = 0.0, False
         else:
@@ -107,7 +109,13 @@ class _Window:
                 moved = min(moved, loop.length_m - moved)
             self.at_edge = own and moved >= 0.999 * self.half_m and (loop.closed or 0.0 < s < loop.length_m)
         self.loop, self.centre_s = loop_index, s
-        if not self.at_edge and self.spacing_m > _FINE_M:
+        if self.at_edge and travelling:
+            # The optimum lies further along than one window: where the path is nearly flat
+            # for the zone (nearly straight through it), the coarse round's spherical
+            # distances can pick a point hundreds of metres off, and a window of constant
+            # size would crawl there a few metres a round. Doubling reaches it in a few rounds.
+            self.half_m = min(2.0 * self.half_m, loop.length_m / 2.0 if loop.closed else loop.length_m)
+        elif not self.at_edge and self.spacing_m > _FINE_M:
             self.half_m = _WINDOW_HALF * self.spacing_m
 
 

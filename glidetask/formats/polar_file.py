@@ -20,10 +20,11 @@ from pathlib import Path
 from typing import Any
 
 from glidetask.engine.polar import PolarSpec, fit_quadratic
+from glidetask.engine.scenario import Day, GliderSetup, Scenario, scenario_problems
 from glidetask.errors import InputError, Problem
 from glidetask.formats.toml_reader import TomlReader, as_float, is_number, read_toml, show
+from glidetask.units import KMH
 
-KMH = 1000.0 / 3600.0  # m/s per km/h
 DEFAULT_PILOT_ALLOWANCE_KG = 90.0  # empty mass defaults to reference mass minus this
 # A stall speed this many times below min_speed_kmh puts the circling speeds far below the
 # polar's points (or is in the wrong unit): a polar is measured down to about 1.1-1.3 times
@@ -40,6 +41,10 @@ SINK_LIMIT_MS = 30.0
 MASS_LIMIT_KG = 5000.0
 WING_AREA_LIMIT_M2 = 100.0
 BEST_LD_LIMIT = 80.0  # beyond any sailplane built (the best open class reach about 1:70, from memory)
+#: The engine's key for the loading (ballast and flying mass) in scenario_problems.
+LOADING_KEY = "[glider] ballast_kg"
+# A day scenario_problems finds nothing wrong with: loading_problems asks it only about the glider.
+_ANY_DAY = Day(start_time_s=0.0, band_top_m=1.0, band_bottom_m=0.0, lift_ends_s=1.0)
 
 
 def _points(checker: TomlReader, polar: dict, min_kmh: float | None, vne_kmh: float | None):
@@ -157,26 +162,7 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
             checker.add(key, "unknown table or key (expected [glider] and [polar])")
     glider = checker.table(document, "glider", required=True)
     polar = checker.table(document, "polar", required=True)
-    values: dict[str, Any] = {}
-    if glider is not None:
-        checker.unknown(glider, "[glider]", GLIDER_KEYS)
-        label = glider.get("label", Path(file).stem)
-        if not isinstance(label, str):
-            checker.add("[glider] label", f"must be text, got {label!r}")
-        values["label"] = str(label)
-        limits = {"wing_area_m2": WING_AREA_LIMIT_M2, "reference_mass_kg": MASS_LIMIT_KG,
-                  "vne_kmh": SPEED_LIMIT_KMH, "min_speed_kmh": SPEED_LIMIT_KMH}
-        for key, limit in limits.items():
-            values[key] = checker.number(glider, "[glider]", key, required=True, positive=True, high=limit)
-        values["empty_mass_kg"] = checker.number(glider, "[glider]", "empty_mass_kg", positive=True,
-                                                 high=MASS_LIMIT_KG)
-        values["max_ballast_kg"] = checker.number(glider, "[glider]", "max_ballast_kg", low=0.0,
-                                                  high=MASS_LIMIT_KG)
-        values["max_mass_kg"] = checker.number(glider, "[glider]", "max_mass_kg", positive=True,
-                                               high=MASS_LIMIT_KG)
-        values["stall_speed_kmh"] = checker.number(glider, "[glider]", "stall_speed_kmh", positive=True,
-                                                   high=SPEED_LIMIT_KMH)
-        _limit_problems(checker, glider, values)
+    values = _glider_values(checker, glider, file) if glider is not None else {}
     min_kmh, vne_kmh = values.get("min_speed_kmh"), values.get("vne_kmh")
     if min_kmh is not None and vne_kmh is not None and min_kmh >= vne_kmh:
         min_kmh = vne_kmh = None  # already reported; the points cannot be range-checked
@@ -202,6 +188,27 @@ def polar_problems(document: dict, file: str) -> tuple[PolarSpec | None, list[Pr
         points=tuple((speed * KMH, sink) for speed, sink in points),
         stall_speed_ias_ms=None if values["stall_speed_kmh"] is None else values["stall_speed_kmh"] * KMH,
     ), []
+
+
+def _glider_values(checker: TomlReader, glider: dict, file: str) -> dict[str, Any]:
+    """The ``[glider]`` table's values, each checked (None where bad), with defaults."""
+    checker.unknown(glider, "[glider]", GLIDER_KEYS)
+    values: dict[str, Any] = {}
+    label = glider.get("label", Path(file).stem)
+    if not isinstance(label, str):
+        checker.add("[glider] label", f"must be text, got {label!r}")
+    values["label"] = str(label)
+    limits = {"wing_area_m2": WING_AREA_LIMIT_M2, "reference_mass_kg": MASS_LIMIT_KG,
+              "vne_kmh": SPEED_LIMIT_KMH, "min_speed_kmh": SPEED_LIMIT_KMH}
+    for key, limit in limits.items():
+        values[key] = checker.number(glider, "[glider]", key, required=True, positive=True, high=limit)
+    values["empty_mass_kg"] = checker.number(glider, "[glider]", "empty_mass_kg", positive=True, high=MASS_LIMIT_KG)
+    values["max_ballast_kg"] = checker.number(glider, "[glider]", "max_ballast_kg", low=0.0, high=MASS_LIMIT_KG)
+    values["max_mass_kg"] = checker.number(glider, "[glider]", "max_mass_kg", positive=True, high=MASS_LIMIT_KG)
+    values["stall_speed_kmh"] = checker.number(glider, "[glider]", "stall_speed_kmh", positive=True,
+                                               high=SPEED_LIMIT_KMH)
+    _limit_problems(checker, glider, values)
+    return values
 
 
 def _limit_problems(checker: TomlReader, glider: dict, values: dict[str, Any]) -> None:
@@ -274,8 +281,11 @@ def loading_problems(spec: PolarSpec, pilot_kg: float, ballast_kg: float, *, fil
     Returns
     -------
     list of Problem
-        Non-finite or negative values, ballast above ``max_ballast_kg``, flying mass
-        above ``max_mass_kg``; empty if the loading is within the limits.
+        Non-finite or negative values, no pilot; then the engine's own check of the
+        loading (:func:`glidetask.engine.scenario.scenario_problems`, in its words):
+        ballast above ``max_ballast_kg``, or else a flying mass above ``max_mass_kg``
+        (reported at the ballast when there is any, else at the pilot). Empty if the
+        loading is within the limits.
     """
     problems = []
     for value, where, name in ((pilot_kg, pilot_where, "pilot mass"), (ballast_kg, ballast_where, "ballast")):
@@ -284,13 +294,9 @@ def loading_problems(spec: PolarSpec, pilot_kg: float, ballast_kg: float, *, fil
     if problems:
         return problems
     if pilot_kg <= 0.0:
-        problems.append(Problem(file, pilot_where, f"pilot mass must be greater than 0, got {pilot_kg:g}"))
-    if ballast_kg > spec.max_ballast_kg:
-        problems.append(Problem(file, ballast_where, f"ballast {ballast_kg:g} kg is above the polar's "
-                                                     f"max_ballast_kg {spec.max_ballast_kg:g} kg"))
-    mass = spec.empty_mass_kg + pilot_kg + ballast_kg
-    if spec.max_mass_kg is not None and mass > spec.max_mass_kg:
-        problems.append(Problem(file, ballast_where if ballast_kg > 0.0 else pilot_where,
-                                f"flying mass {mass:g} kg (empty {spec.empty_mass_kg:g} + pilot {pilot_kg:g} + "
-                                f"ballast {ballast_kg:g}) is above the polar's max_mass_kg {spec.max_mass_kg:g} kg"))
-    return problems
+        return [Problem(file, pilot_where, f"pilot mass must be greater than 0, got {pilot_kg:g}")]
+    glider = GliderSetup(spec, float(pilot_kg), float(ballast_kg))
+    # With no ballast only the flying mass can be wrong, and then the pilot makes it so.
+    where = {LOADING_KEY: ballast_where if ballast_kg > 0.0 else pilot_where}
+    return [Problem(file, where[key], message) for key, message in scenario_problems(Scenario(None, glider, _ANY_DAY))
+            if key in where]

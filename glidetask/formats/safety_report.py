@@ -212,7 +212,8 @@ def terrain_profile_ascii(t, units: UnitSystem, width: int = 64, height: int = 1
     line = np.interp(columns, distance, glide)
     known = ground[~unknown]
     low = float(np.min(known)) if known.size else float(np.nanmin(line))
-    high = float(np.nanmax(line))
+    # The picture reaches up to the glide or to the ground above it, where the glide runs into it.
+    high = max(float(np.nanmax(line)), float(np.max(known)) if known.size else -np.inf)
     low, high = min(low, high), max(high, low + 1.0)
     rows = height
 
@@ -224,7 +225,7 @@ def terrain_profile_ascii(t, units: UnitSystem, width: int = 64, height: int = 1
         if unknown[col]:
             picture[0][col] = "?"
             continue
-        for r in range(row_of(ground[col]) + 1):
+        for r in range(min(row_of(ground[col]), rows - 1) + 1):
             picture[r][col] = "#"
     for col in range(width):
         if np.isfinite(line[col]):

@@ -164,10 +164,13 @@ def test_loading_problems_against_the_limits(tmp_path):
     spec = load_polar_spec(_write(tmp_path, GOOD))
     kwargs = dict(file="command line", pilot_where="--pilot-kg", ballast_where="--ballast-kg")
     assert loading_problems(spec, 90.0, 170.0, **kwargs) == []  # 255 + 90 + 170 = 515 <= 525
-    too_wet = loading_problems(spec, 100.0, 171.0, **kwargs)  # 526 kg
-    assert [p.where for p in too_wet] == ["--ballast-kg", "--ballast-kg"]  # above max ballast and max mass
-    heavy = loading_problems(spec, 110.0, 170.0, **kwargs)
-    assert len(heavy) == 1 and "above the polar's max_mass_kg 525" in heavy[0].what
+    too_wet = loading_problems(spec, 100.0, 171.0, **kwargs)  # 526 kg, but the ballast is the first fault
+    assert [(p.where, p.what) for p in too_wet] == [("--ballast-kg", "ballast 171 kg is outside 0-170 kg, the polar's "
+                                                                      "maximum water ballast")]
+    heavy = loading_problems(spec, 110.0, 170.0, **kwargs)  # 535 kg
+    assert [(p.where, p.what) for p in heavy] == [("--ballast-kg", "the flying mass 535 kg (empty 255 + pilot 110 + "
+                                                                   "ballast 170) is above the maximum 525 kg")]
+    assert loading_problems(spec, 271.0, 0.0, **kwargs)[0].where == "--pilot-kg"  # 526 kg with no ballast: the pilot
     assert loading_problems(spec, -1.0, 0.0, **kwargs)[0].where == "--pilot-kg"
     assert loading_problems(spec, 0.0, 0.0, **kwargs)[0].what.startswith("pilot mass must be greater than 0")
     assert loading_problems(spec, 90.0, math.nan, **kwargs)[0].where == "--ballast-kg"

@@ -249,7 +249,7 @@ BAD_RACING = [
     ("from_deg = 250.0", "from_deg = 400.0", "[day] wind from_deg", "must be in [0, 360]"),
     ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", 'wind = "250/18"', "[day] wind", "must be a table"),
     ("lift_ends", "lift_ends_at", "[day] lift_ends_at", "unknown key"),
-    ("ballast_kg = 100.0", "ballast_kg = 300.0", "[glider] ballast_kg", "above the polar's max_ballast_kg"),
+    ("ballast_kg = 100.0", "ballast_kg = 300.0", "[glider] ballast_kg", "outside 0-170 kg, the polar's maximum"),
     ("bugs_percent = 5.0", "bugs_percent = 150.0", "[glider] bugs_percent", "must be in [0, 100]"),
     ('polar = "polars/racing.toml"', 'polar = "polars/none.toml"', "[glider] polar", "no such file"),
     ('file = "dem.tif"', 'file = "missing.tif"', "[terrain] file", "no such file"),
