@@ -56,7 +56,7 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
         out.append(("[glider] bugs_percent", "bugs must be 0 % or more"))
     if day.mc_ms is not None and not 0.0 <= day.mc_ms <= 10.0:
         out.append(("[day] mc_ms", f"the MacCready setting must be 0-10 m/s, got {day.mc_ms:g}"))
-    wind_kmh = day.wind.speed_ms / KMH
+    wind_kmh = day.wind.strongest_ms / KMH
     if not 0.0 <= wind_kmh <= MAX_WIND_SPEED_KMH + 1e-9:
         out.append(("[day] wind", f"the wind speed must be 0-{MAX_WIND_SPEED_KMH:g} km/h, got {wind_kmh:g}"))
     if not day.start_time_s < day.lift_ends_s:
@@ -88,6 +88,122 @@ class Wind:
 
     from_deg: float = 0.0
     speed_ms: float = 0.0
+
+    def at(self, height_m=None) -> "Wind":
+        """The wind at any height: itself (the same at all heights)."""
+        return self
+
+    def mean_between(self, low_m=None, high_m=None) -> "Wind":
+        """The mean wind over any height range: itself."""
+        return self
+
+    @property
+    def strongest_ms(self) -> float:
+        """The strongest wind at any height [m/s]: its speed."""
+        return self.speed_ms
+
+
+def wind_vector(from_deg, speed_ms):
+    """A wind as the components of the vector pointing where it blows FROM, (east, north) [m/s]
+    (scalars or arrays). Interpolating these and turning them back (:func:`wind_from_vector`)
+    interpolates the wind as a vector."""
+    angle = np.radians(np.asarray(from_deg, dtype=float))
+    speed = np.asarray(speed_ms, dtype=float)
+    return speed * np.sin(angle), speed * np.cos(angle)
+
+
+def wind_from_vector(east, north):
+    """The (from_deg, speed_ms) of a vector from :func:`wind_vector` (from_deg in [0, 360))."""
+    east, north = np.asarray(east, dtype=float), np.asarray(north, dtype=float)
+    return np.mod(np.degrees(np.arctan2(east, north)), 360.0), np.hypot(east, north)
+
+
+@dataclass(frozen=True)
+class WindLevel:
+    """One level of a wind profile: height [m MSL], direction it blows FROM [deg true], speed [m/s]."""
+
+    height_m: float
+    from_deg: float
+    speed_ms: float
+
+
+@dataclass(frozen=True)
+class WindProfile:
+    """Wind changing with height (shared/CONTRACT.md 2.3 and 3, "wind with height").
+
+    The wind vector's components are linear in height between the levels and held
+    beyond the lowest and the highest (a veer between two levels turns through the
+    smaller angle, and the speed dips where the direction changes much: the vector mean).
+
+    Attributes
+    ----------
+    levels : tuple of WindLevel
+        At least one level, heights strictly increasing [m MSL].
+    """
+
+    levels: tuple[WindLevel, ...]
+
+    def __post_init__(self):
+        heights = [level.height_m for level in self.levels]
+        if not heights or any(b <= a for a, b in zip(heights, heights[1:])):
+            raise ValueError("a wind profile needs at least one level and strictly increasing heights")
+
+    @property
+    def heights_m(self) -> np.ndarray:
+        return np.array([level.height_m for level in self.levels], dtype=float)
+
+    def vectors(self) -> tuple[np.ndarray, np.ndarray]:
+        """The levels' (east, north) components of :func:`wind_vector` [m/s], shape (H,) each."""
+        return wind_vector([level.from_deg for level in self.levels], [level.speed_ms for level in self.levels])
+
+    def vector_at(self, height_m):
+        """(east, north) components at ``height_m`` (scalar or array) [m/s]."""
+        heights, (east, north) = self.heights_m, self.vectors()
+        return np.interp(height_m, heights, east), np.interp(height_m, heights, north)
+
+    def vector_mean(self, low_m, high_m):
+        """(east, north) components averaged over height from ``low_m`` to ``high_m`` (scalars or
+        arrays, either order); the wind at the height where they are equal [m/s].
+
+        The integral of the piecewise-linear components (held beyond the ends) divided by
+        the height range: exact, by the trapezoid rule on the levels inside the range.
+        """
+        low, high = np.broadcast_arrays(np.asarray(low_m, dtype=float), np.asarray(high_m, dtype=float))
+        low, high = np.minimum(low, high), np.maximum(low, high)
+        heights, (east, north) = self.heights_m, self.vectors()
+
+        def integral(z, values):  # from the lowest level to z (negative below it), held ends
+            below = np.clip(z, heights[0], heights[-1])
+            inside = np.interp(below, heights, values)
+            segment = np.concatenate([[0.0], np.cumsum(0.5 * (values[1:] + values[:-1]) * np.diff(heights))])
+            j = np.clip(np.searchsorted(heights, below, side="right") - 1, 0, heights.size - 1)
+            partial = segment[j] + 0.5 * (values[j] + inside) * (below - heights[j])
+            return partial + values[0] * np.minimum(z - heights[0], 0.0) + values[-1] * np.maximum(z - heights[-1], 0.0)
+
+        span = high - low
+        out = []
+        for values in (east, north):
+            with np.errstate(invalid="ignore", divide="ignore"):
+                mean = (integral(high, values) - integral(low, values)) / span
+            out.append(np.where(span > 0.0, mean, np.interp(low, heights, values)))
+        return out[0], out[1]
+
+    def at(self, height_m) -> Wind:
+        """The wind at ``height_m`` [m MSL] (a scalar)."""
+        from_deg, speed = wind_from_vector(*self.vector_at(float(height_m)))
+        return Wind(float(from_deg), float(speed))
+
+    def mean_between(self, low_m, high_m) -> Wind:
+        """The mean wind (the vector mean) over the heights from ``low_m`` to ``high_m`` [m MSL]:
+        the drift of a climb through them at a steady rate."""
+        from_deg, speed = wind_from_vector(*self.vector_mean(float(low_m), float(high_m)))
+        return Wind(float(from_deg), float(speed))
+
+    @property
+    def strongest_ms(self) -> float:
+        """The strongest wind at any height [m/s] (the strongest level: linear vector
+        interpolation never exceeds its ends)."""
+        return max(level.speed_ms for level in self.levels)
 
 
 @dataclass(frozen=True)
@@ -159,7 +275,7 @@ class Day:
     band_top_m: float
     band_bottom_m: float
     lift_ends_s: float
-    wind: Wind = field(default_factory=Wind)
+    wind: "Wind | WindProfile" = field(default_factory=Wind)
     climb: Profile | None = None
     thermal_strength: Profile | None = None
     start_height_m: float | None = None  # None: the band top
@@ -172,6 +288,10 @@ class Day:
     def band_middle_m(self) -> float:
         """The middle of the working band [m MSL] (:func:`band_middle_m`)."""
         return band_middle_m(self.band_top_m, self.band_bottom_m)
+
+    def wind_at(self, height_m) -> Wind:
+        """The wind at ``height_m`` [m MSL]: the single wind, or the profile's there."""
+        return self.wind.at(height_m)
 
     @property
     def effective_start_height_m(self) -> float:

@@ -31,7 +31,9 @@ import os
 from pathlib import Path
 from typing import Any
 
-from glidetask.engine.scenario import MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.scenario import (
+    MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind, WindLevel, WindProfile,
+)
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
@@ -303,12 +305,15 @@ def _profile(reader: _Reader, table: dict, key: str) -> Profile | None:
     return Profile(tuple(times), tuple(values)) if ok else None
 
 
-def _wind(reader: _Reader, table: dict) -> Wind | None:
+def _wind(reader: _Reader, table: dict) -> Wind | WindProfile | None:
     raw = table.get("wind")
     if raw is None:
         return Wind()
+    if isinstance(raw, list):
+        return _wind_profile(reader, raw)
     if not isinstance(raw, dict):
-        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }}, got {show(raw)}")
+        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }} or a list of "
+                                 f"{{ height_m, from_deg, speed_kmh }} tables, got {show(raw)}")
         return None
     reader.unknown(raw, "[day] wind", ("from_deg", "speed_kmh"))
     direction = reader.number(raw, "[day] wind", "from_deg", required=True, low=0.0, high=360.0)
@@ -316,6 +321,35 @@ def _wind(reader: _Reader, table: dict) -> Wind | None:
     if direction is None or speed is None:
         return None
     return Wind(direction % 360.0, speed * KMH)
+
+
+def _wind_profile(reader: _Reader, raw: list) -> WindProfile | None:
+    """``[day] wind`` as a list of levels (contract 2.3): heights strictly increasing."""
+    if not raw:
+        reader.add("[day] wind", "a wind profile needs at least one { height_m, from_deg, speed_kmh } level")
+        return None
+    levels, ok = [], True
+    for number, entry in enumerate(raw, start=1):
+        here = f"[day] wind[{number}]"
+        if not isinstance(entry, dict):
+            reader.add(here, f"must be a table like {{ height_m = 1000.0, from_deg = 270.0, speed_kmh = 20.0 }}, "
+                             f"got {show(entry)}")
+            ok = False
+            continue
+        reader.unknown(entry, here, ("height_m", "from_deg", "speed_kmh"))
+        height = reader.number(entry, here, "height_m", required=True, low=-500.0, high=15000.0)
+        direction = reader.number(entry, here, "from_deg", required=True, low=0.0, high=360.0)
+        speed = reader.number(entry, here, "speed_kmh", required=True, low=0.0, high=MAX_WIND_SPEED_KMH)
+        if None in (height, direction, speed):
+            ok = False
+            continue
+        if levels and height <= levels[-1].height_m:
+            reader.add(f"{here} height_m", f"heights must increase: {height:g} m is not above "
+                                           f"{levels[-1].height_m:g} m")
+            ok = False
+            continue
+        levels.append(WindLevel(height, direction % 360.0, speed * KMH))
+    return WindProfile(tuple(levels)) if ok else None
 
 
 def _day(reader: _Reader, table: dict) -> Day | None:
@@ -492,6 +526,13 @@ def _profile_value(profile: Profile) -> list:
     return [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)]
 
 
+def _wind_value(wind: Wind | WindProfile):
+    if isinstance(wind, WindProfile):
+        return [{"height_m": level.height_m, "from_deg": level.from_deg, "speed_kmh": level.speed_ms / KMH}
+                for level in wind.levels]
+    return {"from_deg": wind.from_deg, "speed_kmh": wind.speed_ms / KMH}
+
+
 def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
                      header: str | None = None) -> str:
     """The TOML text of a task file for ``scenario``, with paths relative to ``folder``."""
@@ -512,7 +553,7 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
     if day.start_height_m is not None:
         lines.append(f"start_height_m = {_toml_value(day.start_height_m)}")
     lines += [f"band_top_m = {_toml_value(day.band_top_m)}", f"band_bottom_m = {_toml_value(day.band_bottom_m)}",
-              f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}"]
+              f"wind = {_toml_value(_wind_value(day.wind))}"]
     if day.climb is not None:
         lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
     else:

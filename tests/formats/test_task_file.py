@@ -165,6 +165,19 @@ def test_racing_task_file_into_a_scenario(folder):
     assert len(scenario.turnpoints) == 4 and scenario.source.endswith("task.toml")
 
 
+def test_wind_profile_in_a_task_file_and_saved_back(folder, tmp_path):
+    text = _edit(RACING, "wind = { from_deg = 250.0, speed_kmh = 18.0 }",
+                 "wind = [{ height_m = 500.0, from_deg = 250.0, speed_kmh = 10.0 }, "
+                 "{ height_m = 2500.0, from_deg = 270.0, speed_kmh = 25.0 }]")
+    scenario = load_scenario(_write(folder, text))
+    profile = scenario.day.wind
+    assert [level.height_m for level in profile.levels] == [500.0, 2500.0]
+    assert profile.levels[1].speed_ms == pytest.approx(25.0 * KMH)
+    assert scenario.day.wind_at(2500.0).from_deg == pytest.approx(270.0)
+    save_task(folder / "copy.toml", scenario)
+    assert load_scenario(folder / "copy.toml").day.wind == profile
+
+
 def test_area_task_file(folder):
     scenario = load_scenario(_write(folder, AREA))
     task = scenario.task
@@ -249,6 +262,14 @@ BAD_RACING = [
     ("from_deg = 250.0", "from_deg = 400.0", "[day] wind from_deg", "must be in [0, 360]"),
     ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", 'wind = "250/18"', "[day] wind", "must be a table"),
     ("lift_ends", "lift_ends_at", "[day] lift_ends_at", "unknown key"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = []", "[day] wind", "at least one"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [{ height_m = 900.0, from_deg = 250.0, speed_kmh = 10.0 }, "
+     "{ height_m = 900.0, from_deg = 260.0, speed_kmh = 20.0 }]", "[day] wind[2] height_m", "heights must increase"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [{ height_m = 900.0, from_deg = 250.0 }]",
+     "[day] wind[1] speed_kmh", "missing key"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [{ height_m = 900.0, from_deg = 250.0, speed_kmh = 10.0, "
+     "gust_kmh = 5.0 }]", "[day] wind[1] gust_kmh", "unknown key"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [250.0]", "[day] wind[1]", "must be a table"),
     ("ballast_kg = 100.0", "ballast_kg = 300.0", "[glider] ballast_kg", "above the polar's max_ballast_kg"),
     ("bugs_percent = 5.0", "bugs_percent = 150.0", "[glider] bugs_percent", "must be in [0, 100]"),
     ('polar = "polars/racing.toml"', 'polar = "polars/none.toml"', "[glider] polar", "no such file"),
