@@ -15,7 +15,7 @@ import numpy as np
 import pytest
 
 from glidetask.engine.airspace import check_path
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.formats.airspace_file import read_airspace
 from glidetask.formats.task_file import load_scenario
 

@@ -18,6 +18,7 @@ from glidetask import cautions, units
 from glidetask.cli import CMDLINE, check_number, parse_wind
 from glidetask.commands._output import caution_block, print_json
 from glidetask.errors import InputError, Problem
+from glidetask.formats.wind_text import wind_text
 
 
 def what_if_problems(args: argparse.Namespace) -> list[Problem]:
@@ -98,7 +99,7 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "climb" if day.climb is not None else "thermal strength"
     lift = ", ".join(f"{units.format_clock(t)} {unit.vertical(v):.1f}" for t, v in zip(profile.times_s, profile.values))
-    wind = "calm" if day.wind.speed_ms == 0.0 else f"{day.wind.from_deg:03.0f}/{unit.fmt_speed(day.wind.speed_ms)}"
+    wind = wind_text(day.wind, unit)
     lines.append(f"  Day       start {units.format_clock(day.start_time_s)} at "
                  f"{unit.fmt_height(day.effective_start_height_m)}, band {unit.fmt_height(day.band_bottom_m)}"
                  f" - {unit.fmt_height(day.band_top_m)}, wind {wind}")

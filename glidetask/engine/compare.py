@@ -76,12 +76,29 @@ def stack_flights(flights: Sequence[Flights]) -> Flights:
     first = flights[0]
     for other in flights[1:]:
         if (other.spec != first.spec or other.lift_is_strength != first.lift_is_strength
+                or other.wind_profile != first.wind_profile
                 or tuple(np.atleast_1d(other.lift_times_s)) != tuple(np.atleast_1d(first.lift_times_s))):
-            raise ValueError("stacked flights must share the polar and the lift profile's times")
+            raise ValueError("stacked flights must share the polar, the wind profile and the lift profile's times")
     columns = {name: np.array([np.asarray(getattr(f, name), dtype=float) for f in flights])
                for name in Flights._PER_FLIGHT}
     values = np.array([np.atleast_1d(np.asarray(f.lift_values, dtype=float)) for f in flights])
     return dataclasses.replace(first, lift_values=values, **columns)
+
+
+def fly_stacked(course, flights: Sequence[Flights], **options) -> list:
+    """Fly single flights in as few core calls as they allow (one per wind profile; the
+    core shares a profile between its flights) and return each one's
+    :class:`~glidetask.engine.flight.Flown` in the given order."""
+    groups: dict[int, list[int]] = {}
+    for i, f in enumerate(flights):
+        key = next((k for k in groups if flights[k].wind_profile == f.wind_profile), i)
+        groups.setdefault(key, []).append(i)
+    out = [None] * len(flights)
+    for members in groups.values():
+        flown = fly(course, stack_flights([flights[i] for i in members]), **options)
+        for j, i in enumerate(members):
+            out[i] = flown.flight(j)
+    return out
 
 
 TASK_TERRAIN = "task"  # requirement=: the task's elevation model, as plan() flies by default

@@ -13,6 +13,9 @@ in any batch.
 
 The model
 ---------
+* Wind with height (:mod:`glidetask.engine.flight_wind`): a leg's cruise glides in the
+  wind at the middle of the band, a climb drifts with the mean wind over the heights it
+  climbs, a final glide flies in the wind at its middle height (as for its density).
 * Glides and climbs use the polar at the density of the middle of the working band;
   a final glide uses the density at the middle of its start height and its arrival
   height (the arrival floor). The start height of a final glide is itself what the
@@ -61,7 +64,7 @@ from glidetask.engine.flight_simulation import (  # the reasons a flight ends, n
     BELOW_FLOOR, FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, NO_THERMAL_FOUND, REASONS, UNREACHABLE, UNRESOLVED, Simulation,
 )
 from glidetask.engine.polar import PolarSpec
-from glidetask.engine.scenario import Scenario
+from glidetask.engine.scenario import Scenario, WindProfile
 
 __all__ = ["BELOW_FLOOR", "FINAL_GLIDE", "LIFT_ENDED", "NO_CLIMB", "NO_THERMAL_FOUND", "REASONS", "UNREACHABLE",
            "UNRESOLVED", "Course", "Flights", "Flown", "RequirementHook", "SearchHook", "course_for", "flights_for",
@@ -114,7 +117,11 @@ class Flights:
     mass_kg, bugs_percent : array_like
         Flying mass [kg] and bugs [% sink increase].
     wind_from_deg, wind_speed_ms : array_like
-        Steady wind [deg true, from], [m/s].
+        The wind of the cruise's glides, at the middle of the working band [deg true, from], [m/s].
+    wind_profile : WindProfile, optional
+        The wind's change with height (shared by the flights): each flight's wind at another
+        height is its own plus the profile's change from the band middle
+        (:mod:`glidetask.engine.flight_wind`); None: the same wind at every height.
     start_time_s, start_height_m : array_like
         Start [s after midnight], [m MSL].
     band_top_m, band_bottom_m : array_like
@@ -166,6 +173,7 @@ class Flights:
     arrival_margin_m: object = 200.0
     glide_airmass_ms: object = 0.0
     isa_deviation_c: object = 0.0
+    wind_profile: object = None
 
     _PER_FLIGHT = ("mass_kg", "start_time_s", "start_height_m", "band_top_m", "band_bottom_m", "lift_ends_s",
                    "finish_elevation_m", "bugs_percent", "wind_from_deg", "wind_speed_ms", "lift_scale",
@@ -371,9 +379,11 @@ def flights_for(scenario: Scenario) -> Flights:
     day, glider, safety = scenario.day, scenario.glider, scenario.safety
     profile = day.climb if day.climb is not None else day.thermal_strength
     nan = float("nan")
+    cruise_wind = day.wind_at(day.band_middle_m)
     return Flights(
         spec=glider.spec, mass_kg=glider.mass_kg, bugs_percent=glider.bugs_percent,
-        wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms,
+        wind_from_deg=cruise_wind.from_deg, wind_speed_ms=cruise_wind.speed_ms,
+        wind_profile=day.wind if isinstance(day.wind, WindProfile) else None,
         start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
         band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
         lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),

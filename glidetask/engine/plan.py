@@ -452,7 +452,8 @@ def plan_notices(plan: Plan) -> tuple[Notice, ...]:
         leg = _leg_at(plan, plan.landout_m)
         out.append(Notice("ends_short", dict(
             why=_WHY_SHORT.get(reason, "other"), stop_time_s=stop, lift_ends_s=day.lift_ends_s,
-            wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms, at_m=plan.landout_m,
+            wind_from_deg=day.wind_at(day.band_middle_m).from_deg, wind_speed_ms=day.wind_at(day.band_middle_m).speed_ms,
+            at_m=plan.landout_m,
             leg_from=leg.from_name, leg_to=leg.to_name, floor_m=floor)))
     elif reason != flight.FINAL_GLIDE:
         out.append(Notice("lift_ends_before_final_glide", dict(

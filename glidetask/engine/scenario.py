@@ -102,6 +102,10 @@ class Wind:
         """The strongest wind at any height [m/s]: its speed."""
         return self.speed_ms
 
+    def stronger(self, extra_ms: float) -> "Wind":
+        """The same wind ``extra_ms`` [m/s] stronger (a what-if)."""
+        return Wind(self.from_deg, self.speed_ms + extra_ms)
+
 
 def wind_vector(from_deg, speed_ms):
     """A wind as the components of the vector pointing where it blows FROM, (east, north) [m/s]
@@ -204,6 +208,11 @@ class WindProfile:
         """The strongest wind at any height [m/s] (the strongest level: linear vector
         interpolation never exceeds its ends)."""
         return max(level.speed_ms for level in self.levels)
+
+    def stronger(self, extra_ms: float) -> "WindProfile":
+        """Every level ``extra_ms`` [m/s] stronger, directions kept (a what-if)."""
+        return WindProfile(tuple(WindLevel(level.height_m, level.from_deg, level.speed_ms + extra_ms)
+                                 for level in self.levels))
 
 
 @dataclass(frozen=True)
@@ -337,7 +346,8 @@ class Scenario:
 # ---------------------------------------------------------------- what-ifs
 
 
-def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
+def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None,
+                  wind: "Wind | WindProfile | None" = None,
                   start_time_s=None) -> Scenario:
     """The scenario with the given what-ifs (None keeps the scenario's value).
 

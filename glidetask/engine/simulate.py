@@ -131,10 +131,11 @@ def draw_days(scenario: Scenario, spread: DaySpread, runs: int, seed: int) -> Da
     z_climb, z_speed, z_direction, z_end = rng.standard_normal((4, runs))
     search_unit = rng.standard_exponential((runs, SEARCH_DRAWS))
     factor = np.exp(spread.climb_log_sd * z_climb)
+    wind = day.wind_at(day.band_middle_m)  # the cruise's wind; a profile keeps its shape (flight_wind)
     return Days(
         climb_factor=factor,
-        wind_from_deg=np.mod(day.wind.from_deg + spread.wind_direction_sd_deg * z_direction, 360.0),
-        wind_speed_ms=np.maximum(day.wind.speed_ms + spread.wind_speed_sd_ms * z_speed, 0.0),
+        wind_from_deg=np.mod(wind.from_deg + spread.wind_direction_sd_deg * z_direction, 360.0),
+        wind_speed_ms=np.maximum(wind.speed_ms + spread.wind_speed_sd_ms * z_speed, 0.0),
         lift_ends_s=day.lift_ends_s + spread.lift_end_sd_s * z_end,
         search_mean_m=spread.thermal_search_mean_m / factor,
         search_unit=search_unit,

@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from glidetask.engine.scenario import WindProfile
 from glidetask.units import KMH, format_clock
 
 
@@ -77,6 +78,14 @@ def _task(plan) -> dict[str, Any]:
     return out
 
 
+def _wind(wind):
+    """``{from_deg, speed_kmh}``, or a profile's levels as the task file gives them (contract 2.3)."""
+    if isinstance(wind, WindProfile):
+        return [{"height_m": _number(level.height_m, digits=0), "from_deg": _number(level.from_deg, digits=0),
+                 "speed_kmh": _number(level.speed_ms, KMH, 1)} for level in wind.levels]
+    return {"from_deg": _number(wind.from_deg, digits=0), "speed_kmh": _number(wind.speed_ms, KMH, 1)}
+
+
 def _day(plan) -> dict[str, Any]:
     day, safety = plan.scenario.day, plan.scenario.safety
     profile = day.climb if day.climb is not None else day.thermal_strength
@@ -85,7 +94,7 @@ def _day(plan) -> dict[str, Any]:
         "start_height_m": _number(day.effective_start_height_m, digits=0),
         "band_top_m": _number(day.band_top_m, digits=0),
         "band_bottom_m": _number(day.band_bottom_m, digits=0),
-        "wind": {"from_deg": _number(day.wind.from_deg, digits=0), "speed_kmh": _number(day.wind.speed_ms, KMH, 1)},
+        "wind": _wind(day.wind),
         "lift_profile": "climb_ms" if day.climb is not None else "thermal_strength_ms",
         "lift": [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)],
         "lift_ends": format_clock(day.lift_ends_s),

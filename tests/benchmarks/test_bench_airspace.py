@@ -21,7 +21,7 @@ import numpy as np
 from wholeprocess import ROOT, bench_against_baseline
 
 from glidetask.engine.airspace import Airspace, check_path
-from glidetask.engine.planner import plan
+from glidetask.engine.plan import plan
 from glidetask.formats.airspace_file import read_airspace
 from glidetask.formats.task_file import load_scenario
 
