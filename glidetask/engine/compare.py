@@ -145,7 +145,7 @@ def strength_for_climb(scenario: Scenario, climb_ms):
     (the circling model inverted on a 0.01 m/s grid; NaN above its range)."""
     grid = np.arange(0.0, INVERSE_STRENGTH_MAX_MS + 1e-9, INVERSE_STRENGTH_STEP_MS)
     own = np.asarray(achieved_climb(_band_polar(scenario, scenario.glider.ballast_kg), grid,
-                                    scenario.day.thermal_radius_m).climb_ms, dtype=float)
+                                    scenario.day.effective_thermal_radius_m).climb_ms, dtype=float)
     own = np.maximum.accumulate(own)
     climb = np.asarray(climb_ms, dtype=float)
     return np.where(climb <= own[-1], np.interp(climb, own, grid), np.nan)
@@ -187,7 +187,7 @@ def climb_values_for_ballasts(scenario: Scenario, ballasts_kg) -> np.ndarray:
     ballast = np.asarray(ballasts_kg, dtype=float)
     strength = np.nan_to_num(strength_for_climb(scenario, values), nan=INVERSE_STRENGTH_MAX_MS)
     polar = _band_polar(scenario, ballast[:, None])
-    climb = np.asarray(achieved_climb(polar, strength[None, :], day.thermal_radius_m).climb_ms, dtype=float)
+    climb = np.asarray(achieved_climb(polar, strength[None, :], day.effective_thermal_radius_m).climb_ms, dtype=float)
     climb = np.where(values[None, :] > 0.0, np.maximum(climb, 0.0), 0.0)
     same = ballast == scenario.glider.ballast_kg
     climb[same] = values
@@ -214,6 +214,8 @@ class BallastSweep:
         Thermal core updraft of each row, constant through the day [m/s].
     thermal_radius_m : float
         e-folding radius of the thermals [m].
+    thermal_radius_source : str
+        Where that radius comes from, in words (:attr:`glidetask.engine.scenario.Day.thermal_radius_source`).
     achieved_climb_ms : ndarray, (S, B)
         Climb achieved circling in the thermal (circling model) [m/s]; negative where
         the glider cannot climb in it.
@@ -262,6 +264,7 @@ class BallastSweep:
     forecast_strength_ms: float
     phases: int
     notes: tuple[str, ...]
+    thermal_radius_source: str = ""
 
 
 def sweep_ballasts_kg(scenario: Scenario, steps: int = SWEEP_BALLAST_STEPS) -> np.ndarray:
@@ -284,7 +287,7 @@ def climb_table(scenario: Scenario, ballast_kg, strengths_ms):
     day = scenario.day
     polar = _band_polar(scenario, np.asarray(ballast_kg, dtype=float)[None, :])
     strengths = np.asarray(strengths_ms, dtype=float)[:, None]
-    climb = np.asarray(achieved_climb(polar, strengths, day.thermal_radius_m).climb_ms, dtype=float)
+    climb = np.asarray(achieved_climb(polar, strengths, day.effective_thermal_radius_m).climb_ms, dtype=float)
     with np.errstate(invalid="ignore"):
         cruise = np.asarray(cruise_in_wind(polar, np.maximum(climb, 0.0), 0.0, 0.0).cruise_speed_ms, dtype=float)
     cruise = np.where(climb > 0.0, cruise, np.nan)
@@ -373,12 +376,12 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     return BallastSweep(
         task_name=scenario.task.name, planned_distance_m=float(path.total_m), ballast_kg=ballast,
         mass_kg=glider.mass_with_ballast_kg(ballast), thermal_strength_ms=strengths,
-        thermal_radius_m=float(day.thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
+        thermal_radius_m=float(day.effective_thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
         task_time_s=task_time, best_ballast_kg=best, fastest_ballast_kg=_fastest_ballast(task_time, ballast),
         ballast_pays_from_ms=_first_strength(strengths, best > 0.0),
         full_ballast_from_ms=_first_strength(strengths, (best == ballast.max()) & (ballast.max() > 0.0)),
         scenario_ballast_kg=float(glider.ballast_kg), forecast_strength_ms=forecast_strength_ms(scenario),
-        phases=phases, notes=tuple(_sweep_notes(scenario, ballast)))
+        phases=phases, notes=tuple(_sweep_notes(scenario, ballast)), thermal_radius_source=day.thermal_radius_source)
 
 
 def _fastest_ballast(task_time: np.ndarray, ballast: np.ndarray) -> np.ndarray:
@@ -407,7 +410,8 @@ def _first_strength(strengths: np.ndarray, mask: np.ndarray) -> float:
 
 def _sweep_notes(scenario: Scenario, ballast: np.ndarray) -> list[str]:
     notes = ["Thermals are taken as constant in strength all day and of one size "
-             f"({scenario.day.thermal_radius_m:.0f} m radius): real days vary, and a narrower thermal "
+             f"({scenario.day.effective_thermal_radius_m:.0f} m radius, {scenario.day.thermal_radius_source}): "
+             "real days vary, and a narrower thermal "
              "punishes ballast more."]
     if ballast.max() <= 0.0:
         notes.append("This glider carries no water ballast: only the empty glider is shown.")

@@ -387,7 +387,7 @@ def flights_for(scenario: Scenario) -> Flights:
         start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
         band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
         lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
-        lift_is_strength=day.climb is None, thermal_radius_m=day.thermal_radius_m,
+        lift_is_strength=day.climb is None, thermal_radius_m=day.effective_thermal_radius_m,
         mc_ms=nan if day.mc_ms is None else day.mc_ms,
         final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
         finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,

@@ -40,13 +40,14 @@ class LiftClock:
         strongest = float(np.nanmax(np.abs(self.values)) * np.nanmax(self.scale))
         steps = int(np.ceil(strongest / STRENGTH_STEP_MS)) + 2
         grid = np.arange(steps) * STRENGTH_STEP_MS
+        # The circling speed rests on the stall speed (circling.py), so it is part of the key.
         keys = np.column_stack([np.broadcast_to(np.asarray(x, dtype=float), radius.shape) for x in (
-            polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, radius)])
+            polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, polar.wings_level_stall_ms, radius)])
         unique, self.table_row = np.unique(keys, axis=0, return_inverse=True)
         self.table_row = self.table_row.ravel()
         rows = Polar(a=unique[:, :1], b=unique[:, 1:2], c=unique[:, 2:3], min_speed_ms=unique[:, 3:4],
-                     vne_ms=unique[:, 4:5])
-        self.table = np.asarray(achieved_climb(rows, grid[None, :], unique[:, 5:6]).climb_ms)
+                     vne_ms=unique[:, 4:5], stall_speed_ms=unique[:, 5:6])
+        self.table = np.asarray(achieved_climb(rows, grid[None, :], unique[:, 6:7]).climb_ms)
 
     def profile(self, rows, time_s):
         """The profile's value (x scale) for flights ``rows`` at their times ``time_s``."""

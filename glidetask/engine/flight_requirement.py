@@ -26,7 +26,8 @@ def polar_rows(polar: Polar, rows) -> Polar:
         value = np.asarray(value, dtype=float)
         return value[rows][:, None] if value.ndim else value
     return Polar(a=pick(polar.a), b=pick(polar.b), c=pick(polar.c), min_speed_ms=pick(polar.min_speed_ms),
-                 vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2)
+                 vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2,
+                 stall_speed_ms=pick(polar.stall_speed_ms))
 
 
 class FinalGlideRequirement:

@@ -17,6 +17,7 @@ import numpy as np
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
+from glidetask.engine.thermals import thermal_radii
 from glidetask.errors import InputError, Problem
 from glidetask.units import KMH, format_clock
 
@@ -28,6 +29,9 @@ CMDLINE = "command line"
 #: The command-line option of each what-if, by the task-file key it replaces.
 WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
                    "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
+#: The shallowest convective layer the thermal size is taken for [m] (a band top at or below the
+#: ground is an input the reader refuses; this only keeps the formula defined).
+SHALLOWEST_LAYER_M = 100.0
 #: The strongest wind any input may give [km/h] (the task file's limit, one for every input).
 MAX_WIND_SPEED_KMH = 200.0
 
@@ -291,12 +295,35 @@ class Day:
     glide_airmass_ms: float = 0.0
     isa_deviation_c: float = 0.0
     mc_ms: float | None = None  # None: the achieved climb at that moment
-    thermal_radius_m: float = 150.0  # e-folding radius of the Gaussian thermal core
+    thermal_radius_m: float | None = None  # e-folding radius of the thermal core; None: from the day's layer
+    ground_m: float = 0.0  # the ground under the convective layer [m MSL] (task_file: how it is chosen)
 
     @property
     def band_middle_m(self) -> float:
         """The middle of the working band [m MSL] (:func:`band_middle_m`)."""
         return band_middle_m(self.band_top_m, self.band_bottom_m)
+
+    @property
+    def layer_depth_m(self) -> float:
+        """Depth of the convective layer [m]: the band top above the ground under it
+        (:attr:`ground_m`), at least :data:`SHALLOWEST_LAYER_M`."""
+        return max(self.band_top_m - self.ground_m, SHALLOWEST_LAYER_M)
+
+    @property
+    def effective_thermal_radius_m(self) -> float:
+        """The thermal core radius the circling model uses [m]: ``thermal_radius_m`` where
+        given, else the typical radius for the day's convective layer
+        (:func:`glidetask.engine.thermals.thermal_radii`, Allen 2006)."""
+        if self.thermal_radius_m is not None:
+            return float(self.thermal_radius_m)
+        return float(thermal_radii(self.layer_depth_m).typical_m)
+
+    @property
+    def thermal_radius_source(self) -> str:
+        """Where :attr:`effective_thermal_radius_m` comes from, in words."""
+        if self.thermal_radius_m is not None:
+            return "given in the task"
+        return f"Allen (2006) for a {self.layer_depth_m / 1000.0:.1f} km convective layer"
 
     def wind_at(self, height_m) -> Wind:
         """The wind at ``height_m`` [m MSL]: the single wind, or the profile's there."""

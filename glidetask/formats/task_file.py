@@ -18,12 +18,15 @@ Zone keys, sizes in km (contract 2.3):
 * area turns: ``cylinder`` (``radius_km``) or ``sector`` (``radius_km``,
   ``inner_radius_km`` default 0, ``radial_from_deg``, ``radial_to_deg``).
 
-Extension beyond the contract: ``[day] thermal_radius_m`` (default 150), the radius of the
-thermal core used with ``thermal_strength_ms``.
+``[day] thermal_radius_m`` (optional), the radius of the thermal core for the circling model;
+absent, the typical radius for the day's convective layer (Allen 2006,
+:func:`glidetask.engine.thermals.thermal_radii`), the layer being the band top above the
+ground: ``[day] surface_elevation_m`` where given, else the task's lowest turnpoint.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import json
 import math
@@ -51,7 +54,6 @@ DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
-DEFAULT_THERMAL_RADIUS_M = 150.0
 
 # Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
 _START_FINISH = {"line": {"length_km": None}, "cylinder": {"radius_km": None}}
@@ -379,10 +381,12 @@ def _day(reader: _Reader, table: dict) -> Day | None:
     airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
-    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True)
-    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa, radius):
+    radius = reader.number(table, "[day]", "thermal_radius_m", positive=True)
+    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa):
         return None
     if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
+        return None
+    if "thermal_radius_m" in table and radius is None:
         return None
     return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
                climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
@@ -463,9 +467,21 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     safety = _safety(reader, reader.table(document, "safety", required=False))
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
     reader.problems.raise_if_any()
+    day = dataclasses.replace(day, ground_m=_ground_m(day_table, task))
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
                     terrain_file=terrain, source=file,
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))
+
+
+def _ground_m(day_table: dict, task: Task) -> float:
+    """The ground under the day's convective layer [m MSL] (its depth sets the default thermal
+    size, contract section 3): ``[day] surface_elevation_m`` where given (the sounding's
+    ground), else the lowest elevation among the task's turnpoints (the deepest layer the
+    task flies over, so the broadest default thermals)."""
+    given = day_table.get("surface_elevation_m")
+    if is_number(given):
+        return float(given)
+    return float(min(point.turnpoint.elevation_m for point in task.points))
 
 
 def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
@@ -558,8 +574,12 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
         lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
     else:
         lines.append(f"thermal_strength_ms = {_toml_value(_profile_value(day.thermal_strength))}")
-    # The circling model uses the thermal radius with either profile (ballast comparisons, odds).
-    lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    # The circling model uses the thermal radius with either profile (ballast comparisons, odds);
+    # absent, it comes from the day's convective layer.
+    if day.thermal_radius_m is not None:
+        lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    if day.ground_m != min(point.turnpoint.elevation_m for point in task.points):  # the layer's ground, as read
+        lines.append(f"surface_elevation_m = {_toml_value(day.ground_m)}")
     lines += [f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}",
               f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
               f"isa_deviation_c = {_toml_value(day.isa_deviation_c)}"]

@@ -1,0 +1,69 @@
+"""The day model through the flight core: circling from the wing's stall speed, the
+thermal size from the day's convective layer."""
+
+from __future__ import annotations
+
+import dataclasses
+
+import pytest
+
+from glidetask.engine.flight import Course, Flights, fly
+from glidetask.engine.polar import PolarSpec
+from glidetask.engine.scenario import Day, Profile
+from glidetask.engine.thermals import allen_updraft_radius
+
+KMH = 1000.0 / 3600.0
+HOUR = 3600.0
+
+# An invented 15 m class example polar (not any real aircraft), with a stall speed given.
+SPEC = PolarSpec(label="test example", wing_area_m2=10.5, reference_mass_kg=350.0, empty_mass_kg=260.0,
+                 max_ballast_kg=150.0, max_mass_kg=525.0, vne_ias_ms=270 * KMH, min_speed_ias_ms=72 * KMH,
+                 points=((85 * KMH, 0.62), (120 * KMH, 0.80), (180 * KMH, 1.85)), stall_speed_ias_ms=64 * KMH)
+
+
+def _flights(spec):
+    return Flights(spec=spec, mass_kg=450.0, start_time_s=12 * HOUR, start_height_m=1800.0, band_top_m=1800.0,
+                   band_bottom_m=800.0, lift_ends_s=19 * HOUR, lift_times_s=[0.0], lift_values=[3.0],
+                   finish_elevation_m=200.0, lift_is_strength=True, thermal_radius_m=120.0)
+
+
+def test_moving_the_files_lowest_speed_leaves_the_climb_unchanged_when_the_stall_speed_is_given():
+    # Source: the turn physics of circling.py (stall speed x sqrt(n), a margin above it; e.g.
+    # F. Thomas, Fundamentals of Sailplane Design, 1999, from memory): the circling speed
+    # rests on the wing's stall speed, never on the polar file's lowest valid speed. The
+    # flight core once dropped the stall speed (its achieved-climb table then fell back to
+    # min_speed / 1.1), so moving min_speed from 72 to 84 km/h changed every climb.
+    course = Course([200e3], [0.0])
+    low = fly(course, _flights(SPEC))
+    high = fly(course, _flights(dataclasses.replace(SPEC, min_speed_ias_ms=84 * KMH)))
+    assert low.leg_climb_ms[0, 0] > 0.3
+    assert high.leg_climb_ms[0, 0] == pytest.approx(low.leg_climb_ms[0, 0], abs=1e-12)
+    without = fly(course, _flights(dataclasses.replace(SPEC, stall_speed_ias_ms=None, min_speed_ias_ms=84 * KMH)))
+    assert without.leg_climb_ms[0, 0] < low.leg_climb_ms[0, 0] - 0.05  # the default 84/1.1 = 76 km/h circles faster
+
+
+def _day(**changes):
+    base = dict(start_time_s=12 * HOUR, band_top_m=2200.0, band_bottom_m=1200.0, lift_ends_s=18 * HOUR,
+                thermal_strength=Profile.constant(3.0), ground_m=300.0)
+    base.update(changes)
+    return Day(**base)
+
+
+def test_default_thermal_radius_is_allens_for_the_layer_between_ground_and_band_top():
+    # Source: M. J. Allen, AIAA 2006-1510 (from memory): r2 = 0.102 (z/zi)^(1/3) (1 - 0.25 z/zi) zi,
+    # taken at z = 0.6 zi: 0.102 * 0.6^(1/3) * 0.85 = 0.0731 zi; here zi = 2200 - 300 = 1900 m.
+    day = _day()
+    assert day.layer_depth_m == 1900.0
+    assert day.effective_thermal_radius_m == pytest.approx(0.102 * 0.6 ** (1 / 3) * 0.85 * 1900.0, rel=1e-12)
+    assert day.effective_thermal_radius_m == pytest.approx(allen_updraft_radius(0.6 * 1900.0, 1900.0))
+    assert "Allen" in day.thermal_radius_source and "1.9 km" in day.thermal_radius_source
+
+
+def test_a_given_thermal_radius_overrides_the_layers():
+    day = _day(thermal_radius_m=250.0)
+    assert day.effective_thermal_radius_m == 250.0 and day.thermal_radius_source == "given in the task"
+
+
+def test_a_deeper_layer_gives_broader_thermals():
+    # Source: Allen 2006 (from memory): r2 grows in proportion to zi at a fixed z/zi.
+    assert _day(band_top_m=3000.0).effective_thermal_radius_m > _day().effective_thermal_radius_m
