@@ -164,6 +164,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, default=1, metavar="S", help="random seed (default 1)")
     p.add_argument("--ballast-kg", type=float, action="append", default=None, metavar="KG",
                    help="a ballast to compare (repeat for several; default: empty, half, full)")
+    p.add_argument("--spread", type=int, choices=(0, 1), default=1,
+                   help="1: days spread around the forecast (default); 0: the forecast day exactly, as plan flies it")
     _common(p)
 
     p = sub.add_parser("day", help="the day derived from the task's forecast sounding")

@@ -2,7 +2,8 @@
 
 ``--runs N`` simulated days (the same days for each ballast choice), ``--seed S`` for
 the random numbers (the same seed, the same answer), ``--ballast-kg KG`` once per choice
-(default: empty, half and full). See :mod:`glidetask.engine.simulate` for the spread of
+(default: empty, half and full), ``--spread 0|1`` (0: every simulated day is the forecast,
+flown exactly as ``plan`` flies it; 1, the default: days spread around it). See :mod:`glidetask.engine.simulate` for the spread of
 days assumed. Text output shows the finishing odds with their standard error, the task
 time percentiles among the finishers and the land-outs by leg; ``--json`` the same as data.
 """
@@ -48,7 +49,7 @@ def ballast_problems(scenario, ballasts) -> list[Problem]:
 
 
 def run(args: argparse.Namespace) -> int:
-    from glidetask.engine.simulate import simulate_days
+    from glidetask.engine.simulate import DaySpread, simulate_days
     from glidetask.formats import strategy_report
     from glidetask.formats.task_file import load_scenario
 
@@ -63,7 +64,8 @@ def run(args: argparse.Namespace) -> int:
     if problems:
         raise InputError(problems)
     ballasts = None if not args.ballast_kg else list(dict.fromkeys(args.ballast_kg))
-    odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts)
+    spread = DaySpread.none() if getattr(args, "spread", 1) == 0 else None  # 0: the forecast day, as plan flies it
+    odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts, spread=spread)
     if args.json:
         print_json(strategy_report.odds_to_dict(odds))
     else:

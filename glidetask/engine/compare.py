@@ -35,9 +35,9 @@ import numpy as np
 
 from glidetask.engine import plan as planning
 from glidetask.engine.circling import achieved_climb
-from glidetask.engine.flight import Flights, course_for, flights_for, fly
+from glidetask.engine.flight import Flights, climb_strengths, course_for, flights_for, fly
 from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
-from glidetask.engine.scenario import Scenario
+from glidetask.engine.scenario import Profile, Scenario
 from glidetask.engine.speedtofly import cruise_in_wind
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
@@ -47,8 +47,6 @@ SWEEP_PHASES = 16  # positions of the climbs along the route averaged over (see 
 #: gain is within what the model resolves (see :func:`ballast_sweep`) and not worth the water.
 BALLAST_GAIN_TOLERANCE = 0.002
 
-INVERSE_STRENGTH_STEP_MS = 0.01  # strength grid for turning a climb back into a thermal strength [m/s]
-INVERSE_STRENGTH_MAX_MS = 15.0  # the task file's largest profile value [m/s]
 
 
 # ---------------------------------------------------------------- shared helpers
@@ -71,18 +69,19 @@ def stack_flights(flights: Sequence[Flights]) -> Flights:
     Raises
     ------
     ValueError
-        Flights of different polars, profile times or kinds of profile.
+        Flights of different polars, wind profiles or profile times.
     """
     first = flights[0]
     for other in flights[1:]:
-        if (other.spec != first.spec or other.lift_is_strength != first.lift_is_strength
-                or other.wind_profile != first.wind_profile
+        if (other.spec != first.spec or other.wind_profile != first.wind_profile
                 or tuple(np.atleast_1d(other.lift_times_s)) != tuple(np.atleast_1d(first.lift_times_s))):
             raise ValueError("stacked flights must share the polar, the wind profile and the lift profile's times")
     columns = {name: np.array([np.asarray(getattr(f, name), dtype=float) for f in flights])
                for name in Flights._PER_FLIGHT}
     values = np.array([np.atleast_1d(np.asarray(f.lift_values, dtype=float)) for f in flights])
-    return dataclasses.replace(first, lift_values=values, **columns)
+    kinds = np.array([np.asarray(f.lift_is_strength, dtype=bool) for f in flights])
+    strength = bool(kinds[0]) if np.all(kinds == kinds[0]) else kinds  # one kind, or one per flight
+    return dataclasses.replace(first, lift_values=values, lift_is_strength=strength, **columns)
 
 
 def fly_stacked(course, flights: Sequence[Flights], **options) -> list:
@@ -140,58 +139,13 @@ def _band_polar(scenario: Scenario, ballast_kg):
                                     ballast_kg=np.asarray(ballast_kg, dtype=float))
 
 
-def strength_for_climb(scenario: Scenario, climb_ms):
-    """The thermal strength in which the glider as loaded achieves ``climb_ms`` [m/s]
-    (the circling model inverted on a 0.01 m/s grid; NaN above its range)."""
-    grid = np.arange(0.0, INVERSE_STRENGTH_MAX_MS + 1e-9, INVERSE_STRENGTH_STEP_MS)
-    own = np.asarray(achieved_climb(_band_polar(scenario, scenario.glider.ballast_kg), grid,
-                                    scenario.day.effective_thermal_radius_m).climb_ms, dtype=float)
-    own = np.maximum.accumulate(own)
-    climb = np.asarray(climb_ms, dtype=float)
-    return np.where(climb <= own[-1], np.interp(climb, own, grid), np.nan)
-
-
 def forecast_strength_ms(scenario: Scenario) -> float:
     """The thermal strength of the forecast's peak [m/s] (see :class:`BallastSweep`)."""
     day = scenario.day
     if day.thermal_strength is not None:
         return float(max(day.thermal_strength.values))
-    return float(strength_for_climb(scenario, max(day.climb.values)))
-
-
-def climb_values_for_ballasts(scenario: Scenario, ballasts_kg) -> np.ndarray:
-    """The day's achieved-climb profile values as other ballasts would climb in the same thermals.
-
-    A day given as achieved climb (``climb_ms``) is the climb of the glider as loaded in
-    the task file. For another ballast each value of the profile is turned back into the
-    thermal strength that gives it at the file's ballast, and that strength into the
-    climb at the other ballast, by the circling model in a thermal of the day's radius.
-
-    Parameters
-    ----------
-    scenario : Scenario
-        A day with a ``climb`` profile.
-    ballasts_kg : sequence of float
-        Ballasts [kg].
-
-    Returns
-    -------
-    ndarray, (B, P)
-        Climb [m/s] at each profile time for each ballast, not below 0. The file's own
-        ballast gets the profile's values unchanged, and a value of 0 (no lift) stays 0.
-    """
-    day = scenario.day
-    if day.climb is None:
-        raise ValueError("the day has no achieved-climb profile")
-    values = np.asarray(day.climb.values, dtype=float)
-    ballast = np.asarray(ballasts_kg, dtype=float)
-    strength = np.nan_to_num(strength_for_climb(scenario, values), nan=INVERSE_STRENGTH_MAX_MS)
-    polar = _band_polar(scenario, ballast[:, None])
-    climb = np.asarray(achieved_climb(polar, strength[None, :], day.effective_thermal_radius_m).climb_ms, dtype=float)
-    climb = np.where(values[None, :] > 0.0, np.maximum(climb, 0.0), 0.0)
-    same = ballast == scenario.glider.ballast_kg
-    climb[same] = values
-    return climb
+    peak = dataclasses.replace(scenario, day=dataclasses.replace(day, climb=Profile.constant(max(day.climb.values))))
+    return float(climb_strengths(peak)[0])
 
 
 # ---------------------------------------------------------------- ballast sweep

@@ -64,11 +64,12 @@ from glidetask.engine.flight_simulation import (  # the reasons a flight ends, n
     BELOW_FLOOR, FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, NO_THERMAL_FOUND, REASONS, UNREACHABLE, UNRESOLVED, Simulation,
 )
 from glidetask.engine.polar import PolarSpec
-from glidetask.engine.scenario import Scenario, WindProfile
+from glidetask.engine.circling import strength_for_climb
+from glidetask.engine.scenario import Profile, Scenario, WindProfile
 
 __all__ = ["BELOW_FLOOR", "FINAL_GLIDE", "LIFT_ENDED", "NO_CLIMB", "NO_THERMAL_FOUND", "REASONS", "UNREACHABLE",
            "UNRESOLVED", "Course", "Flights", "Flown", "RequirementHook", "SearchHook", "course_for", "flights_for",
-           "fly", "requirement_card"]
+           "fly", "requirement_card", "day_lift", "climb_strengths"]
 
 
 @dataclass(frozen=True)
@@ -135,7 +136,7 @@ class Flights:
         ``lift_is_strength``; linear between the times, held beyond them.
     lift_scale : array_like
         Factor on the profile's values per flight [-] (1 for the forecast).
-    lift_is_strength : bool
+    lift_is_strength : bool or array_like of bool
         The profile is thermal strength, turned into achieved climb by the circling
         model (:func:`glidetask.engine.circling.achieved_climb`) for each flight's polar.
     thermal_radius_m : array_like
@@ -377,7 +378,7 @@ def flights_for(scenario: Scenario) -> Flights:
     scenario are NaN (the core then follows the climb of each cycle).
     """
     day, glider, safety = scenario.day, scenario.glider, scenario.safety
-    profile = day.climb if day.climb is not None else day.thermal_strength
+    profile, is_strength = day_lift(scenario)
     nan = float("nan")
     cruise_wind = day.wind_at(day.band_middle_m)
     return Flights(
@@ -387,12 +388,43 @@ def flights_for(scenario: Scenario) -> Flights:
         start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
         band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
         lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
-        lift_is_strength=day.climb is None, thermal_radius_m=day.effective_thermal_radius_m,
+        lift_is_strength=is_strength, thermal_radius_m=day.effective_thermal_radius_m,
         mc_ms=nan if day.mc_ms is None else day.mc_ms,
         final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
         finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
         arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
         isa_deviation_c=day.isa_deviation_c)
+
+
+def day_lift(scenario: Scenario) -> tuple[Profile, bool]:
+    """The day's lift for the glider as loaded: ``(profile, is_strength)``.
+
+    A thermal-strength day is itself. A day of achieved climbs (``climb_ms``) belongs to
+    the loading they were given for (``Day.climb_ballast_kg``, the task file's ballast;
+    None: whatever the glider carries): at that ballast the climbs are flown as given;
+    at any other each value is turned once into the thermal strength in which the given
+    loading achieves it (:func:`glidetask.engine.circling.strength_for_climb`, at the band
+    middle's density, in thermals of the day's radius), and the circling model then gives
+    this mass its own climb (shared/CONTRACT.md section 3). No lift (0) stays none.
+    """
+    day, glider = scenario.day, scenario.glider
+    if day.climb is None:
+        return day.thermal_strength, True
+    if day.climb_ballast_kg is None or day.climb_ballast_kg == glider.ballast_kg:
+        return day.climb, False
+    return Profile(day.climb.times_s, tuple(float(x) for x in climb_strengths(scenario))), True
+
+
+def climb_strengths(scenario: Scenario) -> np.ndarray:
+    """The thermal strength behind each value of the day's achieved-climb profile [m/s]: the
+    strength in which the glider at the climbs' own ballast achieves it (0 where the profile
+    is 0). The one conversion from climb to strength (:func:`day_lift`)."""
+    day, glider = scenario.day, scenario.glider
+    ballast = glider.ballast_kg if day.climb_ballast_kg is None else day.climb_ballast_kg
+    own = glider.polar_at(day.band_middle_m, day.isa_deviation_c, ballast_kg=ballast)
+    values = np.asarray(day.climb.values, dtype=float)
+    strength = np.asarray(strength_for_climb(own, values, day.effective_thermal_radius_m), dtype=float)
+    return np.where(values > 0.0, np.nan_to_num(strength, nan=0.0), 0.0)
 
 
 def requirement_card(course: Course, flights: Flights, mc_values,

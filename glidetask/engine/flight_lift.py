@@ -29,7 +29,9 @@ class LiftClock:
         self.scale = columns["lift_scale"]
         self.ends = columns["lift_ends_s"]
         self.table = None
-        if flights.lift_is_strength:
+        # Per flight: the profile is thermal strength (True) or achieved climb (False).
+        self.is_strength = np.broadcast_to(np.asarray(flights.lift_is_strength, dtype=bool), self.ends.shape)
+        if self.is_strength.any():
             self._tabulate(polar, columns["thermal_radius_m"])
 
     def _tabulate(self, polar: Polar, radius) -> None:
@@ -70,5 +72,6 @@ class LiftClock:
             weight = x - j
             table = self.table[self.table_row[rows]]
             line = np.arange(rows.size)
-            value = np.where(value > 0.0, table[line, j] * (1.0 - weight) + table[line, j + 1] * weight, 0.0)
+            climb = np.where(value > 0.0, table[line, j] * (1.0 - weight) + table[line, j + 1] * weight, 0.0)
+            value = np.where(self.is_strength[rows], climb, value)
         return until_lift_ends(value, time_s, self.ends[rows])

@@ -297,6 +297,7 @@ class Day:
     mc_ms: float | None = None  # None: the achieved climb at that moment
     thermal_radius_m: float | None = None  # e-folding radius of the thermal core; None: from the day's layer
     ground_m: float = 0.0  # the ground under the convective layer [m MSL] (task_file: how it is chosen)
+    climb_ballast_kg: float | None = None  # the ballast ``climb`` was given for; None: the glider's own
 
     @property
     def band_middle_m(self) -> float:

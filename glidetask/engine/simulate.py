@@ -47,7 +47,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from glidetask.engine import flight
-from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights, usable_ballast_kg
+from glidetask.engine.compare import planned_route, stack_flights, usable_ballast_kg
 from glidetask.engine.flight import Flights, course_for, flights_for, fly
 from glidetask.engine.scenario import Scenario, with_what_ifs
 from glidetask.units import KMH
@@ -306,10 +306,9 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))
     if not choices:
         raise ValueError("give at least one ballast choice")
+    # Each ballast as the planner flies it (climbs of the file's loading: other ballasts climb
+    # in the same thermals, flight.day_lift).
     setups = [flights_for(with_what_ifs(scenario, ballast_kg=b)) for b in choices]
-    if scenario.day.climb is not None:  # climbs for the file's ballast: other ballasts climb as in the same thermals
-        rows = climb_values_for_ballasts(scenario, choices)
-        setups = [dataclasses.replace(s, lift_values=tuple(row)) for s, row in zip(setups, rows)]
     path, requirement = planned_route(scenario, path, requirement)
     course = course_for(path)
     days = draw_days(scenario, spread, runs, seed)
@@ -327,6 +326,8 @@ def _day_flights(scenario: Scenario, setups: list[Flights], days: Days, spread: 
     runs, count = days.climb_factor.size, len(setups)
     stacked = stack_flights(setups)
     per_choice = {name: np.repeat(np.asarray(getattr(stacked, name)), runs) for name in Flights._PER_FLIGHT}
+    if np.ndim(stacked.lift_is_strength):  # one kind of profile per choice (flight.day_lift)
+        per_choice["lift_is_strength"] = np.repeat(np.asarray(stacked.lift_is_strength), runs)
 
     def tile(array):
         return np.tile(array, count)

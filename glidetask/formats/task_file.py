@@ -467,7 +467,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     safety = _safety(reader, reader.table(document, "safety", required=False))
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
     reader.problems.raise_if_any()
-    day = dataclasses.replace(day, ground_m=_ground_m(day_table, task))
+    # Achieved climbs belong to the file's loading: other ballasts climb as the circling model says.
+    day = dataclasses.replace(day, ground_m=_ground_m(day_table, task),
+                              climb_ballast_kg=glider.ballast_kg if day.climb is not None else None)
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
                     terrain_file=terrain, source=file,
                     turnpoints_file=None if turnpoint_file is None else str(turnpoint_file))

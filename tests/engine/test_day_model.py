@@ -67,3 +67,58 @@ def test_a_given_thermal_radius_overrides_the_layers():
 def test_a_deeper_layer_gives_broader_thermals():
     # Source: Allen 2006 (from memory): r2 grows in proportion to zi at a fixed z/zi.
     assert _day(band_top_m=3000.0).effective_thermal_radius_m > _day().effective_thermal_radius_m
+
+
+# ---------------------------------------------------------------- one day, every mass
+
+DEMO = __import__("pathlib").Path(__file__).resolve().parents[2] / "demo_tasks" / "vardmoor-triangle-300.toml"
+BALLASTS = (0.0, 40.0, 100.0, 130.0, 170.0)
+
+
+@pytest.fixture(scope="module")
+def demo():
+    from glidetask.formats.task_file import load_scenario
+
+    return load_scenario(DEMO)
+
+
+def test_plan_and_odds_on_the_forecast_day_agree_for_every_ballast(demo):
+    # Source: contract section 3 and 4 (one day, every mass; `odds --spread 0` flies the forecast
+    # day exactly and must agree with `plan`): the climbs of the task file's loading are turned
+    # into thermal strengths once, and every other ballast climbs as the circling model says.
+    from glidetask.engine.plan import plan
+    from glidetask.engine.simulate import DaySpread, simulate_days
+
+    odds = simulate_days(demo, runs=3, seed=1, ballasts_kg=BALLASTS, spread=DaySpread.none())
+    for ballast, choice in zip(BALLASTS, odds.choices):
+        planned = plan(demo, ballast_kg=ballast)
+        assert planned.finished and choice.finished == 3
+        assert choice.task_time_s[1] == pytest.approx(planned.total_time_s, rel=0.01)
+        assert choice.forecast_time_s == pytest.approx(planned.total_time_s, rel=1e-9)  # the same flight
+
+
+def test_ballast_answers_do_not_contradict_each_other(demo):
+    # The coach's check of issue 12: full water no longer "gains 23 minutes" in plan while
+    # the odds show a minute; at the file's own ballast the plan is the climbs as given.
+    from glidetask.engine.plan import plan
+
+    times = [plan(demo, ballast_kg=b).total_time_s for b in BALLASTS]
+    assert max(times) - min(times) < 0.03 * min(times)
+    file_ballast = plan(demo)
+    assert file_ballast.total_time_s == plan(demo, ballast_kg=demo.glider.ballast_kg).total_time_s
+
+
+def test_the_sweeps_row_at_the_days_thermal_strength_agrees_with_the_plan(demo):
+    # A day of one achieved climb all day: its thermal strength (the one conversion) is a
+    # row of the sweep, and that row's times are the plan's at each ballast (within 1 %: the
+    # sweep averages where the climbs fall along the route, the plan flies them where they fall).
+    from glidetask.engine.compare import ballast_sweep
+    from glidetask.engine.flight import climb_strengths
+    from glidetask.engine.plan import plan
+
+    day = dataclasses.replace(demo.day, climb=Profile.constant(1.8), mc_ms=None)
+    steady = dataclasses.replace(demo, day=day)
+    strength = float(climb_strengths(steady)[0])
+    sweep = ballast_sweep(steady, strengths_ms=(strength,), ballasts_kg=BALLASTS)
+    for j, ballast in enumerate(BALLASTS):
+        assert sweep.task_time_s[0, j] == pytest.approx(plan(steady, ballast_kg=ballast).total_time_s, rel=0.01)
