@@ -84,17 +84,20 @@ def stack_flights(flights: Sequence[Flights]) -> Flights:
     return dataclasses.replace(first, lift_values=values, lift_is_strength=strength, **columns)
 
 
-def fly_stacked(course, flights: Sequence[Flights], **options) -> list:
-    """Fly single flights in as few core calls as they allow (one per wind profile; the
-    core shares a profile between its flights) and return each one's
-    :class:`~glidetask.engine.flight.Flown` in the given order."""
+def fly_stacked(course, flights: Sequence[Flights], detour_factors=None, **options) -> list:
+    """Fly single flights in as few core calls as they allow (one per wind profile and
+    detour factor: the core shares those between its flights) and return each one's
+    :class:`~glidetask.engine.flight.Flown` in the given order. ``detour_factors`` (one
+    per flight) replace the course's own."""
+    detours = [course.detour_factor] * len(flights) if detour_factors is None else list(detour_factors)
     groups: dict[int, list[int]] = {}
     for i, f in enumerate(flights):
-        key = next((k for k in groups if flights[k].wind_profile == f.wind_profile), i)
+        key = next((k for k in groups if flights[k].wind_profile == f.wind_profile and detours[k] == detours[i]), i)
         groups.setdefault(key, []).append(i)
     out = [None] * len(flights)
-    for members in groups.values():
-        flown = fly(course, stack_flights([flights[i] for i in members]), **options)
+    for key, members in groups.items():
+        flown = fly(dataclasses.replace(course, detour_factor=detours[key]),
+                    stack_flights([flights[i] for i in members]), **options)
         for j, i in enumerate(members):
             out[i] = flown.flight(j)
     return out
@@ -319,7 +322,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         base, mass_kg=glider.mass_with_ballast_kg(b_grid).ravel(),
         start_height_m=h_grid.ravel(), lift_scale=s_grid.ravel(), lift_times_s=(day.start_time_s,),
         lift_values=(1.0,), lift_is_strength=True, mc_ms=math.nan)
-    flown = fly(course_for(path), flights, requirement=requirement, detail=False)
+    flown = fly(course_for(path, scenario.day.detour_percent), flights, requirement=requirement, detail=False)
     with np.errstate(invalid="ignore", divide="ignore"):
         worth = (h_grid - day.effective_start_height_m) / climb[..., None]
     worth = np.where(h_grid == day.effective_start_height_m, 0.0, worth)

@@ -82,10 +82,15 @@ class Course:
         Leg lengths along the planned path [m].
     course_deg : ndarray, shape (L,)
         Geodesic azimuth at each leg's start [deg true].
+    detour_factor : float, default 1
+        The distance flown per metre of the planned path [-], >= 1 (``1 + detour_percent/100``,
+        common practice): every leg is flown this much longer; the core's results are
+        given in metres of the planned path all the same.
     """
 
     distance_m: np.ndarray
     course_deg: np.ndarray
+    detour_factor: float = 1.0
 
     def __post_init__(self):
         distance = np.atleast_1d(np.asarray(self.distance_m, dtype=float))
@@ -94,6 +99,8 @@ class Course:
             raise ValueError("a course needs one distance and one course per leg (at least one leg)")
         if np.any(~(distance >= 0.0)):
             raise ValueError("leg distances must be finite and not negative")
+        if not self.detour_factor >= 1.0:
+            raise ValueError("the detour factor must be 1 or more")
         object.__setattr__(self, "distance_m", distance)
         object.__setattr__(self, "course_deg", course)
 
@@ -151,6 +158,8 @@ class Flights:
         Average vertical air motion while gliding, up positive [m/s].
     isa_deviation_c : array_like
         ISA temperature deviation [degC].
+    centring_s : array_like
+        Time lost centring each thermal before the climb begins [s] (common practice: 30 s).
     """
 
     spec: PolarSpec
@@ -174,12 +183,13 @@ class Flights:
     arrival_margin_m: object = 200.0
     glide_airmass_ms: object = 0.0
     isa_deviation_c: object = 0.0
+    centring_s: object = 0.0
     wind_profile: object = None
 
     _PER_FLIGHT = ("mass_kg", "start_time_s", "start_height_m", "band_top_m", "band_bottom_m", "lift_ends_s",
                    "finish_elevation_m", "bugs_percent", "wind_from_deg", "wind_speed_ms", "lift_scale",
                    "thermal_radius_m", "mc_ms", "final_glide_mc_ms", "arrival_margin_m", "glide_airmass_ms",
-                   "isa_deviation_c")
+                   "isa_deviation_c", "centring_s")
 
     def columns(self) -> dict[str, np.ndarray]:
         """The per-flight fields as float arrays of one shape (N,) (read-only views)."""
@@ -364,9 +374,11 @@ def fly(course: Course, flights: Flights, *, search: SearchHook | None = None,
 # ---------------------------------------------------------------- the core's inputs from a scenario
 
 
-def course_for(path) -> Course:
-    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`)."""
-    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs])
+def course_for(path, detour_percent: float = 0.0) -> Course:
+    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`),
+    flown ``detour_percent`` longer (``Day.detour_percent``)."""
+    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs],
+                  1.0 + float(detour_percent) / 100.0)
 
 
 def flights_for(scenario: Scenario) -> Flights:
@@ -393,7 +405,7 @@ def flights_for(scenario: Scenario) -> Flights:
         final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
         finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
         arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
-        isa_deviation_c=day.isa_deviation_c)
+        isa_deviation_c=day.isa_deviation_c, centring_s=day.centring_s)
 
 
 def day_lift(scenario: Scenario) -> tuple[Profile, bool]:

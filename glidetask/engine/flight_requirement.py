@@ -60,6 +60,8 @@ class FinalGlideRequirement:
         """The hook's extra height, asked only where the pure requirement is defined: a flight
         still too far out for a final-glide table (NaN) needs nothing from it."""
         asked = np.isfinite(required)
+        # The hook works in metres of the planned path; the core in metres flown (the detour).
+        position, hpm = position / self.detour, hpm * self.detour
         if asked.all():
             return np.asarray(self.requirement_hook(position, hpm, floor), dtype=float)
         extra = np.zeros(required.shape)

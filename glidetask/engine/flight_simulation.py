@@ -55,9 +55,12 @@ class Simulation(FinalGlideRequirement):
         n, legs = inputs["mass_kg"].size, course.legs
         self.n, self.legs, self.spec = n, legs, flights.spec
         self.inputs, self.search_hook, self.requirement_hook = inputs, search, requirement
-        self.leg_length = course.distance_m
+        # Inside the core distances are metres flown: the planned path's times the detour
+        # factor; results and the requirement hook are in metres of the planned path.
+        self.detour = course.detour_factor
+        self.leg_length = course.distance_m * self.detour
         self.course_deg = course.course_deg
-        self.leg_start = course.leg_start_m
+        self.leg_start = course.leg_start_m * self.detour
         self.aloft = WindAloft(inputs, self.course_deg, flights.wind_profile)
         self.wind_along, self.wind_across = self.aloft.cruise()  # the cruise's glides: at the band middle
         self.climb_along, self.climb_across = self.wind_along, self.wind_across  # the cycle's climbs
@@ -256,7 +259,15 @@ class Simulation(FinalGlideRequirement):
         self.leg_mc[rows[first], k[first]] = self.cycle_mc[rows[first]]
         self.leg_has_climb[rows, k] = True
         self.climbs[rows] += 1
+        self._centre(rows, k)
         self.mode[rows] = _CLIMB
+
+    def _centre(self, rows, k) -> None:
+        """Time lost centring the thermal before the climb begins (``centring_s``), at the
+        climb's bottom (its drift in that time is neglected: 30 s at 20 km/h is 170 m)."""
+        centring = self.inputs["centring_s"][rows]
+        self.time[rows] += centring
+        self.leg_time[rows, k] += centring
 
     def _climb(self, rows) -> None:
         k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
@@ -479,9 +490,9 @@ class Simulation(FinalGlideRequirement):
         return dict(
             finished=self.finished.copy(), reason=self.reason.copy(), total_time_s=self.end_time - start,
             finish_time_s=finish, end_time_s=self.end_time.copy(), stop_time_s=self.stop_time.copy(),
-            landout_m=np.where(self.finished, np.nan, self.landout_at),
+            landout_m=np.where(self.finished, np.nan, self.landout_at / self.detour),
             landout_leg=np.where(self.finished, -1, self.landout_leg),
-            final_glide_from_m=self.flown_final_from.copy(), final_glide_height_m=self.flown_final_height.copy(),
+            final_glide_from_m=self.flown_final_from / self.detour, final_glide_height_m=self.flown_final_height.copy(),
             final_glide_mc_ms=self.flown_final_mc.copy(), final_glide_sigma=self.flown_final_sigma.copy(),
             final_glide_leg=self.flown_final_leg.copy(), climbs=self.climbs.copy(),
             last_climb_end_s=self.last_climb_end.copy(), leg_time_s=self.leg_time.copy(),

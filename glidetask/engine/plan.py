@@ -307,7 +307,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     def fly_path(path):
         hook = None if requirement_for is None else requirement_for(scenario, path)
         hooks.append((path, hook))
-        return fly(course_for(path), flights, requirement=hook)
+        return fly(course_for(path, scenario.day.detour_percent), flights, requirement=hook)
 
     if task.kind == "area":
         path, flown, area, notes = _area_path(scenario, fly_path)
@@ -488,5 +488,5 @@ def final_glide_card(plan: Plan, mc_values=CARD_MC_MS) -> np.ndarray:
     margin, the density at the middle of its start and arrival heights, and the terrain
     ahead when the plan has an elevation model.
     """
-    return flight.requirement_card(course_for(plan.path), flights_for(plan.scenario), mc_values,
+    return flight.requirement_card(course_for(plan.path, plan.scenario.day.detour_percent), flights_for(plan.scenario), mc_values,
                                    requirement=plan.requirement)[0]

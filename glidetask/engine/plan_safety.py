@@ -118,7 +118,8 @@ def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
     along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), wind.from_deg, wind.speed_ms)
     polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
     glide = glide_in_wind(polar, mc, along, across, day.glide_airmass_ms)
-    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float), (len(path.legs),)).copy()
+    detour = 1.0 + day.detour_percent / 100.0  # per metre of the planned path, flown this much longer
+    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float) * detour, (len(path.legs),)).copy()
 
 
 _COVERAGE_CACHE: "OrderedDict[tuple, object]" = OrderedDict()

@@ -298,6 +298,8 @@ class Day:
     thermal_radius_m: float | None = None  # e-folding radius of the thermal core; None: from the day's layer
     ground_m: float = 0.0  # the ground under the convective layer [m MSL] (task_file: how it is chosen)
     climb_ballast_kg: float | None = None  # the ballast ``climb`` was given for; None: the glider's own
+    centring_s: float = 0.0  # time lost centring each thermal [s] (the task file's default: 30, common practice)
+    detour_percent: float = 0.0  # the planned path flown this much longer [%] (task file default: 5, common practice)
 
     @property
     def band_middle_m(self) -> float:

@@ -88,7 +88,7 @@ def _weaker(profile: Profile, by: float) -> Profile:
     return Profile(profile.times_s, tuple(max(v - by, 0.0) for v in profile.values))
 
 
-WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs")
+WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs", "pure_model")
 
 
 def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario | None]]:
@@ -117,6 +117,11 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
             out.append((key, label, change, with_what_ifs(scenario, **what_if)))
         except InputError:
             out.append((key, label, change + ": at or after the end of lift", None))
+    if day.centring_s > 0.0 or day.detour_percent > 0.0:  # what the practical allowances cost
+        pure = dataclasses.replace(day, centring_s=0.0, detour_percent=0.0)
+        out.append(("pure_model", "No centring, no detour",
+                    f"centring 0 s, detour 0 % (planned: {day.centring_s:g} s a climb, {day.detour_percent:g} %)",
+                    dataclasses.replace(scenario, day=pure)))
     return out
 
 
@@ -152,8 +157,9 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
     path, requirement = planned_route(scenario, path, requirement)
     variants = what_if_scenarios(scenario)
     flyable = [v for v in variants if v[3] is not None]
-    flown = fly_stacked(course_for(path), [flights_for(v[3]) for v in flyable], requirement=requirement,
-                        detail=False)
+    flown = fly_stacked(course_for(path, scenario.day.detour_percent), [flights_for(v[3]) for v in flyable],
+                        [course_for(path, v[3].day.detour_percent).detour_factor for v in flyable],
+                        requirement=requirement, detail=False)
     by_key = {key: flown[i] for i, (key, _, _, _) in enumerate(flyable)}
     rows = [_sensitivity_row(key, label, change, by_key.get(key), scenario, path)
             for key, label, change, _ in variants]

@@ -310,7 +310,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     # in the same thermals, flight.day_lift).
     setups = [flights_for(with_what_ifs(scenario, ballast_kg=b)) for b in choices]
     path, requirement = planned_route(scenario, path, requirement)
-    course = course_for(path)
+    course = course_for(path, scenario.day.detour_percent)
     days = draw_days(scenario, spread, runs, seed)
     flights, search = _day_flights(scenario, setups, days, spread)
     flown = fly(course, flights, search=search, requirement=requirement, detail=False)

@@ -49,11 +49,14 @@ TASK_KEYS = ("name", "kind", "turnpoints", "min_time_min", "points")
 GLIDER_KEYS = ("polar", "pilot_kg", "ballast_kg", "bugs_percent")
 DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind", "climb_ms",
             "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m",
+            "centring_s", "detour_percent",
             # the day from a sounding (contract 2.7), read by glidetask.formats.sounding_file
             "sounding", "surface", "surface_elevation_m", "band_top_margin_m", "band_bottom_agl_m")
 SAFETY_KEYS = ("arrival_margin_m", "terrain_clearance_m", "final_glide_mc_ms")
 TERRAIN_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
+DEFAULT_CENTRING_S = 30.0  # time lost centring each thermal [s] (common practice; contract 2.3)
+DEFAULT_DETOUR_PERCENT = 5.0  # distance flown beyond the planned path [%] (common practice; contract 2.3)
 
 # Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
 _START_FINISH = {"line": {"length_km": None}, "cylinder": {"radius_km": None}}
@@ -382,15 +385,17 @@ def _day(reader: _Reader, table: dict) -> Day | None:
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
     radius = reader.number(table, "[day]", "thermal_radius_m", positive=True)
+    centring = reader.number(table, "[day]", "centring_s", default=DEFAULT_CENTRING_S, low=0.0, high=600.0)
+    detour = reader.number(table, "[day]", "detour_percent", default=DEFAULT_DETOUR_PERCENT, low=0.0, high=50.0)
     if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa):
         return None
     if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
         return None
-    if "thermal_radius_m" in table and radius is None:
+    if ("thermal_radius_m" in table and radius is None) or centring is None or detour is None:
         return None
     return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
                climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
-               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius)
+               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius, centring_s=centring, detour_percent=detour)
 
 
 def _safety(reader: _Reader, table: dict | None) -> Safety | None:
@@ -580,6 +585,7 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
     # absent, it comes from the day's convective layer.
     if day.thermal_radius_m is not None:
         lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    lines += [f"centring_s = {_toml_value(day.centring_s)}", f"detour_percent = {_toml_value(day.detour_percent)}"]
     if day.ground_m != min(point.turnpoint.elevation_m for point in task.points):  # the layer's ground, as read
         lines.append(f"surface_elevation_m = {_toml_value(day.ground_m)}")
     lines += [f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}",

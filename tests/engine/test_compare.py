@@ -281,6 +281,7 @@ def _what_if_plans(s: Scenario) -> dict:
         "more_wind": plan(s, wind=Wind(day.wind.from_deg, day.wind.speed_ms + 10 * KMH)),
         "later_start": plan(s, start_time_s=day.start_time_s + 1800.0),
         "more_bugs": plan(s, bugs_percent=s.glider.bugs_percent + 5.0),
+        "pure_model": plan(dataclasses.replace(s, day=dataclasses.replace(day, centring_s=0.0, detour_percent=0.0))),
     }
 
 
@@ -306,6 +307,8 @@ def test_weaker_climbs_more_bugs_and_more_wind_cost_time(demo):
     delta = {row.key: row.delta_s for row in result.rows}
     assert delta["weaker_climbs"] > 0.0 and delta["more_bugs"] > 0.0 and delta["more_wind"] > 0.0
     assert result.forecast.delta_s == 0.0
+    # Centring time and detours cost time: the pure model is faster (contract section 3).
+    assert delta["pure_model"] < 0.0
 
 
 def test_a_start_after_the_end_of_lift_is_not_flown():

@@ -122,3 +122,39 @@ def test_the_sweeps_row_at_the_days_thermal_strength_agrees_with_the_plan(demo):
     sweep = ballast_sweep(steady, strengths_ms=(strength,), ballasts_kg=BALLASTS)
     for j, ballast in enumerate(BALLASTS):
         assert sweep.task_time_s[0, j] == pytest.approx(plan(steady, ballast_kg=ballast).total_time_s, rel=0.01)
+
+
+# ---------------------------------------------------------------- practical speeds
+
+
+def _calm(**changes):
+    base = dict(spec=SPEC, mass_kg=400.0, start_time_s=12 * HOUR, start_height_m=1800.0, band_top_m=1800.0,
+                band_bottom_m=800.0, lift_ends_s=20 * HOUR, lift_times_s=[0.0], lift_values=[2.0],
+                finish_elevation_m=200.0, final_glide_mc_ms=1.0)
+    base.update(changes)
+    return Flights(**base)
+
+
+def test_centring_time_adds_exactly_its_time_per_climb():
+    # Source: contract section 3 (each climb costs centring_s more): with a steady climb that
+    # never ends, time changes nothing else, so the task takes climbs x centring_s longer.
+    course = Course([300e3], [45.0])
+    pure = fly(course, _calm())
+    practical = fly(course, _calm(centring_s=30.0))
+    assert practical.climbs[0] == pure.climbs[0] > 3
+    assert practical.total_time_s[0] == pytest.approx(pure.total_time_s[0] + 30.0 * pure.climbs[0], abs=1e-6)
+    assert practical.final_glide_from_m[0] == pytest.approx(pure.final_glide_from_m[0], abs=1e-6)
+
+
+def test_a_detour_flies_the_course_that_much_longer():
+    # Source: contract section 3 (the planned path flown detour_percent longer): a 5 % detour
+    # on 300 km flies as 315 km; positions come back in metres of the planned path.
+    detoured = fly(Course([300e3], [45.0], detour_factor=1.05), _calm())
+    longer = fly(Course([315e3], [45.0]), _calm())
+    assert detoured.total_time_s[0] == pytest.approx(longer.total_time_s[0], rel=1e-12)
+    assert detoured.final_glide_from_m[0] * 1.05 == pytest.approx(longer.final_glide_from_m[0], rel=1e-12)
+
+
+def test_task_file_defaults_for_practical_speeds(demo):
+    # Contract 2.3: centring_s default 30 s, detour_percent default 5 % (common practice).
+    assert (demo.day.centring_s, demo.day.detour_percent) == (30.0, 5.0)
