@@ -38,6 +38,7 @@ import numpy as np
 
 from glidetask import cautions as caution_text
 from glidetask.engine import flight
+from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine import task as task_geometry
 from glidetask.engine import task_search
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
@@ -88,6 +89,11 @@ class LegPlan:
         The leg is flown entirely in final glide.
     start_time_s : float
         Clock time at the leg's start [s after midnight]; NaN if not reached.
+    indicated_airspeed_ms : float
+        ``airspeed_ms`` as indicated, ``TAS sqrt(sigma)`` at the leg's density (the band
+        middle's; a final-glide leg's, its final glide's) [m/s IAS]: what the pilot flies.
+    average_speed_ms : float
+        The leg's distance over its time [m/s], climbs, centring and detour included.
     """
 
     from_name: str
@@ -105,6 +111,8 @@ class LegPlan:
     arrival_height_m: float
     final_glide: bool
     start_time_s: float
+    indicated_airspeed_ms: float = math.nan
+    average_speed_ms: float = math.nan
 
 
 @dataclass(frozen=True)
@@ -387,7 +395,7 @@ def _bisect_depth(attempt, low, high, minimum, tries: int = 14):
 def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes) -> Plan:
     day = scenario.day
     polar = scenario.glider.polar_at(day.band_middle_m, day.isa_deviation_c)
-    legs = _legs(path, flown)
+    legs = _legs(path, flown, float(density_ratio(day.band_middle_m, day.isa_deviation_c)))
     finished = bool(flown.finished[0])
     total = float(flown.total_time_s[0])
     planned = path.total_m
@@ -409,8 +417,9 @@ def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes)
     return dataclasses.replace(plan, notices=tuple(notes) + plan_notices(plan))
 
 
-def _legs(path, flown: Flown) -> tuple[LegPlan, ...]:
-    """The plan's legs from the flight core's records (one flight); NaN where not reached."""
+def _legs(path, flown: Flown, band_sigma: float) -> tuple[LegPlan, ...]:
+    """The plan's legs from the flight core's records (one flight); NaN where not reached.
+    ``band_sigma``: the density ratio at the band middle (the cruise's)."""
     reached = np.isfinite(flown.leg_entry_time_s[0])
     out = []
     for i, leg in enumerate(path.legs):
@@ -423,7 +432,10 @@ def _legs(path, flown: Flown) -> tuple[LegPlan, ...]:
             glide_ground_speed_ms=value("leg_ground_speed_ms"), cruise_speed_ms=value("leg_cruise_speed_ms"),
             time_s=value("leg_time_s"), required_height_m=value("leg_required_height_m"),
             arrival_height_m=float(flown.leg_arrival_height_m[0, i]), final_glide=bool(flown.leg_final[0, i]),
-            start_time_s=float(flown.leg_entry_time_s[0, i])))
+            start_time_s=float(flown.leg_entry_time_s[0, i]),
+            indicated_airspeed_ms=value("leg_airspeed_ms") * math.sqrt(
+                float(flown.final_glide_sigma[0]) if flown.leg_final[0, i] else band_sigma),
+            average_speed_ms=float(leg.distance_m) / value("leg_time_s") if value("leg_time_s") > 0.0 else math.nan))
     return tuple(out)
 
 

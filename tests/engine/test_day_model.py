@@ -158,3 +158,20 @@ def test_a_detour_flies_the_course_that_much_longer():
 def test_task_file_defaults_for_practical_speeds(demo):
     # Contract 2.3: centring_s default 30 s, detour_percent default 5 % (common practice).
     assert (demo.day.centring_s, demo.day.detour_percent) == (30.0, 5.0)
+
+
+# ---------------------------------------------------------------- what the pilot reads
+
+
+def test_each_leg_has_its_indicated_airspeed_and_its_average_speed(demo):
+    # Source: ISO 2533 troposphere (from memory): rho/rho0 = (1 - 2.25577e-5 h)^4.25588 with h
+    # in m; IAS = TAS sqrt(rho/rho0) (the pitot reads dynamic pressure). Average speed: the
+    # leg's distance over its time (issue 12: not the theoretical cruise speed).
+    from glidetask.engine.plan import plan
+
+    planned = plan(demo)
+    sigma_band = (1.0 - 2.25577e-5 * demo.day.band_middle_m) ** 4.25588
+    for leg in planned.legs:
+        assert leg.average_speed_ms == pytest.approx(leg.distance_m / leg.time_s, rel=1e-12)
+        if not leg.final_glide:
+            assert leg.indicated_airspeed_ms == pytest.approx(leg.airspeed_ms * sigma_band ** 0.5, rel=1e-4)
