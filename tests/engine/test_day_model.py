@@ -164,13 +164,15 @@ def test_task_file_defaults_for_practical_speeds(demo):
 
 
 def test_each_leg_has_its_indicated_airspeed_and_its_average_speed(demo):
-    # Source: ISO 2533 troposphere (from memory): rho/rho0 = (1 - 2.25577e-5 h)^4.25588 with h
-    # in m; IAS = TAS sqrt(rho/rho0) (the pitot reads dynamic pressure). Average speed: the
-    # leg's distance over its time (issue 12: not the theoretical cruise speed).
+    # Source: ISO 2533 troposphere (from memory): p/p0 = (1 - 2.25577e-5 h)^5.25588, h in m,
+    # and the gas law with the day's ISA deviation dT: rho/rho0 = (p/p0) 288.15/(288.15 -
+    # 0.0065 h + dT); IAS = TAS sqrt(rho/rho0) (the pitot reads dynamic pressure). Average
+    # speed: the leg's distance over its time (issue 12: not the theoretical cruise speed).
     from glidetask.engine.plan import plan
 
     planned = plan(demo)
-    sigma_band = (1.0 - 2.25577e-5 * demo.day.band_middle_m) ** 4.25588
+    h, warm = demo.day.band_middle_m, demo.day.isa_deviation_c
+    sigma_band = (1.0 - 2.25577e-5 * h) ** 5.25588 * 288.15 / (288.15 - 0.0065 * h + warm)
     for leg in planned.legs:
         assert leg.average_speed_ms == pytest.approx(leg.distance_m / leg.time_s, rel=1e-12)
         if not leg.final_glide:
