@@ -164,16 +164,55 @@ def test_task_file_defaults_for_practical_speeds(demo):
 
 
 def test_each_leg_has_its_indicated_airspeed_and_its_average_speed(demo):
-    # Source: ISO 2533 troposphere (from memory): p/p0 = (1 - 2.25577e-5 h)^5.25588, h in m,
-    # and the gas law with the day's ISA deviation dT: rho/rho0 = (p/p0) 288.15/(288.15 -
-    # 0.0065 h + dT); IAS = TAS sqrt(rho/rho0) (the pitot reads dynamic pressure). Average
-    # speed: the leg's distance over its time (issue 12: not the theoretical cruise speed).
+    # Source: ISO 2533 troposphere (from memory) in a column dT warmer at every height,
+    # integrated hydrostatically: p/p0 = ((288.15 + dT - 0.0065 h)/(288.15 + dT))^5.25588,
+    # rho/rho0 = (p/p0) 288.15/(288.15 - 0.0065 h + dT) (geometric h: 0.5 m off the
+    # geopotential at 1.7 km, 5e-5 in sigma); IAS = TAS sqrt(rho/rho0) (the pitot reads
+    # dynamic pressure). Average speed: the leg's distance over its time (issue 12).
     from glidetask.engine.plan import plan
 
     planned = plan(demo)
     h, warm = demo.day.band_middle_m, demo.day.isa_deviation_c
-    sigma_band = (1.0 - 2.25577e-5 * h) ** 5.25588 * 288.15 / (288.15 - 0.0065 * h + warm)
+    t = 288.15 - 0.0065 * h + warm
+    sigma_band = (t / (288.15 + warm)) ** 5.25588 * 288.15 / t
     for leg in planned.legs:
         assert leg.average_speed_ms == pytest.approx(leg.distance_m / leg.time_s, rel=1e-12)
         if not leg.final_glide:
             assert leg.indicated_airspeed_ms == pytest.approx(leg.airspeed_ms * sigma_band ** 0.5, rel=1e-4)
+
+
+# ---------------------------------------------------------------- a warm or cold column
+
+
+@pytest.mark.parametrize("height", [500.0, 1500.0, 3000.0])
+def test_density_ratio_on_a_warm_day_against_the_hydrostatic_integral(height):
+    # Source: hydrostatic balance dp/dz = -rho g with the ideal gas rho = p/(R T) (any
+    # meteorology text), integrated numerically by scipy's quad for a column 20 C warmer
+    # than ISO 2533 at every height (T0 = 288.15 K, L = 0.0065 K/m, R = 287.05287, g0 =
+    # 9.80665; geopotential heights, as the standard defines them).
+    import math
+
+    from scipy.integrate import quad
+
+    from glidetask.engine.atmosphere import density_ratio, geopotential_altitude
+
+    warm, g0, r = 20.0, 9.80665, 287.05287
+    z = float(geopotential_altitude(height))
+    log_ratio, _ = quad(lambda h: -g0 / (r * (288.15 - 0.0065 * h + warm)), 0.0, z, epsabs=1e-13)
+    sigma = math.exp(log_ratio) * 288.15 / (288.15 - 0.0065 * z + warm)
+    assert density_ratio(height, warm) == pytest.approx(sigma, rel=1e-10)
+    assert density_ratio(height, warm) < density_ratio(height, 0.0)
+
+
+def test_a_plan_on_a_warm_day_scales_its_speeds_by_the_density(demo):
+    # Source: contract section 3 (the polar's speeds times 1/sqrt(sigma)): the best-glide
+    # speed at the band middle scales with sqrt(sigma_standard / sigma_warm) exactly.
+    from glidetask.engine.atmosphere import density_ratio
+    from glidetask.engine.plan import plan
+
+    h = demo.day.band_middle_m
+    standard = plan(dataclasses.replace(demo, day=dataclasses.replace(demo.day, isa_deviation_c=0.0)))
+    warm = plan(dataclasses.replace(demo, day=dataclasses.replace(demo.day, isa_deviation_c=20.0)))
+    ratio = (density_ratio(h, 0.0) / density_ratio(h, 20.0)) ** 0.5
+    assert warm.best_ld_speed_ms == pytest.approx(standard.best_ld_speed_ms * ratio, rel=1e-12)
+    assert warm.total_time_s != standard.total_time_s
