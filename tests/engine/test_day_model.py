@@ -216,3 +216,66 @@ def test_a_plan_on_a_warm_day_scales_its_speeds_by_the_density(demo):
     ratio = (density_ratio(h, 0.0) / density_ratio(h, 20.0)) ** 0.5
     assert warm.best_ld_speed_ms == pytest.approx(standard.best_ld_speed_ms * ratio, rel=1e-12)
     assert warm.total_time_s != standard.total_time_s
+
+
+# ---------------------------------------------------------------- sinking air, the solver's step
+
+
+def test_glide_and_cruise_in_sinking_air_against_the_closed_form():
+    # Source: MacCready theory in moving air (P. B. MacCready 1958; H. Reichmann, Cross-Country
+    # Soaring, 1978; from memory): in air sinking at 0.5 m/s (u = -0.5) the speed to fly is
+    # v = sqrt((c + m - u)/a), the height used per metre (sink(v) - u)/v, and the cruise
+    # speed with climbs m v / (m + sink(v) - u).
+    from glidetask.engine.polar import scaled_polar
+    from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
+
+    polar = scaled_polar(SPEC, 450.0, 0.0, 0.85)
+    u = -0.5
+    for m in (0.0, 1.0, 2.5):
+        v = ((polar.c + m - u) / polar.a) ** 0.5
+        sink = (polar.a * v + polar.b) * v + polar.c
+        glide = glide_in_wind(polar, m, 0.0, 0.0, u)
+        assert glide.airspeed_ms == pytest.approx(v, rel=1e-9)
+        assert glide.height_per_metre == pytest.approx((sink - u) / v, rel=1e-9)
+        if m > 0.0:
+            cruise = cruise_in_wind(polar, m, 0.0, 0.0, u)
+            assert cruise.cruise_speed_ms == pytest.approx(m * v / (m + sink - u), rel=1e-9)
+
+
+def test_the_core_glides_in_sinking_air_as_the_closed_form():
+    # Source: as above, at MacCready 0 (no climb ahead): from 1500 m to the arrival floor (400 m)
+    # the glider covers (1500 - 400) v / (sink(v) - u), v = sqrt((c - u)/a).
+    from glidetask.engine.atmosphere import density_ratio
+    from glidetask.engine.polar import scaled_polar
+
+    u = -0.5
+    flights = _calm(lift_values=[0.0], start_height_m=1500.0, glide_airmass_ms=u)
+    polar = scaled_polar(SPEC, 400.0, 0.0, density_ratio(1300.0))
+    v = ((polar.c - u) / polar.a) ** 0.5
+    sink = (polar.a * v + polar.b) * v + polar.c
+    flown = fly(Course([300e3], [0.0]), flights)
+    assert not flown.finished[0]
+    assert flown.landout_m[0] == pytest.approx((1500.0 - 400.0) * v / (sink - u), rel=1e-9)
+
+
+def test_the_speed_to_fly_solvers_newton_step_on_its_own():
+    # The derivative passed to the Newton iteration is checked by a central difference
+    # (a wrong slope would be rescued by the bisection fallback, unseen), and one Newton step
+    # from near the root lands much closer (quadratic convergence, any numerical analysis text).
+    import numpy as np
+
+    from glidetask.engine.polar import scaled_polar
+    from glidetask.engine.speedtofly import _stationarity, glide_in_wind
+
+    polar = scaled_polar(SPEC, 450.0, 0.0, 0.85)
+    args = (polar.a, polar.b, polar.c, -4.0, 9.0, -0.3, 1.5)  # along, across^2, airmass, mc
+    for v in (25.0, 35.0, 50.0, 70.0):
+        f, slope = _stationarity(np.array(v), *args)
+        h = 1e-5 * v
+        numeric = (_stationarity(np.array(v + h), *args)[0] - _stationarity(np.array(v - h), *args)[0]) / (2 * h)
+        assert slope == pytest.approx(numeric, rel=1e-6)
+    root = float(glide_in_wind(polar, 1.5, -4.0, 3.0, -0.3).airspeed_ms)
+    start = root * 1.02
+    f, slope = _stationarity(np.array(start), *args)
+    after = start - float(f) / float(slope)
+    assert abs(after - root) < 0.05 * abs(start - root)

@@ -351,3 +351,26 @@ def test_loaded_scenario_remembers_its_turnpoint_file(folder):
     moved.mkdir()
     save_task(moved / "copy.toml", replace(scenario, source=None))
     assert load_scenario(moved / "copy.toml").turnpoints == scenario.turnpoints
+
+
+def test_a_60_degree_sector_and_a_non_default_keyhole_are_built_and_flown(folder):
+    # Source: FAI Sporting Code Section 3, Annex A (zone shapes; the sector's angle and the
+    # keyhole's sizes as given), checked against the independent brute-force search of
+    # tests/engine/_brute_force.py (pyproj geodesics, exhaustive outline sampling).
+    import sys
+
+    sys.path.insert(0, str(ROOT / "tests" / "engine"))
+    from _brute_force import brute_force
+
+    from glidetask.engine.task_search import optimized_path
+
+    text = _edit(_edit(RACING, 'zone = "sector"\nradius_km = 10.0', 'zone = "sector"\nradius_km = 10.0\nangle_deg = 60.0'),
+                 'zone = "keyhole"', 'zone = "keyhole"\nradius_km = 8.0\nangle_deg = 60.0\ncylinder_radius_km = 1.0')
+    task = load_scenario(_write(folder, text)).task
+    assert task.zones[1] == Zone.sector(10_000.0, 60.0)
+    assert task.zones[2] == Zone.keyhole(8_000.0, 60.0, 1_000.0)
+    default = load_scenario(_write(folder, RACING, "default.toml")).task  # 90 deg sector, default keyhole
+    # Tolerance: the brute force's grid error is centimetres (tests/engine/test_task.py MATCH_M).
+    assert optimized_path(task).total_m == pytest.approx(brute_force(task)[0], abs=0.5)
+    # The keyhole's 1 km cylinder (not 0.5) lets the path cut closer: it differs from the default.
+    assert optimized_path(task).total_m < optimized_path(default).total_m - 500.0
