@@ -162,6 +162,9 @@ def _odds_options(parser: argparse.ArgumentParser) -> None:
     parser.add_argument("--seed", type=int, default=1, metavar="S", help="random seed (default 1)")
     parser.add_argument("--ballast-kg", type=float, action="append", default=None, metavar="KG",
                         help="a ballast to compare (repeat for several; default: empty, half, full)")
+    parser.add_argument("--spread", type=int, choices=(0, 1), default=1,
+                        help="1: days spread around the forecast (default); 0: the forecast day exactly, as plan "
+                             "flies it")
 
 
 #: Each command's one-line help and the function adding its own arguments, in COMMANDS order.

@@ -27,6 +27,7 @@ from glidetask import cautions, units
 from glidetask.commands._output import print_json
 from glidetask.errors import InputError, Problem, one_line
 from glidetask.formats.files import file_problem, read_text
+from glidetask.formats.wind_text import wind_json
 from glidetask.formats.zone_text import zone_text
 from glidetask.units import KMH, METRIC
 
@@ -148,7 +149,7 @@ def check_task(path: str) -> dict:
         "mass_kg": scenario.glider.mass_kg,
         "start_time": units.format_clock(day.start_time_s),
         "band_m": [day.band_bottom_m, day.band_top_m],
-        "wind": {"from_deg": day.wind.from_deg, "speed_kmh": day.wind.speed_ms / KMH},
+        "wind": wind_json(day.wind),
         "turnpoints": len(scenario.turnpoints),
         "landables": sum(1 for p in scenario.turnpoints if p.landable),
         "terrain_file": scenario.terrain_file,
@@ -322,7 +323,7 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
     wind = result["wind"]
     lines += [f"  glider {result['glider']}, {result['mass_kg']:g} kg; start {result['start_time']}, band "
               f"{unit.fmt_height(result['band_m'][0])} to {unit.fmt_height(result['band_m'][1])}, wind "
-              f"{wind['from_deg']:03.0f}/{unit.fmt_speed(wind['speed_kmh'] * KMH)}",
+              f"{_wind_words(wind, unit)}",
               f"  {result['turnpoints']} turnpoints ({result['landables']} landable); terrain "
               f"{'none' if not result['terrain_file'] else os.path.basename(result['terrain_file'])}",
               f"  {cautions.COMPACT}"]
@@ -352,3 +353,11 @@ def run(args: argparse.Namespace) -> int:
     if problems:
         raise InputError(problems)
     return 0
+
+
+def _wind_words(wind, unit) -> str:
+    """The check's wind (:func:`glidetask.formats.wind_text.wind_json`) in words."""
+    levels = wind if isinstance(wind, list) else [wind]
+    text = [f"{w['from_deg']:03.0f}/{unit.fmt_speed(w['speed_kmh'] * KMH)}"
+            + (f" at {unit.fmt_height(w['height_m'])}" if "height_m" in w else "") for w in levels]
+    return ", ".join(text)

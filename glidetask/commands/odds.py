@@ -2,7 +2,8 @@
 
 ``--runs N`` simulated days (the same days for each ballast choice), ``--seed S`` for
 the random numbers (the same seed, the same answer), ``--ballast-kg KG`` once per choice
-(default: empty, half and full). See :mod:`glidetask.engine.simulate` for the spread of
+(default: empty, half and full), ``--spread 0|1`` (0: every simulated day is the forecast,
+flown exactly as ``plan`` flies it; 1, the default: days spread around it). See :mod:`glidetask.engine.simulate` for the spread of
 days assumed. Text output shows the finishing odds with their standard error, the task
 time percentiles among the finishers and the land-outs by leg; ``--json`` the same as data.
 """
@@ -15,7 +16,8 @@ import math
 from glidetask.cli import CMDLINE
 from glidetask.commands._output import print_json
 from glidetask.engine.scenario import with_what_ifs
-from glidetask.engine.simulate import simulate_days
+from glidetask.commands.sweep import with_day_source_notes
+from glidetask.engine.simulate import DaySpread, simulate_days
 from glidetask.errors import InputError, Problem
 from glidetask.formats import strategy_report
 from glidetask.formats.task_file import load_scenario
@@ -61,9 +63,8 @@ def run(args: argparse.Namespace) -> int:
     if problems:
         raise InputError(problems)
     ballasts = None if not args.ballast_kg else list(dict.fromkeys(args.ballast_kg))
-    odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts)
-    from glidetask.commands.sweep import with_day_source_notes
-
+    spread = DaySpread.none() if getattr(args, "spread", 1) == 0 else None  # 0: the forecast day, as plan flies it
+    odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts, spread=spread)
     if args.json:
         print_json(strategy_report.odds_to_dict(with_day_source_notes(odds, scenario, "metric")))
     else:

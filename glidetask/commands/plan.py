@@ -18,6 +18,7 @@ from glidetask import cautions, units
 from glidetask.cli import CMDLINE, check_number, parse_wind
 from glidetask.commands._output import caution_block, print_json
 from glidetask.errors import InputError, Problem
+from glidetask.formats.wind_text import wind_text
 
 
 def what_if_problems(args: argparse.Namespace) -> list[Problem]:
@@ -98,7 +99,7 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "climb" if day.climb is not None else "thermal strength"
     lift = ", ".join(f"{units.format_clock(t)} {unit.vertical(v):.1f}" for t, v in zip(profile.times_s, profile.values))
-    wind = "calm" if day.wind.speed_ms == 0.0 else f"{day.wind.from_deg:03.0f}/{unit.fmt_speed(day.wind.speed_ms)}"
+    wind = wind_text(day.wind, unit)
     top = unit.fmt_height(day.band_top_m)
     if day.band_top_profile is not None:
         top = f"{unit.fmt_height(day.band_top_at(day.start_time_s))} at the start (highest {top})"
@@ -112,6 +113,8 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     lines.append(f"            MacCready {mc}; final glide at {fg}; arrival "
                  f"{unit.fmt_height(safety.arrival_margin_m)} over the finish "
                  f"({unit.fmt_height(plan.arrival_floor_m)})")
+    lines.append(f"            centring {day.centring_s:g} s a climb, detour {day.detour_percent:g} % (common practice); "
+                 f"thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius ({day.thermal_radius_source})")
     return lines
 
 
@@ -123,9 +126,10 @@ def _source_lines(source) -> list[str]:
 
 
 def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
-    head = ("Leg", "Dist", "Crs", "Climb", "MC", "Air", "Hdg", "Glide", "Avg", "Time", "Need", "Arrive", "")
-    sub = ("", unit.distance_label, "deg", unit.vertical_label, unit.vertical_label, unit.speed_label, "deg",
-           unit.speed_label, unit.speed_label, "h:mm", unit.height_label, unit.height_label, "")
+    head = ("Leg", "Dist", "Crs", "Climb", "MC", "IAS", "TAS", "Hdg", "Glide", "Avg", "Time", "Need", "Arrive", "")
+    sub = ("", unit.distance_label, "deg", unit.vertical_label, unit.vertical_label, unit.speed_label,
+           unit.speed_label, "deg", unit.speed_label, unit.speed_label, "h:mm", unit.height_label, unit.height_label, "")
+    top = plan.scenario.day.band_top_m
     rows = []
     number = len(str(len(plan.legs)))
     for i, leg in enumerate(plan.legs, start=1):
@@ -133,10 +137,13 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
         rows.append((
             name[:40], f"{unit.distance(leg.distance_m):.1f}", f"{leg.course_deg:03.0f}",
             _fmt(unit.vertical(leg.climb_ms), "{:.1f}"), _fmt(unit.vertical(leg.mc_ms), "{:.1f}"),
-            _fmt(unit.speed(leg.airspeed_ms)), _fmt(leg.heading_deg, "{:03.0f}"),
-            _fmt(unit.speed(leg.glide_ground_speed_ms)), _fmt(unit.speed(leg.cruise_speed_ms)),
+            _fmt(unit.speed(leg.indicated_airspeed_ms)), _fmt(unit.speed(leg.airspeed_ms)),
+            _fmt(leg.heading_deg, "{:03.0f}"),
+            _fmt(unit.speed(leg.glide_ground_speed_ms)), _fmt(unit.speed(leg.average_speed_ms)),
             units.format_duration(leg.time_s) if math.isfinite(leg.time_s) else "-",
-            _fmt(unit.height(leg.required_height_m)), _fmt(unit.height(leg.arrival_height_m)),
+            # a final glide only from within the band: above its top the height means nothing to fly
+            _fmt(unit.height(leg.required_height_m)) if not leg.required_height_m > top + 1e-6 else "above",
+            _fmt(unit.height(leg.arrival_height_m)),
             "FG" if leg.final_glide else ""))
     widths = [max(len(r[c]) for r in (head, sub, *rows)) for c in range(len(head))]
 
@@ -145,9 +152,10 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
         return ("  " + "  ".join([first] + [cell.rjust(w) for cell, w in zip(cells[1:], widths[1:])])).rstrip()
 
     out = [line(head), line(sub)] + [line(r) for r in rows]
-    out.append("  Climb, MC: the leg's first thermal (FG: leg flown in final glide, MC its setting). Air, Hdg,")
-    out.append("  Glide: in the glides, heading set to make good the climbs' drift. Avg: with climbs.")
-    out.append("  Need: height to final-glide home from the leg's start. Arrive: planned height at its end.")
+    out.append("  Climb, MC: the leg's first thermal (FG: leg flown in final glide, MC its setting). IAS (to fly),")
+    out.append("  TAS, Hdg, Glide: in the glides, heading set to make good the climbs' drift. Avg: the leg's")
+    out.append("  distance over its time. Need: height to final-glide home from the leg's start (above: more")
+    out.append("  than the band top; see the final glide below). Arrive: planned height at its end.")
     return out
 
 

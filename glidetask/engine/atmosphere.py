@@ -79,17 +79,44 @@ def isa_pressure(altitude_m):
     return scalar_or_array(pressure)
 
 
+def column_pressure(altitude_m, isa_deviation_c=0.0):
+    """Pressure at an altitude in a warm or cold column [Pa]: the ISA's sea-level pressure,
+    and the temperature offset by ``isa_deviation_c`` at every height.
+
+    Notes
+    -----
+    Hydrostatic balance ``dp/p = -g0 dH / (R T)`` integrated with ``T = T_isa(H) + dT``:
+    troposphere ``p = p0 ((T0 + dT - L H)/(T0 + dT))^(g0/(R L))``; above 11 km
+    ``p = p11 exp(-g0 (H - 11000)/(R (T11 + dT)))`` with ``p11`` the column's own pressure
+    there. A warm column keeps more air above a height, so its pressure there is higher
+    than the standard's; ``dT = 0`` is :func:`isa_pressure` exactly.
+    """
+    deviation = np.asarray(isa_deviation_c, dtype=float)
+    if not np.any(deviation):
+        return isa_pressure(altitude_m)
+    h = np.asarray(geopotential_altitude(altitude_m))
+    base = T0_K + deviation
+    top = _T11_K + deviation
+    with np.errstate(invalid="ignore"):
+        troposphere = P0_PA * ((base - LAPSE_KM * h) / base) ** _EXPONENT
+        p11 = P0_PA * (top / base) ** _EXPONENT
+        stratosphere = p11 * np.exp(-G0_MS2 * (h - TROPOPAUSE_M) / (R_AIR * top))
+    pressure = np.where(h < TROPOPAUSE_M, troposphere, stratosphere)
+    pressure = np.where((h >= LOWEST_M) & (h <= HIGHEST_M), pressure, np.nan)
+    return scalar_or_array(pressure)
+
+
 def air_density(altitude_m, isa_deviation_c=0.0):
     """Air density at an altitude with an ISA temperature deviation [kg/m^3].
 
     Parameters
     ----------
     altitude_m : float or array_like
-        Geometric altitude above mean sea level [m], taken as the pressure altitude
-        (the day's pressure is assumed standard: the difference is inside the
-        planning margins).
+        Geometric altitude above mean sea level [m] (the day's sea-level pressure is
+        taken as the standard's).
     isa_deviation_c : float or array_like, default 0
-        Temperature above the standard at that pressure [degC = K].
+        Temperature above the standard at every height [degC = K]: a warm or cold
+        column, its pressure integrated hydrostatically (:func:`column_pressure`).
 
     Returns
     -------
@@ -99,8 +126,8 @@ def air_density(altitude_m, isa_deviation_c=0.0):
 
     Notes
     -----
-    Ideal gas: ``rho = p / (R (T_isa + dT))`` with ``p`` the standard pressure at that
-    pressure altitude, so a warm day lowers the density at the same altitude [1]_.
+    Ideal gas: ``rho = p / (R (T_isa + dT))`` with ``p`` the warm or cold column's
+    pressure at that altitude, so a warm day lowers the density at the same altitude [1]_.
 
     References
     ----------
@@ -108,7 +135,7 @@ def air_density(altitude_m, isa_deviation_c=0.0):
     """
     temperature = np.asarray(isa_temperature(altitude_m)) + np.asarray(isa_deviation_c, dtype=float)
     temperature = np.where(temperature > 0.0, temperature, np.nan)
-    return scalar_or_array(np.asarray(isa_pressure(altitude_m)) / (R_AIR * temperature))
+    return scalar_or_array(np.asarray(column_pressure(altitude_m, isa_deviation_c)) / (R_AIR * temperature))
 
 
 def density_ratio(altitude_m, isa_deviation_c=0.0):
@@ -119,7 +146,7 @@ def density_ratio(altitude_m, isa_deviation_c=0.0):
     """
     temperature = np.asarray(isa_temperature(altitude_m)) + np.asarray(isa_deviation_c, dtype=float)
     temperature = np.where(temperature > 0.0, temperature, np.nan)
-    return scalar_or_array(np.asarray(isa_pressure(altitude_m)) / P0_PA * (T0_K / temperature))
+    return scalar_or_array(np.asarray(column_pressure(altitude_m, isa_deviation_c)) / P0_PA * (T0_K / temperature))
 
 
 def tas_from_ias(ias_ms, altitude_m, isa_deviation_c=0.0):

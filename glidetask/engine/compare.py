@@ -35,9 +35,9 @@ import numpy as np
 
 from glidetask.engine import plan as planning
 from glidetask.engine.circling import achieved_climb
-from glidetask.engine.flight import Flights, course_for, flights_for, fly
+from glidetask.engine.flight import Flights, climb_strengths, course_for, flights_for, fly
 from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
-from glidetask.engine.scenario import Scenario
+from glidetask.engine.scenario import Profile, Scenario
 from glidetask.engine.speedtofly import cruise_in_wind
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
@@ -47,8 +47,6 @@ SWEEP_PHASES = 16  # positions of the climbs along the route averaged over (see 
 #: gain is within what the model resolves (see :func:`ballast_sweep`) and not worth the water.
 BALLAST_GAIN_TOLERANCE = 0.002
 
-INVERSE_STRENGTH_STEP_MS = 0.01  # strength grid for turning a climb back into a thermal strength [m/s]
-INVERSE_STRENGTH_MAX_MS = 15.0  # the task file's largest profile value [m/s]
 
 
 # ---------------------------------------------------------------- shared helpers
@@ -71,19 +69,41 @@ def stack_flights(flights: Sequence[Flights]) -> Flights:
     Raises
     ------
     ValueError
-        Flights of different polars, profile times or kinds of profile.
+        Flights of different polars, wind profiles or profile times.
     """
     first = flights[0]
     for other in flights[1:]:
-        if (other.spec != first.spec or other.lift_is_strength != first.lift_is_strength
+        if (other.spec != first.spec or other.wind_profile != first.wind_profile
                 or tuple(np.atleast_1d(other.lift_times_s)) != tuple(np.atleast_1d(first.lift_times_s))
                 or tuple(other.band_top_times_s) != tuple(first.band_top_times_s)
                 or tuple(other.band_top_values) != tuple(first.band_top_values)):
-            raise ValueError("stacked flights must share the polar, the lift profile's times and the band top")
+            raise ValueError("stacked flights must share the polar, the wind profile, the lift profile's times "
+                             "and the band top through the day")
     columns = {name: np.array([np.asarray(getattr(f, name), dtype=float) for f in flights])
                for name in Flights._PER_FLIGHT}
     values = np.array([np.atleast_1d(np.asarray(f.lift_values, dtype=float)) for f in flights])
-    return dataclasses.replace(first, lift_values=values, **columns)
+    kinds = np.array([np.asarray(f.lift_is_strength, dtype=bool) for f in flights])
+    strength = bool(kinds[0]) if np.all(kinds == kinds[0]) else kinds  # one kind, or one per flight
+    return dataclasses.replace(first, lift_values=values, lift_is_strength=strength, **columns)
+
+
+def fly_stacked(course, flights: Sequence[Flights], detour_factors=None, **options) -> list:
+    """Fly single flights in as few core calls as they allow (one per wind profile and
+    detour factor: the core shares those between its flights) and return each one's
+    :class:`~glidetask.engine.flight.Flown` in the given order. ``detour_factors`` (one
+    per flight) replace the course's own."""
+    detours = [course.detour_factor] * len(flights) if detour_factors is None else list(detour_factors)
+    groups: dict[int, list[int]] = {}
+    for i, f in enumerate(flights):
+        key = next((k for k in groups if flights[k].wind_profile == f.wind_profile and detours[k] == detours[i]), i)
+        groups.setdefault(key, []).append(i)
+    out = [None] * len(flights)
+    for key, members in groups.items():
+        flown = fly(dataclasses.replace(course, detour_factor=detours[key]),
+                    stack_flights([flights[i] for i in members]), **options)
+        for j, i in enumerate(members):
+            out[i] = flown.flight(j)
+    return out
 
 
 TASK_TERRAIN = "task"  # requirement=: the task's elevation model, as plan() flies by default
@@ -125,58 +145,13 @@ def _band_polar(scenario: Scenario, ballast_kg):
                                     ballast_kg=np.asarray(ballast_kg, dtype=float))
 
 
-def strength_for_climb(scenario: Scenario, climb_ms):
-    """The thermal strength in which the glider as loaded achieves ``climb_ms`` [m/s]
-    (the circling model inverted on a 0.01 m/s grid; NaN above its range)."""
-    grid = np.arange(0.0, INVERSE_STRENGTH_MAX_MS + 1e-9, INVERSE_STRENGTH_STEP_MS)
-    own = np.asarray(achieved_climb(_band_polar(scenario, scenario.glider.ballast_kg), grid,
-                                    scenario.day.thermal_radius_m).climb_ms, dtype=float)
-    own = np.maximum.accumulate(own)
-    climb = np.asarray(climb_ms, dtype=float)
-    return np.where(climb <= own[-1], np.interp(climb, own, grid), np.nan)
-
-
 def forecast_strength_ms(scenario: Scenario) -> float:
     """The thermal strength of the forecast's peak [m/s] (see :class:`BallastSweep`)."""
     day = scenario.day
     if day.thermal_strength is not None:
         return float(max(day.thermal_strength.values))
-    return float(strength_for_climb(scenario, max(day.climb.values)))
-
-
-def climb_values_for_ballasts(scenario: Scenario, ballasts_kg) -> np.ndarray:
-    """The day's achieved-climb profile values as other ballasts would climb in the same thermals.
-
-    A day given as achieved climb (``climb_ms``) is the climb of the glider as loaded in
-    the task file. For another ballast each value of the profile is turned back into the
-    thermal strength that gives it at the file's ballast, and that strength into the
-    climb at the other ballast, by the circling model in a thermal of the day's radius.
-
-    Parameters
-    ----------
-    scenario : Scenario
-        A day with a ``climb`` profile.
-    ballasts_kg : sequence of float
-        Ballasts [kg].
-
-    Returns
-    -------
-    ndarray, (B, P)
-        Climb [m/s] at each profile time for each ballast, not below 0. The file's own
-        ballast gets the profile's values unchanged, and a value of 0 (no lift) stays 0.
-    """
-    day = scenario.day
-    if day.climb is None:
-        raise ValueError("the day has no achieved-climb profile")
-    values = np.asarray(day.climb.values, dtype=float)
-    ballast = np.asarray(ballasts_kg, dtype=float)
-    strength = np.nan_to_num(strength_for_climb(scenario, values), nan=INVERSE_STRENGTH_MAX_MS)
-    polar = _band_polar(scenario, ballast[:, None])
-    climb = np.asarray(achieved_climb(polar, strength[None, :], day.thermal_radius_m).climb_ms, dtype=float)
-    climb = np.where(values[None, :] > 0.0, np.maximum(climb, 0.0), 0.0)
-    same = ballast == scenario.glider.ballast_kg
-    climb[same] = values
-    return climb
+    peak = dataclasses.replace(scenario, day=dataclasses.replace(day, climb=Profile.constant(max(day.climb.values))))
+    return float(climb_strengths(peak)[0])
 
 
 # ---------------------------------------------------------------- ballast sweep
@@ -199,6 +174,8 @@ class BallastSweep:
         Thermal core updraft of each row, constant through the day [m/s].
     thermal_radius_m : float
         e-folding radius of the thermals [m].
+    thermal_radius_source : str
+        Where that radius comes from, in words (:attr:`glidetask.engine.scenario.Day.thermal_radius_source`).
     achieved_climb_ms : ndarray, (S, B)
         Climb achieved circling in the thermal (circling model) [m/s]; negative where
         the glider cannot climb in it.
@@ -247,6 +224,7 @@ class BallastSweep:
     forecast_strength_ms: float
     phases: int
     notes: tuple[str, ...]
+    thermal_radius_source: str = ""
 
 
 def sweep_ballasts_kg(scenario: Scenario, steps: int = SWEEP_BALLAST_STEPS) -> np.ndarray:
@@ -269,7 +247,7 @@ def climb_table(scenario: Scenario, ballast_kg, strengths_ms):
     day = scenario.day
     polar = _band_polar(scenario, np.asarray(ballast_kg, dtype=float)[None, :])
     strengths = np.asarray(strengths_ms, dtype=float)[:, None]
-    climb = np.asarray(achieved_climb(polar, strengths, day.thermal_radius_m).climb_ms, dtype=float)
+    climb = np.asarray(achieved_climb(polar, strengths, day.effective_thermal_radius_m).climb_ms, dtype=float)
     with np.errstate(invalid="ignore"):
         cruise = np.asarray(cruise_in_wind(polar, np.maximum(climb, 0.0), 0.0, 0.0).cruise_speed_ms, dtype=float)
     cruise = np.where(climb > 0.0, cruise, np.nan)
@@ -347,7 +325,7 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         base, mass_kg=glider.mass_with_ballast_kg(b_grid).ravel(),
         start_height_m=h_grid.ravel(), lift_scale=s_grid.ravel(), lift_times_s=(day.start_time_s,),
         lift_values=(1.0,), lift_is_strength=True, mc_ms=math.nan)
-    flown = fly(course_for(path), flights, requirement=requirement, detail=False)
+    flown = fly(course_for(path, scenario.day.detour_percent), flights, requirement=requirement, detail=False)
     with np.errstate(invalid="ignore", divide="ignore"):
         worth = (h_grid - day.effective_start_height_m) / climb[..., None]
     worth = np.where(h_grid == day.effective_start_height_m, 0.0, worth)
@@ -358,12 +336,12 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
     return BallastSweep(
         task_name=scenario.task.name, planned_distance_m=float(path.total_m), ballast_kg=ballast,
         mass_kg=glider.mass_with_ballast_kg(ballast), thermal_strength_ms=strengths,
-        thermal_radius_m=float(day.thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
+        thermal_radius_m=float(day.effective_thermal_radius_m), achieved_climb_ms=climb, cruise_speed_ms=cruise,
         task_time_s=task_time, best_ballast_kg=best, fastest_ballast_kg=_fastest_ballast(task_time, ballast),
         ballast_pays_from_ms=_first_strength(strengths, best > 0.0),
         full_ballast_from_ms=_first_strength(strengths, (best == ballast.max()) & (ballast.max() > 0.0)),
         scenario_ballast_kg=float(glider.ballast_kg), forecast_strength_ms=forecast_strength_ms(scenario),
-        phases=phases, notes=tuple(_sweep_notes(scenario, ballast)))
+        phases=phases, notes=tuple(_sweep_notes(scenario, ballast)), thermal_radius_source=day.thermal_radius_source)
 
 
 def _fastest_ballast(task_time: np.ndarray, ballast: np.ndarray) -> np.ndarray:
@@ -392,7 +370,8 @@ def _first_strength(strengths: np.ndarray, mask: np.ndarray) -> float:
 
 def _sweep_notes(scenario: Scenario, ballast: np.ndarray) -> list[str]:
     notes = ["Thermals are taken as constant in strength all day and of one size "
-             f"({scenario.day.thermal_radius_m:.0f} m radius): real days vary, and a narrower thermal "
+             f"({scenario.day.effective_thermal_radius_m:.0f} m radius, {scenario.day.thermal_radius_source}): "
+             "real days vary, and a narrower thermal "
              "punishes ballast more."]
     if ballast.max() <= 0.0:
         notes.append("This glider carries no water ballast: only the empty glider is shown.")

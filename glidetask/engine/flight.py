@@ -13,6 +13,9 @@ in any batch.
 
 The model
 ---------
+* Wind with height (:mod:`glidetask.engine.flight_wind`): a leg's cruise glides in the
+  wind at the middle of the band, a climb drifts with the mean wind over the heights it
+  climbs, a final glide flies in the wind at its middle height (as for its density).
 * Glides and climbs use the polar at the density of the middle of the working band;
   a final glide uses the density at the middle of its start height and its arrival
   height (the arrival floor). The start height of a final glide is itself what the
@@ -62,12 +65,13 @@ from glidetask.engine.flight_simulation import (  # the reasons a flight ends, n
     UNRESOLVED, Simulation,
 )
 from glidetask.engine.polar import PolarSpec
-from glidetask.engine.scenario import Scenario
+from glidetask.engine.circling import strength_for_climb
+from glidetask.engine.scenario import Profile, Scenario, WindProfile
 
 __all__ = ["BELOW_FLOOR", "FINAL_GLIDE", "LIFT_ENDED", "NO_CLIMB", "NO_THERMAL_FOUND", "REASONS", "TERRAIN_ABOVE_BAND",
            "UNREACHABLE",
            "UNRESOLVED", "Course", "Flights", "Flown", "RequirementHook", "SearchHook", "course_for", "flights_for",
-           "fly", "requirement_card"]
+           "fly", "requirement_card", "day_lift", "climb_strengths"]
 
 
 @dataclass(frozen=True)
@@ -80,10 +84,15 @@ class Course:
         Leg lengths along the planned path [m].
     course_deg : ndarray, shape (L,)
         Geodesic azimuth at each leg's start [deg true].
+    detour_factor : float, default 1
+        The distance flown per metre of the planned path [-], >= 1 (``1 + detour_percent/100``,
+        common practice): every leg is flown this much longer; the core's results are
+        given in metres of the planned path all the same.
     """
 
     distance_m: np.ndarray
     course_deg: np.ndarray
+    detour_factor: float = 1.0
 
     def __post_init__(self):
         distance = np.atleast_1d(np.asarray(self.distance_m, dtype=float))
@@ -92,6 +101,8 @@ class Course:
             raise ValueError("a course needs one distance and one course per leg (at least one leg)")
         if np.any(~(distance >= 0.0)):
             raise ValueError("leg distances must be finite and not negative")
+        if not self.detour_factor >= 1.0:
+            raise ValueError("the detour factor must be 1 or more")
         object.__setattr__(self, "distance_m", distance)
         object.__setattr__(self, "course_deg", course)
 
@@ -116,7 +127,11 @@ class Flights:
     mass_kg, bugs_percent : array_like
         Flying mass [kg] and bugs [% sink increase].
     wind_from_deg, wind_speed_ms : array_like
-        Steady wind [deg true, from], [m/s].
+        The wind of the cruise's glides, at the middle of the working band [deg true, from], [m/s].
+    wind_profile : WindProfile, optional
+        The wind's change with height (shared by the flights): each flight's wind at another
+        height is its own plus the profile's change from the band middle
+        (:mod:`glidetask.engine.flight_wind`); None: the same wind at every height.
     start_time_s, start_height_m : array_like
         Start [s after midnight], [m MSL].
     band_top_m, band_bottom_m : array_like
@@ -137,7 +152,7 @@ class Flights:
         ``lift_is_strength``; linear between the times, held beyond them.
     lift_scale : array_like
         Factor on the profile's values per flight [-] (1 for the forecast).
-    lift_is_strength : bool
+    lift_is_strength : bool or array_like of bool
         The profile is thermal strength, turned into achieved climb by the circling
         model (:func:`glidetask.engine.circling.achieved_climb`) for each flight's polar.
     thermal_radius_m : array_like
@@ -152,6 +167,8 @@ class Flights:
         Average vertical air motion while gliding, up positive [m/s].
     isa_deviation_c : array_like
         ISA temperature deviation [degC].
+    centring_s : array_like
+        Time lost centring each thermal before the climb begins [s] (common practice: 30 s).
     """
 
     spec: PolarSpec
@@ -177,11 +194,13 @@ class Flights:
     isa_deviation_c: object = 0.0
     band_top_times_s: object = ()
     band_top_values: object = ()
+    centring_s: object = 0.0
+    wind_profile: object = None
 
     _PER_FLIGHT = ("mass_kg", "start_time_s", "start_height_m", "band_top_m", "band_bottom_m", "lift_ends_s",
                    "finish_elevation_m", "bugs_percent", "wind_from_deg", "wind_speed_ms", "lift_scale",
                    "thermal_radius_m", "mc_ms", "final_glide_mc_ms", "arrival_margin_m", "glide_airmass_ms",
-                   "isa_deviation_c")
+                   "isa_deviation_c", "centring_s")
 
     def columns(self) -> dict[str, np.ndarray]:
         """The per-flight fields as float arrays of one shape (N,) (read-only views)."""
@@ -376,9 +395,11 @@ def fly(course: Course, flights: Flights, *, search: SearchHook | None = None,
 # ---------------------------------------------------------------- the core's inputs from a scenario
 
 
-def course_for(path) -> Course:
-    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`)."""
-    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs])
+def course_for(path, detour_percent: float = 0.0) -> Course:
+    """The flight core's legs for a planned path (a :class:`~glidetask.engine.task.TaskPath`),
+    flown ``detour_percent`` longer (``Day.detour_percent``)."""
+    return Course([leg.distance_m for leg in path.legs], [leg.course_deg for leg in path.legs],
+                  1.0 + float(detour_percent) / 100.0)
 
 
 def flights_for(scenario: Scenario) -> Flights:
@@ -390,22 +411,55 @@ def flights_for(scenario: Scenario) -> Flights:
     scenario are NaN (the core then follows the climb of each cycle).
     """
     day, glider, safety = scenario.day, scenario.glider, scenario.safety
-    profile = day.climb if day.climb is not None else day.thermal_strength
+    profile, is_strength = day_lift(scenario)
     nan = float("nan")
+    cruise_wind = day.wind_at(day.band_middle_m)
     return Flights(
         spec=glider.spec, mass_kg=glider.mass_kg, bugs_percent=glider.bugs_percent,
-        wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms,
+        wind_from_deg=cruise_wind.from_deg, wind_speed_ms=cruise_wind.speed_ms,
+        wind_profile=day.wind if isinstance(day.wind, WindProfile) else None,
         start_time_s=day.start_time_s, start_height_m=day.effective_start_height_m,
         band_top_m=day.band_top_m, band_bottom_m=day.band_bottom_m, lift_ends_s=day.lift_ends_s,
         lift_times_s=tuple(profile.times_s), lift_values=tuple(profile.values),
         band_top_times_s=() if day.band_top_profile is None else tuple(day.band_top_profile.times_s),
         band_top_values=() if day.band_top_profile is None else tuple(day.band_top_profile.values),
-        lift_is_strength=day.climb is None, thermal_radius_m=day.thermal_radius_m,
+        lift_is_strength=is_strength, thermal_radius_m=day.effective_thermal_radius_m,
         mc_ms=nan if day.mc_ms is None else day.mc_ms,
         final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
         finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
         arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
-        isa_deviation_c=day.isa_deviation_c)
+        isa_deviation_c=day.isa_deviation_c, centring_s=day.centring_s)
+
+
+def day_lift(scenario: Scenario) -> tuple[Profile, bool]:
+    """The day's lift for the glider as loaded: ``(profile, is_strength)``.
+
+    A thermal-strength day is itself. A day of achieved climbs (``climb_ms``) belongs to
+    the loading they were given for (``Day.climb_ballast_kg``, the task file's ballast;
+    None: whatever the glider carries): at that ballast the climbs are flown as given;
+    at any other each value is turned once into the thermal strength in which the given
+    loading achieves it (:func:`glidetask.engine.circling.strength_for_climb`, at the band
+    middle's density, in thermals of the day's radius), and the circling model then gives
+    this mass its own climb (shared/CONTRACT.md section 3). No lift (0) stays none.
+    """
+    day, glider = scenario.day, scenario.glider
+    if day.climb is None:
+        return day.thermal_strength, True
+    if day.climb_ballast_kg is None or day.climb_ballast_kg == glider.ballast_kg:
+        return day.climb, False
+    return Profile(day.climb.times_s, tuple(float(x) for x in climb_strengths(scenario))), True
+
+
+def climb_strengths(scenario: Scenario) -> np.ndarray:
+    """The thermal strength behind each value of the day's achieved-climb profile [m/s]: the
+    strength in which the glider at the climbs' own ballast achieves it (0 where the profile
+    is 0). The one conversion from climb to strength (:func:`day_lift`)."""
+    day, glider = scenario.day, scenario.glider
+    ballast = glider.ballast_kg if day.climb_ballast_kg is None else day.climb_ballast_kg
+    own = glider.polar_at(day.band_middle_m, day.isa_deviation_c, ballast_kg=ballast)
+    values = np.asarray(day.climb.values, dtype=float)
+    strength = np.asarray(strength_for_climb(own, values, day.effective_thermal_radius_m), dtype=float)
+    return np.where(values > 0.0, np.nan_to_num(strength, nan=0.0), 0.0)
 
 
 def requirement_card(course: Course, flights: Flights, mc_values,

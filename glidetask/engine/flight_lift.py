@@ -29,7 +29,9 @@ class LiftClock:
         self.scale = columns["lift_scale"]
         self.ends = columns["lift_ends_s"]
         self.table = None
-        if flights.lift_is_strength:
+        # Per flight: the profile is thermal strength (True) or achieved climb (False).
+        self.is_strength = np.broadcast_to(np.asarray(flights.lift_is_strength, dtype=bool), self.ends.shape)
+        if self.is_strength.any():
             self._tabulate(polar, columns["thermal_radius_m"])
 
     def _tabulate(self, polar: Polar, radius) -> None:
@@ -40,13 +42,14 @@ class LiftClock:
         strongest = float(np.nanmax(np.abs(self.values)) * np.nanmax(self.scale))
         steps = int(np.ceil(strongest / STRENGTH_STEP_MS)) + 2
         grid = np.arange(steps) * STRENGTH_STEP_MS
+        # The circling speed rests on the stall speed (circling.py), so it is part of the key.
         keys = np.column_stack([np.broadcast_to(np.asarray(x, dtype=float), radius.shape) for x in (
-            polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, radius)])
+            polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, polar.wings_level_stall_ms, radius)])
         unique, self.table_row = np.unique(keys, axis=0, return_inverse=True)
         self.table_row = self.table_row.ravel()
         rows = Polar(a=unique[:, :1], b=unique[:, 1:2], c=unique[:, 2:3], min_speed_ms=unique[:, 3:4],
-                     vne_ms=unique[:, 4:5])
-        self.table = np.asarray(achieved_climb(rows, grid[None, :], unique[:, 5:6]).climb_ms)
+                     vne_ms=unique[:, 4:5], stall_speed_ms=unique[:, 5:6])
+        self.table = np.asarray(achieved_climb(rows, grid[None, :], unique[:, 6:7]).climb_ms)
 
     def profile(self, rows, time_s):
         """The profile's value (x scale) for flights ``rows`` at their times ``time_s``."""
@@ -69,5 +72,6 @@ class LiftClock:
             weight = x - j
             table = self.table[self.table_row[rows]]
             line = np.arange(rows.size)
-            value = np.where(value > 0.0, table[line, j] * (1.0 - weight) + table[line, j + 1] * weight, 0.0)
+            climb = np.where(value > 0.0, table[line, j] * (1.0 - weight) + table[line, j + 1] * weight, 0.0)
+            value = np.where(self.is_strength[rows], climb, value)
         return until_lift_ends(value, time_s, self.ends[rows])

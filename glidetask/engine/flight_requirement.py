@@ -2,7 +2,7 @@
 
 The height a flight needs at a point to glide home: the arrival floor plus the height
 used over the remaining legs at the final-glide setting, each leg in its own wind, with
-the polar at the density of the middle of the glide's start and arrival heights, plus
+the polar at the density (and the wind) of the middle of the glide's start and arrival heights, plus
 the terrain's extra from the requirement hook (:mod:`glidetask.engine.clearance_hook`).
 :class:`FinalGlideRequirement` is the part of the simulation that computes it, the one
 place it is computed; the tables it keeps per flight are documented on
@@ -26,7 +26,8 @@ def polar_rows(polar: Polar, rows) -> Polar:
         value = np.asarray(value, dtype=float)
         return value[rows][:, None] if value.ndim else value
     return Polar(a=pick(polar.a), b=pick(polar.b), c=pick(polar.c), min_speed_ms=pick(polar.min_speed_ms),
-                 vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2)
+                 vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2,
+                 stall_speed_ms=pick(polar.stall_speed_ms))
 
 
 class FinalGlideRequirement:
@@ -59,6 +60,8 @@ class FinalGlideRequirement:
         """The hook's extra height, asked only where the pure requirement is defined: a flight
         still too far out for a final-glide table (NaN) needs nothing from it."""
         asked = np.isfinite(required)
+        # The hook works in metres of the planned path; the core in metres flown (the detour).
+        position, hpm = position / self.detour, hpm * self.detour
         if asked.all():
             return np.asarray(self.requirement_hook(position, hpm, floor), dtype=float)
         extra = np.zeros(required.shape)
@@ -81,7 +84,7 @@ class FinalGlideRequirement:
         polar = scaled_polar(self.spec, inputs["mass_kg"], inputs["bugs_percent"], sigma)
         a, b = np.asarray(polar.a), np.asarray(polar.b)
         c = np.asarray(polar.c) - np.maximum(self.airmass, 0.0)
-        wind = inputs["wind_speed_ms"]
+        wind = self.aloft.strongest_ms()
         with np.errstate(invalid="ignore"):
             v = np.maximum(-wind + np.sqrt(wind * wind + (c - b * wind) / a), 0.0)
             bound = ((a * v + b) * v + c) / (v + wind)
@@ -95,7 +98,7 @@ class FinalGlideRequirement:
         there is still above the band top, no final glide can start in this cycle.
         """
         inputs = self.inputs
-        top, bottom, wind = inputs["band_top_m"][rows], inputs["band_bottom_m"][rows], inputs["wind_speed_ms"][rows]
+        top, bottom, wind = inputs["band_top_m"][rows], inputs["band_bottom_m"][rows], self.aloft.strongest_ms()[rows]
         rate, sink = self.climb_rate[rows], self.cruise_net_sink[rows]
         remaining = self.leg_start[-1] - self.leg_start[self.leg[rows]] - self.position[rows]
         with np.errstate(invalid="ignore", divide="ignore"):
@@ -135,13 +138,21 @@ class FinalGlideRequirement:
             mid = np.asarray(density_height_m(estimate, self.floor[rows]))
             sigma = np.asarray(density_ratio(mid, inputs["isa_deviation_c"][rows]), dtype=float)
             polar = scaled_polar(self.spec, inputs["mass_kg"][rows], inputs["bugs_percent"][rows], sigma)
-            glide = glide_in_wind(polar_rows(polar, line), mc_fg[:, None], self.wind_along[rows], self.wind_across[rows],
-                                  self.airmass[rows, None])
+            along, across = self._final_wind(rows, mid)
+            glide = glide_in_wind(polar_rows(polar, line), mc_fg[:, None], along, across, self.airmass[rows, None])
             hpm = np.broadcast_to(glide.height_per_metre, (rows.size, self.legs))
             tail = self._tail(hpm)
             if attempt == 0:  # the next pass's start height, with the terrain's extra: the real start
                 estimate = self.required(rows, leg, pos, hpm, tail)
         return hpm, np.broadcast_to(glide.ground_speed_ms, hpm.shape), tail, sigma
+
+    def _final_wind(self, rows, height_m):
+        """The final glide's wind along and across each leg, at its middle height (the one
+        whose density it takes), shape (n, L): the cruise's wind when it is the same at every
+        height (:mod:`glidetask.engine.flight_wind`)."""
+        if not self.aloft.varies:
+            return self.wind_along[rows], self.wind_across[rows]
+        return self.aloft.at(rows, height_m)
 
     def _solve_final(self, rows) -> None:
         """Give flights ``rows`` their cycle's final-glide table (where they are now)."""

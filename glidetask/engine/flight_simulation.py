@@ -15,13 +15,15 @@ from __future__ import annotations
 import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.finalglide import density_height_m
 from glidetask.engine.flight_ground import GroundFloor, glide_allowance
 from glidetask.engine.flight_lift import LiftClock
 from glidetask.engine.flight_requirement import FinalGlideRequirement, polar_rows
+from glidetask.engine.flight_wind import WindAloft
 from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import band_middle_m
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
-from glidetask.engine.wind import correction_angle_deg, ground_speed, heading_for_course, wind_components
+from glidetask.engine.wind import correction_angle_deg, ground_speed
 
 # Why a flight ended (``Flown.reason``). A finished flight has FINAL_GLIDE, or the reason
 # its climbs stopped if it then glided home at MacCready 0.
@@ -62,11 +64,19 @@ class Simulation(FinalGlideRequirement):
         n, legs = inputs["mass_kg"].size, course.legs
         self.n, self.legs, self.spec = n, legs, flights.spec
         self.inputs, self.search_hook, self.requirement_hook = inputs, search, requirement
-        self.leg_length = course.distance_m
+        # Inside the core distances are metres flown: the planned path's times the detour
+        # factor; results and the requirement hook are in metres of the planned path.
+        self.detour = course.detour_factor
+        self.leg_length = course.distance_m * self.detour
         self.course_deg = course.course_deg
-        self.leg_start = course.leg_start_m
-        self.wind_along, self.wind_across = (np.asarray(x, dtype=float) for x in wind_components(
-            course.course_deg[None, :], inputs["wind_from_deg"][:, None], inputs["wind_speed_ms"][:, None]))
+        self.leg_start = course.leg_start_m * self.detour
+        self.aloft = WindAloft(inputs, self.course_deg, flights.wind_profile)
+        self.wind_along, self.wind_across = self.aloft.cruise()  # the cruise's glides: at the band middle
+        self.climb_along, self.climb_across = self.wind_along, self.wind_across  # the cycle's climbs
+        if self.aloft.varies:  # the cycle climbs through the band; each climb drifts as it climbs
+            self.climb_along, self.climb_across = self.aloft.mean(np.arange(n), inputs["band_bottom_m"],
+                                                                  inputs["band_top_m"])
+        self.drift_along = self.climb_along.copy()
         self.airmass = inputs["glide_airmass_ms"]
         self.floor = inputs["finish_elevation_m"] + inputs["arrival_margin_m"]
         self.band_sigma = np.asarray(density_ratio(band_middle_m(inputs["band_top_m"], inputs["band_bottom_m"]),
@@ -130,7 +140,7 @@ class Simulation(FinalGlideRequirement):
         mc = np.where(climbing, np.where(np.isnan(fixed), rate, fixed), 0.0)
         polar = polar_rows(self.band_polar, rows)
         cruise = cruise_in_wind(polar, rate[:, None], self.wind_along[rows], self.wind_across[rows],
-                                self.airmass[rows, None], mc[:, None])
+                                self.airmass[rows, None], mc[:, None], *self._climb_wind(rows))
         v = np.asarray(cruise.airspeed_ms)[:, 0]
         self.climb_rate[rows], self.cycle_mc[rows], self.cruise_airspeed[rows], self.no_climb[rows] = rate, mc, v, ~climbing
         self.glide_fraction[rows] = np.asarray(cruise.glide_fraction)[:, 0]
@@ -141,6 +151,21 @@ class Simulation(FinalGlideRequirement):
         far = self._far_from_final(rows)
         self.final_per_metre[rows[far]], self.final_height_after[rows[far]] = np.nan, np.nan
         self._solve_final(rows[~far])
+
+    def _climb_wind(self, rows=None):
+        """The cycle's climb wind for :func:`cruise_in_wind` (along, across), or () when the
+        wind is the same at every height (the glides' wind then)."""
+        if not self.aloft.varies:
+            return ()
+        rows = slice(None) if rows is None else rows
+        return self.climb_along[rows], self.climb_across[rows]
+
+    def _cycle_drift_fix(self, across, fraction, climb_across):
+        """Air velocity across the course in a cycle's glides that cancels the cycle's drift:
+        ``Wn/f`` in one wind (contract 3), ``Gn + (1-f)/f Cn`` with the climbs in another."""
+        if not self.aloft.varies:
+            return across / fraction
+        return across + (1.0 - fraction) / fraction * climb_across
 
     # ------------------------------------------------------------ the loop
 
@@ -166,7 +191,8 @@ class Simulation(FinalGlideRequirement):
         k, s, h = self.leg[rows], self.position[rows], self.height[rows]
         along, across = self.wind_along[rows, k], self.wind_across[rows, k]
         with np.errstate(invalid="ignore", divide="ignore"):
-            cruise_gs = np.asarray(ground_speed(self.cruise_airspeed[rows], along, across / self.glide_fraction[rows]))
+            drift_fix = self._cycle_drift_fix(across, self.glide_fraction[rows], self.climb_across[rows, k])
+            cruise_gs = np.asarray(ground_speed(self.cruise_airspeed[rows], along, drift_fix))
             pure = self.no_climb[rows]
             gs = np.where(pure, self.best_ground_speed[rows, k], cruise_gs)
             hpm = np.where(pure, self.best_per_metre[rows, k], self.cruise_net_sink[rows] / cruise_gs)
@@ -256,6 +282,8 @@ class Simulation(FinalGlideRequirement):
         if not rows.size:
             return
         self._set_cycle(rows, rate)
+        if self.aloft.varies:  # this climb drifts with the mean wind from here to the band top
+            self.drift_along[rows] = self.aloft.mean(rows, self.height[rows], self.inputs["band_top_m"][rows])[0]
         k = self.leg[rows]
         blocked = ~(self.cruise_speed[rows, k] > 0.0)
         self._glide_on(rows[blocked], UNREACHABLE)
@@ -265,6 +293,7 @@ class Simulation(FinalGlideRequirement):
         self.leg_mc[rows[first], k[first]] = self.cycle_mc[rows[first]]
         self.leg_has_climb[rows, k] = True
         self.climbs[rows] += 1
+        self._centre(rows, k)
         self.mode[rows] = _CLIMB
 
     def band_top(self, rows, time_s):
@@ -286,13 +315,20 @@ class Simulation(FinalGlideRequirement):
         # Where the climb's drift would carry it (the top is no higher further on): safe for the glide after.
         with np.errstate(invalid="ignore", divide="ignore"):
             drift = np.where(self.climb_rate[rows] > 0.0, np.maximum(capped - self.height[rows], 0.0)
-                             / self.climb_rate[rows] * np.maximum(self.wind_along[rows, self.leg[rows]], 0.0), 0.0)
+                             / self.climb_rate[rows] * np.maximum(self.drift_along[rows, self.leg[rows]], 0.0), 0.0)
         return self.ceiling.top(here + np.nan_to_num(drift), top, self.flattest[rows])
+
+    def _centre(self, rows, k) -> None:
+        """Time lost centring the thermal before the climb begins (``centring_s``), at the
+        climb's bottom (its drift in that time is neglected: 30 s at 20 km/h is 170 m)."""
+        centring = self.inputs["centring_s"][rows]
+        self.time[rows] += centring
+        self.leg_time[rows, k] += centring
 
     def _climb(self, rows) -> None:
         k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
         band_top = self._climb_top(rows)
-        drift = self.wind_along[rows, k]
+        drift = self.drift_along[rows, k]
         gap = h - self.required(rows)
         closing = rate + self.final_per_metre[rows, k] * drift  # the gap grows by this per second
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
@@ -492,19 +528,26 @@ class Simulation(FinalGlideRequirement):
         climb, mc, final = self.leg_climb, self.leg_mc, self.leg_final
         airmass = self.airmass[:, None]
         band = polar_rows(self.band_polar, every)
-        cruise = cruise_in_wind(band, climb, self.wind_along, self.wind_across, airmass, np.maximum(np.nan_to_num(mc), 0.0))
+        cruise = cruise_in_wind(band, climb, self.wind_along, self.wind_across, airmass, np.maximum(np.nan_to_num(mc), 0.0),
+                                *self._climb_wind())
         v, fraction = np.asarray(cruise.airspeed_ms), np.asarray(cruise.glide_fraction)
         with np.errstate(invalid="ignore", divide="ignore"):
-            drift_fix = self.wind_across / fraction  # air velocity across the course in the glides (contract 3)
+            # air velocity across the course in the glides (contract 3)
+            drift_fix = self._cycle_drift_fix(self.wind_across, fraction, self.climb_across)
             cruise_ground = np.asarray(ground_speed(v, self.wind_along, drift_fix))
         cruise_heading = np.mod(self.course_deg[None, :] - np.asarray(correction_angle_deg(v, drift_fix)), 360.0)
         sigma = np.where(np.isfinite(self.flown_final_sigma), self.flown_final_sigma, density_ratio(0.0))
         final_polar = polar_rows(scaled_polar(self.spec, inputs["mass_kg"], inputs["bugs_percent"], sigma), every)
-        pure = glide_in_wind(final_polar, np.where(final, np.nan_to_num(mc), 0.0), self.wind_along, self.wind_across, airmass)
+        final_along, final_across = self.wind_along, self.wind_across
+        if self.aloft.varies:  # the final glide's wind at its middle height, where one was flown
+            flown = self.flown_final_leg >= 0
+            mid = density_height_m(np.where(flown, self.flown_final_height, inputs["band_top_m"]), self.floor)
+            final_along, final_across = (np.where(flown[:, None], x, y) for x, y in zip(
+                self.aloft.at(every, mid), (self.wind_along, self.wind_across)))
+        pure = glide_in_wind(final_polar, np.where(final, np.nan_to_num(mc), 0.0), final_along, final_across, airmass)
         best = glide_in_wind(band, 0.0, self.wind_along, self.wind_across, airmass)
-        wind = (inputs["wind_from_deg"][:, None], inputs["wind_speed_ms"][:, None])
-        pure_heading, _ = heading_for_course(self.course_deg[None, :], pure.airspeed_ms, *wind)
-        best_heading, _ = heading_for_course(self.course_deg[None, :], best.airspeed_ms, *wind)
+        pure_heading = _heading(self.course_deg, pure.airspeed_ms, final_across)
+        best_heading = _heading(self.course_deg, best.airspeed_ms, self.wind_across)
         no_climb = ~(climb > 0.0)  # a glide with no climb ahead (before the lift starts): best glide
 
         def pick(final_value, best_value, cruise_value):
@@ -525,9 +568,9 @@ class Simulation(FinalGlideRequirement):
         return dict(
             finished=self.finished.copy(), reason=self.reason.copy(), total_time_s=self.end_time - start,
             finish_time_s=finish, end_time_s=self.end_time.copy(), stop_time_s=self.stop_time.copy(),
-            landout_m=np.where(self.finished, np.nan, self.landout_at),
+            landout_m=np.where(self.finished, np.nan, self.landout_at / self.detour),
             landout_leg=np.where(self.finished, -1, self.landout_leg),
-            final_glide_from_m=self.flown_final_from.copy(), final_glide_height_m=self.flown_final_height.copy(),
+            final_glide_from_m=self.flown_final_from / self.detour, final_glide_height_m=self.flown_final_height.copy(),
             final_glide_mc_ms=self.flown_final_mc.copy(), final_glide_sigma=self.flown_final_sigma.copy(),
             final_glide_leg=self.flown_final_leg.copy(), climbs=self.climbs.copy(),
             last_climb_end_s=self.last_climb_end.copy(), leg_time_s=self.leg_time.copy(),
@@ -536,3 +579,12 @@ class Simulation(FinalGlideRequirement):
             leg_mc_ms=self.leg_mc.copy(), leg_final=self.leg_final.copy(), leg_airspeed_ms=speeds[0],
             leg_heading_deg=speeds[1], leg_ground_speed_ms=speeds[2], leg_cruise_speed_ms=speeds[3],
         )
+
+
+def _heading(course_deg, airspeed_ms, across_ms):
+    """The heading that holds each leg's course with this crosswind [deg true] (the wind
+    triangle, :func:`glidetask.engine.wind.heading_for_course`); NaN where it cannot."""
+    v = np.asarray(airspeed_ms, dtype=float)
+    across = np.asarray(across_ms, dtype=float)
+    angle = correction_angle_deg(v, across)
+    return np.mod(np.asarray(course_deg, dtype=float)[None, :] - np.asarray(angle), 360.0)

@@ -38,6 +38,7 @@ import numpy as np
 
 from glidetask import cautions as caution_text
 from glidetask.engine import flight
+from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine import task as task_geometry
 from glidetask.engine import task_search
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
@@ -92,6 +93,11 @@ class LegPlan:
         The leg is flown entirely in final glide.
     start_time_s : float
         Clock time at the leg's start [s after midnight]; NaN if not reached.
+    indicated_airspeed_ms : float
+        ``airspeed_ms`` as indicated, ``TAS sqrt(sigma)`` at the leg's density (the band
+        middle's; a final-glide leg's, its final glide's) [m/s IAS]: what the pilot flies.
+    average_speed_ms : float
+        The leg's distance over its time [m/s], climbs, centring and detour included.
     """
 
     from_name: str
@@ -109,6 +115,8 @@ class LegPlan:
     arrival_height_m: float
     final_glide: bool
     start_time_s: float
+    indicated_airspeed_ms: float = math.nan
+    average_speed_ms: float = math.nan
 
 
 @dataclass(frozen=True)
@@ -328,7 +336,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     def fly_path(path):
         hook = None if requirement_for is None else requirement_for(scenario, path)
         hooks.append((path, hook))
-        return fly(course_for(path), flights, requirement=hook, record=True)
+        return fly(course_for(path, scenario.day.detour_percent), flights, requirement=hook, record=True)
 
     if task.kind == "area":
         path, flown, area, notes = _area_path(scenario, fly_path)
@@ -420,7 +428,7 @@ def _bisect_depth(attempt, low, high, minimum, tries: int = 14):
 def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes) -> Plan:
     day = scenario.day
     polar = scenario.glider.polar_at(day.band_middle_m, day.isa_deviation_c)
-    legs = _legs(path, flown)
+    legs = _legs(path, flown, float(density_ratio(day.band_middle_m, day.isa_deviation_c)))
     finished = bool(flown.finished[0])
     total = float(flown.total_time_s[0])
     planned = path.total_m
@@ -442,8 +450,9 @@ def _assemble(scenario, path, flown: Flown, nominal_m, optimized_m, area, notes)
     return dataclasses.replace(plan, notices=tuple(notes) + plan_notices(plan))
 
 
-def _legs(path, flown: Flown) -> tuple[LegPlan, ...]:
-    """The plan's legs from the flight core's records (one flight); NaN where not reached."""
+def _legs(path, flown: Flown, band_sigma: float) -> tuple[LegPlan, ...]:
+    """The plan's legs from the flight core's records (one flight); NaN where not reached.
+    ``band_sigma``: the density ratio at the band middle (the cruise's)."""
     reached = np.isfinite(flown.leg_entry_time_s[0])
     out = []
     for i, leg in enumerate(path.legs):
@@ -456,7 +465,10 @@ def _legs(path, flown: Flown) -> tuple[LegPlan, ...]:
             glide_ground_speed_ms=value("leg_ground_speed_ms"), cruise_speed_ms=value("leg_cruise_speed_ms"),
             time_s=value("leg_time_s"), required_height_m=value("leg_required_height_m"),
             arrival_height_m=float(flown.leg_arrival_height_m[0, i]), final_glide=bool(flown.leg_final[0, i]),
-            start_time_s=float(flown.leg_entry_time_s[0, i])))
+            start_time_s=float(flown.leg_entry_time_s[0, i]),
+            indicated_airspeed_ms=value("leg_airspeed_ms") * math.sqrt(
+                float(flown.final_glide_sigma[0]) if flown.leg_final[0, i] else band_sigma),
+            average_speed_ms=float(leg.distance_m) / value("leg_time_s") if value("leg_time_s") > 0.0 else math.nan))
     return tuple(out)
 
 
@@ -485,7 +497,8 @@ def plan_notices(plan: Plan) -> tuple[Notice, ...]:
         leg = _leg_at(plan, plan.landout_m)
         out.append(Notice("ends_short", dict(
             why=_WHY_SHORT.get(reason, "other"), stop_time_s=stop, lift_ends_s=day.lift_ends_s,
-            wind_from_deg=day.wind.from_deg, wind_speed_ms=day.wind.speed_ms, at_m=plan.landout_m,
+            wind_from_deg=day.wind_at(day.band_middle_m).from_deg, wind_speed_ms=day.wind_at(day.band_middle_m).speed_ms,
+            at_m=plan.landout_m,
             leg_from=leg.from_name, leg_to=leg.to_name, floor_m=floor)))
     elif reason != flight.FINAL_GLIDE:
         out.append(Notice("lift_ends_before_final_glide", dict(
@@ -551,5 +564,5 @@ def final_glide_card(plan: Plan, mc_values=CARD_MC_MS) -> np.ndarray:
     margin, the density at the middle of its start and arrival heights, and the terrain
     ahead when the plan has an elevation model.
     """
-    return flight.requirement_card(course_for(plan.path), flights_for(plan.scenario), mc_values,
+    return flight.requirement_card(course_for(plan.path, plan.scenario.day.detour_percent), flights_for(plan.scenario), mc_values,
                                    requirement=plan.requirement)[0]

@@ -26,6 +26,7 @@ import numpy as np
 
 from glidetask.engine import reach, reach_coverage
 from glidetask.engine.clearance_hook import path_terrain
+from glidetask.engine.finalglide import density_height_m
 from glidetask.engine.flight import Flown
 from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import Scenario
@@ -112,11 +113,13 @@ def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
     if not (math.isfinite(sigma) and math.isfinite(mc)):
         return np.full(len(path.legs), np.nan)
     day, glider = scenario.day, scenario.glider
-    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), day.wind.from_deg,
-                                    day.wind.speed_ms)
+    floor = scenario.task.points[-1].turnpoint.elevation_m + scenario.safety.arrival_margin_m
+    wind = day.wind_at(density_height_m(float(flown.final_glide_height_m[0]), floor))  # as the core: its middle
+    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), wind.from_deg, wind.speed_ms)
     polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
     glide = glide_in_wind(polar, mc, along, across, day.glide_airmass_ms)
-    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float), (len(path.legs),)).copy()
+    detour = 1.0 + day.detour_percent / 100.0  # per metre of the planned path, flown this much longer
+    return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float) * detour, (len(path.legs),)).copy()
 
 
 _COVERAGE_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
@@ -148,10 +151,11 @@ def landable_coverage(scenario: Scenario, path, model=None):
     floor = scenario.task.points[-1].turnpoint.elevation_m + safety.arrival_margin_m
     polar = scenario.glider.polar_at(0.5 * (day.band_bottom_m + floor), day.isa_deviation_c)
     airmass = min(day.glide_airmass_ms, 0.0)
+    reach_wind = day.wind_at(day.band_bottom_m)  # the glides to a field start at the band bottom
     model_key = None if model is None else (model.file_key, model.source, safety.terrain_clearance_m)
     key = (_vertices(path), fields,
            tuple(float(x) for x in (polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms)),
-           day.wind, day.band_bottom_m, safety.arrival_margin_m, airmass,
+           reach_wind, day.band_bottom_m, safety.arrival_margin_m, airmass,
            model_key)
     cacheable = model is None or model.file_key is not None
     with _COVERAGE_LOCK:
@@ -161,7 +165,7 @@ def landable_coverage(scenario: Scenario, path, model=None):
             return cached
     lats, lons, along = path.sample(COVERAGE_SPACING_M)
     leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
-    result = reach_coverage.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, day.wind,
+    result = reach_coverage.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, reach_wind,
                             day.band_bottom_m, safety.arrival_margin_m, model, safety.terrain_clearance_m,
                             airmass_ms=airmass)
     if not cacheable:

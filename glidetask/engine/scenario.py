@@ -17,6 +17,7 @@ import numpy as np
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
+from glidetask.engine.thermals import thermal_radii
 from glidetask.errors import InputError, Problem
 from glidetask.units import KMH, format_clock
 
@@ -31,6 +32,9 @@ WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent
 #: Kept below every airspace floor and above every ceiling unless the task says otherwise [m]
 #: (common practice).
 DEFAULT_AIRSPACE_MARGIN_M = 100.0
+#: The shallowest convective layer the thermal size is taken for [m] (a band top at or below the
+#: ground is an input the reader refuses; this only keeps the formula defined).
+SHALLOWEST_LAYER_M = 100.0
 #: The strongest wind any input may give [km/h] (the task file's limit, one for every input).
 MAX_WIND_SPEED_KMH = 200.0
 
@@ -59,7 +63,7 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
         out.append(("[glider] bugs_percent", "bugs must be 0 % or more"))
     if day.mc_ms is not None and not 0.0 <= day.mc_ms <= 10.0:
         out.append(("[day] mc_ms", f"the MacCready setting must be 0-10 m/s, got {day.mc_ms:g}"))
-    wind_kmh = day.wind.speed_ms / KMH
+    wind_kmh = day.wind.strongest_ms / KMH
     if not 0.0 <= wind_kmh <= MAX_WIND_SPEED_KMH + 1e-9:
         out.append(("[day] wind", f"the wind speed must be 0-{MAX_WIND_SPEED_KMH:g} km/h, got {wind_kmh:g}"))
     if not day.start_time_s < day.lift_ends_s:
@@ -93,24 +97,42 @@ class Wind:
     from_deg: float = 0.0
     speed_ms: float = 0.0
 
+    def at(self, height_m=None) -> "Wind":
+        """The wind at any height: itself (the same at all heights)."""
+        return self
 
-def _wind_vector(from_deg, speed_ms):
-    """The (east, north) components [m/s] of the air's motion for a wind blowing FROM ``from_deg``."""
-    to = np.radians(np.asarray(from_deg, dtype=float) + 180.0)
-    return speed_ms * np.sin(to), speed_ms * np.cos(to)
+    def mean_between(self, low_m=None, high_m=None) -> "Wind":
+        """The mean wind over any height range: itself."""
+        return self
+
+    @property
+    def strongest_ms(self) -> float:
+        """The strongest wind at any height [m/s]: its speed."""
+        return self.speed_ms
+
+    def stronger(self, extra_ms: float) -> "Wind":
+        """The same wind ``extra_ms`` [m/s] stronger (a what-if)."""
+        return Wind(self.from_deg, self.speed_ms + extra_ms)
 
 
-def _wind_from_vector(east_ms: float, north_ms: float) -> Wind:
-    speed = math.hypot(east_ms, north_ms)
-    if speed < 1e-9:
-        return Wind(0.0, 0.0)
-    return Wind(math.degrees(math.atan2(-east_ms, -north_ms)) % 360.0, speed)
+def wind_vector(from_deg, speed_ms):
+    """A wind as the components of the vector pointing where it blows FROM, (east, north) [m/s]
+    (scalars or arrays). Interpolating these and turning them back (:func:`wind_from_vector`)
+    interpolates the wind as a vector."""
+    angle = np.radians(np.asarray(from_deg, dtype=float))
+    speed = np.asarray(speed_ms, dtype=float)
+    return speed * np.sin(angle), speed * np.cos(angle)
+
+
+def wind_from_vector(east, north):
+    """The (from_deg, speed_ms) of a vector from :func:`wind_vector` (from_deg in [0, 360))."""
+    east, north = np.asarray(east, dtype=float), np.asarray(north, dtype=float)
+    return np.mod(np.degrees(np.arctan2(east, north)), 360.0), np.hypot(east, north)
 
 
 @dataclass(frozen=True)
 class WindLevel:
-    """One level of a wind profile: the direction the wind blows FROM [deg true] and its
-    speed [m/s] at ``height_m`` [m MSL]."""
+    """One level of a wind profile: height [m MSL], direction it blows FROM [deg true], speed [m/s]."""
 
     height_m: float
     from_deg: float
@@ -119,11 +141,16 @@ class WindLevel:
 
 @dataclass(frozen=True)
 class WindProfile:
-    """The wind by height: levels from the ground up, the wind vector linear in height
-    between them and held beyond the lowest and the highest.
+    """Wind changing with height (shared/CONTRACT.md 2.3 and 3, "wind with height").
 
-    Interpolating the vector (not direction and speed apart) is what a mixed layer's
-    winds do between two levels; through a veer it gives a lighter wind in between.
+    The wind vector's components are linear in height between the levels and held
+    beyond the lowest and the highest (a veer between two levels turns through the
+    smaller angle, and the speed dips where the direction changes much: the vector mean).
+
+    Attributes
+    ----------
+    levels : tuple of WindLevel
+        At least one level, heights strictly increasing [m MSL].
     """
 
     levels: tuple[WindLevel, ...]
@@ -131,29 +158,69 @@ class WindProfile:
     def __post_init__(self):
         heights = [level.height_m for level in self.levels]
         if not heights or any(b <= a for a, b in zip(heights, heights[1:])):
-            raise ValueError("a wind profile needs levels with increasing heights")
+            raise ValueError("a wind profile needs at least one level and strictly increasing heights")
 
-    def _vectors(self):
-        heights = np.array([level.height_m for level in self.levels])
-        east, north = _wind_vector([level.from_deg for level in self.levels],
-                                   np.array([level.speed_ms for level in self.levels]))
-        return heights, east, north
+    @property
+    def heights_m(self) -> np.ndarray:
+        return np.array([level.height_m for level in self.levels], dtype=float)
 
-    def at(self, height_m: float) -> Wind:
-        """The wind at ``height_m`` [m MSL]."""
-        heights, east, north = self._vectors()
-        return _wind_from_vector(float(np.interp(height_m, heights, east)), float(np.interp(height_m, heights, north)))
+    def vectors(self) -> tuple[np.ndarray, np.ndarray]:
+        """The levels' (east, north) components of :func:`wind_vector` [m/s], shape (H,) each."""
+        return wind_vector([level.from_deg for level in self.levels], [level.speed_ms for level in self.levels])
 
-    def mean_between(self, low_m: float, high_m: float) -> Wind:
-        """The height-weighted mean wind vector from ``low_m`` to ``high_m`` [m MSL] (the
-        wind at ``low_m`` when they are equal)."""
-        if not high_m > low_m:
-            return self.at(low_m)
-        heights, east, north = self._vectors()
-        z = np.union1d(heights[(heights > low_m) & (heights < high_m)], [low_m, high_m])
-        depth = high_m - low_m
-        return _wind_from_vector(float(np.trapezoid(np.interp(z, heights, east), z)) / depth,
-                                 float(np.trapezoid(np.interp(z, heights, north), z)) / depth)
+    def vector_at(self, height_m):
+        """(east, north) components at ``height_m`` (scalar or array) [m/s]."""
+        heights, (east, north) = self.heights_m, self.vectors()
+        return np.interp(height_m, heights, east), np.interp(height_m, heights, north)
+
+    def vector_mean(self, low_m, high_m):
+        """(east, north) components averaged over height from ``low_m`` to ``high_m`` (scalars or
+        arrays, either order); the wind at the height where they are equal [m/s].
+
+        The integral of the piecewise-linear components (held beyond the ends) divided by
+        the height range: exact, by the trapezoid rule on the levels inside the range.
+        """
+        low, high = np.broadcast_arrays(np.asarray(low_m, dtype=float), np.asarray(high_m, dtype=float))
+        low, high = np.minimum(low, high), np.maximum(low, high)
+        heights, (east, north) = self.heights_m, self.vectors()
+
+        def integral(z, values):  # from the lowest level to z (negative below it), held ends
+            below = np.clip(z, heights[0], heights[-1])
+            inside = np.interp(below, heights, values)
+            segment = np.concatenate([[0.0], np.cumsum(0.5 * (values[1:] + values[:-1]) * np.diff(heights))])
+            j = np.clip(np.searchsorted(heights, below, side="right") - 1, 0, heights.size - 1)
+            partial = segment[j] + 0.5 * (values[j] + inside) * (below - heights[j])
+            return partial + values[0] * np.minimum(z - heights[0], 0.0) + values[-1] * np.maximum(z - heights[-1], 0.0)
+
+        span = high - low
+        out = []
+        for values in (east, north):
+            with np.errstate(invalid="ignore", divide="ignore"):
+                mean = (integral(high, values) - integral(low, values)) / span
+            out.append(np.where(span > 0.0, mean, np.interp(low, heights, values)))
+        return out[0], out[1]
+
+    def at(self, height_m) -> Wind:
+        """The wind at ``height_m`` [m MSL] (a scalar)."""
+        from_deg, speed = wind_from_vector(*self.vector_at(float(height_m)))
+        return Wind(float(from_deg), float(speed))
+
+    def mean_between(self, low_m, high_m) -> Wind:
+        """The mean wind (the vector mean) over the heights from ``low_m`` to ``high_m`` [m MSL]:
+        the drift of a climb through them at a steady rate."""
+        from_deg, speed = wind_from_vector(*self.vector_mean(float(low_m), float(high_m)))
+        return Wind(float(from_deg), float(speed))
+
+    @property
+    def strongest_ms(self) -> float:
+        """The strongest wind at any height [m/s] (the strongest level: linear vector
+        interpolation never exceeds its ends)."""
+        return max(level.speed_ms for level in self.levels)
+
+    def stronger(self, extra_ms: float) -> "WindProfile":
+        """Every level ``extra_ms`` [m/s] stronger, directions kept (a what-if)."""
+        return WindProfile(tuple(WindLevel(level.height_m, level.from_deg, level.speed_ms + extra_ms)
+                                 for level in self.levels))
 
 
 @dataclass(frozen=True)
@@ -225,14 +292,18 @@ class Day:
     band_top_m: float
     band_bottom_m: float
     lift_ends_s: float
-    wind: Wind = field(default_factory=Wind)  # a Wind, or a WindProfile (read with wind_at)
+    wind: "Wind | WindProfile" = field(default_factory=Wind)
     climb: Profile | None = None
     thermal_strength: Profile | None = None
     start_height_m: float | None = None  # None: the band top
     glide_airmass_ms: float = 0.0
     isa_deviation_c: float = 0.0
     mc_ms: float | None = None  # None: the achieved climb at that moment
-    thermal_radius_m: float = 150.0  # e-folding radius of the Gaussian thermal core
+    thermal_radius_m: float | None = None  # e-folding radius of the thermal core; None: from the day's layer
+    ground_m: float = 0.0  # the ground under the convective layer [m MSL] (task_file: how it is chosen)
+    climb_ballast_kg: float | None = None  # the ballast ``climb`` was given for; None: the glider's own
+    centring_s: float = 0.0  # time lost centring each thermal [s] (the task file's default: 30, common practice)
+    detour_percent: float = 0.0  # the planned path flown this much longer [%] (task file default: 5, common practice)
     #: The band top through the day [m MSL] (None: ``band_top_m`` all day). When set,
     #: ``band_top_m`` is its highest value (the density of the cruise, the checks).
     band_top_profile: Profile | None = None
@@ -244,14 +315,37 @@ class Day:
             return self.band_top_m
         return scalar_or_array(np.minimum(np.asarray(self.band_top_profile.at(time_s), dtype=float), self.band_top_m))
 
-    def wind_at(self, height_m: float) -> Wind:
-        """The wind at ``height_m`` [m MSL]: the steady wind, or the profile's there."""
-        return self.wind.at(height_m) if isinstance(self.wind, WindProfile) else self.wind
 
     @property
     def band_middle_m(self) -> float:
         """The middle of the working band [m MSL] (:func:`band_middle_m`)."""
         return band_middle_m(self.band_top_m, self.band_bottom_m)
+
+    @property
+    def layer_depth_m(self) -> float:
+        """Depth of the convective layer [m]: the band top above the ground under it
+        (:attr:`ground_m`), at least :data:`SHALLOWEST_LAYER_M`."""
+        return max(self.band_top_m - self.ground_m, SHALLOWEST_LAYER_M)
+
+    @property
+    def effective_thermal_radius_m(self) -> float:
+        """The thermal core radius the circling model uses [m]: ``thermal_radius_m`` where
+        given, else the typical radius for the day's convective layer
+        (:func:`glidetask.engine.thermals.thermal_radii`, Allen 2006)."""
+        if self.thermal_radius_m is not None:
+            return float(self.thermal_radius_m)
+        return float(thermal_radii(self.layer_depth_m).typical_m)
+
+    @property
+    def thermal_radius_source(self) -> str:
+        """Where :attr:`effective_thermal_radius_m` comes from, in words."""
+        if self.thermal_radius_m is not None:
+            return "given in the task"
+        return f"Allen (2006) for a {self.layer_depth_m / 1000.0:.1f} km convective layer"
+
+    def wind_at(self, height_m) -> Wind:
+        """The wind at ``height_m`` [m MSL]: the single wind, or the profile's there."""
+        return self.wind.at(height_m)
 
     @property
     def effective_start_height_m(self) -> float:
@@ -307,7 +401,8 @@ class Scenario:
 # ---------------------------------------------------------------- what-ifs
 
 
-def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
+def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None,
+                  wind: "Wind | WindProfile | None" = None,
                   start_time_s=None) -> Scenario:
     """The scenario with the given what-ifs (None keeps the scenario's value).
 

@@ -12,7 +12,7 @@ import dataclasses
 import math
 from dataclasses import dataclass
 
-from glidetask.engine.compare import TASK_TERRAIN, planned_route, stack_flights
+from glidetask.engine.compare import TASK_TERRAIN, fly_stacked, planned_route
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
 from glidetask.engine.plan import Plan
 from glidetask.engine.scenario import Profile, Scenario, Wind, with_what_ifs
@@ -88,7 +88,7 @@ def _weaker(profile: Profile, by: float) -> Profile:
     return Profile(profile.times_s, tuple(max(v - by, 0.0) for v in profile.values))
 
 
-WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs")
+WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs", "pure_model")
 
 
 def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario | None]]:
@@ -102,13 +102,14 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
     else:
         weaker_day = dataclasses.replace(day, thermal_strength=_weaker(day.thermal_strength, WEAKER_CLIMB_MS))
         weaker = ("Thermals 0.5 m/s weaker", "thermal strength -0.5 m/s all day")
-    wind = Wind(day.wind.from_deg, day.wind.speed_ms + MORE_WIND_MS)
+    wind = day.wind.stronger(MORE_WIND_MS)
+    shown = wind.at(day.band_middle_m)  # a profile: the cruise's wind, at the band middle
     start = day.start_time_s + LATER_START_S
     bugs = glider.bugs_percent + MORE_BUGS_PERCENT
     out = [("forecast", "Forecast", "the plan as given", scenario),
            ("weaker_climbs", *weaker, dataclasses.replace(scenario, day=weaker_day))]
     for key, label, change, what_if in (
-            ("more_wind", "Wind 10 km/h stronger", f"wind {wind.from_deg:03.0f}/{wind.speed_ms / KMH:.0f} km/h",
+            ("more_wind", "Wind 10 km/h stronger", f"wind {shown.from_deg:03.0f}/{shown.speed_ms / KMH:.0f} km/h",
              {"wind": wind}),
             ("later_start", "Start 30 min later", f"start {format_clock(start)}", {"start_time_s": start}),
             ("more_bugs", "5 % more bugs", f"bugs {bugs:g} % (sink rate)", {"bugs_percent": bugs})):
@@ -116,6 +117,11 @@ def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario 
             out.append((key, label, change, with_what_ifs(scenario, **what_if)))
         except InputError:
             out.append((key, label, change + ": at or after the end of lift", None))
+    if day.centring_s > 0.0 or day.detour_percent > 0.0:  # what the practical allowances cost
+        pure = dataclasses.replace(day, centring_s=0.0, detour_percent=0.0)
+        out.append(("pure_model", "No centring, no detour",
+                    f"centring 0 s, detour 0 % (planned: {day.centring_s:g} s a climb, {day.detour_percent:g} %)",
+                    dataclasses.replace(scenario, day=pure)))
     return out
 
 
@@ -151,9 +157,10 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
     path, requirement = planned_route(scenario, path, requirement)
     variants = what_if_scenarios(scenario)
     flyable = [v for v in variants if v[3] is not None]
-    flown = fly(course_for(path), stack_flights([flights_for(v[3]) for v in flyable]), requirement=requirement,
-                detail=False)
-    by_key = {key: flown.flight(i) for i, (key, _, _, _) in enumerate(flyable)}
+    flown = fly_stacked(course_for(path, scenario.day.detour_percent), [flights_for(v[3]) for v in flyable],
+                        [course_for(path, v[3].day.detour_percent).detour_factor for v in flyable],
+                        requirement=requirement, detail=False)
+    by_key = {key: flown[i] for i, (key, _, _, _) in enumerate(flyable)}
     rows = [_sensitivity_row(key, label, change, by_key.get(key), scenario, path)
             for key, label, change, _ in variants]
     forecast = rows[0]
@@ -164,7 +171,7 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
         notes.append("Area task: the what-ifs fly the forecast plan's targets; on the day, move the targets "
                      "to keep the minimum time.")
     day = scenario.day
-    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes), day.wind,
+    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes), day.wind_at(day.band_middle_m),
                        day.start_time_s, scenario.glider.bugs_percent, day.climb is None)
 
 

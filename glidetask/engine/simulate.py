@@ -47,7 +47,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from glidetask.engine import flight
-from glidetask.engine.compare import climb_values_for_ballasts, planned_route, stack_flights, usable_ballast_kg
+from glidetask.engine.compare import planned_route, stack_flights, usable_ballast_kg
 from glidetask.engine.flight import Flights, course_for, flights_for, fly
 from glidetask.engine.scenario import Scenario, with_what_ifs
 from glidetask.units import KMH
@@ -132,10 +132,11 @@ def draw_days(scenario: Scenario, spread: DaySpread, runs: int, seed: int) -> Da
     z_climb, z_speed, z_direction, z_end = rng.standard_normal((4, runs))
     search_unit = rng.standard_exponential((runs, SEARCH_DRAWS))
     factor = np.exp(spread.climb_log_sd * z_climb)
+    wind = day.wind_at(day.band_middle_m)  # the cruise's wind; a profile keeps its shape (flight_wind)
     return Days(
         climb_factor=factor,
-        wind_from_deg=np.mod(day.wind.from_deg + spread.wind_direction_sd_deg * z_direction, 360.0),
-        wind_speed_ms=np.maximum(day.wind.speed_ms + spread.wind_speed_sd_ms * z_speed, 0.0),
+        wind_from_deg=np.mod(wind.from_deg + spread.wind_direction_sd_deg * z_direction, 360.0),
+        wind_speed_ms=np.maximum(wind.speed_ms + spread.wind_speed_sd_ms * z_speed, 0.0),
         lift_ends_s=day.lift_ends_s + spread.lift_end_sd_s * z_end,
         search_mean_m=spread.thermal_search_mean_m / factor,
         search_unit=search_unit,
@@ -306,12 +307,11 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))
     if not choices:
         raise ValueError("give at least one ballast choice")
+    # Each ballast as the planner flies it (climbs of the file's loading: other ballasts climb
+    # in the same thermals, flight.day_lift).
     setups = [flights_for(with_what_ifs(scenario, ballast_kg=b)) for b in choices]
-    if scenario.day.climb is not None:  # climbs for the file's ballast: other ballasts climb as in the same thermals
-        rows = climb_values_for_ballasts(scenario, choices)
-        setups = [dataclasses.replace(s, lift_values=tuple(row)) for s, row in zip(setups, rows)]
     path, requirement = planned_route(scenario, path, requirement)
-    course = course_for(path)
+    course = course_for(path, scenario.day.detour_percent)
     days = draw_days(scenario, spread, runs, seed)
     flights, search = _day_flights(scenario, setups, days, spread)
     flown = fly(course, flights, search=search, requirement=requirement, detail=False)
@@ -327,6 +327,8 @@ def _day_flights(scenario: Scenario, setups: list[Flights], days: Days, spread: 
     runs, count = days.climb_factor.size, len(setups)
     stacked = stack_flights(setups)
     per_choice = {name: np.repeat(np.asarray(getattr(stacked, name)), runs) for name in Flights._PER_FLIGHT}
+    if np.ndim(stacked.lift_is_strength):  # one kind of profile per choice (flight.day_lift)
+        per_choice["lift_is_strength"] = np.repeat(np.asarray(stacked.lift_is_strength), runs)
 
     def tile(array):
         return np.tile(array, count)

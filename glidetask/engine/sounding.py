@@ -48,6 +48,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from glidetask.engine.scenario import Profile, Wind, WindLevel, WindProfile
+from glidetask.units import KMH
 
 #: Gravity [m/s^2] (ISO 2533 standard value).
 G = 9.80665
@@ -582,10 +583,10 @@ class DayInputs:
     lift_start_s, lift_ends_s : float
         When thermals start and end [s after midnight].
     wind_profile : WindProfile
-        The sounding's winds from the ground up.
+        The sounding's winds from the ground up: the wind the plan flies (``Day.wind``).
     wind : Wind
-        The mean wind of the highest working band (:meth:`WindProfile.mean_between`): the
-        steady wind the plan flies while ``Day.wind`` takes a single wind.
+        The mean wind of the highest working band (:meth:`WindProfile.mean_between`), a
+        one-line summary of it.
     """
 
     band_top: Profile
@@ -625,15 +626,16 @@ def day_inputs(derived: DerivedDay) -> DayInputs:
     strength = Profile(tuple(float(t) for t in times[first:last + 1]),
                        tuple(_rounded(derived.thermal_strength_ms[first:last + 1], 2)))
     bottom = round(float(derived.surface_elevation_m + derived.band_bottom_agl_m))
-    profile = WindProfile(tuple(derived.wind))
+    # Each level as a pilot would type it (metre, degree, 0.1 km/h), so a typed copy flies the same.
+    profile = WindProfile(tuple(WindLevel(float(round(level.height_m)), float(round(level.from_deg) % 360.0),
+                                          round(level.speed_ms / KMH, 1) * KMH) for level in derived.wind))
     mean = profile.mean_between(bottom, max(band_top.values))
-    wind = Wind(round(mean.from_deg) % 360.0, round(mean.speed_ms / _KMH, 1) * _KMH)
+    wind = Wind(round(mean.from_deg) % 360.0, round(mean.speed_ms / KMH, 1) * KMH)
     return DayInputs(band_top=band_top, band_bottom_m=float(bottom), thermal_strength=strength,
                      lift_start_s=math.ceil(derived.lift_start_s / 60.0) * 60.0,
                      lift_ends_s=math.floor(derived.lift_end_s / 60.0) * 60.0, wind_profile=profile, wind=wind)
 
 
-_KMH = 1000.0 / 3600.0  # m/s per km/h
 
 
 def _rounded(values, digits: int) -> list[float]:

@@ -290,7 +290,8 @@ class CruiseSolution:
     glide_fraction: float
 
 
-def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, mc_ms=None) -> CruiseSolution:
+def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, mc_ms=None,
+                   climb_along_ms=None, climb_across_ms=None) -> CruiseSolution:
     """Speed to fly and average cross-country speed on a course with climbs, in wind.
 
     Parameters
@@ -305,6 +306,9 @@ def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, 
         Average vertical air motion while gliding, up positive [m/s].
     mc_ms : float or array_like, optional
         A fixed MacCready setting [m/s]; default the achieved climb.
+    climb_along_ms, climb_across_ms : float or array_like, optional
+        The wind the climbs drift with, where it differs from the glides' (wind with
+        height) [m/s]; default the glides' wind.
 
     Returns
     -------
@@ -321,6 +325,11 @@ def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, 
     ``m v/(m + sink - u)``: the still-air speed to fly, whatever the wind [1]_.
     ``Vc`` is then evaluated with the real ``m_c``.
 
+    With a climb wind ``C`` other than the glide wind ``G`` the cycle's mean wind is
+    ``f G + (1 - f) C`` and ``Vc = sqrt((f v)^2 - (f Gn + (1-f) Cn)^2) + f Ge + (1-f) Ce``
+    (the same vector sum); the speed to fly stays the still-air one (the shear's effect
+    on the optimum is neglected: it is second order in the shear).
+
     References
     ----------
     .. [1] H. Reichmann, Cross-Country Soaring, Thomson Publications, 1978: in a
@@ -336,7 +345,12 @@ def cruise_in_wind(polar: Polar, climb_ms, along_ms, across_ms, airmass_ms=0.0, 
     with np.errstate(divide="ignore", invalid="ignore"):
         fraction = np.where(net_sink <= 0.0, 1.0, climb / (climb + net_sink))
         fraction = np.where((net_sink > 0.0) & (climb <= 0.0), np.nan, fraction)
-        cruise = np.asarray(ground_speed(fraction * v, along, across))
+        if climb_along_ms is None:
+            cruise = np.asarray(ground_speed(fraction * v, along, across))
+        else:  # the cycle's mean wind: glides in (along, across), climbs in the climb wind
+            climbing = 1.0 - fraction
+            cruise = np.asarray(ground_speed(fraction * v, fraction * along + climbing * np.asarray(climb_along_ms),
+                                             fraction * across + climbing * np.asarray(climb_across_ms)))
         glide_ground = np.asarray(ground_speed(v, along, across))
     cruise = np.where(cruise > 0.0, cruise, np.nan)
     shape = np.broadcast_shapes(v.shape, cruise.shape, glide_ground.shape, fraction.shape)

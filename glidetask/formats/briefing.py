@@ -22,6 +22,7 @@ from glidetask import cautions, units
 from glidetask.engine.plan import CARD_MC_MS, final_glide_card
 from glidetask.formats.safety_report import landables_markdown, terrain_markdown
 from glidetask.formats.strategy_report import sensitivity_markdown
+from glidetask.formats.wind_text import wind_text
 from glidetask.units import KNOT, format_clock, format_duration
 
 CARD_MC_KT = tuple(k * KNOT for k in (0.0, 2.0, 4.0, 6.0))  # the aviation card's settings [m/s]
@@ -143,7 +144,7 @@ def _day(plan, unit) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "Achieved climb" if day.climb is not None else "Thermal strength (circling model gives the climb)"
     lift = ", ".join(f"{format_clock(t)} {unit.fmt_vertical(v)}" for t, v in zip(profile.times_s, profile.values))
-    wind = "calm" if day.wind.speed_ms == 0.0 else f"from {day.wind.from_deg:03.0f} at {unit.fmt_speed(day.wind.speed_ms)}"
+    wind = wind_text(day.wind, unit, words=True)
     mc = "the climb of each thermal" if day.mc_ms is None else unit.fmt_vertical(day.mc_ms)
     fg = "the cruise setting at that moment" if safety.final_glide_mc_ms is None else \
         unit.fmt_vertical(safety.final_glide_mc_ms)

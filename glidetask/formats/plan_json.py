@@ -13,6 +13,7 @@ from __future__ import annotations
 import math
 from typing import Any
 
+from glidetask.engine.scenario import WindProfile
 from glidetask.units import KMH, format_clock
 
 
@@ -48,10 +49,12 @@ def _leg(leg) -> dict[str, Any]:
         "climb_ms": _number(leg.climb_ms, digits=2),
         "mc_ms": _number(leg.mc_ms, digits=2),
         "airspeed_kmh": _number(leg.airspeed_ms, KMH, 1),
+        "indicated_airspeed_kmh": _number(leg.indicated_airspeed_ms, KMH, 1),
         "heading_deg": _number(leg.heading_deg, digits=1),
         "glide_ground_speed_kmh": _number(leg.glide_ground_speed_ms, KMH, 1),
         "cruise_speed_kmh": _number(leg.cruise_speed_ms, KMH, 1),
         "time_s": _number(leg.time_s, digits=0),
+        "average_speed_kmh": _number(leg.average_speed_ms, KMH, 1),
         "required_height_m": _number(leg.required_height_m, digits=0),
         "arrival_height_m": _number(leg.arrival_height_m, digits=0),
         "final_glide": leg.final_glide,
@@ -77,6 +80,14 @@ def _task(plan) -> dict[str, Any]:
     return out
 
 
+def _wind(wind):
+    """``{from_deg, speed_kmh}``, or a profile's levels as the task file gives them (contract 2.3)."""
+    if isinstance(wind, WindProfile):
+        return [{"height_m": _number(level.height_m, digits=0), "from_deg": _number(level.from_deg, digits=0),
+                 "speed_kmh": _number(level.speed_ms, KMH, 1)} for level in wind.levels]
+    return {"from_deg": _number(wind.from_deg, digits=0), "speed_kmh": _number(wind.speed_ms, KMH, 1)}
+
+
 def _day(plan) -> dict[str, Any]:
     day, safety = plan.scenario.day, plan.scenario.safety
     profile = day.climb if day.climb is not None else day.thermal_strength
@@ -85,7 +96,7 @@ def _day(plan) -> dict[str, Any]:
         "start_height_m": _number(day.effective_start_height_m, digits=0),
         "band_top_m": _number(day.band_top_m, digits=0),
         "band_bottom_m": _number(day.band_bottom_m, digits=0),
-        "wind": {"from_deg": _number(day.wind.from_deg, digits=0), "speed_kmh": _number(day.wind.speed_ms, KMH, 1)},
+        "wind": _wind(day.wind),
         "lift_profile": "climb_ms" if day.climb is not None else "thermal_strength_ms",
         "lift": [[format_clock(t), v] for t, v in zip(profile.times_s, profile.values)],
         "lift_ends": format_clock(day.lift_ends_s),

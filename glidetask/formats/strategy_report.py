@@ -101,6 +101,7 @@ def sweep_to_dict(sweep) -> dict:
         "scenario_ballast_kg": _number(sweep.scenario_ballast_kg, 2),
         "forecast_strength_ms": _number(sweep.forecast_strength_ms),
         "thermal_radius_m": _number(sweep.thermal_radius_m, 1),
+        "thermal_radius_source": sweep.thermal_radius_source,
         "phases": sweep.phases,
         "cautions": cautions.general() + list(sweep.notes),
     }
@@ -138,12 +139,17 @@ def _strength_label(units: UnitSystem, strength: float) -> str:
     return f"{units.vertical(strength):.1f} {units.vertical_label}"
 
 
+def _source(sweep) -> str:
+    return f" ({sweep.thermal_radius_source})" if getattr(sweep, "thermal_radius_source", "") else ""
+
+
 def sweep_text(sweep, units: UnitSystem | str = "metric") -> str:
     """The readable sweep: strengths as rows, ballast as columns, task times H:MM, the best marked."""
     units = _units(units)
     lines = [f"Ballast against thermal strength: {sweep.task_name}",
              f"  path {units.fmt_distance(sweep.planned_distance_m)} as planned; thermals "
-             f"{units.fmt_height(sweep.thermal_radius_m)} in radius, the same strength all day until lift ends;"
+             f"{units.fmt_height(sweep.thermal_radius_m)} in radius{_source(sweep)}, the same strength all day "
+             "until lift ends;"
              f" ballast in the task file {sweep.scenario_ballast_kg:g} kg", "",
              "Task time (H:MM) by thermal strength (rows) and water ballast (columns, kg);"
              " * the fastest, - not finished"]

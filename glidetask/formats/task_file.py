@@ -19,12 +19,15 @@ Zone keys, sizes in km (contract 2.3):
 * area turns: ``cylinder`` (``radius_km``) or ``sector`` (``radius_km``,
   ``inner_radius_km`` default 0, ``radial_from_deg``, ``radial_to_deg``).
 
-Extension beyond the contract: ``[day] thermal_radius_m`` (default 150), the radius of the
-thermal core used with ``thermal_strength_ms``.
+``[day] thermal_radius_m`` (optional), the radius of the thermal core for the circling model;
+absent, the typical radius for the day's convective layer (Allen 2006,
+:func:`glidetask.engine.thermals.thermal_radii`), the layer being the band top above the
+ground: ``[day] surface_elevation_m`` where given, else the task's lowest turnpoint.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import difflib
 import json
 import math
@@ -32,8 +35,10 @@ import os
 from pathlib import Path
 from typing import Any
 
-from glidetask.engine.scenario import (DEFAULT_AIRSPACE_MARGIN_M, MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety,
-                                       Scenario, Wind)
+from glidetask.engine.scenario import (
+    DEFAULT_AIRSPACE_MARGIN_M, MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind, WindLevel,
+    WindProfile,
+)
 from glidetask.engine.task import Task, TaskPoint, Turnpoint, task_problems
 from glidetask.engine.zones import Zone
 from glidetask.errors import InputError
@@ -47,6 +52,7 @@ TASK_KEYS = ("name", "kind", "turnpoints", "min_time_min", "points")
 GLIDER_KEYS = ("polar", "pilot_kg", "ballast_kg", "bugs_percent")
 DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind", "climb_ms",
             "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m",
+            "centring_s", "detour_percent",
             # the day from a sounding (contract 2.7), read by glidetask.formats.sounding_file
             "sounding", "surface", "surface_elevation_m", "band_top_margin_m", "band_bottom_agl_m")
 #: The typed [day] keys that override a derived day's values (climb_ms overrides the
@@ -58,7 +64,8 @@ AIRSPACE_KEYS = ("file",)
 DEFAULT_PILOT_KG = 90.0
 ZONE_SIZE_LIMIT_KM = 1000.0  # far beyond any observation zone (common practice: cylinders of a few tens of km)
 PILOT_LIMIT_KG = 400.0  # two heavy pilots with parachutes in a two-seater, and then some
-DEFAULT_THERMAL_RADIUS_M = 150.0
+DEFAULT_CENTRING_S = 30.0  # time lost centring each thermal [s] (common practice; contract 2.3)
+DEFAULT_DETOUR_PERCENT = 5.0  # distance flown beyond the planned path [%] (common practice; contract 2.3)
 
 # Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
 _START_FINISH = {"line": {"length_km": None}, "cylinder": {"radius_km": None}}
@@ -343,12 +350,15 @@ def _profile(reader: _Reader, table: dict, key: str, low: float = 0.0, high: flo
     return Profile(tuple(times), tuple(values)) if ok else None
 
 
-def _wind(reader: _Reader, table: dict) -> Wind | None:
+def _wind(reader: _Reader, table: dict) -> Wind | WindProfile | None:
     raw = table.get("wind")
     if raw is None:
         return Wind()
+    if isinstance(raw, list):
+        return _wind_profile(reader, raw)
     if not isinstance(raw, dict):
-        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }}, got {show(raw)}")
+        reader.add("[day] wind", f"must be a table like {{ from_deg = 270.0, speed_kmh = 20.0 }} or a list of "
+                                 f"{{ height_m, from_deg, speed_kmh }} tables, got {show(raw)}")
         return None
     reader.unknown(raw, "[day] wind", ("from_deg", "speed_kmh"))
     direction = reader.number(raw, "[day] wind", "from_deg", required=True, low=0.0, high=360.0)
@@ -370,6 +380,35 @@ def _band_top(reader: _Reader, table: dict, derived) -> tuple[float | None, Prof
         profile = _profile(reader, table, "band_top_m", low=-500.0, high=15000.0, unit="m")
         return (None, None) if profile is None else (max(profile.values), profile)
     return reader.number(table, "[day]", "band_top_m", required=True, low=-500.0, high=15000.0), None
+
+
+def _wind_profile(reader: _Reader, raw: list) -> WindProfile | None:
+    """``[day] wind`` as a list of levels (contract 2.3): heights strictly increasing."""
+    if not raw:
+        reader.add("[day] wind", "a wind profile needs at least one { height_m, from_deg, speed_kmh } level")
+        return None
+    levels, ok = [], True
+    for number, entry in enumerate(raw, start=1):
+        here = f"[day] wind[{number}]"
+        if not isinstance(entry, dict):
+            reader.add(here, f"must be a table like {{ height_m = 1000.0, from_deg = 270.0, speed_kmh = 20.0 }}, "
+                             f"got {show(entry)}")
+            ok = False
+            continue
+        reader.unknown(entry, here, ("height_m", "from_deg", "speed_kmh"))
+        height = reader.number(entry, here, "height_m", required=True, low=-500.0, high=15000.0)
+        direction = reader.number(entry, here, "from_deg", required=True, low=0.0, high=360.0)
+        speed = reader.number(entry, here, "speed_kmh", required=True, low=0.0, high=MAX_WIND_SPEED_KMH)
+        if None in (height, direction, speed):
+            ok = False
+            continue
+        if levels and height <= levels[-1].height_m:
+            reader.add(f"{here} height_m", f"heights must increase: {height:g} m is not above "
+                                           f"{levels[-1].height_m:g} m")
+            ok = False
+            continue
+        levels.append(WindLevel(height, direction % 360.0, speed * KMH))
+    return WindProfile(tuple(levels)) if ok else None
 
 
 def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = False) -> Day | None:
@@ -416,19 +455,23 @@ def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = Fals
         climb = _profile(reader, table, "climb_ms")
     else:
         strength = _profile(reader, table, "thermal_strength_ms")
-    wind = derived.wind if "wind" not in table and derived is not None else _wind(reader, table)
+    wind = derived.wind_profile if "wind" not in table and derived is not None else _wind(reader, table)
     airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
     isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
     mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
-    radius = reader.number(table, "[day]", "thermal_radius_m", default=DEFAULT_THERMAL_RADIUS_M, positive=True,
-                           high=5000.0)
-    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa, radius):
+    radius = reader.number(table, "[day]", "thermal_radius_m", positive=True, high=5000.0)
+    centring = reader.number(table, "[day]", "centring_s", default=DEFAULT_CENTRING_S, low=0.0, high=600.0)
+    detour = reader.number(table, "[day]", "detour_percent", default=DEFAULT_DETOUR_PERCENT, low=0.0, high=50.0)
+    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa):
         return None
     if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
         return None
+    if ("thermal_radius_m" in table and radius is None) or centring is None or detour is None:
+        return None
     return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
                climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
-               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius, band_top_profile=top_profile)
+               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius, band_top_profile=top_profile,
+               centring_s=centring, detour_percent=detour)
 
 
 def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
@@ -560,6 +603,9 @@ def load_scenario(path: str | os.PathLike) -> Scenario:
     terrain = _terrain(reader, reader.table(document, "terrain", required=False), base)
     airspace, airspace_file = _airspace(reader, reader.table(document, "airspace", required=False), base)
     reader.problems.raise_if_any()
+    # Achieved climbs belong to the file's loading: other ballasts climb as the circling model says.
+    day = dataclasses.replace(day, ground_m=_ground_m(day_table, task),
+                              climb_ballast_kg=glider.ballast_kg if day.climb is not None else None)
     return Scenario(task=task, glider=glider, day=day, safety=safety, turnpoints=turnpoints,
                     terrain_file=terrain, source=file, day_source=source, airspace=airspace,
                     airspace_file=airspace_file,
@@ -595,6 +641,17 @@ def files_named_by(task_path: str | os.PathLike) -> list[Path]:
 
     walk(document)
     return found
+
+
+def _ground_m(day_table: dict, task: Task) -> float:
+    """The ground under the day's convective layer [m MSL] (its depth sets the default thermal
+    size, contract section 3): ``[day] surface_elevation_m`` where given (the sounding's
+    ground), else the lowest elevation among the task's turnpoints (the deepest layer the
+    task flies over, so the broadest default thermals)."""
+    given = day_table.get("surface_elevation_m")
+    if is_number(given):
+        return float(given)
+    return float(min(point.turnpoint.elevation_m for point in task.points))
 
 
 def turnpoints_file_of(task_path: str | os.PathLike) -> Path | None:
@@ -666,7 +723,7 @@ def _typed_day_keys(scenario: Scenario) -> set[str]:
     derived = source.inputs
     same = {"band_top_m": day.band_top_profile == derived.band_top and day.band_top_m == derived.band_top_m,
             "band_bottom_m": day.band_bottom_m == derived.band_bottom_m,
-            "wind": day.wind == derived.wind,
+            "wind": day.wind == derived.wind_profile,
             "thermal_strength_ms": day.climb is None and day.thermal_strength == derived.thermal_strength,
             "lift_ends": day.lift_ends_s == derived.lift_ends_s}
     return {key for key in every if key in source.overridden or not same[key]}
@@ -683,6 +740,13 @@ def _sounding_lines(settings, folder: Path) -> list[str]:
         lines.append(f"surface_elevation_m = {_toml_value(settings.surface_elevation_m)}")
     return lines + [f"band_top_margin_m = {_toml_value(settings.band_top_margin_m)}",
                     f"band_bottom_agl_m = {_toml_value(settings.band_bottom_agl_m)}"]
+
+
+def _wind_value(wind: Wind | WindProfile):
+    if isinstance(wind, WindProfile):
+        return [{"height_m": level.height_m, "from_deg": level.from_deg, "speed_kmh": level.speed_ms / KMH}
+                for level in wind.levels]
+    return {"from_deg": wind.from_deg, "speed_kmh": wind.speed_ms / KMH}
 
 
 def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
@@ -714,13 +778,22 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
     if "band_bottom_m" in typed:
         lines.append(f"band_bottom_m = {_toml_value(day.band_bottom_m)}")
     if "wind" in typed:
-        lines.append(f"wind = {_toml_value({'from_deg': day.wind.from_deg, 'speed_kmh': day.wind.speed_ms / KMH})}")
+        lines.append(f"wind = {_toml_value(_wind_value(day.wind))}")
     if day.climb is not None:
         lines.append(f"climb_ms = {_toml_value(_profile_value(day.climb))}")
     elif "thermal_strength_ms" in typed:
         lines.append(f"thermal_strength_ms = {_toml_value(_profile_value(day.thermal_strength))}")
-    # The circling model uses the thermal radius with either profile (ballast comparisons, odds).
-    lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    # The circling model uses the thermal radius with either profile (ballast comparisons, odds);
+    # absent, it comes from the day's convective layer.
+    if day.thermal_radius_m is not None:
+        lines.append(f"thermal_radius_m = {_toml_value(day.thermal_radius_m)}")
+    if day.centring_s != DEFAULT_CENTRING_S:
+        lines.append(f"centring_s = {_toml_value(day.centring_s)}")
+    if day.detour_percent != DEFAULT_DETOUR_PERCENT:
+        lines.append(f"detour_percent = {_toml_value(day.detour_percent)}")
+    lowest = min(point.turnpoint.elevation_m for point in task.points)
+    if scenario.day_source is None and day.ground_m != lowest:  # the layer's ground, as read (a sounding gives its own)
+        lines.append(f"surface_elevation_m = {_toml_value(day.ground_m)}")
     if "lift_ends" in typed:
         lines.append(f"lift_ends = {_toml_value(format_clock(day.lift_ends_s))}")
     lines += [f"glide_airmass_ms = {_toml_value(day.glide_airmass_ms)}",
@@ -768,7 +841,8 @@ def _leading_comments(path: str | os.PathLike | None) -> str | None:
 _TABLE_DEFAULTS = {
     "task": {"kind": "racing"},
     "glider": {"pilot_kg": DEFAULT_PILOT_KG, "ballast_kg": 0.0, "bugs_percent": 0.0},
-    "day": {"thermal_radius_m": DEFAULT_THERMAL_RADIUS_M, "glide_airmass_ms": 0.0, "isa_deviation_c": 0.0,
+    "day": {"centring_s": DEFAULT_CENTRING_S, "detour_percent": DEFAULT_DETOUR_PERCENT, "glide_airmass_ms": 0.0,
+            "isa_deviation_c": 0.0,
             "wind": {"from_deg": 0.0, "speed_kmh": 0.0}},
     "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0, "airspace_margin_m": DEFAULT_AIRSPACE_MARGIN_M},
     "terrain": {},

@@ -166,6 +166,7 @@ def field_text(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
     if value is None:
         return ""
     if spec.kind == "wind":
+        value = value.at(scenario.day.band_middle_m)  # a profile: the cruise's wind (band middle)
         speed = units.speed(value.speed_ms)
         return "calm" if speed == 0 else f"{value.from_deg:03.0f}/{display.number(speed, 0)}"
     if spec.kind == "clock":

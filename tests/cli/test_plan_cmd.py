@@ -69,8 +69,10 @@ def test_aviation_units_convert_every_column(capsys):
     leg = plan(load_scenario(TRIANGLE)).legs[0]
     row = next(line for line in text.splitlines() if line.strip().startswith("1 ")).split()
     assert f"{leg.distance_m / NAUTICAL_MILE:.1f}" in row
-    assert f"{leg.required_height_m / FOOT:.0f}" in row and f"{leg.arrival_height_m / FOOT:.0f}" in row
-    assert f"{leg.airspeed_ms / KNOT:.0f}" in row and f"{leg.cruise_speed_ms / KNOT:.0f}" in row
+    assert f"{leg.arrival_height_m / FOOT:.0f}" in row
+    assert "above" in row and leg.required_height_m > load_scenario(TRIANGLE).day.band_top_m  # no final glide from there
+    assert f"{leg.airspeed_ms / KNOT:.0f}" in row and f"{leg.average_speed_ms / KNOT:.0f}" in row
+    assert f"{leg.indicated_airspeed_ms / KNOT:.0f}" in row
     assert f"{leg.climb_ms / KNOT:.1f}" in row
     assert " NM " in text and " ft" in text and " kt" in text
 

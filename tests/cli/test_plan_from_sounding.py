@@ -62,7 +62,9 @@ def _typed_lines(inputs) -> list[str]:
             f"band_bottom_m = {inputs.band_bottom_m!r}",
             f"thermal_strength_ms = [{pairs(inputs.thermal_strength)}]",
             f'lift_ends = "{format_clock(inputs.lift_ends_s)}"',
-            f"wind = {{ from_deg = {inputs.wind.from_deg!r}, speed_kmh = {round(inputs.wind.speed_ms / KMH, 1)!r} }}"]
+            "wind = [" + ", ".join(f"{{ height_m = {level.height_m!r}, from_deg = {level.from_deg!r}, "
+                                   f"speed_kmh = {round(level.speed_ms / KMH, 1)!r} }}"
+                                   for level in inputs.wind_profile.levels) + "]"]
 
 
 @pytest.fixture(scope="module")

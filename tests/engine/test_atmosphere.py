@@ -48,13 +48,19 @@ def test_tropopause_values():
     assert isa_pressure(geometric_11km) / 100.0 == pytest.approx(226.32, abs=0.006)
 
 
-def test_warm_day_lowers_density_at_the_same_pressure():
-    # Source: ideal gas law rho = p/(R T) (physics): at the same pressure, density is
-    # inversely proportional to absolute temperature.
+def test_warm_day_lowers_density_at_the_same_altitude():
+    # Source: ideal gas law rho = p/(R T) (physics) in a column 20 C warmer at every height,
+    # its pressure integrated hydrostatically (glidetask.engine.atmosphere.column_pressure;
+    # checked against a numerical integral in tests/engine/test_day_model.py): the warm
+    # column's pressure aloft is higher, its density still lower.
+    from glidetask.engine.atmosphere import R_AIR, column_pressure, isa_pressure
+
     standard = air_density(1500.0)
     warm = air_density(1500.0, isa_deviation_c=20.0)
     temperature = isa_temperature(1500.0)
-    assert warm / standard == pytest.approx(temperature / (temperature + 20.0), rel=1e-12)
+    assert column_pressure(1500.0, 20.0) > isa_pressure(1500.0)
+    assert warm == pytest.approx(column_pressure(1500.0, 20.0) / (R_AIR * (temperature + 20.0)), rel=1e-12)
+    assert warm < standard
 
 
 def test_true_airspeed_from_indicated_uses_the_density_ratio():

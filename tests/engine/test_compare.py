@@ -10,13 +10,13 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from glidetask.engine import compare
+from glidetask.engine import compare, flight
 from glidetask.engine import sensitivity as what_ifs
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.circling import achieved_climb
 from glidetask.engine.plan import plan
 from glidetask.engine.polar import PolarSpec, scaled_polar
-from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind
+from glidetask.engine.scenario import Day, GliderSetup, Profile, Safety, Scenario, Wind, with_what_ifs
 from glidetask.engine.task import Task, TaskPoint, Turnpoint
 from glidetask.engine.zones import Zone
 from glidetask.engine import geodesy
@@ -128,17 +128,25 @@ def test_climb_of_another_ballast_in_the_same_thermals():
     # An achieved-climb day is the glider as loaded; other ballasts climb as the circling
     # model says in the thermal that gives that climb (contract section 3).
     s = synthetic(climb=2.0, ballast=80.0)
-    rows = compare.climb_values_for_ballasts(s, [0.0, 80.0, 160.0])
-    assert rows[1, 0] == 2.0  # the file's own ballast: the profile unchanged, exactly
-    assert rows[0, 0] > 2.0 > rows[2, 0]
-    # Round trip through the inverted model: the thermal found gives 2.0 m/s back.
-    # Tolerance: the inversion's 0.01 m/s strength grid moves the climb by under 0.005 m/s.
-    strength = compare.strength_for_climb(s, 2.0)
+    s = dataclasses.replace(s, day=dataclasses.replace(s.day, climb_ballast_kg=80.0))
+    profile, is_strength = flight.day_lift(s)
+    assert profile.values == (2.0,) and not is_strength  # the file's own ballast: the profile unchanged, exactly
+    strength = float(flight.climb_strengths(s)[0])
+    # Round trip through the inverted model: the thermal found gives 2.0 m/s back (the
+    # inversion converges to about 1e-6 m/s, circling.strength_for_climb).
     polar = compare._band_polar(s, 80.0)
-    assert float(achieved_climb(polar, strength, 150.0).climb_ms) == pytest.approx(2.0, abs=0.005)
+    assert float(achieved_climb(polar, strength, 150.0).climb_ms) == pytest.approx(2.0, abs=1e-5)
+    climbs = []
+    for ballast in (0.0, 160.0):
+        other = with_what_ifs(s, ballast_kg=ballast)
+        profile, is_strength = flight.day_lift(other)
+        assert is_strength and profile.values == pytest.approx((strength,))
+        climbs.append(float(achieved_climb(compare._band_polar(s, ballast), strength, 150.0).climb_ms))
+    assert climbs[0] > 2.0 > climbs[1]
     # No lift stays no lift for every ballast.
     zero = synthetic(climb=0.0, ballast=80.0)
-    assert np.all(compare.climb_values_for_ballasts(zero, [0.0, 160.0]) == 0.0)
+    zero = dataclasses.replace(zero, day=dataclasses.replace(zero.day, climb_ballast_kg=80.0))
+    assert flight.day_lift(with_what_ifs(zero, ballast_kg=160.0))[0].values == (0.0,)
 
 
 # ---------------------------------------------------------------- the sweep's flights
@@ -273,6 +281,7 @@ def _what_if_plans(s: Scenario) -> dict:
         "more_wind": plan(s, wind=Wind(day.wind.from_deg, day.wind.speed_ms + 10 * KMH)),
         "later_start": plan(s, start_time_s=day.start_time_s + 1800.0),
         "more_bugs": plan(s, bugs_percent=s.glider.bugs_percent + 5.0),
+        "pure_model": plan(dataclasses.replace(s, day=dataclasses.replace(day, centring_s=0.0, detour_percent=0.0))),
     }
 
 
@@ -298,6 +307,8 @@ def test_weaker_climbs_more_bugs_and_more_wind_cost_time(demo):
     delta = {row.key: row.delta_s for row in result.rows}
     assert delta["weaker_climbs"] > 0.0 and delta["more_bugs"] > 0.0 and delta["more_wind"] > 0.0
     assert result.forecast.delta_s == 0.0
+    # Centring time and detours cost time: the pure model is faster (contract section 3).
+    assert delta["pure_model"] < 0.0
 
 
 def test_a_start_after_the_end_of_lift_is_not_flown():

@@ -111,7 +111,8 @@ def test_the_odds_of_one_forecast_day_land_out_where_the_plan_does(triangle):
     planned = plan(short)
     assert not planned.finished
     path, requirement = planned_route(short)
-    flown = fly(course_for(path), stack_flights([flights_for(short)] * 4), requirement=requirement, detail=False)
+    flown = fly(course_for(path, short.day.detour_percent), stack_flights([flights_for(short)] * 4),
+                requirement=requirement, detail=False)
     np.testing.assert_allclose(flown.landout_m, planned.landout_m, rtol=0.0, atol=1e-6)
     odds = simulate_days(short, runs=40, spread=DaySpread(0.0, 0.0, 0.0, 0.0, 0.0),
                          ballasts_kg=[short.glider.ballast_kg])

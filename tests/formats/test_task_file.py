@@ -165,6 +165,19 @@ def test_racing_task_file_into_a_scenario(folder):
     assert len(scenario.turnpoints) == 4 and scenario.source.endswith("task.toml")
 
 
+def test_wind_profile_in_a_task_file_and_saved_back(folder, tmp_path):
+    text = _edit(RACING, "wind = { from_deg = 250.0, speed_kmh = 18.0 }",
+                 "wind = [{ height_m = 500.0, from_deg = 250.0, speed_kmh = 10.0 }, "
+                 "{ height_m = 2500.0, from_deg = 270.0, speed_kmh = 25.0 }]")
+    scenario = load_scenario(_write(folder, text))
+    profile = scenario.day.wind
+    assert [level.height_m for level in profile.levels] == [500.0, 2500.0]
+    assert profile.levels[1].speed_ms == pytest.approx(25.0 * KMH)
+    assert scenario.day.wind_at(2500.0).from_deg == pytest.approx(270.0)
+    save_task(folder / "copy.toml", scenario)
+    assert load_scenario(folder / "copy.toml").day.wind == profile
+
+
 def test_area_task_file(folder):
     scenario = load_scenario(_write(folder, AREA))
     task = scenario.task
@@ -249,6 +262,14 @@ BAD_RACING = [
     ("from_deg = 250.0", "from_deg = 400.0", "[day] wind from_deg", "must be in [0, 360]"),
     ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", 'wind = "250/18"', "[day] wind", "must be a table"),
     ("lift_ends", "lift_ends_at", "[day] lift_ends_at", "unknown key"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = []", "[day] wind", "at least one"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [{ height_m = 900.0, from_deg = 250.0, speed_kmh = 10.0 }, "
+     "{ height_m = 900.0, from_deg = 260.0, speed_kmh = 20.0 }]", "[day] wind[2] height_m", "heights must increase"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [{ height_m = 900.0, from_deg = 250.0 }]",
+     "[day] wind[1] speed_kmh", "missing key"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [{ height_m = 900.0, from_deg = 250.0, speed_kmh = 10.0, "
+     "gust_kmh = 5.0 }]", "[day] wind[1] gust_kmh", "unknown key"),
+    ("wind = { from_deg = 250.0, speed_kmh = 18.0 }", "wind = [250.0]", "[day] wind[1]", "must be a table"),
     ("ballast_kg = 100.0", "ballast_kg = 300.0", "[glider] ballast_kg", "outside 0-170 kg, the polar's maximum"),
     ("bugs_percent = 5.0", "bugs_percent = 150.0", "[glider] bugs_percent", "must be in [0, 100]"),
     ('polar = "polars/racing.toml"', 'polar = "polars/none.toml"', "[glider] polar", "no such file"),
@@ -330,3 +351,26 @@ def test_loaded_scenario_remembers_its_turnpoint_file(folder):
     moved.mkdir()
     save_task(moved / "copy.toml", replace(scenario, source=None))
     assert load_scenario(moved / "copy.toml").turnpoints == scenario.turnpoints
+
+
+def test_a_60_degree_sector_and_a_non_default_keyhole_are_built_and_flown(folder):
+    # Source: FAI Sporting Code Section 3, Annex A (zone shapes; the sector's angle and the
+    # keyhole's sizes as given), checked against the independent brute-force search of
+    # tests/engine/_brute_force.py (pyproj geodesics, exhaustive outline sampling).
+    import sys
+
+    sys.path.insert(0, str(ROOT / "tests" / "engine"))
+    from _brute_force import brute_force
+
+    from glidetask.engine.task_search import optimized_path
+
+    text = _edit(_edit(RACING, 'zone = "sector"\nradius_km = 10.0', 'zone = "sector"\nradius_km = 10.0\nangle_deg = 60.0'),
+                 'zone = "keyhole"', 'zone = "keyhole"\nradius_km = 8.0\nangle_deg = 60.0\ncylinder_radius_km = 1.0')
+    task = load_scenario(_write(folder, text)).task
+    assert task.zones[1] == Zone.sector(10_000.0, 60.0)
+    assert task.zones[2] == Zone.keyhole(8_000.0, 60.0, 1_000.0)
+    default = load_scenario(_write(folder, RACING, "default.toml")).task  # 90 deg sector, default keyhole
+    # Tolerance: the brute force's grid error is centimetres (tests/engine/test_task.py MATCH_M).
+    assert optimized_path(task).total_m == pytest.approx(brute_force(task)[0], abs=0.5)
+    # The keyhole's 1 km cylinder (not 0.5) lets the path cut closer: it differs from the default.
+    assert optimized_path(task).total_m < optimized_path(default).total_m - 500.0

@@ -115,7 +115,8 @@ class CompareView(ViewScreen):
         self.query_one(SweepPlot).show(sweep, units)
         lines = [Text(sweep_verdict(sweep, units), style="bold #8cc66d"), Text(""),
                  Text(forecast_line(sweep, units)), Text(""),
-                 Text(f"Thermals {units.fmt_height(sweep.thermal_radius_m)} in radius, the same strength all day; "
+                 Text(f"Thermals {units.fmt_height(sweep.thermal_radius_m)} in radius ({sweep.thermal_radius_source}), "
+                      "the same strength all day; "
                       f"times averaged over where the climbs fall ({sweep.phases} positions). The best is the "
                       "lightest ballast within 0.2 % of the fastest.", style="dim")]
         lines += [Text(f"⚠ {note}", style="#e0b15a") for note in sweep.notes]

@@ -21,15 +21,18 @@ COLUMNS = (  # key (the contract's name), LegPlan attribute, header, kind
     ("course_deg", "course_deg", "Crs", "degrees"),
     ("climb_ms", "climb_ms", "Climb", "vertical"),
     ("mc_ms", "mc_ms", "MC", "vertical"),
-    ("airspeed_kmh", "airspeed_ms", "Fly", "speed"),
+    # IAS only (what the pilot flies; the text plan and the JSON give TAS beside it): the
+    # table must fit 80 columns.
+    ("indicated_airspeed_kmh", "indicated_airspeed_ms", "IAS", "speed"),
     ("heading_deg", "heading_deg", "Hdg", "degrees"),
     ("glide_ground_speed_kmh", "glide_ground_speed_ms", "GS", "speed"),
-    ("cruise_speed_kmh", "cruise_speed_ms", "Avg", "speed"),
+    ("average_speed_kmh", "average_speed_ms", "Avg", "speed"),
     ("time_s", "time_s", "Time", "duration"),
     ("required_height_m", "required_height_m", "Need", "height"),
     ("arrival_height_m", "arrival_height_m", "Arrive", "height"),
 )
-LEGEND = "◆ final glide starts · Fly, Hdg, GS: in the glides · Avg: with climbs · Need: to glide home from the leg's start"
+LEGEND = ("◆ final glide starts · IAS (to fly), Hdg, GS: in the glides · Avg: distance over time · "
+          "Need: to glide home from the leg's start (above: over the band top)")
 
 
 def cell_text(kind: str | None, value, units: UnitSystem) -> str:
@@ -96,7 +99,9 @@ class LegsTable(DataTable):
             start, end = (codes.get(name) or name[:8] for name in (leg.from_name, leg.to_name))
             cells = [Text(f"{mark}{index + 1} {start}→{end}", no_wrap=True)]
             for _, attribute, _, kind in COLUMNS[1:]:
-                cells.append(Text(cell_text(kind, getattr(leg, attribute), units), justify="right"))
+                value = getattr(leg, attribute)
+                above = attribute == "required_height_m" and value > plan.scenario.day.band_top_m + 1e-6
+                cells.append(Text("above" if above else cell_text(kind, value, units), justify="right"))
             self.add_row(*cells, key=f"leg-{index + 1}")
 
     def on_idle(self) -> None:
