@@ -299,6 +299,10 @@ SOUNDING = (
 )
 
 
+NO_LIFT_DAY = ("The day derived from the sounding has no working band: a plan flies it with no lift, from the "
+               "start height, and lands out.")
+
+
 def sounding_cautions(facts, units: "UnitSystem") -> list[str]:
     """The cautions of a day derived from a sounding, general and for its
     :class:`glidetask.engine.sounding.SoundingFact` s, in the reader's units."""
@@ -352,6 +356,8 @@ def day_source_cautions(source, units: "UnitSystem", start_time_s: float | None 
     out = [text for text in (overridden_text(source.overridden),) if text]
     if source.inputs is None:
         out.append("The day derived from the sounding has no working band: the plan flies the typed day only.")
+    elif source.inputs.no_lift:
+        out.append(NO_LIFT_DAY)
     elif start_time_s is not None and start_time_s < source.inputs.lift_start_s:
         out.append(f"The task starts at {format_clock(start_time_s)}, before thermals start "
                    f"({format_clock(source.inputs.lift_start_s)}) on the derived day.")

@@ -156,6 +156,11 @@ def check_task(path: str) -> dict:
         "sounding": sounding,
         "cautions": cautions.general(),
     }
+    source = scenario.day_source
+    if sounding is not None and source is not None and source.inputs is not None and source.inputs.no_lift:
+        # A forecast that never triggers is a result, not a bad task: a plan flies it with no lift.
+        sounding["no_lift"] = True
+        result["cautions"] = result["cautions"] + [cautions.NO_LIFT_DAY]
     if task.kind == "area":
         low, high = area_distance_range(task)
         result.update(min_distance_km=low / 1000.0, max_distance_km=high / 1000.0, min_time_s=task.min_time_s)
@@ -331,6 +336,8 @@ def _summary_lines(result: dict, unit: units.UnitSystem) -> list[str]:
         sounding = result["sounding"]
         lines.insert(-1, f"  sounding {os.path.basename(sounding['file'])}, {sounding['levels']} levels; surface "
                          f"forecast {sounding['surface_from']} to {sounding['surface_to']} (glidetask day derives the day)")
+        if sounding.get("no_lift"):
+            lines.insert(-1, f"  note: {cautions.NO_LIFT_DAY}")
     return lines
 
 

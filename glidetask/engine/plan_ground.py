@@ -124,7 +124,10 @@ def _landout(scenario, path, flown, terrain) -> Landout:
         f_elev = np.array([p.elevation_m for p in fields], dtype=float)
         distance, azimuth, _ = geodesy.inverse(stop_lat, stop_lon, f_lat, f_lon)
         polar = scenario.glider.polar_at(0.5 * (stop_h + f_elev.mean()), day.isa_deviation_c)
-        reach = np.asarray(reach_distance(polar, stop_h - f_elev - margin, azimuth, day.wind,
+        wind = day.wind  # with height: the mean over the glide down from where the climbs stopped
+        if hasattr(wind, "mean_between"):
+            wind = wind.mean_between(min(float(f_elev.min()), stop_h), stop_h)
+        reach = np.asarray(reach_distance(polar, stop_h - f_elev - margin, azimuth, wind,
                                           min(day.glide_airmass_ms, 0.0)), dtype=float)
         in_reach = np.flatnonzero(np.nan_to_num(reach, nan=-1.0) >= np.asarray(distance))
         if in_reach.size:

@@ -587,6 +587,8 @@ class DayInputs:
     wind : Wind
         The mean wind of the highest working band (:meth:`WindProfile.mean_between`), a
         one-line summary of it.
+    no_lift : bool
+        True for a day with no working band (:func:`no_lift_inputs`): no thermals at all.
     """
 
     band_top: Profile
@@ -596,6 +598,7 @@ class DayInputs:
     lift_ends_s: float
     wind_profile: WindProfile
     wind: Wind
+    no_lift: bool = False
 
     @property
     def band_top_m(self) -> float:
@@ -636,6 +639,25 @@ def day_inputs(derived: DerivedDay) -> DayInputs:
                      lift_ends_s=math.floor(derived.lift_end_s / 60.0) * 60.0, wind_profile=profile, wind=wind)
 
 
+
+def no_lift_inputs(derived: DerivedDay, start_time_s: float, start_height_m: float | None = None) -> DayInputs:
+    """The day a plan flies when the derived day has no working band: no lift at all.
+
+    The flight starts at ``start_height_m`` (else the band bottom the sounding gives, the
+    ground plus ``band_bottom_agl_m``) and glides out; the band is that start height over
+    the band bottom (at least a metre: a band with no lift in it), the thermal strength 0
+    all day and the lift "ends" a minute after the start. The winds are the sounding's.
+    """
+    bottom = float(round(float(derived.surface_elevation_m + derived.band_bottom_agl_m)))
+    start = bottom if start_height_m is None else float(start_height_m)
+    top = max(start, bottom + 1.0)
+    profile = WindProfile(tuple(WindLevel(float(round(level.height_m)), float(round(level.from_deg) % 360.0),
+                                          round(level.speed_ms / KMH, 1) * KMH) for level in derived.wind))
+    mean = profile.mean_between(bottom, top)
+    wind = Wind(round(mean.from_deg) % 360.0, round(mean.speed_ms / KMH, 1) * KMH)
+    return DayInputs(band_top=Profile.constant(top), band_bottom_m=bottom, thermal_strength=Profile.constant(0.0),
+                     lift_start_s=float(start_time_s), lift_ends_s=float(start_time_s) + 60.0, wind_profile=profile,
+                     wind=wind, no_lift=True)
 
 
 def _rounded(values, digits: int) -> list[float]:
@@ -740,6 +762,7 @@ def sounding_drawing(sounding: Sounding, derived: DerivedDay, *, step_m: float =
 
 
 __all__ = ["DERIVED_KEYS", "DayInputs", "DaySource", "NoWorkingBandError", "SoundingDrawing", "day_inputs",
+           "no_lift_inputs",
            "sounding_drawing", "Sounding", "SurfaceForecast", "WindLevel", "SoundingFact", "DerivedDay", "SoundingTooShortError",
            "derive_day", "convective_velocity_scale", "encroachment_heat_content", "crossing_times",
            "potential_temperature_k", "temperature_from_potential_k", "lcl_pressure_pa", "surface_cape_jkg",

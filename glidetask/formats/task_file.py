@@ -431,6 +431,8 @@ def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = Fals
     if bottom is None and "band_bottom_m" not in table and derived is not None:
         bottom = derived.band_bottom_m
     start_height = reader.number(table, "[day]", "start_height_m", low=-500.0, high=15000.0)
+    if start_height is None and "start_height_m" not in table and derived is not None and derived.no_lift:
+        start_height = derived.band_bottom_m  # no lift: the flight starts at the band bottom
     lowest_top = top if top_profile is None else min(top_profile.values)
     if lowest_top is not None and bottom is not None and lowest_top <= bottom:
         reader.add("[day] band_top_m", f"the band top ({lowest_top:g} m) must be above band_bottom_m ({bottom:g} m)")
@@ -474,13 +476,21 @@ def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = Fals
                centring_s=centring, detour_percent=detour)
 
 
+def _quiet_clock(value) -> float | None:
+    """A clock value read without reporting (the [day] reader reports a bad one), or None."""
+    try:
+        return parse_clock(value) if isinstance(value, str) else None
+    except ValueError:
+        return None
+
+
 def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
     """``(DaySource or None, failed)`` for a task whose [day] names a sounding: the
     derived day (MetPy is imported only here) and the keys typed over it."""
     day = document.get("day")
     if not isinstance(day, dict) or "sounding" not in day:
         return None, False
-    from glidetask.engine.sounding import DaySource, NoWorkingBandError, day_inputs
+    from glidetask.engine.sounding import DaySource, NoWorkingBandError, day_inputs, no_lift_inputs
     from glidetask.formats.sounding_file import derive_task_day
 
     try:
@@ -493,11 +503,14 @@ def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
     except NoWorkingBandError:
         typed = all(key in day for key in ("band_top_m", "band_bottom_m", "lift_ends")) and (
             "climb_ms" in day or "thermal_strength_ms" in day)
-        if not typed:
-            reader.add("[day] sounding", "the day derived from the sounding has no working band (no usable "
-                                         "thermals; see `glidetask day`): there is no cross-country day to plan")
-            return None, True
         inputs = None
+        if not typed:
+            # A forecast that never triggers is a result: the plan flies a day with no lift
+            # from the start height and lands out (the sounding's no-lift caution says why).
+            start = _quiet_clock(day.get("start_time"))
+            height = day.get("start_height_m")
+            height = float(height) if isinstance(height, (int, float)) and not isinstance(height, bool) else None
+            inputs = no_lift_inputs(derived, 0.0 if start is None else start, height)
     overridden = tuple(key for key in OVERRIDING_KEYS if key in day)
     return DaySource(settings.sounding_file, derived, inputs, overridden, settings, sounding), False
 def _safety(reader: _Reader, table: dict | None) -> Safety | None:

@@ -174,18 +174,60 @@ def test_a_start_before_the_derived_lift_is_a_caution(capsys, inputs):
                                f"({format_clock(inputs.lift_start_s)})") for text in data["cautions"])
 
 
-def test_a_sounding_day_without_a_working_band_is_a_clear_error(capsys, tmp_path):
-    # A cold surface forecast never reaches the trigger temperature (contract: a result for
-    # `glidetask day`); the plan has no day to fly unless the day is typed.
+def _cold_task(tmp_path, extra=()):
+    """The demo forecast task on a cold surface forecast: 8-9 C never reaches the trigger."""
     text = _absolute(FORECAST.read_text(encoding="utf-8"))
     text = re.sub(r"surface = \[\[.*?\]\]\n", 'surface = [["08:00", 8.0, 2.0], ["18:00", 9.0, 2.0]]\n', text,
                   flags=re.S)
+    if extra:
+        text = _with_day_lines(text, list(extra))
     task = tmp_path / "cold.toml"
     task.write_text(text, encoding="utf-8")
-    assert main(["plan", str(task)]) == 2
-    err = capsys.readouterr().err.strip().splitlines()
-    assert err == [f"glidetask: error: {task}: [day] sounding: the day derived from the sounding has no working band "
-                   f"(no usable thermals; see `glidetask day`): there is no cross-country day to plan"]
+    return task
+
+
+def test_a_sounding_day_without_a_working_band_is_a_result_with_no_lift(capsys, tmp_path):
+    # Issue 16: a surface forecast that never triggers thermals is a result, a day with no
+    # lift and a caution. The flight starts at the band bottom the sounding gives (ground +
+    # 600 m AGL by default, common practice), finds no climb and lands out.
+    from glidetask.formats.sounding_file import derive_task_day
+    from glidetask.formats.toml_reader import read_toml
+
+    task = _cold_task(tmp_path)
+    document, _ = read_toml(task, str(task))
+    _, _, derived = derive_task_day(document, task)
+    assert derived.lift_start_s is None  # the sounding's own verdict: no lift
+    data = _json(capsys, "plan", task)
+    bottom = round(derived.surface_elevation_m + derived.band_bottom_agl_m)
+    assert data["finished"] is False and data["day"]["start_height_m"] == bottom == data["day"]["band_bottom_m"]
+    assert data["landout"] is not None and data["landout"]["at_km"] > 0.0
+    # Source: the distance a glider covers from a height is at most the height times its best
+    # glide ratio (here 35, the polar's), stretched by a tail wind (handbook glide rule).
+    lowest = min(t for t in data["profile"]["terrain_m"] if t is not None)
+    strongest = max(level["speed_kmh"] for level in data["day"]["wind"]) / 3.6
+    assert data["landout"]["at_km"] * 1000.0 <= (bottom - lowest) * 35.0 * (1.0 + strongest / 27.0)
+    assert cautions.NO_LIFT_DAY in data["cautions"]
+    assert any(text.startswith("No usable thermals: the surface never reaches the trigger") for text in data["cautions"])
+    assert main(["plan", str(task)]) == 0
+    assert "ENDS SHORT" in capsys.readouterr().out
+
+
+def test_a_no_lift_day_starts_at_the_typed_start_height(capsys, tmp_path):
+    task = _cold_task(tmp_path, ["start_height_m = 1400.0"])
+    data = _json(capsys, "plan", task)
+    assert data["day"]["start_height_m"] == 1400.0 and data["finished"] is False
+    low = _json(capsys, "plan", _cold_task(tmp_path))
+    assert data["landout"]["at_km"] > low["landout"]["at_km"]  # higher start, longer glide out
+
+
+def test_check_of_a_no_lift_sounding_day_is_ok_with_a_note(capsys, tmp_path):
+    task = _cold_task(tmp_path)
+    assert main(["check", str(task), "--json"]) == 0
+    result = json.loads(capsys.readouterr().out)[0]
+    assert result["problems"] == [] and result["sounding"]["no_lift"] is True
+    assert cautions.NO_LIFT_DAY in result["cautions"]
+    assert main(["check", str(task)]) == 0
+    assert f"note: {cautions.NO_LIFT_DAY}" in capsys.readouterr().out
 
 
 def test_a_saved_task_keeps_its_sounding_and_types_only_what_was_edited(tmp_path):

@@ -295,6 +295,19 @@ def test_a_day_without_a_working_band_gives_the_plan_nothing():
         snd.day_inputs(derived)
 
 
+def test_a_day_without_a_working_band_flies_with_no_lift():
+    # Issue 16: no lift is a result. The day starts at the band bottom (ground + 600 m AGL,
+    # common practice) unless a start height is typed, with no thermal strength at all.
+    sounding = analytic_sounding(surface_c=15.0, lapse_k_per_km=3.0, spread_c=10.0)
+    derived = snd.derive_day(sounding, surface([10, 16], [15.5, 16.0], [5.0, 5.0]))  # never triggers
+    inputs = snd.no_lift_inputs(derived, 12 * 3600.0)
+    assert inputs.no_lift and inputs.band_bottom_m == round(derived.surface_elevation_m + 600.0)
+    assert inputs.thermal_strength.values == (0.0,) and inputs.band_top_m > inputs.band_bottom_m
+    assert inputs.lift_ends_s > 12 * 3600.0
+    typed = snd.no_lift_inputs(derived, 12 * 3600.0, 1800.0)
+    assert typed.band_top_m == 1800.0 and typed.band_bottom_m == inputs.band_bottom_m
+
+
 def test_a_task_s_day_source_carries_what_the_drawing_needs():
     from pathlib import Path
 
