@@ -248,6 +248,9 @@ class Flown:
         Distance along the course where the flight lands; NaN if finished.
     landout_leg : ndarray of int
         Leg index of the landing; -1 if finished.
+    landout_field : ndarray of int or None
+        Without terrain, flown with :class:`glidetask.engine.landing_fields.LandingFields`:
+        the index of the field a land-out ends in, -1 if none is in reach or finished.
     final_glide_from_m, final_glide_height_m, final_glide_mc_ms : ndarray
         Where the final glide starts [m along the course], its start height [m MSL],
         its MacCready setting [m/s]; NaN without a final glide. After the climbs stop,
@@ -313,11 +316,13 @@ class Flown:
     leg_heading_deg: np.ndarray
     leg_ground_speed_ms: np.ndarray
     leg_cruise_speed_ms: np.ndarray
+    landout_field: np.ndarray | None = None  # index into the LandingFields flown with (no terrain), -1 none
     trace: tuple | None = None  # the first flight's profile vertices (distance_m, height_m, phase) with record=True
 
     def flight(self, i: int) -> "Flown":
         """The results of flight ``i`` alone (arrays of length 1; the trace stays with flight 0)."""
-        return Flown(**{f.name: getattr(self, f.name)[i:i + 1] for f in fields(self) if f.name != "trace"},
+        return Flown(**{f.name: None if getattr(self, f.name) is None else getattr(self, f.name)[i:i + 1]
+                        for f in fields(self) if f.name != "trace"},
                      trace=self.trace if i == 0 else None)
 
 

@@ -20,6 +20,7 @@ from glidetask.engine.flight_ground import GroundFloor, glide_allowance
 from glidetask.engine.flight_lift import LiftClock
 from glidetask.engine.flight_requirement import FinalGlideRequirement, polar_rows
 from glidetask.engine.flight_wind import WindAloft
+from glidetask.engine.landing_fields import LandingFields, field_floor
 from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import band_middle_m
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
@@ -59,6 +60,10 @@ class Simulation(FinalGlideRequirement):
         self.ceiling = getattr(requirement, "ceiling", None)
         if self.ceiling is not None:
             requirement = requirement.terrain
+        # Without terrain a land-out ends in the field it reaches (landing_fields): no extra height.
+        self.fields = requirement if isinstance(requirement, LandingFields) else None
+        if self.fields is not None:
+            requirement = None
         self.ground = GroundFloor.from_hook(requirement)
         self.trace = [] if record else None
         n, legs = inputs["mass_kg"].size, course.legs
@@ -124,6 +129,7 @@ class Simulation(FinalGlideRequirement):
         self.reason = np.full(n, UNRESOLVED)
         self.end_time, self.stop_time, self.landout_at, self.last_climb_end = nan_n(), nan_n(), nan_n(), nan_n()
         self.landout_leg, self.flown_final_leg = np.full(n, -1), np.full(n, -1)
+        self.landout_field = np.full(n, -1)
         self.flown_final_from, self.flown_final_height, self.flown_final_mc, self.flown_final_sigma = nan_n(), nan_n(), nan_n(), nan_n()
         self.climbs = np.zeros(n, dtype=int)
         self.leg_time = np.where(np.arange(legs) == 0, 0.0, np.nan)[None, :].repeat(n, axis=0)
@@ -439,6 +445,19 @@ class Simulation(FinalGlideRequirement):
         if home.any():
             self._final(rows[home], reason, hpm[home], gs[home], np.zeros(int(home.sum())))
         out = ~home
+        if self.fields is not None and out.any():  # no terrain: down to the field it reaches
+            landing = rows[out]
+            x0 = (self.leg_start[self.leg[landing]] + self.position[landing]) / self.detour
+            floor, field = field_floor(
+                self.fields, x0, self.course_deg[self.leg[landing]], self.height[landing], remaining[out], hpm[out],
+                cumulative[out], polar_rows(self.band_polar, landing), self.inputs["wind_from_deg"][landing],
+                self.inputs["wind_speed_ms"][landing], self.airmass[landing], self.inputs["arrival_margin_m"][landing],
+                self.detour)
+            found = field >= 0
+            # never past the finish: a field below the finish's floor still ends the glide short of it
+            lower = np.minimum(self.height[landing] - floor, np.nextafter(cumulative[out][:, -1], -np.inf))
+            available[out] = np.where(found, lower, available[out])
+            self.landout_field[landing] = field
         self._land_between(rows[out], reason, remaining[out], hpm[out], gs[out], cumulative[out], available[out])
 
     def _land_between(self, rows, reason, remaining, hpm, gs, cumulative, available) -> None:
@@ -570,6 +589,7 @@ class Simulation(FinalGlideRequirement):
             finish_time_s=finish, end_time_s=self.end_time.copy(), stop_time_s=self.stop_time.copy(),
             landout_m=np.where(self.finished, np.nan, self.landout_at / self.detour),
             landout_leg=np.where(self.finished, -1, self.landout_leg),
+            landout_field=np.where(self.finished, -1, self.landout_field),
             final_glide_from_m=self.flown_final_from / self.detour, final_glide_height_m=self.flown_final_height.copy(),
             final_glide_mc_ms=self.flown_final_mc.copy(), final_glide_sigma=self.flown_final_sigma.copy(),
             final_glide_leg=self.flown_final_leg.copy(), climbs=self.climbs.copy(),

@@ -46,6 +46,7 @@ from glidetask.engine.plan_airspace import airspace_check, corridor
 from glidetask.engine.clearance import TerrainPoint, nearest_landmark
 from glidetask.engine.plan_airspace import airspace_check, corridor
 from glidetask.engine.plan_ground import Floor, Landout, PlannedProfile, ground_facts, point_at
+from glidetask.engine.landing_fields import landing_fields
 from glidetask.engine.plan_safety import check_model_covers, load_terrain_for, terrain_requirement, with_safety
 from glidetask.engine.scenario import Scenario, Wind, with_what_ifs
 from glidetask.units import METRIC
@@ -324,6 +325,8 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     model = load_terrain_for(scenario)
     if requirement_for is None and model is not None:
         requirement_for = terrain_requirement(model)
+    elif requirement_for is None:  # no terrain: a land-out ends in the field it reaches
+        requirement_for = landing_fields
     if scenario.airspace is not None:  # the band top capped under the task's airspace (plan_airspace)
         requirement_for = _under_airspace(requirement_for, model)
     task = scenario.task

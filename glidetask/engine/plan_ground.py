@@ -19,6 +19,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from glidetask.engine import geodesy
+from glidetask.engine.landing_fields import LandingFields
 from glidetask.engine.flight_profile import profile_samples, raised_floors
 from glidetask.engine.reach import reach_distance
 
@@ -102,8 +103,24 @@ def ground_facts(scenario, path, flown, hook):
         uncovered = tuple((float(a), float(b)) for a, b in terrain.uncovered_ranges())
     landout = None
     if not bool(flown.finished[0]) and math.isfinite(float(flown.landout_m[0])):
-        landout = _landout(scenario, path, flown, terrain)
+        fields = getattr(hook, "terrain", hook)  # under airspace the corridor carries it
+        if terrain is None and isinstance(fields, LandingFields):
+            landout = _landout_in_field(scenario, path, flown, fields)
+        else:
+            landout = _landout(scenario, path, flown, terrain)
     return profile, floors, uncovered, landout
+
+
+def _landout_in_field(scenario, path, flown, fields) -> Landout:
+    """Without terrain: the field the flight core's glide reached (the odds fly the same), or
+    the finish elevation where no field was in reach."""
+    at = float(flown.landout_m[0])
+    index = -1 if flown.landout_field is None else int(flown.landout_field[0])
+    if index >= 0:
+        return Landout(at, fields.names[index], float(fields.lats[index]), float(fields.lons[index]),
+                       float(fields.elevation_m[index]))
+    lat, lon = point_at(path, at)
+    return Landout(at, None, lat, lon, float(scenario.task.points[-1].turnpoint.elevation_m))
 
 
 def _landout(scenario, path, flown, terrain) -> Landout:
