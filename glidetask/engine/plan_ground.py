@@ -19,8 +19,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from glidetask.engine import geodesy
-from glidetask.engine.landing_fields import LandingFields
 from glidetask.engine.flight_profile import profile_samples, raised_floors
+from glidetask.engine.landing_fields import LandingFields
 from glidetask.engine.reach import reach_distance
 
 
