@@ -114,3 +114,14 @@ def test_a_day_from_a_sounding_gets_its_own_page_with_the_derived_day(unit_name)
 
 def test_a_typed_day_has_no_sounding_page(triangle):
     assert "## Day from the sounding" not in triangle[1]
+
+
+def test_day_assumed_states_the_practical_speeds(triangle):
+    # Source: issue 12 item 5 and contract 3 ("Time lost in practice"): centring_s and
+    # detour_percent (both common practice) are shown wherever the day is stated.
+    p, text = triangle
+    day = p.scenario.day
+    section = text.split("## Day assumed", 1)[1].split("\n## ", 1)[0]
+    assert f"{day.centring_s:g} s centring each climb" in section
+    assert f"{day.detour_percent:g} % longer" in section
+    assert f"{day.effective_thermal_radius_m:.0f} m in radius" in section
