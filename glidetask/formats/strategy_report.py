@@ -304,8 +304,17 @@ def odds_to_dict(odds) -> dict:
             "wind_direction_sd_deg": spread.wind_direction_sd_deg,
             "lift_end_sd_s": spread.lift_end_sd_s,
             "thermal_search_mean_km": _number(spread.thermal_search_mean_m / 1000.0),
+            "thermal_search_source": getattr(odds, "search_source", "") or "given",
+            "bad_day_probability": spread.bad_day_probability,
+            "bad_day_early_s": list(spread.bad_day_early_s),
         },
         "choices": choices,
+        "thermal_spacing": [{
+            "factor": row.factor, "thermal_search_mean_km": _number(row.search_mean_m / 1000.0),
+            "choices": [{"ballast_kg": _number(c.ballast_kg, 2), "finish_probability": _number(p, 4),
+                         "finish_probability_se": _number(se, 4)}
+                        for c, p, se in zip(odds.choices, row.finish_probability, row.finish_probability_se)],
+        } for row in getattr(odds, "spacing", ())],
         "cautions": cautions.general() + list(odds.notes),
     }
 
@@ -321,10 +330,29 @@ def probability_bar(p: float, width: int = BAR_WIDTH) -> str:
 
 
 def assumption_text(odds, units: UnitSystem) -> str:
+    from glidetask.engine.simulate import bad_day_words  # lazily: the UI imports this module at start-up
+
     s = odds.spread
+    source = getattr(odds, "search_source", "")
     return (f"strength x exp(N(0, {s.climb_log_sd:g})); wind +/- {units.fmt_speed(s.wind_speed_sd_ms)}, "
             f"+/- {s.wind_direction_sd_deg:.0f} deg; end of lift +/- {s.lift_end_sd_s / 60:.0f} min; "
-            f"next climb on average {units.fmt_distance(s.thermal_search_mean_m)} beyond the band bottom")
+            f"{bad_day_words(s)}; next climb on average {units.fmt_distance(s.thermal_search_mean_m)} beyond "
+            f"the band bottom" + (f" ({source})" if source else ""))
+
+
+def spacing_lines(odds, units: UnitSystem) -> list[str]:
+    """The finishing odds against thermal spacing (empty without a spacing table)."""
+    rows = getattr(odds, "spacing", ())
+    if not rows:
+        return []
+    lines = ["Finish against thermal spacing (the same days, the thermals closer or further apart)"]
+    head = ["spacing", "next climb"] + [f"{c.ballast_kg:.0f} kg" for c in odds.choices]
+    cells = [[f"{row.factor:g} x" + (" (day)" if row.factor == 1.0 else ""), units.fmt_distance(row.search_mean_m)]
+             + [f"{100 * p:.1f} %" for p in row.finish_probability] for row in rows]
+    lines += _table(head, cells, left=1)
+    lines += ["  next climb: mean distance beyond the band bottom to the next usable thermal on the forecast day",
+              ""]
+    return lines
 
 
 def odds_text(odds, units: UnitSystem | str = "metric") -> str:
@@ -343,6 +371,7 @@ def odds_text(odds, units: UnitSystem | str = "metric") -> str:
     lines += _table(head, rows)
     lines += ["  finish: share of days the task is finished (+/- one standard error); 10/50/90 %: task time"
               " (H:MM) among the finishers", ""]
+    lines += spacing_lines(odds, units)
     lines.append("Land-outs by leg (days out of " + str(odds.runs) + ")")
     head = ["leg"] + [f"{c.ballast_kg:.0f} kg" for c in odds.choices]
     rows = [[f"{i + 1} {a} > {b}"] + [str(c.landouts_by_leg[i]) for c in odds.choices]
