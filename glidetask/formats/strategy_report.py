@@ -103,6 +103,13 @@ def sweep_to_dict(sweep) -> dict:
         "thermal_radius_m": _number(sweep.thermal_radius_m, 1),
         "thermal_radius_source": sweep.thermal_radius_source,
         "phases": sweep.phases,
+        "by_thermal_size": [{
+            "name": size.name, "thermal_radius_m": _number(size.thermal_radius_m, 1),
+            "best_ballast_kg": [_number(b, 2) for b in size.best_ballast_kg],
+            "ballast_pays_from_ms": _number(size.ballast_pays_from_ms),
+            "full_ballast_from_ms": _number(size.full_ballast_from_ms),
+            "achieved_climb_ms": grid(size.achieved_climb_ms),
+        } for size in getattr(sweep, "by_thermal_size", ())],
         "cautions": cautions.general() + list(sweep.notes),
     }
 
@@ -174,8 +181,53 @@ def sweep_text(sweep, units: UnitSystem | str = "metric") -> str:
                      f"{units.vertical(climb[last]):.1f}", _speed(units, cruise[0]), _speed(units, cruise[last]),
                      f"{best:.0f} kg" if _finite(best) else DASH])
     lines += _table(head, rows)
+    lines += thermal_size_lines(sweep, units)
     lines += ["", sweep_verdict(sweep, units), forecast_line(sweep, units), ""] + _caution_lines(sweep.notes)
     return "\n".join(lines)
+
+
+def thermal_size_cells(sweep, units: UnitSystem | str = "metric") -> tuple[list[str], list[list[str]]]:
+    """(head, rows) of the best ballast by thermal strength (rows) in narrow, typical and broad
+    thermals (columns), from :func:`glidetask.engine.compare.sweep_by_thermal_size`; empty
+    without them. For a table in any view."""
+    units = _units(units)
+    sizes = getattr(sweep, "by_thermal_size", ())
+    if not sizes:
+        return [], []
+    head = ["thermal"] + [f"{size.name} {units.fmt_height(size.thermal_radius_m)}" for size in sizes]
+    rows = [[_strength_label(units, strength)]
+            + [f"{size.best_ballast_kg[i]:.0f} kg" if _finite(size.best_ballast_kg[i]) else DASH for size in sizes]
+            for i, strength in enumerate(sweep.thermal_strength_ms)]
+    return head, rows
+
+
+def thermal_size_verdicts(sweep, units: UnitSystem | str = "metric") -> list[str]:
+    """Per thermal size where ballast starts paying, one line each (empty without sizes)."""
+    units = _units(units)
+    lines = []
+    for size in getattr(sweep, "by_thermal_size", ()):
+        pays, full = size.ballast_pays_from_ms, size.full_ballast_from_ms
+        text = f"{size.name.capitalize()} ({units.fmt_height(size.thermal_radius_m)}): "
+        text += "ballast never pays" if not _finite(pays) else f"ballast pays from {_vertical(units, pays)}"
+        text += f", full from {_vertical(units, full)}." if _finite(full) else "."
+        lines.append(text)
+    return lines
+
+
+def thermal_size_lines(sweep, units: UnitSystem | str = "metric") -> list[str]:
+    """The best ballast in narrow, typical and broad thermals side by side, as text lines."""
+    head, rows = thermal_size_cells(sweep, units)
+    if not rows:
+        return []
+    return (["", f"Best ballast by thermal size (radius of each; narrow and broad: the typical divided and "
+             f"multiplied by {_radius_spread():g}, our choice); - not finished"]
+            + _table(head, rows) + [f"  {line}" for line in thermal_size_verdicts(sweep, units)])
+
+
+def _radius_spread() -> float:
+    from glidetask.engine.thermals import RADIUS_SPREAD  # lazily: the UI imports this module at start-up
+
+    return RADIUS_SPREAD
 
 
 def _speed(units: UnitSystem, value_ms) -> str:
