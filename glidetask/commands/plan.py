@@ -155,7 +155,8 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
     out.append("  Climb, MC: the leg's first thermal (FG: leg flown in final glide, MC its setting). IAS (to fly),")
     out.append("  TAS, Hdg, Glide: in the glides, heading set to make good the climbs' drift. Avg: the leg's")
     out.append("  distance over its time. Need: height to final-glide home from the leg's start, within the band")
-    out.append(f"  (above top: {need_note(plan, unit)}). Arrive: planned height at its end.")
+    out.append(f"  (above: more than the band top; {need_note(plan, unit)}).")
+    out.append("  Arrive: planned height at its end.")
     return out
 
 
@@ -190,7 +191,7 @@ def _required_card(plan, unit: units.UnitSystem) -> list[str]:
         cell = need_cell(plan, height, unit)
         out.append(f"  {name.ljust(width)}  {cell.rjust(6)}" + (f" {unit.height_label}" if cell[0].isdigit() else ""))
     if any(not cautions.need_text(h, plan.scenario.day.band_top_m, unit) for h in heights):
-        out.append(f"  above top: more than the band top ({unit.fmt_height(plan.scenario.day.band_top_m)}); "
+        out.append(f"  above: more than the band top ({unit.fmt_height(plan.scenario.day.band_top_m)}); "
                    f"{need_note(plan, unit)}")
     return out
 

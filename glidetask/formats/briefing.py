@@ -112,13 +112,13 @@ def band_top_reach_m(plan) -> float:
 
 
 def need_cell(plan, required_m: float, unit) -> str:
-    """A "Need" cell: the height where it is a final glide within the band, else "above top"."""
+    """A "Need" cell: the height where it is a final glide within the band, else "above"."""
     text = cautions.need_text(required_m, plan.scenario.day.band_top_m, unit)
-    return "above top" if text is None else text
+    return "above" if text is None else text
 
 
 def need_note(plan, unit) -> str:
-    """What "above top" means on this plan: where a final glide from the band top starts."""
+    """What "above" means on this plan: where a final glide from the band top starts."""
     return cautions.final_glide_from_top(band_top_reach_m(plan), plan.scenario.day.band_top_m, unit)
 
 
@@ -141,7 +141,7 @@ def _legs(plan, unit) -> list[str]:
     notes = ("Climb and MC: the leg's first thermal (FG: flown in final glide, at its setting). IAS (to fly), TAS, "
              "Hdg, Glide: in the glides, heading set so the climbs' drift is made good. Avg: the leg's distance over "
              "its time. At: clock time at the leg's start. Need: height to final-glide home from there, within the "
-             f"band (above top: {need_note(plan, unit)}). Arrive: planned height at the leg's end.")
+             f"band (above: more than the band top; {need_note(plan, unit)}). Arrive: planned height at the leg's end.")
     return ["## Legs", ""] + _table(head, rows, right=2) + ["", f"<small>{notes}</small>"]
 
 

@@ -151,7 +151,7 @@ def test_need_only_within_the_band_and_where_a_final_glide_from_its_top_starts(c
     text = capsys.readouterr().out
     rows = [line for line in text.splitlines() if re.match(r"^\s+\d ", line)][:len(p.legs)]
     for row, leg in zip(rows, p.legs):
-        assert ("above top" in row) == (leg.required_height_m > top)
+        assert (" above " in row) == (leg.required_height_m > top)
         if leg.required_height_m <= top:
             assert f" {leg.required_height_m:.0f} " in row
     to_go = p.planned_distance_m - p.path.cumulative_m

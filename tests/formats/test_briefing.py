@@ -54,7 +54,7 @@ def test_legs_table_has_one_row_per_leg_with_the_plan_figures(triangle):
         assert row[2] == f"{leg.distance_m / 1000:.1f}"
         assert row[-1] == f"{leg.arrival_height_m:.0f}"
         top = p.scenario.day.band_top_m  # Need only within the band (issue 12 item 7)
-        assert row[-2] == (f"{leg.required_height_m:.0f}" if leg.required_height_m <= top else "above top")
+        assert row[-2] == (f"{leg.required_height_m:.0f}" if leg.required_height_m <= top else "above")
 
 
 def test_final_glide_card_shows_the_engine_requirements(triangle):
@@ -64,7 +64,7 @@ def test_final_glide_card_shows_the_engine_requirements(triangle):
     card = final_glide_card(p)
     top = p.scenario.day.band_top_m
     for i, row in enumerate(rows[1:]):
-        assert row[3:] == [f"{card[j, i]:.0f}" if card[j, i] <= top else "above top" for j in range(len(CARD_MC_MS))]
+        assert row[3:] == [f"{card[j, i]:.0f}" if card[j, i] <= top else "above" for j in range(len(CARD_MC_MS))]
     assert rows[-1][3:] == [f"{p.arrival_floor_m:.0f}"] * len(CARD_MC_MS)  # at the finish: the arrival floor
 
 
