@@ -11,6 +11,7 @@ reader chose (:func:`plan_cautions`).
 
 from __future__ import annotations
 
+import math
 from typing import TYPE_CHECKING, Iterable
 
 from glidetask.units import format_clock, format_duration
@@ -81,6 +82,21 @@ def place(point, units: "UnitSystem") -> str:
 
 def _stretches(ranges: Iterable[tuple[float, float]], units: "UnitSystem") -> str:
     return ", ".join(f"{units.fmt_distance(a)} to {units.fmt_distance(b)}" for a, b in ranges)
+
+
+def need_text(required_m: float, band_top_m: float, units: "UnitSystem") -> str | None:
+    """A height needed to final-glide home as the pilot reads it: the number where it lies
+    within the working band (at most its top), None above it (a final glide from there
+    means nothing to fly; see :func:`final_glide_from_top`)."""
+    if not math.isfinite(required_m) or required_m > band_top_m + 1e-6:
+        return None
+    return f"{units.height(required_m):.0f}"
+
+
+def final_glide_from_top(to_go_m: float, band_top_m: float, units: "UnitSystem") -> str:
+    """Where a final glide from the band top gets home, in words: "final glide from 44.3 km
+    at band top (2200 m)"."""
+    return f"final glide from {units.fmt_distance(to_go_m)} at band top ({units.fmt_height(band_top_m)})"
 
 
 def terrain_cautions(t, units: "UnitSystem") -> list[str]:

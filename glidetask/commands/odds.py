@@ -5,7 +5,8 @@ the random numbers (the same seed, the same answer), ``--ballast-kg KG`` once pe
 (default: empty, half and full), ``--spread 0|1`` (0: every simulated day is the forecast,
 flown exactly as ``plan`` flies it; 1, the default: days spread around it). See :mod:`glidetask.engine.simulate` for the spread of
 days assumed. Text output shows the finishing odds with their standard error, the task
-time percentiles among the finishers and the land-outs by leg; ``--json`` the same as data.
+time percentiles among the finishers, the finishing odds against thermal spacing (0.5, 1, 2 and
+4 times the day's) and the land-outs by leg; ``--json`` the same as data.
 """
 
 from __future__ import annotations
@@ -17,7 +18,7 @@ from glidetask.cli import CMDLINE
 from glidetask.commands._output import print_json
 from glidetask.engine.scenario import with_what_ifs
 from glidetask.commands.sweep import with_day_source_notes
-from glidetask.engine.simulate import DaySpread, simulate_days
+from glidetask.engine.simulate import DaySpread, simulate_days, spacing_odds
 from glidetask.errors import InputError, Problem
 from glidetask.formats import strategy_report
 from glidetask.formats.task_file import load_scenario
@@ -65,6 +66,7 @@ def run(args: argparse.Namespace) -> int:
     ballasts = None if not args.ballast_kg else list(dict.fromkeys(args.ballast_kg))
     spread = DaySpread.none() if getattr(args, "spread", 1) == 0 else None  # 0: the forecast day, as plan flies it
     odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts, spread=spread)
+    odds = spacing_odds(scenario, odds)  # what the odds rest on (none with --spread 0)
     if args.json:
         print_json(strategy_report.odds_to_dict(with_day_source_notes(odds, scenario, "metric")))
     else:

@@ -129,7 +129,7 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
     head = ("Leg", "Dist", "Crs", "Climb", "MC", "IAS", "TAS", "Hdg", "Glide", "Avg", "Time", "Need", "Arrive", "")
     sub = ("", unit.distance_label, "deg", unit.vertical_label, unit.vertical_label, unit.speed_label,
            unit.speed_label, "deg", unit.speed_label, unit.speed_label, "h:mm", unit.height_label, unit.height_label, "")
-    top = plan.scenario.day.band_top_m
+    from glidetask.formats.briefing import need_cell, need_note  # lazily: the plan's text only
     rows = []
     number = len(str(len(plan.legs)))
     for i, leg in enumerate(plan.legs, start=1):
@@ -142,7 +142,7 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
             _fmt(unit.speed(leg.glide_ground_speed_ms)), _fmt(unit.speed(leg.average_speed_ms)),
             units.format_duration(leg.time_s) if math.isfinite(leg.time_s) else "-",
             # a final glide only from within the band: above its top the height means nothing to fly
-            _fmt(unit.height(leg.required_height_m)) if not leg.required_height_m > top + 1e-6 else "above",
+            need_cell(plan, leg.required_height_m, unit),
             _fmt(unit.height(leg.arrival_height_m)),
             "FG" if leg.final_glide else ""))
     widths = [max(len(r[c]) for r in (head, sub, *rows)) for c in range(len(head))]
@@ -154,8 +154,9 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
     out = [line(head), line(sub)] + [line(r) for r in rows]
     out.append("  Climb, MC: the leg's first thermal (FG: leg flown in final glide, MC its setting). IAS (to fly),")
     out.append("  TAS, Hdg, Glide: in the glides, heading set to make good the climbs' drift. Avg: the leg's")
-    out.append("  distance over its time. Need: height to final-glide home from the leg's start (above: more")
-    out.append("  than the band top; see the final glide below). Arrive: planned height at its end.")
+    out.append("  distance over its time. Need: height to final-glide home from the leg's start, within the band")
+    out.append(f"  (above: more than the band top; {need_note(plan, unit)}).")
+    out.append("  Arrive: planned height at its end.")
     return out
 
 
@@ -185,8 +186,13 @@ def _required_card(plan, unit: units.UnitSystem) -> list[str]:
     out = [f"Heights needed to final-glide home (arrival {unit.fmt_height(plan.scenario.safety.arrival_margin_m)}"
            f" over the finish{terrain}, each at the plan's final-glide setting there):"]
     width = max(len(n) for n in names)
+    from glidetask.formats.briefing import need_cell, need_note  # lazily: the plan's text only
     for name, height in zip(names, heights):
-        out.append(f"  {name.ljust(width)}  {_fmt(unit.height(height)).rjust(6)} {unit.height_label}")
+        cell = need_cell(plan, height, unit)
+        out.append(f"  {name.ljust(width)}  {cell.rjust(6)}" + (f" {unit.height_label}" if cell[0].isdigit() else ""))
+    if any(not cautions.need_text(h, plan.scenario.day.band_top_m, unit) for h in heights):
+        out.append(f"  above: more than the band top ({unit.fmt_height(plan.scenario.day.band_top_m)}); "
+                   f"{need_note(plan, unit)}")
     return out
 
 

@@ -3,8 +3,9 @@
 The task with its wind, flown for 19 ballasts from empty to full against thermal
 strengths of 0.5 to 5 m/s (:func:`glidetask.engine.compare.ballast_sweep`). Text output
 is a table of task times (strengths as rows, ballast as columns, the fastest marked),
-the achieved climb and cruise speed, and where ballast starts paying; ``--json`` prints
-the contract's keys and more.
+the achieved climb and cruise speed, the best ballast in narrow, typical and broad thermals
+side by side, and where ballast starts paying; ``--json`` prints the contract's keys and
+more (``by_thermal_size``).
 """
 
 from __future__ import annotations
@@ -12,14 +13,14 @@ from __future__ import annotations
 import argparse
 
 from glidetask.commands._output import print_json
-from glidetask.engine.compare import ballast_sweep
+from glidetask.engine.compare import sweep_by_thermal_size
 from glidetask.formats import strategy_report
 from glidetask.formats.task_file import load_scenario
 
 
 def run(args: argparse.Namespace) -> int:
     scenario = load_scenario(args.task)
-    sweep = ballast_sweep(scenario)
+    sweep = sweep_by_thermal_size(scenario)  # the day's thermals, and narrow and broad ones beside
     if args.json:
         print_json(strategy_report.sweep_to_dict(with_day_source_notes(sweep, scenario, "metric")))
     else:

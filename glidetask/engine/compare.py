@@ -11,6 +11,9 @@ time answers to the day is :mod:`glidetask.engine.sensitivity`):
   glider circles faster, wider and sinks faster, so it climbs less in the same thermal,
   and gains speed only in the glides. The best ballast per strength and where ballast
   starts (and stops) paying follow.
+* :func:`sweep_by_thermal_size`: the same sweep in narrow, typical and broad thermals
+  (:data:`glidetask.engine.thermals.RADIUS_SPREAD` apart), so the pilot sees how much the
+  best ballast rests on the thermal size.
 
 References
 ----------
@@ -39,6 +42,7 @@ from glidetask.engine.flight import Flights, climb_strengths, course_for, flight
 from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
 from glidetask.engine.scenario import Profile, Scenario
 from glidetask.engine.speedtofly import cruise_in_wind
+from glidetask.engine.thermals import RADIUS_SPREAD
 
 SWEEP_STRENGTHS_MS = tuple(0.5 * i for i in range(1, 11))  # 0.5, 1.0, ... 5.0 m/s
 SWEEP_BALLAST_STEPS = 19  # ballast values from empty to full
@@ -225,6 +229,36 @@ class BallastSweep:
     phases: int
     notes: tuple[str, ...]
     thermal_radius_source: str = ""
+    #: The best ballast in narrow, typical and broad thermals (:func:`sweep_by_thermal_size`);
+    #: empty if not asked.
+    by_thermal_size: tuple["ThermalSizeBallast", ...] = ()
+
+
+@dataclass(frozen=True)
+class ThermalSizeBallast:
+    """The best ballast per strength in thermals of one size.
+
+    Attributes
+    ----------
+    name : str
+        "narrow", "typical" or "broad".
+    thermal_radius_m : float
+        The e-folding radius of the thermals [m].
+    best_ballast_kg : ndarray, (S,)
+        Per strength of the sweep (:attr:`BallastSweep.thermal_strength_ms`) the best
+        ballast (:attr:`BallastSweep.best_ballast_kg`) [kg]; NaN where nothing finishes.
+    ballast_pays_from_ms, full_ballast_from_ms : float
+        As in :class:`BallastSweep`, for thermals of this size [m/s].
+    achieved_climb_ms : ndarray, (S, B)
+        The circling model's climb per strength and ballast in thermals of this size [m/s].
+    """
+
+    name: str
+    thermal_radius_m: float
+    best_ballast_kg: np.ndarray
+    ballast_pays_from_ms: float
+    full_ballast_from_ms: float
+    achieved_climb_ms: np.ndarray
 
 
 def sweep_ballasts_kg(scenario: Scenario, steps: int = SWEEP_BALLAST_STEPS) -> np.ndarray:
@@ -342,6 +376,57 @@ def ballast_sweep(scenario: Scenario, *, strengths_ms=SWEEP_STRENGTHS_MS, ballas
         full_ballast_from_ms=_first_strength(strengths, (best == ballast.max()) & (ballast.max() > 0.0)),
         scenario_ballast_kg=float(glider.ballast_kg), forecast_strength_ms=forecast_strength_ms(scenario),
         phases=phases, notes=tuple(_sweep_notes(scenario, ballast)), thermal_radius_source=day.thermal_radius_source)
+
+
+THERMAL_SIZES = ("narrow", "typical", "broad")
+
+
+def thermal_size_radii_m(scenario: Scenario) -> dict[str, float]:
+    """Narrow, typical and broad thermal radii [m]: the day's radius (given, or Allen's for
+    its layer) divided and multiplied by :data:`glidetask.engine.thermals.RADIUS_SPREAD`
+    (the typical radius as in :func:`glidetask.engine.thermals.thermal_radii`)."""
+    typical = float(scenario.day.effective_thermal_radius_m)
+    return {"narrow": typical / RADIUS_SPREAD, "typical": typical, "broad": typical * RADIUS_SPREAD}
+
+
+def sweep_by_thermal_size(scenario: Scenario, *, typical: BallastSweep | None = None, **options) -> BallastSweep:
+    """The ballast sweep for the day's thermals, with the best ballast in narrow, typical and
+    broad thermals side by side (:attr:`BallastSweep.by_thermal_size`).
+
+    Parameters
+    ----------
+    scenario : Scenario
+    typical : BallastSweep, optional
+        The sweep of the day's own thermals if already made (``ballast_sweep(scenario,
+        **options)``); made here otherwise.
+    **options
+        As :func:`ballast_sweep` (strengths, ballasts, path, requirement, phases), the
+        same for every size.
+
+    Returns
+    -------
+    BallastSweep
+        ``typical`` with ``by_thermal_size`` set, narrow first.
+
+    Notes
+    -----
+    Only the thermal radius differs between the three sweeps (:func:`thermal_size_radii_m`);
+    a day given as achieved climbs keeps its strengths (the sweep's rows are thermal
+    strengths), so a narrow thermal of the same strength gives every mass less climb.
+    """
+    if options.get("path") is None:
+        options["path"], options["requirement"] = planned_route(scenario, None, options.get("requirement", TASK_TERRAIN))
+    typical = ballast_sweep(scenario, **options) if typical is None else typical
+    sizes = []
+    for name, radius in thermal_size_radii_m(scenario).items():
+        if name == "typical":
+            sweep = typical
+        else:
+            day = dataclasses.replace(scenario.day, thermal_radius_m=radius)
+            sweep = ballast_sweep(dataclasses.replace(scenario, day=day), **options)
+        sizes.append(ThermalSizeBallast(name, float(radius), sweep.best_ballast_kg, sweep.ballast_pays_from_ms,
+                                        sweep.full_ballast_from_ms, sweep.achieved_climb_ms))
+    return dataclasses.replace(typical, by_thermal_size=tuple(sizes))
 
 
 def _fastest_ballast(task_time: np.ndarray, ballast: np.ndarray) -> np.ndarray:

@@ -255,3 +255,36 @@ def final_glide(polar: Polar, distance_m, height_m, *, course_deg=0.0, wind: Win
         ld_achievable=out(glide.ld),
         mc_to_arrive_ms=out(to_arrive),
     )
+
+
+def reach_from_height_m(to_go_m, required_m, height_m) -> float:
+    """How far out a final glide from ``height_m`` gets home [m of task still to go].
+
+    Parameters
+    ----------
+    to_go_m : array_like, (P,)
+        Distance still to go at points along the task (e.g. each turnpoint and the finish,
+        0) [m].
+    required_m : array_like, (P,)
+        The height needed there to final-glide home [m MSL]; it never falls as the distance
+        to go grows (each metre more to go needs height of its own).
+    height_m : float
+        The height the glide starts from (e.g. the band top) [m MSL].
+
+    Returns
+    -------
+    float
+        The distance to go at which ``required_m`` reaches ``height_m``, linear between the
+        points (exact for a pure glide at one setting in one wind per leg, which uses height
+        in proportion to distance); the whole task if even its start needs less; 0 if even
+        the finish needs more; NaN without points.
+    """
+    to_go = np.asarray(to_go_m, dtype=float)
+    required = np.asarray(required_m, dtype=float)
+    order = np.argsort(to_go)
+    to_go, required = to_go[order], np.maximum.accumulate(required[order])
+    if to_go.size == 0:
+        return float("nan")
+    if height_m < required[0]:
+        return 0.0
+    return float(np.interp(height_m, required, to_go))

@@ -6,7 +6,7 @@ with the planner's own flight core (:func:`glidetask.engine.flight.fly`), vector
 all days and ballast choices at once, and counts how often the task is finished, how
 long it takes, and where the land-outs happen.
 
-Each simulated day differs from the forecast in four ways (planning assumptions of our
+Each simulated day differs from the forecast in five ways (planning assumptions of our
 own, not a forecast model; every spread can be set, and zero reproduces the plan):
 
 * **Strength of the day**: every climb (or thermal strength) of the profile times a
@@ -17,12 +17,20 @@ own, not a forecast model; every spread can be set, and zero reproduces the plan
 * **End of lift**: shifted by a normal error (default sd 30 min); the afternoon decay of
   the profile (from its last peak, or the start if later, to the end of lift) is
   stretched or squeezed to match, so an early end also weakens the late climbs.
+* **Bad days**: on a share of the days (default one in ten) the lift ends early as well,
+  by a time drawn evenly between 1 and 2 hours (spread-out or overdevelopment cutting
+  the afternoon short; the share and the hours are our planning assumption, common
+  practice, not a forecast statistic).
 * **Thermal spacing along the route**: the forecast plan finds every climb at the band
   bottom. In a simulated day a pilot reaching the band bottom must glide on a distance
   ``d ~ Exponential(mean)`` before the next usable climb: usable thermals placed at
   random along the track (a Poisson process, so the distance still to go is memoryless).
-  The mean (default 2 km on the forecast day) grows as the day's strength factor
-  falls (``mean / factor``: weak days have fewer usable thermals). A pilot who reaches
+  The mean on the forecast day defaults to the mean distance a straight track flies
+  between thermals in the day's convective layer,
+  :func:`glidetask.engine.thermals.thermal_search_distance` (``zi / 1.2`` from Allen's
+  thermal density [3]_; 1.6 km for a 1.9 km layer); it grows as the day's strength
+  factor falls (``mean / factor``: weak days have fewer usable thermals). The odds rest
+  much on this number: :func:`spacing_odds` gives them at other spacings. A pilot who reaches
   the arrival floor (finish elevation plus the margin, taken as the ground) before
   finding one lands out there.
 
@@ -36,6 +44,9 @@ References
    boundary-layer depths apart (from memory).
 .. [2] H. Reichmann, Cross-Country Soaring, Thomson Publications, 1978: the risk of
    landing out when flying low, and the choice of water ballast (from memory).
+.. [3] M. J. Allen, "Updraft Model for Development of Autonomous Soaring Uninhabited Air
+   Vehicles", AIAA 2006-1510, NASA Dryden Flight Research Center, 2006 (from memory):
+   ``N = 0.6 X Y / (zi r2)`` thermals over an area ``X`` by ``Y``.
 """
 
 from __future__ import annotations
@@ -50,6 +61,7 @@ from glidetask.engine import flight
 from glidetask.engine.compare import planned_route, stack_flights, usable_ballast_kg
 from glidetask.engine.flight import Flights, course_for, flights_for, fly
 from glidetask.engine.scenario import Scenario, with_what_ifs
+from glidetask.engine.thermals import thermal_search_distance
 from glidetask.units import KMH
 
 SEARCH_DRAWS = 64  # exponential draws kept per day; climb n uses draw n mod this
@@ -65,6 +77,8 @@ LANDOUT_REASONS = {
     flight.UNRESOLVED: ("unresolved", "unresolved"),
     flight.TERRAIN_ABOVE_BAND: ("terrain_above_band", "terrain above the working band"),
 }
+#: Thermal spacings of the spacing table, as multiples of the day's own (:func:`spacing_odds`).
+SPACING_FACTORS = (0.5, 1.0, 2.0, 4.0)
 WARP_STEP_S = 300.0  # time grid of a stretched afternoon profile [s]
 SHORTEST_DECAY_S = 600.0  # an early end of lift never squeezes the decay below this [s]
 
@@ -83,27 +97,65 @@ class DaySpread:
         Standard deviation of the wind direction error [deg].
     lift_end_sd_s : float
         Standard deviation of the shift of the end of lift [s].
-    thermal_search_mean_m : float
+    thermal_search_mean_m : float or None
         Mean distance beyond the band bottom to the next usable climb on the forecast
-        day [m]; 0: every climb is found at the band bottom, as the plan assumes.
+        day [m]; 0: every climb is found at the band bottom, as the plan assumes; None
+        (the default): the day's own, :func:`thermal_search_distance` of its convective
+        layer (:meth:`for_day`).
+    bad_day_probability : float
+        Share of the days on which the lift also ends early [-], in [0, 1].
+    bad_day_early_s : tuple of float
+        How much earlier the lift ends on a bad day: drawn evenly between these [s].
     """
 
     climb_log_sd: float = 0.2
     wind_speed_sd_ms: float = 8.0 * KMH
     wind_direction_sd_deg: float = 20.0
     lift_end_sd_s: float = 1800.0
-    thermal_search_mean_m: float = 2000.0
+    thermal_search_mean_m: float | None = None
+    bad_day_probability: float = 0.1
+    bad_day_early_s: tuple[float, float] = (3600.0, 7200.0)
 
     def __post_init__(self):
         for item in dataclasses.fields(self):
             value = getattr(self, item.name)
-            if not (math.isfinite(value) and value >= 0.0):
+            values = value if isinstance(value, tuple) else (value,)
+            if item.name == "thermal_search_mean_m" and value is None:
+                continue
+            if not all(math.isfinite(v) and v >= 0.0 for v in values):
                 raise ValueError(f"{item.name} must be finite and not negative, got {value!r}")
+        if self.bad_day_probability > 1.0:
+            raise ValueError(f"bad_day_probability must be at most 1, got {self.bad_day_probability!r}")
+        if len(self.bad_day_early_s) != 2 or self.bad_day_early_s[0] > self.bad_day_early_s[1]:
+            raise ValueError(f"bad_day_early_s must be (shortest, longest), got {self.bad_day_early_s!r}")
 
     @classmethod
     def none(cls) -> "DaySpread":
         """No spread: every simulated day is the forecast."""
-        return cls(0.0, 0.0, 0.0, 0.0, 0.0)
+        return cls(0.0, 0.0, 0.0, 0.0, 0.0, 0.0)
+
+    def for_day(self, scenario: Scenario) -> "DaySpread":
+        """This spread with the thermal search distance settled: the given one, or the
+        day's own (:func:`day_search_mean_m`)."""
+        if self.thermal_search_mean_m is not None:
+            return self
+        return dataclasses.replace(self, thermal_search_mean_m=day_search_mean_m(scenario))
+
+    @property
+    def lift_end_varies(self) -> bool:
+        """Whether the end of lift differs between days."""
+        return self.lift_end_sd_s > 0.0 or (self.bad_day_probability > 0.0 and self.bad_day_early_s[1] > 0.0)
+
+
+def day_search_mean_m(scenario: Scenario) -> float:
+    """The day's mean distance to the next thermal [m]: :func:`thermal_search_distance`
+    of its convective layer (Allen 2006, from memory)."""
+    return float(thermal_search_distance(scenario.day.layer_depth_m))
+
+
+def search_source(scenario: Scenario) -> str:
+    """Where the day's own search distance comes from, in words."""
+    return f"Allen (2006) for a {scenario.day.layer_depth_m / 1000.0:.1f} km convective layer"
 
 
 @dataclass(frozen=True)
@@ -116,14 +168,16 @@ class Days:
     lift_ends_s: np.ndarray
     search_mean_m: np.ndarray
     search_unit: np.ndarray  # (runs, SEARCH_DRAWS) standard exponential draws
+    bad_day: np.ndarray  # bool: the lift ends early as well
 
 
 def draw_days(scenario: Scenario, spread: DaySpread, runs: int, seed: int) -> Days:
     """Draw ``runs`` days around the scenario's forecast (seeded: the same seed, the same days).
 
     Draws come from ``numpy.random.default_rng(seed)`` in a fixed order (climb factor,
-    wind speed, wind direction, end of lift, search distances), whatever the spread, so a
-    change of one spread leaves the other errors of each day as they were.
+    wind speed, wind direction, end of lift, search distances, bad day, how early), whatever
+    the spread, so a change of one spread leaves the other errors of each day as they were.
+    A spread without a search distance takes the day's own (:meth:`DaySpread.for_day`).
     """
     if runs < 1:
         raise ValueError("runs must be at least 1")
@@ -131,15 +185,21 @@ def draw_days(scenario: Scenario, spread: DaySpread, runs: int, seed: int) -> Da
     day = scenario.day
     z_climb, z_speed, z_direction, z_end = rng.standard_normal((4, runs))
     search_unit = rng.standard_exponential((runs, SEARCH_DRAWS))
+    u_bad, u_early = rng.random((2, runs))
+    spread = spread.for_day(scenario)
+    bad = u_bad < spread.bad_day_probability
+    shortest, longest = spread.bad_day_early_s
+    early = np.where(bad, shortest + (longest - shortest) * u_early, 0.0)
     factor = np.exp(spread.climb_log_sd * z_climb)
     wind = day.wind_at(day.band_middle_m)  # the cruise's wind; a profile keeps its shape (flight_wind)
     return Days(
         climb_factor=factor,
         wind_from_deg=np.mod(wind.from_deg + spread.wind_direction_sd_deg * z_direction, 360.0),
         wind_speed_ms=np.maximum(wind.speed_ms + spread.wind_speed_sd_ms * z_speed, 0.0),
-        lift_ends_s=day.lift_ends_s + spread.lift_end_sd_s * z_end,
+        lift_ends_s=day.lift_ends_s + spread.lift_end_sd_s * z_end - early,
         search_mean_m=spread.thermal_search_mean_m / factor,
         search_unit=search_unit,
+        bad_day=bad,
     )
 
 
@@ -250,6 +310,30 @@ class Odds:
     spread: DaySpread
     choices: tuple[ChoiceOdds, ...]
     notes: tuple[str, ...]
+    #: Where the search distance comes from, in words ("" when given).
+    search_source: str = ""
+    #: The finishing odds at other thermal spacings (:func:`spacing_odds`); empty if not asked.
+    spacing: tuple["SpacingOdds", ...] = ()
+
+
+@dataclass(frozen=True)
+class SpacingOdds:
+    """The finishing odds with the thermals ``factor`` times as far apart as the day's.
+
+    Attributes
+    ----------
+    factor : float
+        The spacing over the day's own [-].
+    search_mean_m : float
+        The mean distance to the next thermal on the forecast day [m].
+    finish_probability, finish_probability_se : tuple of float
+        One per ballast choice, in the order of :attr:`Odds.choices`.
+    """
+
+    factor: float
+    search_mean_m: float
+    finish_probability: tuple[float, ...]
+    finish_probability_se: tuple[float, ...]
 
 
 def default_ballasts_kg(scenario: Scenario) -> tuple[float, ...]:
@@ -277,8 +361,8 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     ballasts_kg : sequence of float, optional
         Ballast choices [kg] (default :func:`default_ballasts_kg`).
     spread : DaySpread, optional
-        How the days spread (default :class:`DaySpread`); :meth:`DaySpread.none`
-        reproduces the plan.
+        How the days spread (default :class:`DaySpread`: the day's own search distance);
+        :meth:`DaySpread.none` reproduces the plan.
     path, requirement : optional
         The planned path and its final-glide requirement (the terrain, if the task has
         a model): see :func:`glidetask.engine.compare.planned_route`; default: as
@@ -304,6 +388,8 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     targets the plan chose at the scenario's ballast).
     """
     spread = DaySpread() if spread is None else spread
+    given = spread.thermal_search_mean_m is not None
+    spread = spread.for_day(scenario)
     choices = tuple(float(b) for b in (default_ballasts_kg(scenario) if ballasts_kg is None else ballasts_kg))
     if not choices:
         raise ValueError("give at least one ballast choice")
@@ -319,7 +405,39 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     legs = tuple((leg.from_name, leg.to_name) for leg in path.legs)
     results = tuple(_choice(choices[c], setups[c], flown, slice(c * runs, (c + 1) * runs), forecast.flight(c),
                             len(legs)) for c in range(len(choices)))
-    return Odds(scenario.task.name, legs, runs, int(seed), spread, results, tuple(_notes(scenario, spread)))
+    return Odds(scenario.task.name, legs, runs, int(seed), spread, results, tuple(_notes(scenario, spread)),
+                search_source="" if given else search_source(scenario))
+
+
+def spacing_odds(scenario: Scenario, odds: Odds, factors=SPACING_FACTORS, *, path=None,
+                 requirement="task") -> Odds:
+    """The odds with a table of the finishing odds at other thermal spacings.
+
+    Each row flies the same days (the same seed and runs, every other spread as in
+    ``odds``) with the thermal search distance ``factor`` times the one ``odds`` used,
+    so the pilot sees how much the finishing odds rest on the spacing assumed. The row
+    of factor 1 is ``odds`` itself. With no search (the forecast day alone) there is no
+    table.
+
+    Returns
+    -------
+    Odds
+        ``odds`` with :attr:`Odds.spacing` set, in the order of ``factors``.
+    """
+    base = odds.spread.thermal_search_mean_m
+    if not base:
+        return odds
+    ballasts = [c.ballast_kg for c in odds.choices]
+    rows = []
+    for factor in factors:
+        spread = dataclasses.replace(odds.spread, thermal_search_mean_m=base * float(factor))
+        other = odds if factor == 1.0 else simulate_days(scenario, runs=odds.runs, seed=odds.seed,
+                                                         ballasts_kg=ballasts, spread=spread, path=path,
+                                                         requirement=requirement)
+        rows.append(SpacingOdds(float(factor), base * float(factor),
+                                tuple(c.finish_probability for c in other.choices),
+                                tuple(c.finish_probability_se for c in other.choices)))
+    return dataclasses.replace(odds, spacing=tuple(rows))
 
 
 def _day_flights(scenario: Scenario, setups: list[Flights], days: Days, spread: DaySpread):
@@ -337,7 +455,7 @@ def _day_flights(scenario: Scenario, setups: list[Flights], days: Days, spread: 
                       wind_speed_ms=tile(days.wind_speed_ms))
     values = np.repeat(np.asarray(stacked.lift_values), runs, axis=0)
     times = stacked.lift_times_s
-    if spread.lift_end_sd_s > 0.0:
+    if spread.lift_end_varies:
         times, values, ends = stretched_profiles(scenario, days.lift_ends_s, stacked.lift_values)
         per_choice["lift_ends_s"] = tile(ends)
     flights = dataclasses.replace(stacked, lift_times_s=times, lift_values=values, **per_choice)
@@ -373,12 +491,22 @@ def _choice(ballast: float, setup: Flights, flown, rows: slice, forecast, legs: 
         finish_times_s=np.sort(times))
 
 
+def bad_day_words(spread: DaySpread) -> str:
+    """The bad-day mode in words, e.g. "1 day in 10 the lift ends 1-2 h early"."""
+    p = spread.bad_day_probability
+    if p <= 0.0 or spread.bad_day_early_s[1] <= 0.0:
+        return "no bad days"
+    shortest, longest = (t / 3600.0 for t in spread.bad_day_early_s)
+    share = f"1 day in {1.0 / p:.0f}" if abs(1.0 / p - round(1.0 / p)) < 1e-9 else f"{100 * p:g} % of days"
+    return f"{share} the lift ends {shortest:g}-{longest:g} h early"
+
+
 def _notes(scenario: Scenario, spread: DaySpread) -> list[str]:
     notes = ["The spread of days is a planning assumption of glidetask, not a forecast: strength "
              f"x exp(N(0, {spread.climb_log_sd:g})), wind speed +/- {spread.wind_speed_sd_ms / KMH:.0f} km/h "
              f"and direction +/- {spread.wind_direction_sd_deg:.0f} deg (1 sd), end of lift +/- "
-             f"{spread.lift_end_sd_s / 60:.0f} min, next climb on average {spread.thermal_search_mean_m / 1000:.1f} km "
-             "beyond the band bottom."]
+             f"{spread.lift_end_sd_s / 60:.0f} min, {bad_day_words(spread)}, next climb on average "
+             f"{spread.thermal_search_mean_m / 1000:.1f} km beyond the band bottom."]
     notes.append("A land-out here means reaching the finish elevation plus the arrival margin away from the "
                  "finish: choose a field well before that.")
     if scenario.task.kind == "area":

@@ -100,24 +100,48 @@ def _safety_summary(plan, unit) -> list[str]:
     return out
 
 
+def band_top_reach_m(plan) -> float:
+    """How far out (distance still to go [m]) a final glide from the band top gets home on
+    this plan: the heights needed at each turnpoint and the finish, linear between them
+    (:func:`glidetask.engine.finalglide.reach_from_height_m`)."""
+    from glidetask.engine.finalglide import reach_from_height_m
+
+    to_go = plan.planned_distance_m - np.asarray(plan.path.cumulative_m, dtype=float)
+    required = [leg.required_height_m for leg in plan.legs] + [plan.arrival_floor_m]
+    return reach_from_height_m(to_go[:len(required)], required, plan.scenario.day.band_top_m)
+
+
+def need_cell(plan, required_m: float, unit) -> str:
+    """A "Need" cell: the height where it is a final glide within the band, else "above"."""
+    text = cautions.need_text(required_m, plan.scenario.day.band_top_m, unit)
+    return "above" if text is None else text
+
+
+def need_note(plan, unit) -> str:
+    """What "above" means on this plan: where a final glide from the band top starts."""
+    return cautions.final_glide_from_top(band_top_reach_m(plan), plan.scenario.day.band_top_m, unit)
+
+
 def _legs(plan, unit) -> list[str]:
     head = ["#", "Leg", f"Dist {unit.distance_label}", "Crs", f"Climb {unit.vertical_label}", "MC",
-            f"Air {unit.speed_label}", "Hdg", f"Glide {unit.speed_label}", f"Avg {unit.speed_label}", "Time", "At",
-            f"Need {unit.height_label}", f"Arrive {unit.height_label}"]
+            f"IAS {unit.speed_label}", f"TAS {unit.speed_label}", "Hdg", f"Glide {unit.speed_label}",
+            f"Avg {unit.speed_label}", "Time", "At", f"Need {unit.height_label}", f"Arrive {unit.height_label}"]
     rows = []
     for i, leg in enumerate(plan.legs, start=1):
         rows.append([
             str(i), f"{leg.from_name} > {leg.to_name}", f"{unit.distance(leg.distance_m):.1f}",
             f"{leg.course_deg:03.0f}", _num(unit.vertical(leg.climb_ms), "{:.1f}"),
             _num(unit.vertical(leg.mc_ms), "{:.1f}") + (" FG" if leg.final_glide else ""),
-            _num(unit.speed(leg.airspeed_ms)), _num(leg.heading_deg, "{:03.0f}"),
-            _num(unit.speed(leg.glide_ground_speed_ms)), _num(unit.speed(leg.cruise_speed_ms)),
+            _num(unit.speed(leg.indicated_airspeed_ms)), _num(unit.speed(leg.airspeed_ms)),
+            _num(leg.heading_deg, "{:03.0f}"),
+            _num(unit.speed(leg.glide_ground_speed_ms)), _num(unit.speed(leg.average_speed_ms)),
             format_duration(leg.time_s) if math.isfinite(leg.time_s) else "-",
             format_clock(leg.start_time_s) if math.isfinite(leg.start_time_s) else "-",
-            _num(unit.height(leg.required_height_m)), _num(unit.height(leg.arrival_height_m))])
-    notes = ("Climb and MC: the leg's first thermal (FG: flown in final glide, at its setting). Air, Hdg, Glide: "
-             "in the glides, heading set so the climbs' drift is made good. Avg: with climbs. At: clock time at the "
-             "leg's start. Need: height to final-glide home from there. Arrive: planned height at the leg's end.")
+            need_cell(plan, leg.required_height_m, unit), _num(unit.height(leg.arrival_height_m))])
+    notes = ("Climb and MC: the leg's first thermal (FG: flown in final glide, at its setting). IAS (to fly), TAS, "
+             "Hdg, Glide: in the glides, heading set so the climbs' drift is made good. Avg: the leg's distance over "
+             "its time. At: clock time at the leg's start. Need: height to final-glide home from there, within the "
+             f"band (above: more than the band top; {need_note(plan, unit)}). Arrive: planned height at the leg's end.")
     return ["## Legs", ""] + _table(head, rows, right=2) + ["", f"<small>{notes}</small>"]
 
 
@@ -130,13 +154,14 @@ def _heights(plan, unit) -> list[str]:
     to_go = plan.planned_distance_m - plan.path.cumulative_m
     rows = []
     for i, name in enumerate(names):
-        rows.append([name, unit.fmt_distance(to_go[i]), _num(unit.height(planned[i]))]
-                    + [_num(unit.height(card[j, i])) for j in range(len(settings))])
+        rows.append([name, unit.fmt_distance(to_go[i]), need_cell(plan, planned[i], unit)]
+                    + [need_cell(plan, card[j, i], unit) for j in range(len(settings))])
     margin = unit.fmt_height(plan.scenario.safety.arrival_margin_m)
     return ["## Heights needed to get home", "",
             f"Final glide from each turnpoint over the rest of the task in the day's wind, arriving {margin} over the "
             f"finish; {unit.height_label} MSL. *Plan*: at the plan's final-glide setting there; MC columns: at that "
-            f"MacCready setting ({unit.vertical_label}).", ""] + _table(head, rows)
+            f"MacCready setting ({unit.vertical_label}). Above the band top ({unit.fmt_height(plan.scenario.day.band_top_m)}) "
+            f"a final glide is no plan: {need_note(plan, unit)}.", ""] + _table(head, rows)
 
 
 def _day(plan, unit) -> list[str]:
@@ -157,6 +182,9 @@ def _day(plan, unit) -> list[str]:
         f"{day.isa_deviation_c:+g} C.",
         f"- MacCready: {mc}; final glide at {fg}; arrival margin {unit.fmt_height(safety.arrival_margin_m)} over "
         f"the finish ({unit.fmt_height(plan.arrival_floor_m)}).",
+        f"- Practical speeds: {day.centring_s:g} s centring each climb, the path flown {day.detour_percent:g} % "
+        f"longer (both common practice); thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius "
+        f"({day.thermal_radius_source}).",
     ]
 
 

@@ -103,6 +103,13 @@ def sweep_to_dict(sweep) -> dict:
         "thermal_radius_m": _number(sweep.thermal_radius_m, 1),
         "thermal_radius_source": sweep.thermal_radius_source,
         "phases": sweep.phases,
+        "by_thermal_size": [{
+            "name": size.name, "thermal_radius_m": _number(size.thermal_radius_m, 1),
+            "best_ballast_kg": [_number(b, 2) for b in size.best_ballast_kg],
+            "ballast_pays_from_ms": _number(size.ballast_pays_from_ms),
+            "full_ballast_from_ms": _number(size.full_ballast_from_ms),
+            "achieved_climb_ms": grid(size.achieved_climb_ms),
+        } for size in getattr(sweep, "by_thermal_size", ())],
         "cautions": cautions.general() + list(sweep.notes),
     }
 
@@ -174,8 +181,53 @@ def sweep_text(sweep, units: UnitSystem | str = "metric") -> str:
                      f"{units.vertical(climb[last]):.1f}", _speed(units, cruise[0]), _speed(units, cruise[last]),
                      f"{best:.0f} kg" if _finite(best) else DASH])
     lines += _table(head, rows)
+    lines += thermal_size_lines(sweep, units)
     lines += ["", sweep_verdict(sweep, units), forecast_line(sweep, units), ""] + _caution_lines(sweep.notes)
     return "\n".join(lines)
+
+
+def thermal_size_cells(sweep, units: UnitSystem | str = "metric") -> tuple[list[str], list[list[str]]]:
+    """(head, rows) of the best ballast by thermal strength (rows) in narrow, typical and broad
+    thermals (columns), from :func:`glidetask.engine.compare.sweep_by_thermal_size`; empty
+    without them. For a table in any view."""
+    units = _units(units)
+    sizes = getattr(sweep, "by_thermal_size", ())
+    if not sizes:
+        return [], []
+    head = ["thermal"] + [f"{size.name} {units.fmt_height(size.thermal_radius_m)}" for size in sizes]
+    rows = [[_strength_label(units, strength)]
+            + [f"{size.best_ballast_kg[i]:.0f} kg" if _finite(size.best_ballast_kg[i]) else DASH for size in sizes]
+            for i, strength in enumerate(sweep.thermal_strength_ms)]
+    return head, rows
+
+
+def thermal_size_verdicts(sweep, units: UnitSystem | str = "metric") -> list[str]:
+    """Per thermal size where ballast starts paying, one line each (empty without sizes)."""
+    units = _units(units)
+    lines = []
+    for size in getattr(sweep, "by_thermal_size", ()):
+        pays, full = size.ballast_pays_from_ms, size.full_ballast_from_ms
+        text = f"{size.name.capitalize()} ({units.fmt_height(size.thermal_radius_m)}): "
+        text += "ballast never pays" if not _finite(pays) else f"ballast pays from {_vertical(units, pays)}"
+        text += f", full from {_vertical(units, full)}." if _finite(full) else "."
+        lines.append(text)
+    return lines
+
+
+def thermal_size_lines(sweep, units: UnitSystem | str = "metric") -> list[str]:
+    """The best ballast in narrow, typical and broad thermals side by side, as text lines."""
+    head, rows = thermal_size_cells(sweep, units)
+    if not rows:
+        return []
+    return (["", f"Best ballast by thermal size (radius of each; narrow and broad: the typical divided and "
+             f"multiplied by {_radius_spread():g}, our choice); - not finished"]
+            + _table(head, rows) + [f"  {line}" for line in thermal_size_verdicts(sweep, units)])
+
+
+def _radius_spread() -> float:
+    from glidetask.engine.thermals import RADIUS_SPREAD  # lazily: the UI imports this module at start-up
+
+    return RADIUS_SPREAD
 
 
 def _speed(units: UnitSystem, value_ms) -> str:
@@ -304,8 +356,17 @@ def odds_to_dict(odds) -> dict:
             "wind_direction_sd_deg": spread.wind_direction_sd_deg,
             "lift_end_sd_s": spread.lift_end_sd_s,
             "thermal_search_mean_km": _number(spread.thermal_search_mean_m / 1000.0),
+            "thermal_search_source": getattr(odds, "search_source", "") or "given",
+            "bad_day_probability": spread.bad_day_probability,
+            "bad_day_early_s": list(spread.bad_day_early_s),
         },
         "choices": choices,
+        "thermal_spacing": [{
+            "factor": row.factor, "thermal_search_mean_km": _number(row.search_mean_m / 1000.0),
+            "choices": [{"ballast_kg": _number(c.ballast_kg, 2), "finish_probability": _number(p, 4),
+                         "finish_probability_se": _number(se, 4)}
+                        for c, p, se in zip(odds.choices, row.finish_probability, row.finish_probability_se)],
+        } for row in getattr(odds, "spacing", ())],
         "cautions": cautions.general() + list(odds.notes),
     }
 
@@ -321,10 +382,29 @@ def probability_bar(p: float, width: int = BAR_WIDTH) -> str:
 
 
 def assumption_text(odds, units: UnitSystem) -> str:
+    from glidetask.engine.simulate import bad_day_words  # lazily: the UI imports this module at start-up
+
     s = odds.spread
+    source = getattr(odds, "search_source", "")
     return (f"strength x exp(N(0, {s.climb_log_sd:g})); wind +/- {units.fmt_speed(s.wind_speed_sd_ms)}, "
             f"+/- {s.wind_direction_sd_deg:.0f} deg; end of lift +/- {s.lift_end_sd_s / 60:.0f} min; "
-            f"next climb on average {units.fmt_distance(s.thermal_search_mean_m)} beyond the band bottom")
+            f"{bad_day_words(s)}; next climb on average {units.fmt_distance(s.thermal_search_mean_m)} beyond "
+            f"the band bottom" + (f" ({source})" if source else ""))
+
+
+def spacing_lines(odds, units: UnitSystem) -> list[str]:
+    """The finishing odds against thermal spacing (empty without a spacing table)."""
+    rows = getattr(odds, "spacing", ())
+    if not rows:
+        return []
+    lines = ["Finish against thermal spacing (the same days, the thermals closer or further apart)"]
+    head = ["spacing", "next climb"] + [f"{c.ballast_kg:.0f} kg" for c in odds.choices]
+    cells = [[f"{row.factor:g} x" + (" (day)" if row.factor == 1.0 else ""), units.fmt_distance(row.search_mean_m)]
+             + [f"{100 * p:.1f} %" for p in row.finish_probability] for row in rows]
+    lines += _table(head, cells, left=1)
+    lines += ["  next climb: mean distance beyond the band bottom to the next usable thermal on the forecast day",
+              ""]
+    return lines
 
 
 def odds_text(odds, units: UnitSystem | str = "metric") -> str:
@@ -343,6 +423,7 @@ def odds_text(odds, units: UnitSystem | str = "metric") -> str:
     lines += _table(head, rows)
     lines += ["  finish: share of days the task is finished (+/- one standard error); 10/50/90 %: task time"
               " (H:MM) among the finishers", ""]
+    lines += spacing_lines(odds, units)
     lines.append("Land-outs by leg (days out of " + str(odds.runs) + ")")
     head = ["leg"] + [f"{c.ballast_kg:.0f} kg" for c in odds.choices]
     rows = [[f"{i + 1} {a} > {b}"] + [str(c.landouts_by_leg[i]) for c in odds.choices]

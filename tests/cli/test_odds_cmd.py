@@ -98,3 +98,29 @@ def test_every_problem_is_reported_together(capsys, tmp_path):
 def test_a_usage_error_exits_2(capsys):
     assert main(["odds", TRIANGLE, "--runs", "many"]) == 2
     assert "usage:" in capsys.readouterr().err
+
+
+def test_json_finish_against_thermal_spacing(capsys):
+    # Source: issue 12 item 6: the finishing odds at 0.5, 1, 2 and 4 times the day's
+    # thermal spacing (Allen 2006, from memory: zi / 1.2 between thermals met along a track).
+    data = _json(capsys, "--runs", "200", "--seed", "3")
+    spacing = data["thermal_spacing"]
+    assert [row["factor"] for row in spacing] == [0.5, 1.0, 2.0, 4.0]
+    day_km = data["assumptions"]["thermal_search_mean_km"]
+    assert day_km == pytest.approx((2.2 - 0.265) / 1.2, abs=1e-3)  # the triangle's 1.935 km layer
+    assert "Allen (2006)" in data["assumptions"]["thermal_search_source"]
+    for row in spacing:
+        assert row["thermal_search_mean_km"] == pytest.approx(day_km * row["factor"], abs=0.0005 * (1 + row["factor"]))  # each rounded to 1 m
+        assert [c["ballast_kg"] for c in row["choices"]] == [c["ballast_kg"] for c in data["choices"]]
+    own = spacing[1]["choices"]
+    assert [c["finish_probability"] for c in own] == [c["finish_probability"] for c in data["choices"]]
+    # With --spread 0 every day is the forecast: no search, no table.
+    assert _json(capsys, "--runs", "5", "--spread", "0")["thermal_spacing"] == []
+
+
+def test_text_shows_the_spacing_table(capsys):
+    assert main(["odds", TRIANGLE, "--runs", "100", "--seed", "2"]) == 0
+    text = capsys.readouterr().out
+    assert "Finish against thermal spacing" in text
+    assert re.search(r"^\s+4 x\s+6\.5 km(\s+\d+\.\d %){3}$", text, re.M)
+    assert "1 day in 10 the lift ends 1-2 h early" in text

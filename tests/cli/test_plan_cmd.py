@@ -15,6 +15,7 @@ from glidetask.units import FOOT, KNOT, NAUTICAL_MILE
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "demo_tasks"
 TRIANGLE = str(DEMO / "vardmoor-triangle-300.toml")
+RIDGE = str(DEMO / "vardmoor-ridge-final-glide.toml")
 ERROR_LINE = re.compile(r"^glidetask: error: [^:]+: [^:]+: .+$")  # contract section 7
 
 
@@ -135,3 +136,26 @@ def test_an_inconsistent_day_in_the_file_is_an_input_error(capsys, tmp_path):
     task.write_text(text, encoding="utf-8")
     lines = _errors(capsys, str(task))
     assert any("[day] start_time" in line and "before lift_ends" in line for line in lines)
+
+
+def test_need_only_within_the_band_and_where_a_final_glide_from_its_top_starts(capsys):
+    # Source: issue 12 item 7 ("Need" only where it is a final glide within the band); the
+    # distance by linear interpolation of the heights needed, exact for a pure glide at one
+    # setting in one wind (height used in proportion to distance, contract 3).
+    from glidetask.engine.plan import plan
+    from glidetask.formats.task_file import load_scenario
+
+    p = plan(load_scenario(RIDGE))
+    top = p.scenario.day.band_top_m
+    assert main(["plan", RIDGE]) == 0
+    text = capsys.readouterr().out
+    rows = [line for line in text.splitlines() if re.match(r"^\s+\d ", line)][:len(p.legs)]
+    for row, leg in zip(rows, p.legs):
+        assert (" above " in row) == (leg.required_height_m > top)
+        if leg.required_height_m <= top:
+            assert f" {leg.required_height_m:.0f} " in row
+    to_go = p.planned_distance_m - p.path.cumulative_m
+    need = [leg.required_height_m for leg in p.legs] + [p.arrival_floor_m]
+    i = max(k for k in range(len(need)) if need[k] > top)  # the last point that needs more than the top
+    x = to_go[i + 1] + (to_go[i] - to_go[i + 1]) * (top - need[i + 1]) / (need[i] - need[i + 1])
+    assert f"final glide from {x / 1000:.1f} km at band top ({top:.0f} m)" in text

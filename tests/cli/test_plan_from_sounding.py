@@ -133,9 +133,13 @@ def test_the_same_day_typed_by_hand_plans_the_same(capsys, tmp_path, inputs, com
     text = _absolute(FORECAST.read_text(encoding="utf-8"))
     derived_task, typed_task = tmp_path / "derived.toml", tmp_path / "typed.toml"
     derived_task.write_text(text, encoding="utf-8")
-    typed_task.write_text(_with_day_lines(_without_day_keys(text, SOUNDING_KEYS), _typed_lines(inputs)),
+    # surface_elevation_m stays: typed, it is the ground under the convective layer (the
+    # thermal size and spacing, task_file), as the sounding's surface is for the derived day.
+    kept = tuple(key for key in SOUNDING_KEYS if key != "surface_elevation_m")
+    typed_task.write_text(_with_day_lines(_without_day_keys(text, kept), _typed_lines(inputs)),
                           encoding="utf-8")
     assert load_scenario(typed_task).day_source is None
+    assert load_scenario(typed_task).day.ground_m == load_scenario(derived_task).day.ground_m
     derived, typed = _json(capsys, command, derived_task), _json(capsys, command, typed_task)
     if command == "plan":
         derived, typed = _strip_source(derived), _strip_source(typed)

@@ -108,3 +108,26 @@ def test_bad_task_file_exits_2_with_the_contract_line(capsys, tmp_path):
     assert main(["sweep", str(broken)]) == 2
     lines = capsys.readouterr().err.strip().splitlines()
     assert lines and all(ERROR_LINE.match(line) for line in lines)
+
+
+def test_json_and_text_give_the_best_ballast_by_thermal_size(capsys, triangle_json):
+    # Source: issue 12 item 2: narrow, typical and broad thermals side by side (the engine's
+    # sweep_by_thermal_size, checked in tests/engine/test_compare.py).
+    from glidetask.engine.compare import sweep_by_thermal_size
+
+    sweep = sweep_by_thermal_size(load_scenario(TRIANGLE))
+    sizes = triangle_json["by_thermal_size"]
+    assert [size["name"] for size in sizes] == ["narrow", "typical", "broad"]
+    assert [size["thermal_radius_m"] for size in sizes] == pytest.approx([250.0 / 1.5, 250.0, 375.0], abs=0.05)
+    for size, engine in zip(sizes, sweep.by_thermal_size):
+        assert len(size["best_ballast_kg"]) == len(triangle_json["thermal_strength_ms"])
+        assert [None if b is None else round(b, 2) for b in size["best_ballast_kg"]] == \
+            [None if np.isnan(b) else round(float(b), 2) for b in engine.best_ballast_kg]
+    assert sizes[1]["best_ballast_kg"] == triangle_json["best_ballast_kg"]
+    assert main(["sweep", TRIANGLE]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    start = next(i for i, line in enumerate(lines) if line.startswith("Best ballast by thermal size"))
+    assert lines[start + 1].split() == ["thermal", "narrow", "167", "m", "typical", "250", "m", "broad", "375", "m"]
+    row = next(line for line in lines[start:] if line.strip().startswith("5.0 m/s"))
+    expected = [f"{b:.0f}" for b in (s.best_ballast_kg[-1] for s in sweep.by_thermal_size)]
+    assert row.split()[2::2] == expected

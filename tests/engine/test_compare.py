@@ -325,3 +325,50 @@ def test_area_task_sensitivity_keeps_the_forecast_targets(demo):
     forecast = plan(s)
     assert result.forecast.total_time_s == pytest.approx(forecast.total_time_s, abs=1e-6)
     assert result.forecast.task_speed_ms == pytest.approx(forecast.task_speed_ms, rel=1e-12)
+
+
+# ---------------------------------------------------------------- ballast by thermal size
+
+
+def test_best_ballast_by_thermal_size_side_by_side(demo):
+    # Source: H. Reichmann, Cross-Country Soaring, 1978 (from memory): ballast costs climb most
+    # in narrow thermals, so the best ballast never falls as the thermal widens; the sizes are
+    # the day's radius divided and multiplied by thermals.RADIUS_SPREAD (1.5, our choice).
+    s = demo["triangle-300"]
+    sweep = compare.sweep_by_thermal_size(s)
+    names = [size.name for size in sweep.by_thermal_size]
+    assert names == ["narrow", "typical", "broad"]
+    narrow, typical, broad = sweep.by_thermal_size
+    assert typical.thermal_radius_m == s.day.effective_thermal_radius_m
+    assert narrow.thermal_radius_m == pytest.approx(typical.thermal_radius_m / 1.5)
+    assert broad.thermal_radius_m == pytest.approx(typical.thermal_radius_m * 1.5)
+    # The typical column is the day's own sweep, and each size is the sweep at its radius.
+    own = compare.ballast_sweep(s)
+    np.testing.assert_array_equal(typical.best_ballast_kg, own.best_ballast_kg)
+    np.testing.assert_array_equal(sweep.task_time_s, own.task_time_s)
+    wide = compare.ballast_sweep(dataclasses.replace(s, day=dataclasses.replace(s.day, thermal_radius_m=broad.thermal_radius_m)))
+    np.testing.assert_array_equal(broad.best_ballast_kg, wide.best_ballast_kg)
+    np.testing.assert_array_equal(broad.achieved_climb_ms, wide.achieved_climb_ms)
+    # Where all three finish, the wider the thermal the more water pays (never less).
+    both = np.isfinite(narrow.best_ballast_kg) & np.isfinite(broad.best_ballast_kg)
+    assert np.all(narrow.best_ballast_kg[both] <= typical.best_ballast_kg[both])
+    assert np.all(typical.best_ballast_kg[both] <= broad.best_ballast_kg[both])
+    # and on this day the answer really does rest on the size: water pays in strong broad thermals
+    assert broad.ballast_pays_from_ms < typical.ballast_pays_from_ms < narrow.ballast_pays_from_ms
+    assert math.isfinite(broad.full_ballast_from_ms)
+    # The climb in the same thermal falls as it narrows (circling model; every mass).
+    assert np.all(narrow.achieved_climb_ms < typical.achieved_climb_ms)
+    assert np.all(typical.achieved_climb_ms < broad.achieved_climb_ms)
+
+
+def test_thermal_sizes_of_a_day_from_its_layer(demo):
+    # Source: Allen, AIAA 2006-1510 (from memory), through thermals.thermal_radii: without a
+    # radius in the task the typical size is Allen's for the day's layer.
+    s = demo["area-3h"]
+    from glidetask.engine.thermals import thermal_radii
+
+    radii = thermal_radii(s.day.layer_depth_m) if s.day.thermal_radius_m is None else None
+    sizes = compare.thermal_size_radii_m(s)
+    if radii is not None:
+        assert sizes == pytest.approx({"narrow": radii.narrow_m, "typical": radii.typical_m, "broad": radii.broad_m})
+    assert sizes["typical"] == s.day.effective_thermal_radius_m

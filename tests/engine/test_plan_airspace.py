@@ -114,7 +114,7 @@ def test_the_odds_of_one_forecast_day_land_out_where_the_plan_does(triangle):
     flown = fly(course_for(path, short.day.detour_percent), stack_flights([flights_for(short)] * 4),
                 requirement=requirement, detail=False)
     np.testing.assert_allclose(flown.landout_m, planned.landout_m, rtol=0.0, atol=1e-6)
-    odds = simulate_days(short, runs=40, spread=DaySpread(0.0, 0.0, 0.0, 0.0, 0.0),
+    odds = simulate_days(short, runs=40, spread=DaySpread.none(),
                          ballasts_kg=[short.glider.ballast_kg])
     leg = int(np.searchsorted(planned.path.cumulative_m, planned.landout_m, side="right")) - 1
     [choice] = [c for c in odds.choices if c.ballast_kg == short.glider.ballast_kg]

@@ -104,7 +104,7 @@ def test_days_follow_the_stated_spread(demo):
     # Source: the spread documented in engine/simulate.py (our planning assumptions).
     # Tolerances: five standard errors of each estimate at 200,000 draws.
     s = demo["triangle-300"]
-    spread = DaySpread()
+    spread = DaySpread(bad_day_probability=0.0)  # the bad days on their own below
     n = 200_000
     days = draw_days(s, spread, n, seed=11)
     log_factor = np.log(days.climb_factor)
@@ -115,7 +115,7 @@ def test_days_follow_the_stated_spread(demo):
     assert np.std(days.lift_ends_s) == pytest.approx(1800.0, abs=5 * 1800.0 / math.sqrt(2 * n))
     assert np.mean(days.lift_ends_s) == pytest.approx(s.day.lift_ends_s, abs=5 * 1800.0 / math.sqrt(n))
     assert np.mean(days.search_unit) == pytest.approx(1.0, abs=5 / math.sqrt(days.search_unit.size))
-    assert np.all(days.search_mean_m == pytest.approx(2000.0 / days.climb_factor))
+    assert np.all(days.search_mean_m == pytest.approx(simulate.day_search_mean_m(s) / days.climb_factor))
     assert np.all(days.wind_speed_ms >= 0.0)
 
 
@@ -193,3 +193,81 @@ def test_bad_options_are_refused(demo):
     with pytest.raises(InputError) as error:
         simulate_days(s, runs=10, ballasts_kg=[200.0])
     assert error.value.problems[0].where == "--ballast-kg"
+
+
+# ---------------------------------------------------------------- calibrated odds
+
+
+def test_the_search_distance_comes_from_the_convective_layer(demo):
+    # Source: M. J. Allen, AIAA 2006-1510 (from memory): N = 0.6 X Y / (zi r2) thermals
+    # over an area X by Y; a straight track meets those within r2 of it, 2 r2 N / (X Y)
+    # per metre, so the mean distance between them is zi / 1.2 (derivation in thermals.py).
+    s = demo["triangle-300"]
+    zi = s.day.band_top_m - s.day.ground_m  # 2200 m band top over 265 m of ground
+    assert zi == pytest.approx(1935.0)
+    odds = simulate_days(s, runs=20, seed=1)
+    assert odds.spread.thermal_search_mean_m == pytest.approx(zi / 1.2)
+    assert "Allen (2006)" in odds.search_source and "1.9 km" in odds.search_source
+    given = simulate_days(s, runs=20, seed=1, spread=DaySpread(thermal_search_mean_m=2000.0))
+    assert given.spread.thermal_search_mean_m == 2000.0 and given.search_source == ""
+    # A deeper layer: thermals further apart (the same thermal density per layer depth and radius).
+    deep = dataclasses.replace(s, day=dataclasses.replace(s.day, ground_m=s.day.ground_m - 600.0))
+    assert simulate.day_search_mean_m(deep) == pytest.approx((zi + 600.0) / 1.2)
+
+
+def test_bad_days_end_the_lift_one_to_two_hours_early(demo):
+    # Source: the bad-day mode documented in engine/simulate.py (our planning assumption,
+    # common practice): one day in ten, the lift ends early by a time drawn evenly in 1-2 h.
+    # Tolerances: five standard errors at 100,000 draws (binomial share; uniform mean,
+    # sd 3600/sqrt(12) s).
+    s = demo["triangle-300"]
+    n = 100_000
+    days = draw_days(s, DaySpread(lift_end_sd_s=0.0), n, seed=3)
+    early = s.day.lift_ends_s - days.lift_ends_s
+    bad = days.bad_day
+    assert bad.mean() == pytest.approx(0.1, abs=5 * math.sqrt(0.1 * 0.9 / n))
+    assert np.all(early[~bad] == 0.0)
+    assert early[bad].min() >= 3600.0 and early[bad].max() <= 7200.0
+    assert early[bad].mean() == pytest.approx(5400.0, abs=5 * 3600.0 / math.sqrt(12.0 * bad.sum()))
+    # The other errors of each day are as they were without bad days (draws in a fixed order).
+    calm = draw_days(s, DaySpread(lift_end_sd_s=0.0, bad_day_probability=0.0), n, seed=3)
+    assert np.array_equal(calm.climb_factor, days.climb_factor)
+    assert np.array_equal(calm.search_unit, days.search_unit)
+    assert np.all(calm.lift_ends_s == s.day.lift_ends_s)
+    with pytest.raises(ValueError):
+        DaySpread(bad_day_probability=1.5)
+    with pytest.raises(ValueError):
+        DaySpread(bad_day_early_s=(7200.0, 3600.0))
+
+
+def test_bad_days_cost_finishes_late_in_the_day(demo):
+    # A day whose lift ends soon after the plan finishes: one day in ten ending 1-2 h early
+    # must land out more often than with no bad days, on the same days otherwise.
+    s = demo["triangle-300"]
+    short = dataclasses.replace(s, day=dataclasses.replace(s.day, lift_ends_s=s.day.lift_ends_s - 3600.0))
+    without = simulate_days(short, runs=600, seed=4, ballasts_kg=[0.0],
+                            spread=DaySpread(bad_day_probability=0.0)).choices[0]
+    with_bad = simulate_days(short, runs=600, seed=4, ballasts_kg=[0.0]).choices[0]
+    assert with_bad.finished < without.finished
+    assert dict(with_bad.landouts_by_reason).get("lift_ended", 0) > dict(without.landouts_by_reason).get("lift_ended", 0)
+
+
+def test_the_spacing_table_flies_the_same_days_at_other_spacings(demo):
+    s = demo["out-and-return"]
+    odds = simulate.spacing_odds(s, simulate_days(s, runs=400, seed=6))
+    assert [row.factor for row in odds.spacing] == list(simulate.SPACING_FACTORS)
+    base = odds.spread.thermal_search_mean_m
+    for row in odds.spacing:
+        assert row.search_mean_m == pytest.approx(base * row.factor)
+    # The day's own row is the odds themselves.
+    [own] = [row for row in odds.spacing if row.factor == 1.0]
+    assert own.finish_probability == tuple(c.finish_probability for c in odds.choices)
+    # Each other row is the simulation with that search distance, the same seed and runs.
+    far = simulate_days(s, runs=400, seed=6, spread=DaySpread(thermal_search_mean_m=4.0 * base)).choices[0]
+    assert odds.spacing[-1].finish_probability[0] == far.finish_probability
+    # Thermals four times as far apart finish clearly less often than at half the spacing
+    # (the trend; neighbouring rows may swap by a run or two, see the test above).
+    assert odds.spacing[-1].finish_probability[0] < odds.spacing[0].finish_probability[0] - 0.1
+    # No search, no table: the forecast day alone.
+    alone = simulate.spacing_odds(s, simulate_days(s, runs=5, seed=6, spread=DaySpread.none()))
+    assert alone.spacing == ()

@@ -53,7 +53,8 @@ def test_legs_table_has_one_row_per_leg_with_the_plan_figures(triangle):
         assert leg.from_name in row[1] and leg.to_name in row[1]
         assert row[2] == f"{leg.distance_m / 1000:.1f}"
         assert row[-1] == f"{leg.arrival_height_m:.0f}"
-        assert row[-2] == f"{leg.required_height_m:.0f}"
+        top = p.scenario.day.band_top_m  # Need only within the band (issue 12 item 7)
+        assert row[-2] == (f"{leg.required_height_m:.0f}" if leg.required_height_m <= top else "above")
 
 
 def test_final_glide_card_shows_the_engine_requirements(triangle):
@@ -61,8 +62,36 @@ def test_final_glide_card_shows_the_engine_requirements(triangle):
     rows = _table_after(text, "## Heights needed to get home")
     assert rows[0][3:] == [f"MC {m:.0f}" for m in CARD_MC_MS]
     card = final_glide_card(p)
+    top = p.scenario.day.band_top_m
     for i, row in enumerate(rows[1:]):
-        assert [int(v) for v in row[3:]] == [round(card[j, i]) for j in range(len(CARD_MC_MS))]
+        assert row[3:] == [f"{card[j, i]:.0f}" if card[j, i] <= top else "above" for j in range(len(CARD_MC_MS))]
+    assert rows[-1][3:] == [f"{p.arrival_floor_m:.0f}"] * len(CARD_MC_MS)  # at the finish: the arrival floor
+
+
+def test_above_the_band_top_the_briefing_says_where_a_final_glide_from_it_starts(triangle):
+    # Source: a pure glide at one setting in one wind uses height in proportion to distance
+    # (contract 3), so between the last turnpoint (3537 m needed, 102.6 km to go) and the
+    # finish (525 m) the band top of 2200 m is enough from 102.6 x (2200 - 525)/(3537 - 525) km.
+    p, text = triangle
+    last = p.legs[-1]
+    to_go = p.planned_distance_m - p.path.cumulative_m[-2]
+    expected = to_go * (2200.0 - p.arrival_floor_m) / (last.required_height_m - p.arrival_floor_m)
+    assert p.scenario.day.band_top_m == 2200.0 and last.required_height_m > 2200.0
+    assert f"final glide from {expected / 1000:.1f} km at band top (2200 m)" in text
+    assert expected / 1000 == pytest.approx(57.1, abs=0.05)
+
+
+def test_reach_from_a_height_between_the_points():
+    # Source: linear interpolation (numpy.interp semantics), the requirement never falling
+    # with the distance to go; hand values.
+    from glidetask.engine.finalglide import reach_from_height_m
+
+    to_go, need = [0.0, 50e3, 150e3], [500.0, 1500.0, 4500.0]
+    assert reach_from_height_m(to_go, need, 1000.0) == pytest.approx(25e3)
+    assert reach_from_height_m(to_go, need, 3000.0) == pytest.approx(100e3)
+    assert reach_from_height_m(to_go[::-1], need[::-1], 3000.0) == pytest.approx(100e3)  # any order
+    assert reach_from_height_m(to_go, need, 400.0) == 0.0  # not even the finish
+    assert reach_from_height_m(to_go, need, 9000.0) == pytest.approx(150e3)  # the whole task
 
 
 def test_every_caution_is_in_the_briefing(triangle):
@@ -114,3 +143,14 @@ def test_a_day_from_a_sounding_gets_its_own_page_with_the_derived_day(unit_name)
 
 def test_a_typed_day_has_no_sounding_page(triangle):
     assert "## Day from the sounding" not in triangle[1]
+
+
+def test_day_assumed_states_the_practical_speeds(triangle):
+    # Source: issue 12 item 5 and contract 3 ("Time lost in practice"): centring_s and
+    # detour_percent (both common practice) are shown wherever the day is stated.
+    p, text = triangle
+    day = p.scenario.day
+    section = text.split("## Day assumed", 1)[1].split("\n## ", 1)[0]
+    assert f"{day.centring_s:g} s centring each climb" in section
+    assert f"{day.detour_percent:g} % longer" in section
+    assert f"{day.effective_thermal_radius_m:.0f} m in radius" in section

@@ -13,7 +13,7 @@ from glidetask import cautions
 from glidetask.engine.compare import BallastSweep
 from glidetask.engine.sensitivity import Sensitivity, SensitivityRow
 from glidetask.engine.scenario import Wind
-from glidetask.engine.simulate import ChoiceOdds, DaySpread, Odds
+from glidetask.engine.simulate import ChoiceOdds, DaySpread, Odds, SpacingOdds
 from glidetask.formats import strategy_report as report
 from glidetask.units import AVIATION, KMH, KNOT
 
@@ -152,7 +152,10 @@ def hand_odds() -> Odds:
                        finish_probability_se=0.0, task_time_s=(NAN, NAN, NAN), landouts_by_leg=(1000, 0, 0),
                        landouts_by_reason=(("too_weak", 1000),), forecast_time_s=5000.0, forecast_finished=False,
                        finish_times_s=np.array([]))
-    return Odds("hand-made", (("A", "B"), ("B", "C"), ("C", "A")), 1000, 7, DaySpread(), (choice, heavy), ("n",))
+    spacing = (SpacingOdds(0.5, 1000.0, (0.99, 0.0), (0.003, 0.0)), SpacingOdds(1.0, 2000.0, (0.95, 0.0), (0.0069, 0.0)),
+               SpacingOdds(4.0, 8000.0, (0.4, 0.0), (0.0155, 0.0)))
+    return Odds("hand-made", (("A", "B"), ("B", "C"), ("C", "A")), 1000, 7, DaySpread(thermal_search_mean_m=2000.0),
+                (choice, heavy), ("n",), search_source="", spacing=spacing)
 
 
 def test_odds_json():
@@ -167,6 +170,13 @@ def test_odds_json():
     assert heavy["task_time_s"] == {"p10": None, "p50": None, "p90": None}
     assert data["assumptions"]["wind_speed_sd_kmh"] == pytest.approx(8.0)
     assert data["assumptions"]["thermal_search_mean_km"] == 2.0
+    assert data["assumptions"]["thermal_search_source"] == "given"
+    assert data["assumptions"]["bad_day_probability"] == 0.1
+    assert data["assumptions"]["bad_day_early_s"] == [3600.0, 7200.0]
+    assert [row["factor"] for row in data["thermal_spacing"]] == [0.5, 1.0, 4.0]
+    last = data["thermal_spacing"][-1]
+    assert last["thermal_search_mean_km"] == 8.0
+    assert last["choices"][0] == {"ballast_kg": 0.0, "finish_probability": 0.4, "finish_probability_se": 0.0155}
     assert data["cautions"][-1] == "n"
 
 
@@ -187,3 +197,16 @@ def test_odds_text():
     assert "no climb found low down" in text and "thermals too weak to climb in" in text
     markdown = report.odds_markdown(hand_odds())
     assert "| 0 kg | 95.0 % ± 0.7 | 2:30 | 2:47 | 3:03 | 50 |" in markdown
+
+
+def test_odds_text_shows_the_spacing_table_and_the_bad_days():
+    text = report.odds_text(hand_odds())
+    lines = text.splitlines()
+    start = next(i for i, line in enumerate(lines) if line.startswith("Finish against thermal spacing"))
+    assert lines[start + 1].split() == ["spacing", "next", "climb", "0", "kg", "170", "kg"]
+    assert lines[start + 2].split() == ["0.5", "x", "1.0", "km", "99.0", "%", "0.0", "%"]
+    assert lines[start + 3].split() == ["1", "x", "(day)", "2.0", "km", "95.0", "%", "0.0", "%"]
+    assert lines[start + 4].split() == ["4", "x", "8.0", "km", "40.0", "%", "0.0", "%"]
+    assert "1 day in 10 the lift ends 1-2 h early" in text
+    aviation = report.odds_text(hand_odds(), AVIATION)
+    assert "4.3 NM" in aviation  # 8 km = 4.32 NM
