@@ -111,6 +111,10 @@ class GlideTaskApp(App[int]):
         if view in VIEWS and self.current_mode != view:
             self.switch_mode(view)
 
+    @on(messages.Notice)
+    def _notice_posted(self, message: messages.Notice) -> None:
+        self.notice = message.text
+
     @on(messages.ViewRequested)
     def _view_requested(self, message: messages.ViewRequested) -> None:
         self.action_view(message.view)
@@ -227,15 +231,17 @@ class GlideTaskApp(App[int]):
             self.call_from_thread(self._plan_failed, generation, problems)
 
     def _opened(self, path: Path | None, scenario) -> None:
-        if self.session is None:
+        first = self.session is None
+        if first:
             self.session = EditSession(scenario, self.units, path)
         else:
             self.session.replace_all(scenario, path)
-            self.plan = None
         self.task_path = path
         self.dirty = False
         self._publish_problems()
         self.scenario = scenario
+        if not first:
+            self.plan = None  # after the scenario: the views name the task they wait for
         self.notice = f"opened {path.name if path else scenario.task.name}: planning …"
 
     def _open_failed(self, path: Path, problems: list[Problem]) -> None:

@@ -79,14 +79,14 @@ class ViewScreen(Screen):
             self._pending = self._pending | {"units"}
 
     def on_screen_resume(self) -> None:
+        # every kind of news is applied: a units switch never hides a newer task or plan
         pending, self._pending = self._pending, frozenset()
-        if "units" in pending:
-            self.show_units()
-            return
         if "scenario" in pending and self.app.scenario is not None:
             self.show_scenario(self.app.scenario)
         if "plan" in pending:
             self.show_plan(self.app.plan)
+        if "units" in pending:
+            self.show_units()
 
     def _highlight_fields(self, invalid: frozenset[str]) -> None:
         for widget in self.query(".-invalid"):

@@ -9,6 +9,7 @@ from textual.containers import Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Input, Label, RadioButton, RadioSet, Static
 
+from glidetask.tui import messages
 from glidetask.tui.exporting import FORMATS
 from glidetask.tui.screens.path_modal import PathSuggester
 
@@ -54,7 +55,7 @@ class ExportModal(ModalScreen):
         except Exception as error:  # a failed export is a message in the dialog, never a crash
             self.query_one("#export-error", Static).update(f"✗ not written: {error}")
             return
-        app.notice = f"exported {target}"
+        self.post_message(messages.Notice(f"exported {target}"))
         self.dismiss(str(target))
 
     def action_cancel(self) -> None:

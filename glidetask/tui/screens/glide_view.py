@@ -206,7 +206,7 @@ class GlideView(ViewScreen):
         try:
             question = self.question()
         except InputError as error:
-            self.app.notice = "final glide: " + "; ".join(f"{p.where}: {p.what}" for p in error.problems)
+            self.post_message(messages.Notice("final glide: " + "; ".join(f"{p.where}: {p.what}" for p in error.problems)))
             return
         self.answer_in_background(self.app.scenario, question)
 

@@ -111,7 +111,7 @@ class TaskView(ViewScreen):
         try:
             sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at)
         except Exception as error:  # a drawing problem never takes the view down
-            self.app.notice = f"sketch: {error}"
+            self.post_message(messages.Notice(f"sketch: {error}"))
             return
         self.query_one(TaskSketch).show(sketch, self.app.units)
 
