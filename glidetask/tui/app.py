@@ -113,6 +113,7 @@ class GlideTaskApp(App[int]):
 
     @on(messages.Notice)
     def _notice_posted(self, message: messages.Notice) -> None:
+        self._publish_problems()  # a file that failed to open is old news: only the inputs' problems stay
         self.notice = message.text
 
     @on(messages.ViewRequested)
@@ -294,8 +295,21 @@ class GlideTaskApp(App[int]):
         self._generation += 1
         self.open_and_plan(path.expanduser().absolute(), self._generation)
 
+    def _refuse_save(self) -> bool:
+        """True (and says why) while a field holds a refused value: it is never saved."""
+        from glidetask.tui.edits import FIELDS
+
+        pending = self.session.pending if self.session is not None else {}
+        if not pending:
+            return False
+        names = ", ".join(FIELDS[f].label if f in FIELDS else f for f in pending)
+        self.problems = tuple(self.session.problems) + (
+            Problem("input", "Save", f"not saved: correct {names} first (it holds a refused value)"),)
+        self.notice = f"not saved: {names} holds a refused value"
+        return True
+
     def action_save(self) -> None:
-        if self.session is None:
+        if self.session is None or self._refuse_save():
             return
         if self.session.path is None or is_bundled(self.session.path):
             self.action_save_as()
@@ -305,7 +319,7 @@ class GlideTaskApp(App[int]):
     def action_save_as(self, then_quit: bool = False) -> None:
         from glidetask.tui.screens.path_modal import PathModal
 
-        if self.session is None:
+        if self.session is None or self._refuse_save():
             return
         path = self.session.path
         title, hint = "Save the task as", ""
@@ -326,6 +340,8 @@ class GlideTaskApp(App[int]):
     def _save_to(self, path: Path) -> bool:
         from glidetask.tui import recompute
 
+        if self._refuse_save():
+            return False
         try:
             recompute.save_task(path, self.session.scenario)
         except (InputError, OSError, ValueError) as error:
@@ -334,6 +350,7 @@ class GlideTaskApp(App[int]):
             self.notice = f"not saved: {problems[0].what}"
             return False
         self.session.saved(path)
+        self._publish_problems()
         self.task_path = path
         self.dirty = False
         self.notice = f"saved {path}"

@@ -177,6 +177,20 @@ def field_text(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
     return display.number(value, 1)
 
 
+def unit_of(spec: FieldSpec, units: UnitSystem) -> str:
+    """The unit a field is typed in (empty for clock times)."""
+    return {"mass": "kg", "percent": "%", "celsius": "°C", "height": units.height_label,
+            "vertical": units.vertical_label, "wind": units.speed_label}.get(spec.kind, "")
+
+
+def field_shown(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
+    """A field's accepted value with its name and unit: ``"Water ballast 20 kg"``."""
+    spec = FIELDS[field_id]
+    text = field_text(scenario, field_id, units) or "not set"
+    unit = unit_of(spec, units) if text not in ("not set", "calm") else ""
+    return f"{spec.label} {text}" + (f" {unit}" if unit else "")
+
+
 def _attribute(spec: FieldSpec) -> str:
     return {"start_time": "start_time_s", "lift_ends": "lift_ends_s"}.get(spec.key, spec.key)
 

@@ -44,6 +44,7 @@ class GlideView(ViewScreen):
         super().__init__()
         self.texts: dict[str, str] = {}
         self.touched: set[str] = set()
+        self.answer = None
 
     def compose_body(self) -> ComposeResult:
         with VerticalScroll(id="glide-left"):
@@ -185,7 +186,9 @@ class GlideView(ViewScreen):
         try:
             wind = edits.parse_wind(edits.FIELDS["day-wind"], texts.get("glide-wind", ""), units)
         except InputError as error:
-            problems.extend(error.problems)
+            from glidetask.errors import Problem
+
+            problems.extend(Problem("input", "wind", p.what) for p in error.problems)
             self.query_one("#glide-wind").add_class("-invalid")
             wind = Wind()
         if problems:
@@ -206,7 +209,9 @@ class GlideView(ViewScreen):
         try:
             question = self.question()
         except InputError as error:
-            self.post_message(messages.Notice("final glide: " + "; ".join(f"{p.where}: {p.what}" for p in error.problems)))
+            # shown in the calculator itself, and gone as soon as the question makes sense again
+            self.answer = None
+            self.query_one(GlideVerdict).show_problems(error.problems)
             return
         self.answer_in_background(self.app.scenario, question)
 
@@ -217,7 +222,7 @@ class GlideView(ViewScreen):
             answer = derived.answer_glide(scenario, question)
         except Exception as error:  # shown, never a crash
             if not worker.is_cancelled:
-                self.app.call_from_thread(setattr, self.app, "notice", f"final glide: {error}")
+                self.app.call_from_thread(self.post_message, messages.Notice(f"final glide: {error}"))
             return
         if not worker.is_cancelled:
             self.app.call_from_thread(self._show_answer, answer)

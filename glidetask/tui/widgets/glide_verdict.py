@@ -23,6 +23,13 @@ def verdict_text(margin_m: float, units: UnitSystem) -> Text:
 class GlideVerdict(Static):
     """Verdict line, then the final-glide figures (contract 5.2 meanings)."""
 
+    def show_problems(self, problems) -> None:
+        """What makes the question unusable, one line per field, in place of the verdict."""
+        text = Text("No answer until the question makes sense:", style="bold")
+        for problem in problems:
+            text.append(f"\n✗ {problem.where[:1].upper()}{problem.where[1:]}: {problem.what}", style="#e06c5a")
+        self.update(text)
+
     def show(self, answer, units: UnitSystem, plan_note: str = "") -> None:
         """The answer; ``plan_note``: where the plan itself starts its final glide, for comparison."""
         glide = answer.glide
