@@ -57,6 +57,8 @@ class GlideTaskApp(App[int]):
         *(Binding(str(index), f"view('{name}')", title, show=False)
           for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1)),
         Binding("u", "toggle_units", "Units"),
+        Binding("ctrl+z", "undo", "Undo", priority=True),
+        Binding("ctrl+y", "redo", "Redo", priority=True),
         Binding("ctrl+o", "open", "Open"),
         Binding("ctrl+s", "save", "Save"),
         Binding("ctrl+e", "export", "Export"),
@@ -151,14 +153,17 @@ class GlideTaskApp(App[int]):
     def _field_edited(self, message: messages.FieldEdited) -> None:
         if self.session is None:
             return
+        from glidetask.tui.edits import FIELDS
+
         accepted = self.session.edit_field(message.field_id, message.text)
-        self._after_edit(accepted, message.field_id.split("-", 1)[-1])
+        spec = FIELDS.get(message.field_id)
+        self._after_edit(accepted, f"{spec.label if spec else message.field_id} changed")
 
     @on(messages.ScenarioEdit)
     def _scenario_edit(self, message: messages.ScenarioEdit) -> None:
         if self.session is None:
             return
-        accepted = self.session.edit(message.change)
+        accepted = self.session.edit(message.change, message.what)
         self._after_edit(accepted, message.what, message.field_id)
 
     def _after_edit(self, accepted: bool, what: str, field_id: str | None = None) -> None:
@@ -167,8 +172,26 @@ class GlideTaskApp(App[int]):
         self.dirty = session.dirty
         if accepted:
             self.scenario = session.scenario
-            self.notice = f"{what} changed: planning …"
+            self.notice = f"{what}: planning … (ctrl+z undoes)"
             self.request_plan()
+
+    def action_undo(self) -> None:
+        self._travel(self.session.undo if self.session else None, "undone", "nothing to undo")
+
+    def action_redo(self) -> None:
+        self._travel(self.session.redo if self.session else None, "redone", "nothing to redo")
+
+    def _travel(self, step, done: str, nothing: str) -> None:
+        what = step() if step is not None else None
+        if what is None:
+            self.notice = nothing
+            return
+        self.screen.set_focus(None)  # the fields show the restored values, not what was being typed
+        self._publish_problems()
+        self.dirty = self.session.dirty
+        self.scenario = self.session.scenario
+        self.notice = f"{done}: {what} · ctrl+z undo · ctrl+y redo"
+        self.request_plan()
 
     def _publish_problems(self, extra_field: str | None = None) -> None:
         from glidetask.tui.edits import field_for_where
@@ -257,7 +280,8 @@ class GlideTaskApp(App[int]):
         self.last_compute_s = outcome.elapsed_s
         self.plan = outcome
         self._publish_problems()
-        self.notice = "plan updated"
+        history = self.session.undo_stack if self.session is not None else []
+        self.notice = f"plan updated · ctrl+z undoes: {history[-1][1]}" if history else "plan updated"
 
     def _plan_failed(self, generation: int, problems: list[Problem]) -> None:
         if generation != self._generation:

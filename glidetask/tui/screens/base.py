@@ -119,6 +119,9 @@ class ViewScreen(Screen):
 
     def on_descendant_blur(self, _event) -> None:
         self.refresh_bindings()
+        session = getattr(self.app, "session", None)
+        if session is not None:
+            session.end_step()  # typing in a field again is a new undo step
 
     def action_leave_field(self) -> None:
         if isinstance(self.focused, Input):

@@ -170,7 +170,7 @@ class GlideView(ViewScreen):
             except ValueError:
                 from glidetask.errors import Problem
 
-                problems.append(Problem("input", GLIDE_FIELDS[field_id][0].lower(),
+                problems.append(Problem("input", GLIDE_FIELDS[field_id][0],
                                         f"not a usable value: {texts.get(field_id, '')!r}"))
                 self.query_one(f"#{field_id}").add_class("-invalid")
                 return 0.0
@@ -188,7 +188,7 @@ class GlideView(ViewScreen):
         except InputError as error:
             from glidetask.errors import Problem
 
-            problems.extend(Problem("input", "wind", p.what) for p in error.problems)
+            problems.extend(Problem("input", "Wind", p.what) for p in error.problems)
             self.query_one("#glide-wind").add_class("-invalid")
             wind = Wind()
         if problems:

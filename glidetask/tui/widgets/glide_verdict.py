@@ -23,12 +23,19 @@ def verdict_text(margin_m: float, units: UnitSystem) -> Text:
 class GlideVerdict(Static):
     """Verdict line, then the final-glide figures (contract 5.2 meanings)."""
 
+    _parts: list = []  # the last answer drawn
+
     def show_problems(self, problems) -> None:
-        """What makes the question unusable, one line per field, in place of the verdict."""
-        text = Text("No answer until the question makes sense:", style="bold")
+        """What makes the question unusable, one line per field, above the last answer
+        (marked as the answer to the last valid question)."""
+        text = Text()
         for problem in problems:
-            text.append(f"\n✗ {problem.where[:1].upper()}{problem.where[1:]}: {problem.what}", style="#e06c5a")
-        self.update(text)
+            text.append(f"✗ {problem.where[:1].upper()}{problem.where[1:]}: {problem.what}\n", style="#e06c5a")
+        if self._parts:
+            text.append("the figures below are for the last valid input", style="italic #e0b15a")
+            self.update(Group(text, *self._parts))
+        else:
+            self.update(text)
 
     def show(self, answer, units: UnitSystem, plan_note: str = "") -> None:
         """The answer; ``plan_note``: where the plan itself starts its final glide, for comparison."""
@@ -71,4 +78,5 @@ class GlideVerdict(Static):
         if plan_note:
             parts.append(Text(""))
             parts.append(Text(f"The plan's own final glide: {plan_note}", style="dim"))
+        self._parts = parts
         self.update(Group(*parts))
