@@ -16,7 +16,7 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
 
-from glidetask.tui import messages
+from glidetask.tui import display, messages
 from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.progress_notice import ProgressNotice
 from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
@@ -140,7 +140,7 @@ class CompareView(ViewScreen):
                  Text(f"Thermals {units.fmt_height(sweep.thermal_radius_m)} in radius, the same strength all day; "
                       f"times averaged over where the climbs fall ({sweep.phases} positions). The best is the "
                       "lightest ballast within 0.2 % of the fastest.", style="dim")]
-        lines += [Text(f"⚠ {note}", style="#e0b15a") for note in sweep.notes]
+        lines += [Text(f"⚠ {display.in_units(note, units)}", style="#e0b15a") for note in sweep.notes]
         scenario = self.app.scenario
         if scenario is not None and scenario.day.climb is not None:
             lines.append(Text(CLIMB_NOTE, style="dim"))

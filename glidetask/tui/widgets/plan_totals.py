@@ -73,7 +73,7 @@ class PlanTotals(Static):
             parts.append(Text(f"Ends short {_distance(units, plan.landout_m)} along the task: {plan.reason}",
                               style=ALARM))
         for text in particular_cautions(plan):
-            parts.append(Text(f"⚠ {text}", style=WARNING))
+            parts.append(Text(f"⚠ {display.in_units(text, units)}", style=WARNING))
         if stale:
             parts.append(Text("showing the last good plan: the inputs above are not yet valid", style=ALARM))
         self.update(Group(*parts))
