@@ -38,6 +38,13 @@ def speed(units: UnitSystem, metres_per_second) -> str:
     return _bare(units.fmt_speed(float(metres_per_second))) if _defined(metres_per_second) else DASH
 
 
+def ground_speed(units: UnitSystem, metres_per_second) -> str:
+    """A ground speed; none at all (never a negative figure) when the wind stops all headway."""
+    if _defined(metres_per_second) and float(metres_per_second) <= 0.0:
+        return "none"
+    return speed(units, metres_per_second)
+
+
 def vertical(units: UnitSystem, metres_per_second) -> str:
     return _bare(units.fmt_vertical(float(metres_per_second))) if _defined(metres_per_second) else DASH
 

@@ -16,9 +16,11 @@ from dataclasses import dataclass, replace
 
 from glidetask.engine.scenario import Profile, Scenario, Wind
 from glidetask.errors import InputError, Problem
-from glidetask.units import UnitSystem, parse_clock
+from glidetask.units import KMH, UnitSystem, parse_clock
 
 SOURCE = "input"  # Problem.file for things typed in the UI
+# The strongest wind a task may have: the task file's limit ([day] wind speed_kmh, 200 km/h).
+WIND_MAX_MS = 200.0 * KMH
 
 
 @dataclass(frozen=True)
@@ -150,11 +152,19 @@ def parse_wind(spec: FieldSpec, text: str, units: UnitSystem) -> Wind:
     if len(parts) != 2:
         raise _fail(spec, f"expected FROM/SPEED like 270/20 ({units.speed_label}), got {text!r}")
     direction, speed = _number(spec, parts[0]), _number(spec, parts[1])
+    # the task file's limits and wording ("[day] wind: speed_kmh must be in [0, 200], got 250"),
+    # in the units on screen
     if not 0.0 <= direction <= 360.0:
-        raise _fail(spec, f"wind direction must be 0-360 degrees, got {direction:g}")
-    if not 0.0 <= speed * units.speed_ms <= 50.0:
-        raise _fail(spec, f"wind speed must be 0-{units.speed(50.0):.0f} {units.speed_label}, got {speed:g}")
+        raise _fail(spec, f"direction must be in [0, 360] degrees, got {direction:g}")
+    if not 0.0 <= speed * units.speed_ms <= WIND_MAX_MS + 1e-9:
+        raise _fail(spec, f"speed must be in [0, {wind_limit_text(units)}] {units.speed_label}, got {speed:g}")
     return Wind(direction % 360.0, speed * units.speed_ms)
+
+
+def wind_limit_text(units: UnitSystem) -> str:
+    """The wind limit in the units on screen, never rounded up past it (200 km/h = 107.9 kt)."""
+    limit = units.speed(WIND_MAX_MS)
+    return f"{limit:.0f}" if abs(limit - round(limit)) < 1e-9 else f"{math.floor(limit * 10) / 10:.1f}"
 
 
 def field_text(scenario: Scenario, field_id: str, units: UnitSystem) -> str:

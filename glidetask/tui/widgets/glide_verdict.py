@@ -52,7 +52,8 @@ class GlideVerdict(Static):
             ("L/D required", display.ratio(glide.ld_required, 1)),
             ("L/D achievable", display.ratio(glide.ld_achievable, 1)),
             ("Speed to fly (TAS)", display.with_unit(display.speed(u, glide.speed_to_fly_ms), u.speed_label)),
-            ("Ground speed", display.with_unit(display.speed(u, glide.ground_speed_ms), u.speed_label)),
+            ("Ground speed", display.with_unit(display.ground_speed(u, glide.ground_speed_ms), u.speed_label)
+             if display.ground_speed(u, glide.ground_speed_ms) != "none" else "none: no headway"),
             ("Heading", display.degrees(glide.heading_deg) + "°"),
             ("Time", display.duration(glide.time_s)),
             ("Polar density at", display.with_unit(display.height(u, answer.altitude_m), u.height_label)),

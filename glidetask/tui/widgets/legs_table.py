@@ -58,6 +58,22 @@ def header(label: str, kind: str | None, units: UnitSystem) -> Text:
     return Text(f"{label}\n{unit_of(kind, units)}", justify="left" if kind is None else "right")
 
 
+UNFLOWN = ("time_s", "arrival_height_m")  # figures a leg never completed has not got
+
+
+def landout_leg(plan) -> int | None:
+    """The index of the leg on which an unfinished plan ends short (None if it finishes)."""
+    landout = getattr(plan, "landout_m", None)
+    if plan.finished or landout is None or not math.isfinite(landout):
+        return None
+    start = 0.0
+    for index, leg in enumerate(plan.legs):
+        if landout < start + leg.distance_m:
+            return index
+        start += leg.distance_m
+    return len(plan.legs) - 1
+
+
 def final_glide_leg(legs, final_from_m: float | None) -> int | None:
     """The index of the leg on which the final glide starts (None without one)."""
     if final_from_m is None or not math.isfinite(final_from_m):
@@ -91,12 +107,21 @@ class LegsTable(DataTable):
         if plan is None:
             return
         marked = final_glide_leg(plan.legs, plan.final_glide_from_m)
+        short = landout_leg(plan)
         for index, leg in enumerate(plan.legs):
             mark = "◆" if index == marked else " "
             start, end = (codes.get(name) or name[:8] for name in (leg.from_name, leg.to_name))
             cells = [Text(f"{mark}{index + 1} {start}→{end}", no_wrap=True)]
-            for _, attribute, _, kind in COLUMNS[1:]:
-                cells.append(Text(cell_text(kind, getattr(leg, attribute), units), justify="right"))
+            for key, attribute, _, kind in COLUMNS[1:]:
+                value = getattr(leg, attribute)
+                if kind == "speed" and value is not None and value == value and value <= 0.0:
+                    # no headway against the wind: never a negative ground speed on screen
+                    cells.append(Text("none", justify="right", style="bold #e06c5a"))
+                elif short is not None and index >= short and key in UNFLOWN:
+                    cells.append(Text("out" if index == short and key == "time_s" else display.DASH,
+                                      justify="right", style="#e06c5a"))
+                else:
+                    cells.append(Text(cell_text(kind, value, units), justify="right"))
             self.add_row(*cells, key=f"leg-{index + 1}")
 
     def on_idle(self) -> None:
