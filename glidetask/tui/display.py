@@ -49,6 +49,11 @@ def vertical(units: UnitSystem, metres_per_second) -> str:
     return _bare(units.fmt_vertical(float(metres_per_second))) if _defined(metres_per_second) else DASH
 
 
+def count(n: int, noun: str) -> str:
+    """``1 ballast``, ``19 ballasts``."""
+    return f"{n} {noun}" if n == 1 else f"{n} {noun}s"
+
+
 def with_unit(text: str, label: str) -> str:
     return text if text == DASH else f"{text} {label}"
 

@@ -48,7 +48,7 @@ async def test_final_glide_from_the_last_turn_matches_the_engine(synthetic, ackn
         assert f"{expected.ld_required:.1f}" in text
         assert f"{expected.ld_achievable:.1f}" in text
         assert METRIC.fmt_vertical(expected.mc_to_arrive_ms) in text
-        assert ("ON GLIDE" in text) == (expected.margin_m >= 0)
+        assert ("ABOVE final glide" in text) == (expected.margin_m >= 0)
 
 
 async def test_a_headwind_turns_the_verdict(synthetic, acknowledged):
@@ -66,9 +66,9 @@ async def test_a_headwind_turns_the_verdict(synthetic, acknowledged):
                                   arrival_elevation_m=goal.elevation_m).required_height_m
         height = needed_calm + 150.0
         await type_into(pilot, "glide-height", f"{height:.0f}")
-        assert "ON GLIDE" in verdict_text(app)
+        assert "ABOVE final glide" in verdict_text(app)
         await type_into(pilot, "glide-wind", f"{course:.0f}/40")  # wind from straight ahead
-        assert "BELOW GLIDE" in verdict_text(app)
+        assert "BELOW final glide" in verdict_text(app)
 
 
 async def test_distance_and_course_mode_and_a_bad_entry(synthetic, acknowledged):

@@ -22,6 +22,9 @@ from glidetask.tui.widgets.status_line import StatusLine
 from glidetask.tui.widgets.view_bar import ViewBar
 
 
+VIEW_LOCAL = ("view-", "odds-", "glide-")  # ids of inputs a view checks itself, not the app
+
+
 class ViewScreen(Screen):
     """A view of the plan; subclasses fill the body."""
 
@@ -90,7 +93,8 @@ class ViewScreen(Screen):
 
     def _highlight_fields(self, invalid: frozenset[str]) -> None:
         for widget in self.query(".-invalid"):
-            if widget.id not in invalid and widget.id != "view-altitude":
+            # a view's own inputs (the calculator, the simulation, the figures' height) mark themselves
+            if widget.id not in invalid and not (widget.id or "").startswith(VIEW_LOCAL):
                 widget.remove_class("-invalid")
         for field_id in invalid:
             for widget in self.query(f"#{field_id}"):

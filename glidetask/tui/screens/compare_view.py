@@ -109,7 +109,8 @@ class CompareView(ViewScreen):
         self.remove_class("-stale")
         self.query_one(ProgressNotice).say(WAITING, working=False)
         self.query_one("#sweep-panel").border_subtitle = (
-            f"{sweep.task_name} · {len(sweep.ballast_kg)} ballasts × {len(sweep.thermal_strength_ms)} strengths")
+            f"{sweep.task_name} · {display.count(len(sweep.ballast_kg), 'ballast')} × "
+            f"{display.count(len(sweep.thermal_strength_ms), 'strength')}")
         self._draw()
 
     def _failed(self, token: int, message: str) -> None:

@@ -67,6 +67,7 @@ class TaskView(ViewScreen):
             self._compact = compact
             if self.app.scenario is not None:
                 self.show_scenario(self.app.scenario)
+                self.show_plan(self.app.plan)
 
     def show_scenario(self, scenario) -> None:
         shown = (scenario.task, scenario.turnpoints, self.app.units, self._compact)
@@ -88,7 +89,7 @@ class TaskView(ViewScreen):
         plan = outcome.plan if outcome is not None else None
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(LegsTable).show(plan, units, codes)
+        self.query_one(LegsTable).show(plan, units, codes, compact=self._compact)
         self._stale = bool(self.app.invalid_fields)
         self.query_one(PlanTotals).show(plan, units, stale=self._stale)
         self._draw_sketch()

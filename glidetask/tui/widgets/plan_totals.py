@@ -56,14 +56,16 @@ class PlanTotals(Static):
             grid.add_column(no_wrap=True, min_width=10)
         finish = (Text(display.clock(plan.finish_time_s)) if plan.finished
                   else Text("not home", style=ALARM))
-        grid.add_row("Task", _distance(units, plan.optimized_distance_m),
+        area = plan.area
+        # an area task leads with the distance planned through its areas, as the CLI does
+        first = ("Planned", area.target_distance_m) if area is not None else ("Task", plan.optimized_distance_m)
+        grid.add_row(first[0], _distance(units, first[1]),
                      "Time", display.duration(plan.total_time_s), "Finish", finish)
         grid.add_row("Nominal", _distance(units, plan.nominal_distance_m),
-                     "Speed", display.with_unit(display.speed(units, plan.task_speed_ms), units.speed_label), "", "")
-        area = plan.area
+                     "Task speed", display.with_unit(display.speed(units, plan.task_speed_ms), units.speed_label),
+                     "", "")
         if area is not None:
-            grid.add_row("Planned", _distance(units, area.target_distance_m),
-                         "Min time", display.duration(area.min_time_s), "", "")
+            grid.add_row("", "", "Min time", display.duration(area.min_time_s), "", "")
         parts: list = [grid]
         if area is not None:
             parts.append(Text.assemble(("Areas allow ", LABEL), _distance(units, area.min_distance_m),
