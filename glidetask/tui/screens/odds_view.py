@@ -68,7 +68,6 @@ class OddsView(ViewScreen):
     #odds-bars { height: auto; }
     #odds-assumptions { height: auto; color: $text-muted; }
     #odds-right { width: 1fr; }
-    OddsView.-narrow #odds-left { width: 44; }
     #odds-table { height: auto; }
     #landouts-table { height: auto; max-height: 16; }
     #finish-plot { height: 1fr; min-height: 8; }
@@ -100,7 +99,7 @@ class OddsView(ViewScreen):
         self.query_one("#odds-inputs").border_title = "Simulation"
         self.query_one("#odds-bars").border_title = "Odds of finishing"
         self.query_one("#odds-assumptions").border_title = "The spread of days assumed"
-        self.query_one("#odds-table").border_title = "Task time among the finishers (h:mm)"
+        self.query_one("#odds-table").border_title = "Task time of the finishers (h:mm)"
         self.query_one("#landouts-table").border_title = "Land-outs by leg (days)"
         self.query_one("#finish-plot").border_title = "Days finished within a task time"
         self._field("odds-runs").show(str(self.runs), force=True)
