@@ -88,6 +88,7 @@ class GlideTaskApp(App[int]):
         self.session: EditSession | None = None
         self.units = unit_systems.by_name(units)
         self._generation = 0
+        self._warmed = False
         self.last_compute_s: float | None = None
 
     # ------------------------------------------------------------ start and views
@@ -234,6 +235,45 @@ class GlideTaskApp(App[int]):
         self.call_from_thread(self._opened, path, scenario)
         self._plan_now(scenario, generation, worker)
 
+    @work(thread=True, exclusive=True, group="warm")
+    def warm_views(self) -> None:
+        """Once the first plan is on screen: import the other views and their engine parts,
+        so a first visit paints at once (its progress line within 100 ms)."""
+        for name in VIEWS:
+            module = importlib.import_module(f"glidetask.tui.screens.{VIEWS[name][0]}")
+            del module
+        for name in ("glidetask.engine.compare", "glidetask.engine.simulate", "glidetask.formats.strategy_report"):
+            importlib.import_module(name)
+        self.call_from_thread(self._warm_styles)
+
+    def _warm_styles(self) -> None:
+        """Parse the styles of every view's widgets now, while the pilot reads the first view:
+        a first visit then does not re-read the whole style sheet before its first frame."""
+        from textual.widgets import DataTable, Input, Label, ProgressBar
+
+        from glidetask.tui.screens.compare_view import CompareView
+        from glidetask.tui.screens.odds_view import OddsView
+        from glidetask.tui.widgets.progress_notice import ProgressNotice
+        from glidetask.tui.widgets.strategy_odds import FinishPlot, LandoutsTable, OddsTable, ProbabilityBars
+        from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
+
+        added = False
+        try:  # a head start only: whatever fails here is done again on the first visit
+            nodes = (CompareView(), OddsView(), ProgressNotice(""), ProgressBar(), SweepTable(), SweepPlot(),
+                     ProbabilityBars(), OddsTable(), LandoutsTable(), FinishPlot(), DataTable(), Input(), Label())
+            for node in nodes:
+                for read_from, css, tie_breaker, scope in node._get_default_css():
+                    self.stylesheet.add_source(css, read_from=read_from, is_default_css=True,
+                                               tie_breaker=tie_breaker, scope=scope)
+                    added = True
+        except Exception:  # noqa: BLE001 - never let a warm-up take the app down
+            return
+        if added:
+            try:
+                self.stylesheet.reparse()
+            except Exception:  # noqa: BLE001
+                pass
+
     @work(thread=True, exclusive=True, group="plan")
     def plan_in_background(self, scenario, generation: int) -> None:
         self._plan_now(scenario, generation, get_current_worker())
@@ -278,7 +318,11 @@ class GlideTaskApp(App[int]):
             return  # a newer edit is being planned
         self.busy = False
         self.last_compute_s = outcome.elapsed_s
+        first = self.plan is None and not self._warmed
         self.plan = outcome
+        if first:
+            self._warmed = True
+            self.warm_views()
         self._publish_problems()
         history = self.session.undo_stack if self.session is not None else []
         self.notice = f"plan updated · ctrl+z undoes: {history[-1][1]}" if history else "plan updated"

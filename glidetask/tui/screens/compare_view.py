@@ -45,18 +45,27 @@ class CompareView(ViewScreen):
         self._token = 0
 
     def compose_body(self) -> ComposeResult:
+        # the first frame holds the progress line only: the table and the plot (costly to
+        # style and draw) are mounted just after it, so the key shows progress at once
         yield ProgressNotice(WAITING, id="compare-waiting")
-        with Vertical(id="sweep-panel", classes="panel"):
-            yield SweepTable(id="sweep-table")
-        with Horizontal(id="compare-bottom"):
-            yield SweepPlot(id="sweep-plot", classes="panel")
-            yield Static(id="sweep-summary", classes="panel")
+        yield Vertical(id="sweep-panel", classes="panel")
+        yield Horizontal(id="compare-bottom")
+
+    _figures_mounted = False
 
     def on_mount(self) -> None:
         self.query_one("#sweep-panel").border_title = "Task time (h:mm) by thermal strength and water ballast (kg), best ballast"
-        self.query_one("#sweep-plot").border_title = "Task time against ballast"
-        self.query_one("#sweep-summary").border_title = "Should I fill the tanks?"
         self._show_parts(False)
+        self.call_after_refresh(self._mount_figures)
+
+    async def _mount_figures(self) -> None:
+        await self.query_one("#sweep-panel").mount(SweepTable(id="sweep-table"))
+        plot, summary = SweepPlot(id="sweep-plot", classes="panel"), Static(id="sweep-summary", classes="panel")
+        await self.query_one("#compare-bottom").mount_all([plot, summary])
+        plot.border_title = "Task time against ballast"
+        summary.border_title = "Should I fill the tanks?"
+        self._figures_mounted = True
+        self._draw()
 
     def _show_parts(self, ready: bool) -> None:
         self.query_one("#compare-waiting").display = not ready
@@ -128,7 +137,7 @@ class CompareView(ViewScreen):
         self._draw()  # the table shows as many ballast columns as fit
 
     def _draw(self) -> None:
-        if self.sweep is None or self._computed_for is None or self.sweep.task_name != self._computed_for.scenario.task.name:
+        if not self._figures_mounted or self.sweep is None or self._computed_for is None or self.sweep.task_name != self._computed_for.scenario.task.name:
             return  # never another task's figures
         from glidetask.formats.strategy_report import forecast_line, sweep_verdict
 

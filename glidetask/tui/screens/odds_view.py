@@ -90,21 +90,30 @@ class OddsView(ViewScreen):
                                     else "")
             yield ProbabilityBars(id="odds-bars", classes="panel")
             yield Static(id="odds-assumptions", classes="panel")
-        with Vertical(id="odds-right"):
-            yield OddsTable(id="odds-table", classes="panel")
-            yield LandoutsTable(id="landouts-table", classes="panel")
-            yield FinishPlot(id="finish-plot", classes="panel")
+        # the tables and the plot (costly to style and draw) are mounted just after the first
+        # frame, so the key shows the progress line at once
+        yield Vertical(id="odds-right")
+
+    _figures_mounted = False
+
+    async def _mount_figures(self) -> None:
+        parts = [OddsTable(id="odds-table", classes="panel"), LandoutsTable(id="landouts-table", classes="panel"),
+                 FinishPlot(id="finish-plot", classes="panel")]
+        await self.query_one("#odds-right").mount_all(parts)
+        for part, title in zip(parts, ("Task time of the finishers (h:mm)", "Land-outs by leg (days)",
+                                       "Days finished within a task time")):
+            part.border_title = title
+        self._figures_mounted = True
+        self._draw()
 
     def on_mount(self) -> None:
         self.query_one("#odds-inputs").border_title = "Simulation"
         self.query_one("#odds-bars").border_title = "Odds of finishing"
         self.query_one("#odds-assumptions").border_title = "The spread of days assumed"
-        self.query_one("#odds-table").border_title = "Task time of the finishers (h:mm)"
-        self.query_one("#landouts-table").border_title = "Land-outs by leg (days)"
-        self.query_one("#finish-plot").border_title = "Days finished within a task time"
         self._field("odds-runs").show(str(self.runs), force=True)
         self._field("odds-seed").show(str(self.seed), force=True)
         self._show_parts(False)
+        self.call_after_refresh(self._mount_figures)
 
     def _show_parts(self, ready: bool) -> None:
         self.query_one("#odds-waiting").display = not ready
@@ -210,7 +219,7 @@ class OddsView(ViewScreen):
 
     def _draw(self) -> None:
         odds = self.odds
-        if odds is None or self._computed_for is None or odds.task_name != self._computed_for.scenario.task.name:
+        if not self._figures_mounted or odds is None or self._computed_for is None or odds.task_name != self._computed_for.scenario.task.name:
             return  # never another task's figures
         from glidetask.formats.strategy_report import assumption_text
 

@@ -23,6 +23,7 @@ class ProgressNotice(Vertical):
         super().__init__(**kwargs)
         self._text = text
         self.started: float | None = None
+        self.first_started: float | None = None  # when a computation was first shown running (benchmarks)
 
     def compose(self) -> ComposeResult:
         yield Static(self._text, markup=False, classes="progress-text")
@@ -40,3 +41,5 @@ class ProgressNotice(Vertical):
         self.query_one(".progress-text", Static).update(text)
         self.query_one(ProgressBar).display = working
         self.started = time.perf_counter() if working else None
+        if working and self.first_started is None:
+            self.first_started = self.started
