@@ -302,6 +302,10 @@ class GlideTaskApp(App[int]):
             self.session.replace_all(scenario, path)
         self.task_path = path
         self.dirty = False
+        if path is not None and not is_bundled(path):
+            from glidetask.tui import config
+
+            config.remember_task(path)
         self._publish_problems()
         self.scenario = scenario
         if not first:
@@ -340,10 +344,11 @@ class GlideTaskApp(App[int]):
     # ------------------------------------------------------------ files
 
     def action_open(self) -> None:
-        from glidetask.tui.screens.path_modal import PathModal
+        from glidetask.tui import config
+        from glidetask.tui.screens.open_modal import OpenModal
 
-        start = str(self.task_path.parent) + "/" if self.task_path else ""
-        self.push_screen(PathModal("Open a task file", start, action="Open"), self._open_chosen)
+        folder = self.task_path.parent if self.task_path else Path.cwd()
+        self.push_screen(OpenModal(folder, config.recent_tasks()), self._open_chosen)
 
     def _open_chosen(self, path: str | None) -> None:
         if not path:
@@ -418,6 +423,9 @@ class GlideTaskApp(App[int]):
             self.notice = f"not saved: {problems[0].what}"
             return False
         self.session.saved(path)
+        from glidetask.tui import config
+
+        config.remember_task(path)
         self._publish_problems()
         self.task_path = path
         self.dirty = False
