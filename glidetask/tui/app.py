@@ -57,6 +57,7 @@ class GlideTaskApp(App[int]):
         *(Binding(str(index), f"view('{name}')", title, show=False)
           for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1)),
         Binding("u", "toggle_units", "Units"),
+        Binding("h", "heights", "Heights", show=False),
         Binding("ctrl+z", "undo", "Undo", priority=True),
         Binding("ctrl+y", "redo", "Redo", priority=True),
         Binding("ctrl+o", "open", "Open"),
@@ -135,11 +136,21 @@ class GlideTaskApp(App[int]):
         yield SystemCommand("Task: save as…", "Save the task under a new name", self.action_save_as)
         yield SystemCommand("Export: GPX route, briefing or plan JSON", "ctrl+e", self.action_export)
         yield SystemCommand("Cautions: read them in full", "f1", self.action_show_cautions)
+        yield SystemCommand("Heights needed and what-ifs", "from each turnpoint at MacCready 0-3 (key h)",
+                            self.action_heights)
 
     def action_show_cautions(self, first_start: bool = False) -> None:
         from glidetask.tui.screens.cautions_modal import CautionsModal
 
         self.push_screen(CautionsModal(first_start=first_start))
+
+    def action_heights(self) -> None:
+        from glidetask.tui.screens.heights_modal import HeightsModal
+
+        if self.plan is None or self.plan.plan is None:
+            self.notice = "heights needed: the plan is not ready"
+            return
+        self.push_screen(HeightsModal(self.plan, self.units))
 
     def action_toggle_units(self) -> None:
         other = "aviation" if self.units.name == "metric" else "metric"

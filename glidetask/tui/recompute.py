@@ -47,3 +47,19 @@ def save_task(path: str | Path, scenario: Scenario) -> None:
     from glidetask.formats.task_file import save_task as write
 
     write(Path(path), scenario)
+
+
+def heights_card(plan, settings_ms) -> Any:
+    """Heights needed to final-glide home from each turnpoint at each MacCready setting
+    [m MSL], rows by setting (engine.planner.final_glide_card)."""
+    from glidetask.engine.planner import final_glide_card
+
+    return final_glide_card(plan, tuple(settings_ms))
+
+
+def what_ifs(outcome: Outcome):
+    """The task time under the briefing's what-ifs (engine.compare.sensitivity)."""
+    from glidetask.engine.compare import sensitivity
+
+    plan = outcome.plan
+    return sensitivity(outcome.scenario, path=plan.path, requirement=getattr(plan, "requirement", None))

@@ -33,7 +33,7 @@ COLUMNS = (  # key (the contract's name where it has one), LegPlan attribute, he
     ("arrival_height_m", "arrival_height_m", "Arrive", "msl"),
 )
 LEGEND = ("◆ final glide starts · Air (TAS), IAS, Hdg, Glide: in the glides · Avg: distance/time · "
-          "At: clock time at the leg's start · Need: to glide home from there · f1: the words")
+          "At: clock time at the leg's start · Need: to glide home from there · h: heights at MC 0-3 · f1: the words")
 
 
 def cell_text(kind: str | None, value, units: UnitSystem) -> str:
