@@ -15,12 +15,11 @@ from glidetask.engine.scenario import Scenario
 
 @dataclass(frozen=True)
 class Outcome:
-    """A plan, its contract form (shared/CONTRACT.md 5.3: the names and units every view
-    reads) and how long the engine took to make both [s]."""
+    """A plan (the engine's SI ``Plan``: the only form of it the views read) and how long
+    the engine took [s]."""
 
     scenario: Scenario
     plan: Any
-    summary: dict
     elapsed_s: float
 
 
@@ -32,14 +31,15 @@ def load_task(path: str | Path) -> Scenario:
 
 
 def compute_plan(scenario: Scenario) -> Outcome:
-    """Plan the task of ``scenario`` (engine.planner.plan) and put it in the contract's terms, timed."""
+    """Plan the task of ``scenario`` (engine.planner.plan), timed.
+
+    This module is the UI's one door to the planner: the engine's rename of ``planner`` to
+    ``plan`` changes the imports here and nowhere else in the UI."""
     from glidetask.engine.planner import plan
-    from glidetask.formats.plan_json import plan_to_dict
 
     started = time.perf_counter()
     result = plan(scenario)
-    summary = plan_to_dict(result)
-    return Outcome(scenario, result, summary, time.perf_counter() - started)
+    return Outcome(scenario, result, time.perf_counter() - started)
 
 
 def save_task(path: str | Path, scenario: Scenario) -> None:

@@ -73,8 +73,10 @@ def test_view_at_120x40(snap_compare, acknowledged, index, view):
     assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing(str(index)))
 
 
-def test_task_view_at_80x24(snap_compare, acknowledged):
-    assert snap_compare(demo_app(), terminal_size=(80, 24), run_before=showing())
+@pytest.mark.parametrize("index,view", list(enumerate(VIEWS, start=1)))
+def test_view_at_80x24(snap_compare, acknowledged, index, view):
+    """The classic terminal: every view readable, nothing cut mid-word."""
+    assert snap_compare(demo_app(), terminal_size=(80, 24), run_before=showing(str(index)))
 
 
 def test_first_start_cautions(snap_compare, config_home):

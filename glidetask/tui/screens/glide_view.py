@@ -149,7 +149,9 @@ class GlideView(ViewScreen):
         origin = self._turnpoint(self.query_one("#glide-from", Select).value)
         goal = self._turnpoint(self.query_one("#glide-to", Select).value)
         outcome = self.app.plan
-        plan_mc = (outcome.summary.get("final_glide") or {}).get("mc_ms") if outcome is not None else None
+        plan_mc = None
+        if outcome is not None and outcome.plan.final_glide_mc_ms == outcome.plan.final_glide_mc_ms:  # not NaN
+            plan_mc = float(outcome.plan.final_glide_mc_ms)
         mc = plan_mc if plan_mc is not None else scenario.safety.final_glide_mc_ms or 0.0
         defaults = {
             "glide-height": scenario.day.band_top_m,
