@@ -80,9 +80,8 @@ class TaskView(ViewScreen):
 
     def _stale_changed(self, invalid) -> None:
         if bool(invalid) != self._stale:
-            self.query_one(PlanTotals).show(self.app.plan.plan if self.app.plan else None, self.app.units,
-                                            stale=bool(invalid))
             self._stale = bool(invalid)
+            self.query_one(PlanTotals).stale = self._stale  # the totals redraw in their watcher
 
     def show_plan(self, outcome) -> None:
         units = self.app.units

@@ -10,10 +10,11 @@ from __future__ import annotations
 import math
 
 from rich.text import Text
+from textual.reactive import var
 from textual.widgets import DataTable
 
 from glidetask.tui import display
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 COLUMNS = (  # key (the contract's name where it has one), LegPlan attribute, header, kind;
     # the words are those of `glidetask plan` and the briefing (see glidetask.tui.glossary)
@@ -101,20 +102,34 @@ class LegsTable(DataTable):
         # the leg's name stays in view when a narrow screen scrolls the figures sideways
         super().__init__(cursor_type="row", zebra_stripes=True, header_height=2, fixed_columns=1, **kwargs)
         self._units: UnitSystem | None = None  # the unit system of the headers shown
+        self._compact_drawn = False
 
-    compact = False  # a narrow screen: IAS is left out (the Glider view's card and the calculator show it)
+    # what the table shows, set by the view; drawn in ``watch_plan`` (the others are set
+    # first, without drawing, by :meth:`show`)
+    plan = var(None, always_update=True)  # the engine's SI Plan (None: headers only)
+    units: var[UnitSystem] = var(METRIC)
+    codes: var[dict] = var(dict)  # turnpoint names -> short codes for the Leg column
+    compact = var(False)  # a narrow screen: IAS is left out (the Glider view's card and the calculator show it)
 
     def shown_columns(self) -> tuple:
         return tuple(c for c in COLUMNS if not (self.compact and c[0] in NARROW_LEAVES_OUT))
 
     def show(self, plan, units: UnitSystem, codes: dict[str, str] | None = None, *, compact: bool | None = None) -> None:
-        """Fill the table from an ``engine.planner.Plan`` (None: headers only); ``codes``
-        maps turnpoint names to short codes for the Leg column."""
-        codes = codes or {}
-        if compact is not None and compact != self.compact:
-            self.compact, self._units = compact, None  # the columns change
+        """Set what to show and draw it once."""
+        self.set_reactive(LegsTable.units, units)
+        self.set_reactive(LegsTable.codes, codes or {})
+        if compact is not None:
+            self.set_reactive(LegsTable.compact, compact)
+        self.plan = plan
+
+    def watch_plan(self, plan) -> None:
+        if not self.is_mounted:
+            return
+        units, codes = self.units, self.codes
+        if self._compact_drawn != self.compact:
+            self._compact_drawn, self._units = self.compact, None  # the columns change
             # narrow: no padding around cells, one space before each instead (every column fits 80)
-            self.cell_padding = 0 if compact else 1
+            self.cell_padding = 0 if self.compact else 1
         gap = " " if self.compact else ""
         if self._units is units:
             self.clear()  # rows only: the columns stay, and with them the layout

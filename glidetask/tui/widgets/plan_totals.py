@@ -11,11 +11,12 @@ import math
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
+from textual.reactive import var
 from textual.widgets import Static
 
 from glidetask import cautions
 from glidetask.tui import display
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 LABEL = "dim"
 WARNING = "bold #e0b15a"
@@ -44,9 +45,33 @@ def particular_cautions(plan) -> list[str]:
 
 
 class PlanTotals(Static):
-    """A compact block of the plan's totals and any caution particular to this plan."""
+    """A compact block of the plan's totals and any caution particular to this plan.
+
+    The view sets ``plan`` (the engine's SI ``Plan``, None while planning), ``units`` and
+    ``stale`` (the inputs on screen are refused: this is the last good plan); the block is
+    drawn in the watchers."""
+
+    plan = var(None, always_update=True)
+    units: var[UnitSystem] = var(METRIC)
+    stale = var(False)
 
     def show(self, plan, units: UnitSystem, *, stale: bool = False) -> None:
+        """Set all three at once, drawing once."""
+        self.set_reactive(PlanTotals.units, units)
+        self.set_reactive(PlanTotals.stale, stale)
+        self.plan = plan
+
+    def watch_plan(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_stale(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        plan, units, stale = self.plan, self.units, self.stale
         if plan is None:
             self.update(Text("planning …", style="dim"))
             return
