@@ -56,6 +56,14 @@ async def until_settled(pilot) -> None:
         field.cursor_blink = False
     await pilot.wait_for_scheduled_animations()
     await pilot.pause()
+    # the plots redraw once the layout has settled (a scroll bar coming and going at 80x24)
+    screen = pilot.app.screen
+    if hasattr(screen, "_draw_plot"):  # the day's plot drawn again at its settled size
+        screen._draw_plot()
+    for plot in screen.query("PlotextPlot"):
+        plot.refresh(layout=True)
+    await pilot.pause(0.2)
+    await pilot.pause()
 
 
 def showing(view_key: str = ""):

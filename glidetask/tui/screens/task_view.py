@@ -10,7 +10,7 @@ from textual.containers import Horizontal, Vertical
 
 from glidetask.tui import messages, task_edits
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.legs_table import LEGEND, LegsTable
+from glidetask.tui.widgets.legs_table import LEGEND, LEGEND_NARROW, LegsTable
 from glidetask.tui.widgets.plan_totals import PlanTotals
 from glidetask.tui.widgets.points_table import PointsTable, role
 from glidetask.tui.widgets.task_sketch import TaskSketch
@@ -63,6 +63,8 @@ class TaskView(ViewScreen):
 
     def on_resize(self, event) -> None:
         compact = event.size.width < NARROW
+        # the whole legend only where the border holds it: never cut mid-word
+        self.query_one("#legs-table").border_subtitle = LEGEND if event.size.width >= len(LEGEND) + 8 else LEGEND_NARROW
         if compact != self._compact:
             self._compact = compact
             if self.app.scenario is not None:

@@ -33,8 +33,8 @@ COLUMNS = (  # key (the contract's name where it has one), LegPlan attribute, he
     ("required_height_m", "required_height_m", "Need", "msl"),
     ("arrival_height_m", "arrival_height_m", "Arrive", "msl"),
 )
-LEGEND = ("◆ final glide starts · Air (TAS), IAS, Hdg, Glide: in the glides · Avg: distance/time · "
-          "At: clock time at the leg's start · Need: to glide home from there · h: heights at MC 0-3 · f1: the words")
+LEGEND = "◆ final glide · Air, IAS, Hdg, Glide: in the glides · Avg: dist/time · At: leg start · h heights · f1 words"
+LEGEND_NARROW = "◆ final glide · h heights · f1 the words"
 
 
 def cell_text(kind: str | None, value, units: UnitSystem) -> str:
