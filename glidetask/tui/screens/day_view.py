@@ -82,8 +82,6 @@ class DayView(ViewScreen):
         if scenario is None:
             return
         finish_s = None
-        if outcome is not None and outcome.summary.get("finish_time"):
-            from glidetask.units import parse_clock
-
-            finish_s = parse_clock(outcome.summary["finish_time"])
+        if outcome is not None and outcome.plan.finished:
+            finish_s = float(outcome.plan.finish_time_s)
         self.query_one(DayPlot).show(scenario.day, self.app.units, finish_s)

@@ -49,6 +49,14 @@ class SafetyView(ViewScreen):
         self.query_one("#terrain-summary").border_title = "Final glide over the terrain"
         self.query_one("#safety-profile").border_title = "The planned final glide"
 
+    _narrow = False
+
+    def on_resize(self, event) -> None:
+        narrow = event.size.width < 100
+        if narrow != self._narrow:
+            self._narrow = narrow
+            self.show_plan(self.app.plan)
+
     def show_plan(self, outcome) -> None:
         plan = outcome.plan if outcome is not None else None
         has_report = plan is not None and (plan.landables is not None or plan.terrain_source is not None)
@@ -98,8 +106,11 @@ class SafetyView(ViewScreen):
         for index, entry in enumerate(c.by_leg):
             start, end = plan.legs[entry.leg].from_name, plan.legs[entry.leg].to_name
             leg = f"{entry.leg + 1} {codes.get(start) or start}→{codes.get(end) or end}"
-            also = ", ".join(f"{name} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
-            alternates.add_row(leg, entry.nearest or Text("none in reach", style=BAD),
+            # narrow: fields by their codes, so the list fits the width instead of running off it
+            short = (lambda name: codes.get(name) or name) if self._narrow else (lambda name: name)
+            also = ", ".join(f"{short(name)} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
+            nearest = short(entry.nearest) if entry.nearest else None
+            alternates.add_row(leg, nearest or Text("none in reach", style=BAD),
                                Text(display.distance(units, entry.distance_m), justify="right"), also,
                                key=f"alt-{index}")
 
