@@ -33,6 +33,7 @@ VIEWS: dict[str, tuple[str, str, str]] = {
     "safety": ("safety_view", "SafetyView", "Safety"),
     "compare": ("compare_view", "CompareView", "Compare"),
     "odds": ("odds_view", "OddsView", "Odds"),
+    "profile": ("profile_view", "ProfileView", "Profile"),
 }
 
 

@@ -101,8 +101,9 @@ class TaskView(ViewScreen):
         scenario, outcome = self.app.scenario, self.app.plan
         if scenario is None:
             return
-        path, final_at = None, None
+        path, final_at, check = None, None, None
         if outcome is not None and outcome.scenario.task is scenario.task:
+            check = getattr(outcome.plan, "airspace", None)
             plan_path = getattr(outcome.plan, "path", None)
             if plan_path is not None:
                 path = (plan_path.lats, plan_path.lons)
@@ -111,7 +112,8 @@ class TaskView(ViewScreen):
                     final_at = point_along(plan_path.lats, plan_path.lons, from_m)
         landables = [t for t in scenario.turnpoints if t.landable]
         try:
-            sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at)
+            sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at,
+                                  airspace=scenario.airspace, check=check)
         except Exception as error:  # a drawing problem never takes the view down
             self.post_message(messages.Notice(f"sketch: {error}"))
             return
