@@ -24,17 +24,7 @@ from glidetask.tui import messages
 from glidetask.tui.session import EditSession
 from glidetask.tui.theme import GLIDETASK_THEME
 
-# view name -> (module in glidetask.tui.screens, class, title shown on the view bar)
-VIEWS: dict[str, tuple[str, str, str]] = {
-    "task": ("task_view", "TaskView", "Task"),
-    "glider": ("glider_view", "GliderView", "Glider"),
-    "day": ("day_view", "DayView", "Day"),
-    "glide": ("glide_view", "GlideView", "Final glide"),
-    "safety": ("safety_view", "SafetyView", "Safety"),
-    "compare": ("compare_view", "CompareView", "Compare"),
-    "odds": ("odds_view", "OddsView", "Odds"),
-    "profile": ("profile_view", "ProfileView", "Profile"),
-}
+from glidetask.tui.views import VIEWS  # the views, named once for the app and the view bar
 
 
 def _view_factory(name: str):

@@ -20,7 +20,7 @@ async def test_every_view_fits_80x24(acknowledged, units):
     app = make_app(paths.demo_task(), units=units)
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(pilot)
-        for key in "1234567":
+        for key in "12345678":
             await pilot.press(key)
             await settle(pilot, 6)
             for table in app.screen.query(DataTable):

@@ -36,7 +36,7 @@ class ViewBar(Horizontal):
         self.active_view = active_view
 
     def compose(self) -> ComposeResult:
-        from glidetask.tui.app import VIEWS
+        from glidetask.tui.views import VIEWS
 
         for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1):
             yield ViewTab(name, f"{index} {title}", name == self.active_view)
