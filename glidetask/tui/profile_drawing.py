@@ -304,8 +304,9 @@ def profile_facts(plan, units: UnitSystem) -> list[str]:
         out.append(f"Floor raised to {units.fmt_height(floor.floor_m)} from {units.fmt_distance(floor.from_m)} "
                    f"to {units.fmt_distance(floor.to_m)}")
     if plan.airspace is not None:
-        out += [cautions.airspace_cap(cap, units) for cap in plan.airspace.caps]
+        # conflicts first: each needs a clearance or another route
         out += [cautions.airspace_conflict(c, units) for c in plan.airspace.conflicts]
+        out += [cautions.airspace_cap(cap, units) for cap in plan.airspace.caps]
     if plan.landout is not None and math.isfinite(plan.landout_m):
         field = plan.landout.field or "no field in reach"
         out.append(f"Lands out at {units.fmt_distance(plan.landout_m)}: {field}")

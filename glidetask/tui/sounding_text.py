@@ -74,7 +74,7 @@ def sounding_text(drawing, units: UnitSystem, width: int, rows: int) -> Text:
                         ("parcel", f"rising {format_clock(drawing.parcel_time_s)}")):
         glyph, style = SOUNDING[layer]
         text.append(glyph, style=style)
-        text.append(f" {name}  ", style="dim")
+        text.append(f" {name} ", style="dim")
     return text
 
 
@@ -108,7 +108,7 @@ def band_text(drawing, units: UnitSystem, width: int, rows: int) -> Text:
     for layer, name in (("band", "band"), ("cloud", "cloud base"), ("top", "thermal top")):
         glyph, style = DAY[layer]
         text.append(glyph, style=style)
-        text.append(f" {name}  ", style="dim")
+        text.append(f" {name} ", style="dim")
     return text
 
 

@@ -281,7 +281,7 @@ async def test_day_view_names_the_keys_typed_over_the_sounding(acknowledged, tmp
         await pilot.press("3")
         await settle(pilot)
         assert app.scenario.day_source.overridden == ("band_bottom_m",)
-        panel = re.sub(r"\s+", " ", text_of(app.screen.query_one("#day-sounding"), 42))
+        panel = re.sub(r"\s+", " ", text_of(app.screen.query_one("#day-sounding"), 40))
         assert "Typed over it: band_bottom_m." in panel
         assert "typed: band_bottom_m" in screen_text(app)  # under the Air panel, in view at any size
 

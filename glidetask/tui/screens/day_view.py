@@ -94,7 +94,7 @@ class DayView(ViewScreen):
         typed = ", ".join(source.overridden)
         air.border_subtitle = f"from the sounding · typed: {typed}" if typed else "from the sounding"
         drawing = sounding_drawing(source.sounding, source.derived)
-        units, width = self.app.units, 42
+        units, width = self.app.units, 40  # the left column's panel: 46 less borders and padding
         panel.update(Group(Text(sounding_text.source_line(source), style="dim"),
                            sounding_text.sounding_text(drawing, units, width, 9),
                            sounding_text.band_text(drawing, units, width, 6)))
