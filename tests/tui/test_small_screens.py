@@ -6,7 +6,7 @@ import pytest
 from conftest import settle, text_of
 
 from glidetask import cautions
-from glidetask.tui.app import make_app
+from glidetask.tui.app import VIEWS, make_app
 
 
 def inside_screen(app, widget) -> bool:
@@ -43,7 +43,7 @@ async def test_view_bar_keeps_units_and_the_unsaved_mark(synthetic, acknowledged
         assert "aviation" in str(label.render()) and "●" in str(label.render())
         assert inside_screen(app, label) and label.region.width >= len("●  aviation")
         tabs = list(app.screen.query(".view-tab"))
-        assert len(tabs) == 7 and all(inside_screen(app, tab) for tab in tabs)
+        assert len(tabs) == len(VIEWS) and all(inside_screen(app, tab) for tab in tabs)
 
 
 async def test_task_view_at_80x24_shows_every_leg_column_and_the_whole_totals(acknowledged):
