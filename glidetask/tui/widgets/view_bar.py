@@ -59,8 +59,11 @@ class ViewBar(Horizontal):
         app = self.app
         scenario = getattr(app, "scenario", None)
         name = scenario.task.name if scenario is not None else "no task"
-        if self.size.width and self.size.width < NARROW:
-            name = ""  # the Task view's points panel names the task
+        narrow = bool(self.size.width and self.size.width < NARROW)
+        # narrow: the Task view's points panel names the task, and the eight tabs need the width
+        self.query_one("#view-bar-task", Label).display = not narrow
+        if narrow:
+            name = ""
         mark = " ●" if getattr(app, "dirty", False) else ""
         busy = " ⟳" if getattr(app, "busy", False) else ""
         self.query_one("#view-bar-task", Label).update(name)
