@@ -203,6 +203,8 @@ async def test_sketch_and_safety_show_the_crossed_zone(acknowledged):
         first = cautions.airspace_conflict(plan.airspace.conflicts[0], METRIC)
         assert first.split(",")[0] in text  # "Leg 2 enters Brennick Zone (class D)"
         assert "Airspace along the task" in text and "conflict" in text
+        panel = re.sub(r"\s+", " ", text_of(app.screen.query_one("#safety-airspace"), 116))
+        assert cautions.AIRSPACE[0] in panel  # the airspace caution beside the airspace figures
 
 
 async def test_sketch_draws_outlines_near_the_task_only(acknowledged, triangle_plan):

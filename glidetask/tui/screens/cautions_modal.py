@@ -20,7 +20,8 @@ class CautionsModal(ModalScreen[bool]):
         self.first_start = first_start
 
     def compose(self) -> ComposeResult:
-        lines = [f"• {text}" for text in (*cautions.GENERAL, *cautions.TERRAIN, *cautions.LANDABLES)]
+        lines = [f"• {text}" for text in (*cautions.GENERAL, *cautions.TERRAIN, *cautions.LANDABLES,
+                                                          *cautions.AIRSPACE, cautions.FLIGHT_LEVELS)]
         heading = "Before you plan" if self.first_start else "Cautions and the words on screen"
         with Vertical(id="cautions-panel"):
             yield Static(heading, id="cautions-heading", markup=False)

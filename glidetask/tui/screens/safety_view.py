@@ -84,6 +84,7 @@ class SafetyView(ViewScreen):
         lines += [Text(f"⚠ {cautions.airspace_cap(cap, units)}", style=DOUBT) for cap in check.caps]
         if not lines:
             lines.append(Text("no volume crossed and no band top capped along the planned path", style=GOOD))
+        lines += [Text(f"⚠ {text}", style="dim") for text in cautions.AIRSPACE]
         lines.append(Text(f"airspace {check.source}" + (" · no conflict" if check.ok else
                                                          f" · {len(check.conflicts)} conflict"
                                                          f"{'s' if len(check.conflicts) != 1 else ''}"),

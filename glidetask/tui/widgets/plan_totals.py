@@ -41,7 +41,9 @@ def final_glide_text(plan, units: UnitSystem) -> str:
 def particular_cautions(plan, units: UnitSystem) -> list[str]:
     """The plan's own cautions in ``units`` (the general, terrain and landable wording is
     always on screen)."""
-    known = set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES)
+    # the general wording is on f1 (and the airspace ones in Safety's airspace panel too)
+    known = (set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES) | set(cautions.AIRSPACE)
+             | {cautions.FLIGHT_LEVELS})
     return [c for c in cautions.plan_cautions(plan, units) if c not in known]
 
 
