@@ -341,7 +341,7 @@ class Day:
         """Where :attr:`effective_thermal_radius_m` comes from, in words."""
         if self.thermal_radius_m is not None:
             return "given in the task"
-        return f"Allen (2006) for a {self.layer_depth_m / 1000.0:.1f} km convective layer"
+        return "Allen (2006) for the day's convective layer"
 
     def wind_at(self, height_m) -> Wind:
         """The wind at ``height_m`` [m MSL]: the single wind, or the profile's there."""

@@ -24,16 +24,7 @@ from glidetask.tui import messages
 from glidetask.tui.session import EditSession
 from glidetask.tui.theme import GLIDETASK_THEME
 
-# view name -> (module in glidetask.tui.screens, class, title shown on the view bar)
-VIEWS: dict[str, tuple[str, str, str]] = {
-    "task": ("task_view", "TaskView", "Task"),
-    "glider": ("glider_view", "GliderView", "Glider"),
-    "day": ("day_view", "DayView", "Day"),
-    "glide": ("glide_view", "GlideView", "Final glide"),
-    "safety": ("safety_view", "SafetyView", "Safety"),
-    "compare": ("compare_view", "CompareView", "Compare"),
-    "odds": ("odds_view", "OddsView", "Odds"),
-}
+from glidetask.tui.views import VIEWS  # the views, named once for the app and the view bar
 
 
 def _view_factory(name: str):
@@ -57,6 +48,9 @@ class GlideTaskApp(App[int]):
         *(Binding(str(index), f"view('{name}')", title, show=False)
           for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1)),
         Binding("u", "toggle_units", "Units"),
+        Binding("h", "heights", "Heights", show=False),
+        Binding("ctrl+z", "undo", "Undo", priority=True),
+        Binding("ctrl+y", "redo", "Redo", priority=True),
         Binding("ctrl+o", "open", "Open"),
         Binding("ctrl+s", "save", "Save"),
         Binding("ctrl+e", "export", "Export"),
@@ -86,6 +80,7 @@ class GlideTaskApp(App[int]):
         self.session: EditSession | None = None
         self.units = unit_systems.by_name(units)
         self._generation = 0
+        self._warmed = False
         self.last_compute_s: float | None = None
 
     # ------------------------------------------------------------ start and views
@@ -111,6 +106,11 @@ class GlideTaskApp(App[int]):
         if view in VIEWS and self.current_mode != view:
             self.switch_mode(view)
 
+    @on(messages.Notice)
+    def _notice_posted(self, message: messages.Notice) -> None:
+        self._publish_problems()  # a file that failed to open is old news: only the inputs' problems stay
+        self.notice = message.text
+
     @on(messages.ViewRequested)
     def _view_requested(self, message: messages.ViewRequested) -> None:
         self.action_view(message.view)
@@ -127,11 +127,21 @@ class GlideTaskApp(App[int]):
         yield SystemCommand("Task: save as…", "Save the task under a new name", self.action_save_as)
         yield SystemCommand("Export: GPX route, briefing or plan JSON", "ctrl+e", self.action_export)
         yield SystemCommand("Cautions: read them in full", "f1", self.action_show_cautions)
+        yield SystemCommand("Heights needed and what-ifs", "from each turnpoint at MacCready 0-3 (key h)",
+                            self.action_heights)
 
     def action_show_cautions(self, first_start: bool = False) -> None:
         from glidetask.tui.screens.cautions_modal import CautionsModal
 
         self.push_screen(CautionsModal(first_start=first_start))
+
+    def action_heights(self) -> None:
+        from glidetask.tui.screens.heights_modal import HeightsModal
+
+        if self.plan is None or self.plan.plan is None:
+            self.notice = "heights needed: the plan is not ready"
+            return
+        self.push_screen(HeightsModal(self.plan, self.units))
 
     def action_toggle_units(self) -> None:
         other = "aviation" if self.units.name == "metric" else "metric"
@@ -146,14 +156,17 @@ class GlideTaskApp(App[int]):
     def _field_edited(self, message: messages.FieldEdited) -> None:
         if self.session is None:
             return
+        from glidetask.tui.edits import FIELDS
+
         accepted = self.session.edit_field(message.field_id, message.text)
-        self._after_edit(accepted, message.field_id.split("-", 1)[-1])
+        spec = FIELDS.get(message.field_id)
+        self._after_edit(accepted, f"{spec.label if spec else message.field_id} changed")
 
     @on(messages.ScenarioEdit)
     def _scenario_edit(self, message: messages.ScenarioEdit) -> None:
         if self.session is None:
             return
-        accepted = self.session.edit(message.change)
+        accepted = self.session.edit(message.change, message.what)
         self._after_edit(accepted, message.what, message.field_id)
 
     def _after_edit(self, accepted: bool, what: str, field_id: str | None = None) -> None:
@@ -162,8 +175,26 @@ class GlideTaskApp(App[int]):
         self.dirty = session.dirty
         if accepted:
             self.scenario = session.scenario
-            self.notice = f"{what} changed: planning …"
+            self.notice = f"{what}: planning … (ctrl+z undoes)"
             self.request_plan()
+
+    def action_undo(self) -> None:
+        self._travel(self.session.undo if self.session else None, "undone", "nothing to undo")
+
+    def action_redo(self) -> None:
+        self._travel(self.session.redo if self.session else None, "redone", "nothing to redo")
+
+    def _travel(self, step, done: str, nothing: str) -> None:
+        what = step() if step is not None else None
+        if what is None:
+            self.notice = nothing
+            return
+        self.screen.set_focus(None)  # the fields show the restored values, not what was being typed
+        self._publish_problems()
+        self.dirty = self.session.dirty
+        self.scenario = self.session.scenario
+        self.notice = f"{done}: {what} · ctrl+z undo · ctrl+y redo"
+        self.request_plan()
 
     def _publish_problems(self, extra_field: str | None = None) -> None:
         from glidetask.tui.edits import field_for_where
@@ -206,6 +237,45 @@ class GlideTaskApp(App[int]):
         self.call_from_thread(self._opened, path, scenario)
         self._plan_now(scenario, generation, worker)
 
+    @work(thread=True, exclusive=True, group="warm")
+    def warm_views(self) -> None:
+        """Once the first plan is on screen: import the other views and their engine parts,
+        so a first visit paints at once (its progress line within 100 ms)."""
+        for name in VIEWS:
+            module = importlib.import_module(f"glidetask.tui.screens.{VIEWS[name][0]}")
+            del module
+        for name in ("glidetask.engine.compare", "glidetask.engine.simulate", "glidetask.formats.strategy_report"):
+            importlib.import_module(name)
+        self.call_from_thread(self._warm_styles)
+
+    def _warm_styles(self) -> None:
+        """Parse the styles of every view's widgets now, while the pilot reads the first view:
+        a first visit then does not re-read the whole style sheet before its first frame."""
+        from textual.widgets import DataTable, Input, Label, ProgressBar
+
+        from glidetask.tui.screens.compare_view import CompareView
+        from glidetask.tui.screens.odds_view import OddsView
+        from glidetask.tui.widgets.progress_notice import ProgressNotice
+        from glidetask.tui.widgets.strategy_odds import FinishPlot, LandoutsTable, OddsTable, ProbabilityBars
+        from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
+
+        added = False
+        try:  # a head start only: whatever fails here is done again on the first visit
+            nodes = (CompareView(), OddsView(), ProgressNotice(""), ProgressBar(), SweepTable(), SweepPlot(),
+                     ProbabilityBars(), OddsTable(), LandoutsTable(), FinishPlot(), DataTable(), Input(), Label())
+            for node in nodes:
+                for read_from, css, tie_breaker, scope in node._get_default_css():
+                    self.stylesheet.add_source(css, read_from=read_from, is_default_css=True,
+                                               tie_breaker=tie_breaker, scope=scope)
+                    added = True
+        except Exception:  # noqa: BLE001 - never let a warm-up take the app down
+            return
+        if added:
+            try:
+                self.stylesheet.reparse()
+            except Exception:  # noqa: BLE001
+                pass
+
     @work(thread=True, exclusive=True, group="plan")
     def plan_in_background(self, scenario, generation: int) -> None:
         self._plan_now(scenario, generation, get_current_worker())
@@ -227,15 +297,21 @@ class GlideTaskApp(App[int]):
             self.call_from_thread(self._plan_failed, generation, problems)
 
     def _opened(self, path: Path | None, scenario) -> None:
-        if self.session is None:
+        first = self.session is None
+        if first:
             self.session = EditSession(scenario, self.units, path)
         else:
             self.session.replace_all(scenario, path)
-            self.plan = None
         self.task_path = path
         self.dirty = False
+        if path is not None and not is_bundled(path):
+            from glidetask.tui import config
+
+            config.remember_task(path)
         self._publish_problems()
         self.scenario = scenario
+        if not first:
+            self.plan = None  # after the scenario: the views name the task they wait for
         self.notice = f"opened {path.name if path else scenario.task.name}: planning …"
 
     def _open_failed(self, path: Path, problems: list[Problem]) -> None:
@@ -248,9 +324,14 @@ class GlideTaskApp(App[int]):
             return  # a newer edit is being planned
         self.busy = False
         self.last_compute_s = outcome.elapsed_s
+        first = self.plan is None and not self._warmed
         self.plan = outcome
+        if first:
+            self._warmed = True
+            self.warm_views()
         self._publish_problems()
-        self.notice = "plan updated"
+        history = self.session.undo_stack if self.session is not None else []
+        self.notice = f"plan updated · ctrl+z undoes: {history[-1][1]}" if history else "plan updated"
 
     def _plan_failed(self, generation: int, problems: list[Problem]) -> None:
         if generation != self._generation:
@@ -265,10 +346,11 @@ class GlideTaskApp(App[int]):
     # ------------------------------------------------------------ files
 
     def action_open(self) -> None:
-        from glidetask.tui.screens.path_modal import PathModal
+        from glidetask.tui import config
+        from glidetask.tui.screens.open_modal import OpenModal
 
-        start = str(self.task_path.parent) + "/" if self.task_path else ""
-        self.push_screen(PathModal("Open a task file", start, action="Open"), self._open_chosen)
+        folder = self.task_path.parent if self.task_path else Path.cwd()
+        self.push_screen(OpenModal(folder, config.recent_tasks()), self._open_chosen)
 
     def _open_chosen(self, path: str | None) -> None:
         if not path:
@@ -288,8 +370,21 @@ class GlideTaskApp(App[int]):
         self._generation += 1
         self.open_and_plan(path.expanduser().absolute(), self._generation)
 
+    def _refuse_save(self) -> bool:
+        """True (and says why) while a field holds a refused value: it is never saved."""
+        from glidetask.tui.edits import FIELDS
+
+        pending = self.session.pending if self.session is not None else {}
+        if not pending:
+            return False
+        names = ", ".join(FIELDS[f].label if f in FIELDS else f for f in pending)
+        self.problems = tuple(self.session.problems) + (
+            Problem("input", "Save", f"not saved: correct {names} first (it holds a refused value)"),)
+        self.notice = f"not saved: {names} holds a refused value"
+        return True
+
     def action_save(self) -> None:
-        if self.session is None:
+        if self.session is None or self._refuse_save():
             return
         if self.session.path is None or is_bundled(self.session.path):
             self.action_save_as()
@@ -299,7 +394,7 @@ class GlideTaskApp(App[int]):
     def action_save_as(self, then_quit: bool = False) -> None:
         from glidetask.tui.screens.path_modal import PathModal
 
-        if self.session is None:
+        if self.session is None or self._refuse_save():
             return
         path = self.session.path
         title, hint = "Save the task as", ""
@@ -320,6 +415,8 @@ class GlideTaskApp(App[int]):
     def _save_to(self, path: Path) -> bool:
         from glidetask.tui import recompute
 
+        if self._refuse_save():
+            return False
         try:
             recompute.save_task(path, self.session.scenario)
         except (InputError, OSError, ValueError) as error:
@@ -328,6 +425,10 @@ class GlideTaskApp(App[int]):
             self.notice = f"not saved: {problems[0].what}"
             return False
         self.session.saved(path)
+        from glidetask.tui import config
+
+        config.remember_task(path)
+        self._publish_problems()
         self.task_path = path
         self.dirty = False
         self.notice = f"saved {path}"

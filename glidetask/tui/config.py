@@ -47,3 +47,29 @@ def acknowledge_cautions() -> bool:
     except OSError:
         return False
     return True
+
+
+RECENT_FILE = "recent-tasks"
+RECENT_COUNT = 8
+
+
+def recent_tasks() -> list[Path]:
+    """The task files opened or saved lately, newest first (those that still exist)."""
+    try:
+        lines = (config_dir() / RECENT_FILE).read_text(encoding="utf-8").splitlines()
+    except OSError:
+        return []
+    return [Path(line) for line in lines if line.strip() and Path(line).is_file()][:RECENT_COUNT]
+
+
+def remember_task(path: Path) -> bool:
+    """Put ``path`` first among the recent task files; False (no crash) if not writable."""
+    path = Path(path).expanduser().absolute()
+    kept = [path] + [p for p in recent_tasks() if p != path]
+    folder = config_dir()
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+        write_atomic(folder / RECENT_FILE, "".join(f"{p}\n" for p in kept[:RECENT_COUNT]))
+    except OSError:
+        return False
+    return True

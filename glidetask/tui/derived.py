@@ -24,6 +24,7 @@ class GliderCard:
     speed_to_fly_ms: np.ndarray  # still-air speed to fly [m/s TAS]
     cruise_speed_ms: np.ndarray  # still-air average speed with climbs at the setting [m/s]
     glide_ratio: np.ndarray  # still-air glide ratio at the speed to fly [-]
+    speed_to_fly_ias_ms: np.ndarray | None = None  # the speed to fly as indicated at ``altitude_m`` [m/s IAS]
 
 
 def card_settings_ms(units: UnitSystem) -> np.ndarray:
@@ -51,7 +52,10 @@ def glider_card(setup: GliderSetup, altitude_m: float, isa_deviation_c: float,
     speeds = np.asarray(speed_to_fly_still_air(current, settings), dtype=float)
     cruise = np.asarray(cruise_in_wind(current, settings, 0.0, 0.0).cruise_speed_ms, dtype=float)
     ratio = speeds / np.asarray(current.sink(speeds), dtype=float)
-    return GliderCard(reference, current, float(altitude_m), settings, speeds, cruise, ratio)
+    from glidetask.engine.atmosphere import ias_from_tas
+
+    ias = np.asarray(ias_from_tas(speeds, altitude_m, isa_deviation_c), dtype=float)
+    return GliderCard(reference, current, float(altitude_m), settings, speeds, cruise, ratio, ias)
 
 
 @dataclass(frozen=True)
@@ -76,6 +80,7 @@ class GlideAnswer:
     altitude_m: float  # where the polar's density is taken [m MSL]
     terrain: object | None = None  # engine.clearance.FinalGlideTerrain
     terrain_note: str = ""
+    speed_to_fly_ias_ms: float = float("nan")  # the speed to fly as indicated at ``altitude_m``
 
 
 def glide_altitude_m(question: GlideQuestion) -> float:
@@ -102,7 +107,10 @@ def answer_glide(scenario: Scenario, question: GlideQuestion, *, with_terrain: b
         note = "no terrain model in this task ([terrain] file)"
     elif not (question.start and question.goal):
         note = "terrain profile: choose a start and a goal turnpoint"
-    return GlideAnswer(question, glide, altitude, terrain, note)
+    from glidetask.engine.atmosphere import ias_from_tas
+
+    ias = float(ias_from_tas(glide.speed_to_fly_ms, altitude, scenario.day.isa_deviation_c))
+    return GlideAnswer(question, glide, altitude, terrain, note, ias)
 
 
 def _terrain_check(scenario: Scenario, question: GlideQuestion, glide):

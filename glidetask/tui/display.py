@@ -7,6 +7,8 @@ one :class:`glidetask.units.UnitSystem` formats, so the UI, the CLI and the brie
 from __future__ import annotations
 
 import math
+import re
+import re
 
 from glidetask import units as units_module
 from glidetask.units import UnitSystem
@@ -37,8 +39,20 @@ def speed(units: UnitSystem, metres_per_second) -> str:
     return _bare(units.fmt_speed(float(metres_per_second))) if _defined(metres_per_second) else DASH
 
 
+def ground_speed(units: UnitSystem, metres_per_second) -> str:
+    """A ground speed; none at all (never a negative figure) when the wind stops all headway."""
+    if _defined(metres_per_second) and float(metres_per_second) <= 0.0:
+        return "none"
+    return speed(units, metres_per_second)
+
+
 def vertical(units: UnitSystem, metres_per_second) -> str:
     return _bare(units.fmt_vertical(float(metres_per_second))) if _defined(metres_per_second) else DASH
+
+
+def count(n: int, noun: str) -> str:
+    """``1 ballast``, ``19 ballasts``."""
+    return f"{n} {noun}" if n == 1 else f"{n} {noun}s"
 
 
 def with_unit(text: str, label: str) -> str:
@@ -73,3 +87,26 @@ def number(value, decimals: int = 1) -> str:
         return ""
     text = f"{float(value):.{decimals}f}"
     return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+_QUANTITY = re.compile(r"(?<![\w.])(-?\d+(?:\.\d+)?) (km/h|m/s|km|m)(?![\w/])")
+
+
+def in_units(text: str, units: UnitSystem) -> str:
+    """Engine notes worded in metric only (the sweep's, the odds' and the what-if labels:
+    ``"(250 m radius)"``) in the units on screen.
+
+    A plan's cautions come worded in the units from :func:`glidetask.cautions.plan_cautions`;
+    the comparison and odds notes have no such home in the engine yet, so until they do the
+    UI converts the figures it finds in them, and a panel never mixes units.
+    """
+    if units.name == "metric":
+        return text
+
+    def convert(match: re.Match) -> str:
+        value, unit = float(match.group(1)), match.group(2)
+        si = value * {"km/h": units_module.KMH, "m/s": 1.0, "km": 1000.0, "m": 1.0}[unit]
+        return {"km/h": units.fmt_speed, "m/s": units.fmt_vertical, "km": units.fmt_distance,
+                "m": units.fmt_height}[unit](si)
+
+    return _QUANTITY.sub(convert, text)

@@ -14,11 +14,13 @@ import math
 import re
 from dataclasses import dataclass, replace
 
-from glidetask.engine.scenario import Profile, Scenario, Wind
+from glidetask.engine.scenario import MAX_WIND_SPEED_KMH, Profile, Scenario, Wind, scenario_problems
 from glidetask.errors import InputError, Problem
-from glidetask.units import UnitSystem, parse_clock
+from glidetask.units import KMH, UnitSystem, parse_clock
 
 SOURCE = "input"  # Problem.file for things typed in the UI
+# The strongest wind any input may give: the engine's one limit (the task file's too).
+WIND_MAX_MS = MAX_WIND_SPEED_KMH * KMH
 
 
 @dataclass(frozen=True)
@@ -150,11 +152,19 @@ def parse_wind(spec: FieldSpec, text: str, units: UnitSystem) -> Wind:
     if len(parts) != 2:
         raise _fail(spec, f"expected FROM/SPEED like 270/20 ({units.speed_label}), got {text!r}")
     direction, speed = _number(spec, parts[0]), _number(spec, parts[1])
+    # the task file's limits and wording ("[day] wind: speed_kmh must be in [0, 200], got 250"),
+    # in the units on screen
     if not 0.0 <= direction <= 360.0:
-        raise _fail(spec, f"wind direction must be 0-360 degrees, got {direction:g}")
-    if not 0.0 <= speed * units.speed_ms <= 50.0:
-        raise _fail(spec, f"wind speed must be 0-{units.speed(50.0):.0f} {units.speed_label}, got {speed:g}")
+        raise _fail(spec, f"direction must be in [0, 360] degrees, got {direction:g}")
+    if not 0.0 <= speed * units.speed_ms <= WIND_MAX_MS + 1e-9:
+        raise _fail(spec, f"speed must be in [0, {wind_limit_text(units)}] {units.speed_label}, got {speed:g}")
     return Wind(direction % 360.0, speed * units.speed_ms)
+
+
+def wind_limit_text(units: UnitSystem) -> str:
+    """The wind limit in the units on screen, never rounded up past it (200 km/h = 107.9 kt)."""
+    limit = units.speed(WIND_MAX_MS)
+    return f"{limit:.0f}" if abs(limit - round(limit)) < 1e-9 else f"{math.floor(limit * 10) / 10:.1f}"
 
 
 def field_text(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
@@ -176,6 +186,20 @@ def field_text(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
     if spec.kind == "vertical":
         return display.number(units.vertical(value), 1)
     return display.number(value, 1)
+
+
+def unit_of(spec: FieldSpec, units: UnitSystem) -> str:
+    """The unit a field is typed in (empty for clock times)."""
+    return {"mass": "kg", "percent": "%", "celsius": "°C", "height": units.height_label,
+            "vertical": units.vertical_label, "wind": units.speed_label}.get(spec.kind, "")
+
+
+def field_shown(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
+    """A field's accepted value with its name and unit: ``"Water ballast 20 kg"``."""
+    spec = FIELDS[field_id]
+    text = field_text(scenario, field_id, units) or "not set"
+    unit = unit_of(spec, units) if text not in ("not set", "calm") else ""
+    return f"{spec.label} {text}" + (f" {unit}" if unit else "")
 
 
 def _attribute(spec: FieldSpec) -> str:
@@ -200,29 +224,11 @@ def apply_field(scenario: Scenario, field_id: str, text: str, units: UnitSystem)
 
 
 def check_consistency(scenario: Scenario, units: UnitSystem, spec: FieldSpec | None = None) -> None:
-    """Problems between fields (band, start height, times, loading), blamed on ``spec`` if given."""
-    day, glider = scenario.day, scenario.glider
-
-    def blame(default: str) -> str:
-        return spec.where if spec is not None else f"[{default.split('-')[0]}] {default.split('-', 1)[1]}"
-
-    problems = []
-    if day.band_top_m <= day.band_bottom_m:
-        problems.append(Problem(SOURCE, blame("day-band_top_m"),
-                                f"the band top ({units.fmt_height(day.band_top_m)}) must be above "
-                                f"its bottom ({units.fmt_height(day.band_bottom_m)})"))
-    if day.start_height_m is not None and day.start_height_m > day.band_top_m + 1e-6:
-        problems.append(Problem(SOURCE, blame("day-start_height_m"),
-                                "the start height must not be above the top of the band"))
-    if day.start_time_s >= day.lift_ends_s:
-        problems.append(Problem(SOURCE, blame("day-start_time"), "the start must be before lift ends"))
-    spec_polar = glider.spec
-    if glider.ballast_kg > spec_polar.max_ballast_kg + 1e-9:
-        problems.append(Problem(SOURCE, blame("glider-ballast_kg"),
-                                f"this glider carries at most {spec_polar.max_ballast_kg:g} kg of ballast"))
-    if spec_polar.max_mass_kg is not None and glider.mass_kg > spec_polar.max_mass_kg + 1e-9:
-        problems.append(Problem(SOURCE, blame("glider-ballast_kg"),
-                                f"mass {glider.mass_kg:.0f} kg is above the maximum {spec_polar.max_mass_kg:g} kg"))
+    """Problems between fields (band, start height, times, loading) in the engine's words
+    (:func:`glidetask.engine.scenario.scenario_problems`, the task file's check too),
+    blamed on ``spec`` if given, else on the key the engine names."""
+    problems = [Problem(SOURCE, spec.where if spec is not None else key, message)
+                for key, message in scenario_problems(scenario)]
     if problems:
         raise InputError(problems)
 

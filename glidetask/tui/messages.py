@@ -41,3 +41,10 @@ class ViewRequested(Message):
     """Show the view called ``view`` (a mode name of the app)."""
 
     view: str
+
+
+@dataclass
+class Notice(Message):
+    """News for the status line (``text`` in the units on screen); the app shows the latest."""
+
+    text: str

@@ -15,12 +15,11 @@ from glidetask.engine.scenario import Scenario
 
 @dataclass(frozen=True)
 class Outcome:
-    """A plan, its contract form (shared/CONTRACT.md 5.3: the names and units every view
-    reads) and how long the engine took to make both [s]."""
+    """A plan (the engine's SI ``Plan``: the only form of it the views read) and how long
+    the engine took [s]."""
 
     scenario: Scenario
     plan: Any
-    summary: dict
     elapsed_s: float
 
 
@@ -32,14 +31,15 @@ def load_task(path: str | Path) -> Scenario:
 
 
 def compute_plan(scenario: Scenario) -> Outcome:
-    """Plan the task of ``scenario`` (engine.plan.plan) and put it in the contract's terms, timed."""
+    """Plan the task of ``scenario`` (engine.plan.plan), timed.
+
+    This module is the UI's one door to the planner: its imports of the engine's plan
+    module are here and nowhere else in the UI."""
     from glidetask.engine.plan import plan
-    from glidetask.formats.plan_json import plan_to_dict
 
     started = time.perf_counter()
     result = plan(scenario)
-    summary = plan_to_dict(result)
-    return Outcome(scenario, result, summary, time.perf_counter() - started)
+    return Outcome(scenario, result, time.perf_counter() - started)
 
 
 def save_task(path: str | Path, scenario: Scenario) -> None:
@@ -47,3 +47,18 @@ def save_task(path: str | Path, scenario: Scenario) -> None:
     from glidetask.formats.task_file import save_task as write
 
     write(Path(path), scenario)
+
+
+def heights_card(plan, settings_ms) -> Any:
+    """Heights needed to final-glide home from each turnpoint at each MacCready setting
+    [m MSL], rows by setting (engine.plan.final_glide_card)."""
+    from glidetask.engine.plan import final_glide_card
+
+    return final_glide_card(plan, tuple(settings_ms))
+
+
+def what_ifs(outcome: Outcome):
+    """The task time under the briefing's what-ifs (engine.sensitivity.plan_sensitivity)."""
+    from glidetask.engine.sensitivity import plan_sensitivity
+
+    return plan_sensitivity(outcome.plan)

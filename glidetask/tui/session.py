@@ -30,6 +30,10 @@ class EditSession:
     dirty: bool = False
     pending: dict[str, tuple[str, list[Problem]]] = field(default_factory=dict)
     structural_problems: list[Problem] = field(default_factory=list)
+    # undo history: (scenario before, what changed); keystrokes in one field make one step
+    undo_stack: list[tuple[Scenario, str]] = field(default_factory=list)
+    redo_stack: list[tuple[Scenario, str]] = field(default_factory=list)
+    _last_step: str | None = None  # the field the latest undo step is typing into
 
     @property
     def problems(self) -> list[Problem]:
@@ -48,13 +52,18 @@ class EditSession:
             self.pending[field_id] = (text, error.problems)
             return False
         self.pending.pop(field_id, None)
-        self._accept(updated)
+        label = edits.FIELDS[field_id].label if field_id in edits.FIELDS else field_id
+        self._accept(updated, label, step=field_id)
         return True
 
-    def edit(self, change: Callable[[Scenario], Scenario]) -> bool:
-        """Apply a structural edit (task points, zones, profile); False if refused."""
+    def edit(self, change: Callable[[Scenario], Scenario], what: str = "edit") -> bool:
+        """Apply a structural edit (task points, zones, profile); False if refused
+        (a change that would make a zero-length leg is refused too)."""
+        from glidetask.tui.task_edits import new_zero_length_legs
+
         try:
             updated = change(self.scenario)
+            new_zero_length_legs(self.scenario.task, updated.task)
         except InputError as error:
             self.structural_problems = list(error.problems)
             return False
@@ -62,10 +71,14 @@ class EditSession:
             self.structural_problems = [Problem(edits.SOURCE, "edit", str(error))]
             return False
         self.structural_problems = []
-        self._accept(updated)
+        self._accept(updated, what)
         return True
 
-    def _accept(self, updated: Scenario) -> None:
+    def _accept(self, updated: Scenario, what: str, step: str | None = None) -> None:
+        if step is None or step != self._last_step:
+            self.undo_stack.append((self.scenario, what))
+        self._last_step = step
+        self.redo_stack.clear()
         self.scenario = updated
         self.dirty = True
         for field_id, (text, _) in list(self.pending.items()):
@@ -76,12 +89,39 @@ class EditSession:
             else:
                 del self.pending[field_id]
 
+    def end_step(self) -> None:
+        """The pilot left a field: the next keystrokes make a new undo step."""
+        self._last_step = None
+
+    def undo(self) -> str | None:
+        """Back to the scenario before the latest step; what it undid (None: nothing to undo).
+        Refused texts are dropped: the scenario restored is a valid one."""
+        return self._travel(self.undo_stack, self.redo_stack)
+
+    def redo(self) -> str | None:
+        return self._travel(self.redo_stack, self.undo_stack)
+
+    def _travel(self, source: list, target: list) -> str | None:
+        if not source:
+            return None
+        scenario, what = source.pop()
+        target.append((self.scenario, what))
+        self.scenario = scenario
+        self.pending.clear()
+        self.structural_problems = []
+        self._last_step = None
+        self.dirty = True
+        return what
+
     def replace_all(self, scenario: Scenario, path: Path | None) -> None:
-        """A newly opened task: nothing pending, nothing unsaved."""
+        """A newly opened task: nothing pending, nothing unsaved, no history."""
         self.scenario, self.path = scenario, path
         self.dirty = False
         self.pending.clear()
         self.structural_problems = []
+        self.undo_stack.clear()
+        self.redo_stack.clear()
+        self._last_step = None
 
     def saved(self, path: Path) -> None:
         self.path, self.dirty = path, False

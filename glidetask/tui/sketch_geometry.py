@@ -22,6 +22,9 @@ class Sketch:
     points: list[tuple[float, float, str]] = field(default_factory=list)  # task points: x, y, label
     landables: list[tuple[float, float]] = field(default_factory=list)
     final_glide: tuple[float, float] | None = None  # where the final glide starts
+    # airspace outlines near the task: x, y and "near" | "crossed" (the path passes through
+    # or under it) | "conflict" (the plan enters it)
+    airspace: list[tuple[np.ndarray, np.ndarray, str]] = field(default_factory=list)
 
     def extent(self) -> tuple[float, float, float, float]:
         """``(xmin, xmax, ymin, ymax)`` of the task points, zones and path [m]."""
@@ -54,9 +57,26 @@ def task_centre(lats, lons) -> tuple[float, float]:
     return 0.5 * (lats.min() + lats.max()), ((centre_lon + 180.0) % 360.0) - 180.0
 
 
-def build_sketch(task, *, path=None, landables=(), final_glide_at=None) -> Sketch:
+NEAR_DEG = 0.3  # airspace within this of the task's bounding box is drawn [deg] (about 30 km)
+
+
+def near_volumes(airspace, lats, lons, margin_deg: float = NEAR_DEG) -> list[int]:
+    """Indices of the volumes whose outline box comes within ``margin_deg`` of the task's box."""
+    lat_min, lat_max = float(np.min(lats)) - margin_deg, float(np.max(lats)) + margin_deg
+    lon_min, lon_max = float(np.min(lons)) - margin_deg, float(np.max(lons)) + margin_deg
+    out = []
+    for index, volume in enumerate(airspace.volumes):
+        west, south, east, north = volume.bbox
+        if south <= lat_max and north >= lat_min and west <= lon_max and east >= lon_min:
+            out.append(index)
+    return out
+
+
+def build_sketch(task, *, path=None, landables=(), final_glide_at=None, airspace=None, check=None) -> Sketch:
     """Project the task's zones, its path (``(lats, lons)``, default centre to centre), the
-    landables (Turnpoints) and the final-glide start (``(lat, lon)``) into the local frame."""
+    landables (Turnpoints), the final-glide start (``(lat, lon)``) and the outlines of the
+    ``airspace`` volumes near the task (marked by the plan's ``check``, an
+    ``engine.airspace.AirspaceCheck``) into the local frame."""
     from glidetask.engine.zones import boundary
 
     centre_lat, centre_lon = task_centre(task.lats, task.lons)
@@ -80,4 +100,13 @@ def build_sketch(task, *, path=None, landables=(), final_glide_at=None) -> Sketc
     if final_glide_at is not None:
         x, y = to_local.transform(final_glide_at[1], final_glide_at[0])
         sketch.final_glide = (float(x), float(y))
+    if airspace is not None:
+        crossed = {s.volume for s in check.stretches} if check is not None else set()
+        conflicts = {c.volume for c in check.conflicts} if check is not None else set()
+        for index in near_volumes(airspace, task.lats, task.lons):
+            kind = "conflict" if index in conflicts else "crossed" if index in crossed else "near"
+            for polygon in airspace.volumes[index].polygons:
+                for ring in polygon:
+                    xs, ys = to_local.transform(ring[:, 0], ring[:, 1])
+                    sketch.airspace.append((np.asarray(xs), np.asarray(ys), kind))
     return sketch

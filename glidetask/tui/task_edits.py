@@ -72,3 +72,24 @@ def set_zone(scenario: Scenario, index: int, zone) -> Scenario:
     points = list(scenario.task.points)
     points[index] = replace(points[index], zone=zone)
     return _with_points(scenario, points)
+
+
+def zero_length_legs(task) -> list[tuple[int, str]]:
+    """Legs whose two points sit on the same place: (leg index, ``"VAR→VAR"``)."""
+    points = task.points
+    found = []
+    for i, (a, b) in enumerate(zip(points, points[1:])):
+        if (a.turnpoint.lat, a.turnpoint.lon) == (b.turnpoint.lat, b.turnpoint.lon):
+            names = [p.turnpoint.code or p.name for p in (a, b)]
+            found.append((i, "→".join(names)))
+    return found
+
+
+def new_zero_length_legs(before, after) -> None:
+    """InputError if ``after`` has more zero-length legs than ``before`` (a stray key never
+    adds a leg that goes nowhere; a file that already has one can still be edited)."""
+    old, new = zero_length_legs(before), zero_length_legs(after)
+    if len(new) > len(old):
+        legs = ", ".join(name for _, name in new)
+        raise InputError([Problem(SOURCE, "[task] points",
+                                  f"refused: that would make a leg of zero length ({legs})")])

@@ -74,6 +74,8 @@ async def test_save_as_and_open_from_the_dialog(demo_copy, acknowledged):
         assert app.task_path == target
         app.action_open()
         await pilot.pause()
+        await pilot.press("tab")  # from the list of files to the path typed
+        assert app.screen.query_one("#path-input").has_focus
         app.screen.query_one("#path-input").value = str(demo_copy.parent / "vardmoor-out-and-return.toml")
         await pilot.press("enter")
         await settle(pilot)
@@ -151,6 +153,7 @@ async def test_typing_in_the_open_dialog_adds_to_the_folder_given(demo_copy, ack
         await pilot.pause()
         field = app.screen.query_one("#path-input")
         assert field.value == str(demo_copy.parent) + "/"
+        await pilot.press("tab")  # past the list of files, to the path
         await pilot.press(*"vardmoor-out-and-return.toml", "enter")
         await settle(pilot)
         assert app.task_path == demo_copy.parent / "vardmoor-out-and-return.toml"

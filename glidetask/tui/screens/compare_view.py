@@ -16,8 +16,9 @@ from textual.app import ComposeResult
 from textual.containers import Horizontal, Vertical
 from textual.widgets import Static
 
+from glidetask.tui import display, messages
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.progress_notice import ProgressNotice
 from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
 
 CLIMB_NOTE = ("Here each loading climbs as it would circle in the thermals the day's climbs imply; "
@@ -34,6 +35,7 @@ class CompareView(ViewScreen):
     #compare-bottom { height: 1fr; min-height: 10; }
     #sweep-plot { width: 1fr; height: 1fr; }
     #sweep-summary { width: 46; height: 1fr; overflow-y: auto; }
+    CompareView.-stale #sweep-panel, CompareView.-stale #compare-bottom { opacity: 50%; }
     """
 
     def __init__(self):
@@ -43,18 +45,27 @@ class CompareView(ViewScreen):
         self._token = 0
 
     def compose_body(self) -> ComposeResult:
-        yield NeedsNotice(WAITING, id="compare-waiting")
-        with Vertical(id="sweep-panel", classes="panel"):
-            yield SweepTable(id="sweep-table")
-        with Horizontal(id="compare-bottom"):
-            yield SweepPlot(id="sweep-plot", classes="panel")
-            yield Static(id="sweep-summary", classes="panel")
+        # the first frame holds the progress line only: the table and the plot (costly to
+        # style and draw) are mounted just after it, so the key shows progress at once
+        yield ProgressNotice(WAITING, id="compare-waiting")
+        yield Vertical(id="sweep-panel", classes="panel")
+        yield Horizontal(id="compare-bottom")
+
+    _figures_mounted = False
 
     def on_mount(self) -> None:
         self.query_one("#sweep-panel").border_title = "Task time (h:mm) by thermal strength and water ballast (kg), best ballast"
-        self.query_one("#sweep-plot").border_title = "Task time against ballast"
-        self.query_one("#sweep-summary").border_title = "Should I fill the tanks?"
         self._show_parts(False)
+        self.call_after_refresh(self._mount_figures)
+
+    async def _mount_figures(self) -> None:
+        await self.query_one("#sweep-panel").mount(SweepTable(id="sweep-table"))
+        plot, summary = SweepPlot(id="sweep-plot", classes="panel"), Static(id="sweep-summary", classes="panel")
+        await self.query_one("#compare-bottom").mount_all([plot, summary])
+        plot.border_title = "Task time against ballast"
+        summary.border_title = "Should I fill the tanks?"
+        self._figures_mounted = True
+        self._draw()
 
     def _show_parts(self, ready: bool) -> None:
         self.query_one("#compare-waiting").display = not ready
@@ -64,11 +75,28 @@ class CompareView(ViewScreen):
     # ------------------------------------------------------------ computing
 
     def show_plan(self, outcome) -> None:
-        if outcome is None or outcome is self._computed_for:
+        scenario = self.app.scenario
+        name = scenario.task.name if scenario is not None else "the task"
+        if outcome is None:  # a task opening or the first plan: nothing shown may be another task's
+            self._computed_for = None
+            self._token += 1
+            self._show_parts(False)
+            self.query_one(ProgressNotice).say(f"Waiting for the plan of {name} …", working=True)
+            return
+        if outcome is self._computed_for:
             return
         self._computed_for = outcome
         self._token += 1
-        self.query_one("#sweep-panel").border_subtitle = "computing …"
+        if self.sweep is not None and self.sweep.task_name == outcome.scenario.task.name:
+            # the same task with new inputs: the old figures stay, dimmed and marked
+            self.query_one("#sweep-panel").border_subtitle = "recomputing … (figures for the previous inputs)"
+            self.add_class("-stale")
+        else:
+            self._show_parts(False)
+        self.query_one(ProgressNotice).say(
+            f"Computing the ballast sweep for {outcome.scenario.task.name}: task time for every water ballast "
+            "and thermal strength …", working=True)
+        self.query_one(ProgressNotice).display = True
         plan = outcome.plan
         self.sweep_in_background(outcome.scenario, plan.path, getattr(plan, "requirement", None), self._token)
 
@@ -87,14 +115,18 @@ class CompareView(ViewScreen):
         if token != self._token:
             return  # a newer plan is being swept
         self.sweep = sweep
+        self.remove_class("-stale")
+        self.query_one(ProgressNotice).say(WAITING, working=False)
         self.query_one("#sweep-panel").border_subtitle = (
-            f"{sweep.task_name} · {len(sweep.ballast_kg)} ballasts × {len(sweep.thermal_strength_ms)} strengths")
+            f"{sweep.task_name} · {display.count(len(sweep.ballast_kg), 'ballast')} × "
+            f"{display.count(len(sweep.thermal_strength_ms), 'strength')}")
         self._draw()
 
     def _failed(self, token: int, message: str) -> None:
         if token == self._token:
             self.query_one("#sweep-panel").border_subtitle = "not computed"
-            self.app.notice = f"ballast sweep: {message}"
+            self.query_one(ProgressNotice).say(f"The ballast sweep could not be computed: {message}", working=False)
+            self.post_message(messages.Notice(f"ballast sweep: {message}"))
 
     # ------------------------------------------------------------ drawing
 
@@ -105,8 +137,8 @@ class CompareView(ViewScreen):
         self._draw()  # the table shows as many ballast columns as fit
 
     def _draw(self) -> None:
-        if self.sweep is None:
-            return
+        if not self._figures_mounted or self.sweep is None or self._computed_for is None or self.sweep.task_name != self._computed_for.scenario.task.name:
+            return  # never another task's figures
         from glidetask.formats.strategy_report import forecast_line, sweep_verdict
 
         units, sweep = self.app.units, self.sweep
@@ -119,7 +151,7 @@ class CompareView(ViewScreen):
                       "the same strength all day; "
                       f"times averaged over where the climbs fall ({sweep.phases} positions). The best is the "
                       "lightest ballast within 0.2 % of the fastest.", style="dim")]
-        lines += [Text(f"⚠ {note}", style="#e0b15a") for note in sweep.notes]
+        lines += [Text(f"⚠ {display.in_units(note, units)}", style="#e0b15a") for note in sweep.notes]
         scenario = self.app.scenario
         if scenario is not None and scenario.day.climb is not None:
             lines.append(Text(CLIMB_NOTE, style="dim"))

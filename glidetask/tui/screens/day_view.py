@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
+from textual.widgets import Static
 
 from glidetask.tui import edits
 from glidetask.tui.screens.base import ViewScreen
@@ -51,6 +52,7 @@ class DayView(ViewScreen):
                     for field_id, kind, placeholder in fields:
                         yield FormField(field_id, edits.FIELDS[field_id].label, unit_label(kind, self.app.units),
                                         placeholder=placeholder)
+            yield Static(id="day-sounding", classes="panel day-panel", markup=False)
         with Vertical(id="day-right"):
             yield ProfileEditor(id="profile-editor", classes="panel")
             yield DayPlot(id="day-plot", classes="panel")
@@ -60,6 +62,7 @@ class DayView(ViewScreen):
             self.query_one(f"#{panel_id}").border_title = title
         self.query_one("#profile-editor").border_title = "Lift through the day"
         self.query_one("#day-plot").border_title = "The day"
+        self.query_one("#day-sounding").border_title = "The day from the sounding"
 
     def show_scenario(self, scenario, *, force: bool = False) -> None:
         units = self.app.units
@@ -68,7 +71,33 @@ class DayView(ViewScreen):
                 self.query_one(f"#{field_id}").parent.show(edits.field_text(scenario, field_id, units),
                                                            unit_label(kind, units), force=force)
         self.query_one(ProfileEditor).show(scenario.day, units)
+        self._show_sounding(scenario)
         self._draw_plot()
+
+    def _show_sounding(self, scenario) -> None:
+        """The sounding and the band through the day when the day comes from a sounding
+        (``scenario.day_source``), and which keys were typed over it."""
+        from glidetask.tui import sounding_text
+
+        panel = self.query_one("#day-sounding", Static)
+        air = self.query_one("#day-air")
+        source = getattr(scenario, "day_source", None)
+        panel.display = source is not None and source.sounding is not None
+        if not panel.display:
+            air.border_subtitle = ""
+            return
+        from rich.console import Group
+        from rich.text import Text
+
+        from glidetask.engine.sounding import sounding_drawing
+
+        typed = ", ".join(source.overridden)
+        air.border_subtitle = f"from the sounding · typed: {typed}" if typed else "from the sounding"
+        drawing = sounding_drawing(source.sounding, source.derived)
+        units, width = self.app.units, 40  # the left column's panel: 46 less borders and padding
+        panel.update(Group(Text(sounding_text.source_line(source), style="dim"),
+                           sounding_text.sounding_text(drawing, units, width, 9),
+                           sounding_text.band_text(drawing, units, width, 6)))
 
     def show_plan(self, outcome) -> None:
         self._draw_plot()
@@ -82,8 +111,6 @@ class DayView(ViewScreen):
         if scenario is None:
             return
         finish_s = None
-        if outcome is not None and outcome.summary.get("finish_time"):
-            from glidetask.units import parse_clock
-
-            finish_s = parse_clock(outcome.summary["finish_time"])
+        if outcome is not None and outcome.plan.finished:
+            finish_s = float(outcome.plan.finish_time_s)
         self.query_one(DayPlot).show(scenario.day, self.app.units, finish_s)

@@ -7,8 +7,10 @@ from pathlib import Path
 from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Input, Label, RadioButton, RadioSet, Static
+from textual.widgets import Input, Label, OptionList, Static
+from textual.widgets.option_list import Option
 
+from glidetask.tui import messages
 from glidetask.tui.exporting import FORMATS
 from glidetask.tui.screens.path_modal import PathSuggester
 
@@ -27,34 +29,42 @@ class ExportModal(ModalScreen):
     def compose(self) -> ComposeResult:
         with Vertical(classes="path-panel"):
             yield Label("Export the plan", classes="path-title")
-            with RadioSet(id="export-format"):
-                for index, (suffix, name) in enumerate(FORMATS.items()):
-                    yield RadioButton(f"{name}  ({suffix})", value=index == 1, id=f"export-{suffix[1:]}")
+            # a plain list: ↑↓ (or a click) picks the format, enter writes
+            yield OptionList(*(Option(f"{name}  ({suffix})", id=suffix) for suffix, name in FORMATS.items()),
+                             id="export-format")
             yield Input(self.base + "-briefing.md", id="export-path", suggester=PathSuggester(), select_on_focus=False)
-            yield Static("enter: write   shift+tab: choose the format   esc: cancel\n(files are written whole or not at all)",
-                         classes="path-hint", markup=False)
+            yield Static("↑↓: format · enter: write · tab: edit the file name · esc: cancel\n"
+                         "(files are written whole or not at all)", classes="path-hint", markup=False)
             yield Static("", id="export-error", markup=False)
 
     def on_mount(self) -> None:
-        self.query_one("#export-path", Input).focus()
+        formats = self.query_one("#export-format", OptionList)
+        formats.highlighted = list(FORMATS).index(".md")
+        formats.focus()
 
-    def on_radio_set_changed(self, event: RadioSet.Changed) -> None:
+    def on_option_list_option_highlighted(self, event: OptionList.OptionHighlighted) -> None:
         event.stop()
-        suffix = "." + event.pressed.id.removeprefix("export-")
-        name = {".md": "-briefing.md", ".gpx": "-route.gpx", ".json": "-plan.json"}[suffix]
+        name = {".md": "-briefing.md", ".gpx": "-route.gpx", ".json": "-plan.json"}[event.option.id]
         self.query_one("#export-path", Input).value = self.base + name
+
+    def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
+        event.stop()
+        self._write(self.query_one("#export-path", Input).value)
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
+        self._write(event.value)
+
+    def _write(self, path_text: str) -> None:
         from glidetask.tui.exporting import export_plan
 
         app = self.app
         try:
-            target = export_plan(event.value.strip(), app.plan.plan, app.units.name)
+            target = export_plan(path_text.strip(), app.plan.plan, app.units.name)
         except Exception as error:  # a failed export is a message in the dialog, never a crash
             self.query_one("#export-error", Static).update(f"✗ not written: {error}")
             return
-        app.notice = f"exported {target}"
+        self.post_message(messages.Notice(f"exported {target}"))
         self.dismiss(str(target))
 
     def action_cancel(self) -> None:

@@ -30,6 +30,22 @@ GLIDE_FIELDS = {
 }
 
 
+def si_factor(kind: str, units) -> float:
+    """SI per unit on screen for a field of this kind."""
+    return {"distance": units.distance_m, "height": units.height_m, "vertical": units.vertical_ms}.get(kind, 1.0)
+
+
+def shown_text(kind: str, si, units) -> str:
+    """The text a field shows for an SI value (the value itself stays exact: a unit switch is display only)."""
+    if kind == "speed":  # the wind
+        speed = units.speed(si.speed_ms)
+        return "calm" if speed == 0 else f"{si.from_deg:03.0f}/{display.number(speed, 0)}"
+    if kind == "degrees":
+        return display.degrees(si)
+    decimals = {"distance": 1, "height": 0, "vertical": 1}[kind]
+    return display.number(si / si_factor(kind, units), decimals)
+
+
 def unit_label(kind: str, units) -> str:
     return {"distance": units.distance_label, "height": units.height_label, "vertical": units.vertical_label,
             "speed": units.speed_label, "degrees": "° true"}.get(kind, "")
@@ -44,6 +60,10 @@ class GlideView(ViewScreen):
         super().__init__()
         self.texts: dict[str, str] = {}
         self.touched: set[str] = set()
+        # field id -> the exact SI value its text displays (defaults, and every field after a
+        # unit switch); a field the pilot types in again is read from its text
+        self.exact: dict[str, object] = {}
+        self.answer = None
 
     def compose_body(self) -> ComposeResult:
         with VerticalScroll(id="glide-left"):
@@ -84,10 +104,34 @@ class GlideView(ViewScreen):
             self.recompute()
 
     def show_units(self) -> None:
-        self.texts = {k: v for k, v in self.texts.items() if k in ("from", "to")}
-        self.touched.clear()
-        if self.app.scenario is not None:
-            self.show_scenario(self.app.scenario, force=True)
+        """Display only: every field keeps its value exactly (what the pilot typed too),
+        shown again in the new units; the answer is the same in SI."""
+        previous = getattr(self, "_units_shown", None) or self.app.units
+        units = self.app.units
+        for field_id, (_, kind) in GLIDE_FIELDS.items():
+            if field_id not in self.exact and field_id in self.texts:
+                value = self._parse(field_id, kind, previous)
+                if value is None:
+                    continue  # text that makes no sense stays as typed
+                self.exact[field_id] = value
+            if field_id in self.exact:
+                self.texts[field_id] = shown_text(kind, self.exact[field_id], units)
+                self.query_one(f"#{field_id}").parent.show(self.texts[field_id], unit_label(kind, units), force=True)
+            else:
+                self.query_one(f"#{field_id}").parent.show(self.texts.get(field_id, ""), unit_label(kind, units),
+                                                           force=True)
+        self._units_shown = units
+        self.recompute()
+
+    def _parse(self, field_id: str, kind: str, units):
+        """The SI value of a field's text in ``units`` (None if it makes no sense)."""
+        text = self.texts.get(field_id, "")
+        try:
+            if kind == "speed":
+                return edits.parse_wind(edits.FIELDS["day-wind"], text, units)
+            return float(text.replace(",", ".")) * si_factor(kind, units)
+        except (ValueError, InputError):
+            return None
 
     def _turnpoint(self, name):
         for turnpoint in self.app.scenario.turnpoints:
@@ -105,31 +149,35 @@ class GlideView(ViewScreen):
         origin = self._turnpoint(self.query_one("#glide-from", Select).value)
         goal = self._turnpoint(self.query_one("#glide-to", Select).value)
         outcome = self.app.plan
-        plan_mc = (outcome.summary.get("final_glide") or {}).get("mc_ms") if outcome is not None else None
+        plan_mc = None
+        if outcome is not None and outcome.plan.final_glide_mc_ms == outcome.plan.final_glide_mc_ms:  # not NaN
+            plan_mc = float(outcome.plan.final_glide_mc_ms)
         mc = plan_mc if plan_mc is not None else scenario.safety.final_glide_mc_ms or 0.0
         defaults = {
-            "glide-height": display.number(units.height(scenario.day.band_top_m), 0),
-            "glide-mc": display.number(units.vertical(mc), 1),
-            "glide-wind": edits.field_text(scenario, "day-wind", units),
-            "glide-margin": display.number(units.height(scenario.safety.arrival_margin_m), 0),
+            "glide-height": scenario.day.band_top_m,
+            "glide-mc": mc,
+            "glide-wind": scenario.day.wind,
+            "glide-margin": scenario.safety.arrival_margin_m,
         }
         if goal is not None:
-            defaults["glide-elevation"] = display.number(units.height(goal.elevation_m), 0)
+            defaults["glide-elevation"] = goal.elevation_m
         if origin is not None and goal is not None:
             length, azimuth, _ = geodesy.inverse(origin.lat, origin.lon, goal.lat, goal.lon)
-            defaults["glide-distance"] = display.number(units.distance(float(length)), 1)
-            defaults["glide-course"] = display.degrees(float(azimuth))
-        defaults.setdefault("glide-distance", "30")
-        defaults.setdefault("glide-course", "0")
-        defaults.setdefault("glide-elevation", "0")
+            defaults["glide-distance"] = float(length)
+            defaults["glide-course"] = float(azimuth)
+        defaults.setdefault("glide-distance", 30.0 * units.distance_m)
+        defaults.setdefault("glide-course", 0.0)
+        defaults.setdefault("glide-elevation", 0.0)
         manual = origin is None
         for field_id, (_, kind) in GLIDE_FIELDS.items():
             field = self.query_one(f"#{field_id}").parent
             locked = field_id in ("glide-distance", "glide-course") and not manual
             field.input.disabled = locked
             if force or field_id not in self.touched or locked:
-                self.texts[field_id] = defaults[field_id]
-                field.show(defaults[field_id], unit_label(kind, units), force=True)
+                self.exact[field_id] = defaults[field_id]
+                self.texts[field_id] = shown_text(kind, defaults[field_id], units)
+                field.show(self.texts[field_id], unit_label(kind, units), force=True)
+        self._units_shown = units
 
     @on(Select.Changed)
     def _place_chosen(self, event: Select.Changed) -> None:
@@ -149,6 +197,7 @@ class GlideView(ViewScreen):
         message.stop()
         self.texts[message.field_id] = message.text
         self.touched.add(message.field_id)
+        self.exact.pop(message.field_id, None)  # typed: read from the text from now on
         self.recompute()
 
     # ------------------------------------------------------------ the answer
@@ -162,14 +211,15 @@ class GlideView(ViewScreen):
 
         def number(field_id, factor=1.0, low=None, high=None):
             try:
-                value = float(texts.get(field_id, "").replace(",", ".")) * factor
+                exact = self.exact.get(field_id)
+                value = float(exact) if exact is not None else float(texts.get(field_id, "").replace(",", ".")) * factor
                 if (low is not None and value < low) or (high is not None and value > high) or value != value:
                     raise ValueError
                 return value
             except ValueError:
                 from glidetask.errors import Problem
 
-                problems.append(Problem("input", GLIDE_FIELDS[field_id][0].lower(),
+                problems.append(Problem("input", GLIDE_FIELDS[field_id][0],
                                         f"not a usable value: {texts.get(field_id, '')!r}"))
                 self.query_one(f"#{field_id}").add_class("-invalid")
                 return 0.0
@@ -183,9 +233,12 @@ class GlideView(ViewScreen):
         elevation = number("glide-elevation", units.height_m, -500.0, 9000.0)
         margin = number("glide-margin", units.height_m, 0.0, 3000.0)
         try:
-            wind = edits.parse_wind(edits.FIELDS["day-wind"], texts.get("glide-wind", ""), units)
+            wind = self.exact.get("glide-wind") or edits.parse_wind(edits.FIELDS["day-wind"], texts.get("glide-wind", ""),
+                                                                    units)
         except InputError as error:
-            problems.extend(error.problems)
+            from glidetask.errors import Problem
+
+            problems.extend(Problem("input", "Wind", p.what) for p in error.problems)
             self.query_one("#glide-wind").add_class("-invalid")
             wind = Wind()
         if problems:
@@ -206,7 +259,9 @@ class GlideView(ViewScreen):
         try:
             question = self.question()
         except InputError as error:
-            self.app.notice = "final glide: " + "; ".join(f"{p.where}: {p.what}" for p in error.problems)
+            # shown in the calculator itself, and gone as soon as the question makes sense again
+            self.answer = None
+            self.query_one(GlideVerdict).show_problems(error.problems)
             return
         self.answer_in_background(self.app.scenario, question)
 
@@ -217,7 +272,7 @@ class GlideView(ViewScreen):
             answer = derived.answer_glide(scenario, question)
         except Exception as error:  # shown, never a crash
             if not worker.is_cancelled:
-                self.app.call_from_thread(setattr, self.app, "notice", f"final glide: {error}")
+                self.app.call_from_thread(self.post_message, messages.Notice(f"final glide: {error}"))
             return
         if not worker.is_cancelled:
             self.app.call_from_thread(self._show_answer, answer)

@@ -66,7 +66,7 @@ class GliderView(ViewScreen):
         try:
             card = derived.glider_card(scenario.glider, altitude, scenario.day.isa_deviation_c, units)
         except ValueError as error:
-            self.app.notice = f"glider: {error}"
+            self.post_message(messages.Notice(f"glider: {error}"))
             return
         self.query_one(GliderFigures).show(card, scenario.glider, units)
         self.query_one(PolarPlot).show(card.reference, card.current, units)
@@ -85,7 +85,7 @@ class GliderView(ViewScreen):
                 raise ValueError
         except ValueError:
             field.add_class("-invalid")
-            self.app.notice = f"height for the figures: expected 0-{self.app.units.height(9000):.0f} {self.app.units.height_label}"
+            self.post_message(messages.Notice(f"height for the figures: expected 0-{self.app.units.height(9000):.0f} {self.app.units.height_label}"))
             return
         field.remove_class("-invalid")
         self.altitude_m = value

@@ -17,10 +17,10 @@ from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.widgets import Static
 
-from glidetask.tui import messages
+from glidetask.tui import display, messages
 from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.form_field import FormField
-from glidetask.tui.widgets.needs_engine import NeedsNotice
+from glidetask.tui.widgets.progress_notice import ProgressNotice
 from glidetask.tui.widgets.strategy_odds import FinishPlot, LandoutsTable, OddsTable, ProbabilityBars
 
 WAITING = "Odds flies the task over many simulated days around the forecast, once the plan is ready."
@@ -68,10 +68,10 @@ class OddsView(ViewScreen):
     #odds-bars { height: auto; }
     #odds-assumptions { height: auto; color: $text-muted; }
     #odds-right { width: 1fr; }
-    OddsView.-narrow #odds-left { width: 44; }
     #odds-table { height: auto; }
     #landouts-table { height: auto; max-height: 16; }
     #finish-plot { height: 1fr; min-height: 8; }
+    OddsView.-stale #odds-bars, OddsView.-stale #odds-right { opacity: 50%; }
     """
 
     def __init__(self):
@@ -83,28 +83,37 @@ class OddsView(ViewScreen):
 
     def compose_body(self) -> ComposeResult:
         with Vertical(id="odds-left"):
-            yield NeedsNotice(WAITING, id="odds-waiting")
+            yield ProgressNotice(WAITING, id="odds-waiting")
             with Vertical(id="odds-inputs", classes="panel"):
                 for field_id, label, unit in FIELDS:
                     yield FormField(field_id, label, unit, placeholder="empty, half, full" if "ballast" in field_id
                                     else "")
             yield ProbabilityBars(id="odds-bars", classes="panel")
             yield Static(id="odds-assumptions", classes="panel")
-        with Vertical(id="odds-right"):
-            yield OddsTable(id="odds-table", classes="panel")
-            yield LandoutsTable(id="landouts-table", classes="panel")
-            yield FinishPlot(id="finish-plot", classes="panel")
+        # the tables and the plot (costly to style and draw) are mounted just after the first
+        # frame, so the key shows the progress line at once
+        yield Vertical(id="odds-right")
+
+    _figures_mounted = False
+
+    async def _mount_figures(self) -> None:
+        parts = [OddsTable(id="odds-table", classes="panel"), LandoutsTable(id="landouts-table", classes="panel"),
+                 FinishPlot(id="finish-plot", classes="panel")]
+        await self.query_one("#odds-right").mount_all(parts)
+        for part, title in zip(parts, ("Task time of the finishers (h:mm)", "Land-outs by leg (days)",
+                                       "Days finished within a task time")):
+            part.border_title = title
+        self._figures_mounted = True
+        self._draw()
 
     def on_mount(self) -> None:
         self.query_one("#odds-inputs").border_title = "Simulation"
         self.query_one("#odds-bars").border_title = "Odds of finishing"
         self.query_one("#odds-assumptions").border_title = "The spread of days assumed"
-        self.query_one("#odds-table").border_title = "Task time among the finishers (h:mm)"
-        self.query_one("#landouts-table").border_title = "Land-outs by leg (days)"
-        self.query_one("#finish-plot").border_title = "Days finished within a task time"
         self._field("odds-runs").show(str(self.runs), force=True)
         self._field("odds-seed").show(str(self.seed), force=True)
         self._show_parts(False)
+        self.call_after_refresh(self._mount_figures)
 
     def _show_parts(self, ready: bool) -> None:
         self.query_one("#odds-waiting").display = not ready
@@ -137,7 +146,7 @@ class OddsView(ViewScreen):
                 self.ballasts = parse_ballasts(message.text, self._most_kg())
         except ValueError as error:
             field.add_class("-invalid")
-            self.app.notice = str(error) if "invalid literal" not in str(error) else "odds: expected a number"
+            self.post_message(messages.Notice(str(error) if "invalid literal" not in str(error) else "odds: expected a number"))
             return
         field.remove_class("-invalid")
         self._simulate(self.app.plan)
@@ -145,7 +154,14 @@ class OddsView(ViewScreen):
     # ------------------------------------------------------------ computing
 
     def show_plan(self, outcome) -> None:
-        if outcome is not None and outcome is not self._computed_for:
+        if outcome is None:  # a task opening or the first plan: nothing shown may be another task's
+            scenario = self.app.scenario
+            self._computed_for = None
+            self._token += 1
+            self._show_parts(False)
+            name = scenario.task.name if scenario is not None else "the task"
+            self.query_one(ProgressNotice).say(f"Waiting for the plan of {name} …", working=True)
+        elif outcome is not self._computed_for:
             self._simulate(outcome)
 
     def _simulate(self, outcome) -> None:
@@ -153,10 +169,18 @@ class OddsView(ViewScreen):
             return
         if self.ballasts is not None and max(self.ballasts) > self._most_kg() + 1e-9:
             self.ballasts = None  # the glider changed: back to empty, half, full
-            self.app.notice = "ballast choices reset: the glider carries less water"
+            self.post_message(messages.Notice("ballast choices reset: the glider carries less water"))
         self._computed_for = outcome
         self._token += 1
-        self.query_one("#odds-bars").border_subtitle = "computing …"
+        name = outcome.scenario.task.name
+        if self.odds is not None and self.odds.task_name == name:
+            self.query_one("#odds-bars").border_subtitle = "recomputing … (figures for the previous inputs)"
+            self.add_class("-stale")
+        else:
+            self._show_parts(False)
+        notice = self.query_one(ProgressNotice)
+        notice.say(f"Flying {name} over {self.runs} simulated days for each ballast choice …", working=True)
+        notice.display = True
         plan = outcome.plan
         self.simulate_in_background(outcome.scenario, (plan.path, getattr(plan, "requirement", None)), self.runs,
                                     self.seed, self.ballasts, self._token)
@@ -178,12 +202,15 @@ class OddsView(ViewScreen):
         if token != self._token:
             return
         self.odds = odds
+        self.remove_class("-stale")
+        self.query_one(ProgressNotice).say(WAITING, working=False)
         self._draw()
 
     def _failed(self, token: int, message: str) -> None:
         if token == self._token:
             self.query_one("#odds-bars").border_subtitle = "not computed"
-            self.app.notice = f"odds: {message}"
+            self.query_one(ProgressNotice).say(f"The simulated days could not be computed: {message}", working=False)
+            self.post_message(messages.Notice(f"odds: {message}"))
 
     # ------------------------------------------------------------ drawing
 
@@ -192,8 +219,8 @@ class OddsView(ViewScreen):
 
     def _draw(self) -> None:
         odds = self.odds
-        if odds is None:
-            return
+        if not self._figures_mounted or odds is None or self._computed_for is None or odds.task_name != self._computed_for.scenario.task.name:
+            return  # never another task's figures
         from glidetask.formats.strategy_report import assumption_text
 
         self._show_parts(True)
@@ -209,7 +236,7 @@ class OddsView(ViewScreen):
         text.append("\nPlanning assumptions of glidetask, not a forecast. The same days for each ballast.",
                     style="italic")
         for note in odds.notes[1:]:
-            text.append(f"\n⚠ {note}", style="#e0b15a")
+            text.append(f"\n⚠ {display.in_units(note, self.app.units)}", style="#e0b15a")
         scenario = self.app.scenario
         if scenario is not None and scenario.day.climb is not None:
             from glidetask.tui.screens.compare_view import CLIMB_NOTE

@@ -36,6 +36,7 @@ class SafetyView(ViewScreen):
         with Horizontal(id="safety-tables"):
             yield DataTable(id="gaps-table", classes="panel", cursor_type="row", zebra_stripes=True)
             yield DataTable(id="alternates-table", classes="panel", cursor_type="row", zebra_stripes=True)
+        yield Static(id="safety-airspace", classes="panel", markup=False)
         with Horizontal(id="safety-terrain"):
             yield Static(id="terrain-summary", classes="panel")
             yield TerrainProfile(id="safety-profile", classes="panel")
@@ -46,19 +47,49 @@ class SafetyView(ViewScreen):
         self.query_one("#coverage-panel").border_title = "Landable fields in reach from the band bottom"
         self.query_one("#gaps-table").border_title = "Gaps: no field in reach"
         self.query_one("#alternates-table").border_title = "Fields in reach, leg by leg"
+        self.query_one("#safety-airspace").border_title = "Airspace along the task"
         self.query_one("#terrain-summary").border_title = "Final glide over the terrain"
         self.query_one("#safety-profile").border_title = "The planned final glide"
+
+    _narrow = False
+
+    def on_resize(self, event) -> None:
+        narrow = event.size.width < 100
+        if narrow != self._narrow:
+            self._narrow = narrow
+            self.show_plan(self.app.plan)
 
     def show_plan(self, outcome) -> None:
         plan = outcome.plan if outcome is not None else None
         has_report = plan is not None and (plan.landables is not None or plan.terrain_source is not None)
-        self.query_one("#safety-needs").display = not has_report
+        has_airspace = plan is not None and plan.airspace is not None
+        self.query_one("#safety-needs").display = not (has_report or has_airspace)
         for widget_id in ("#coverage-panel", "#safety-tables", "#safety-terrain"):
             self.query_one(widget_id).display = bool(has_report)
+        self.query_one("#safety-airspace").display = bool(has_airspace)
+        if has_airspace:
+            self._show_airspace(plan)
         if not has_report:
             return
         self._show_landables(plan)
         self._show_terrain(plan)
+
+    # ------------------------------------------------------------ airspace
+
+    def _show_airspace(self, plan) -> None:
+        """Conflicts first (a clearance or another route is needed), then the capped tops,
+        each in the words of :mod:`glidetask.cautions` and the units on screen."""
+        units, check = self.app.units, plan.airspace
+        lines = [Text(f"⛔ {cautions.airspace_conflict(c, units)}", style=BAD) for c in check.conflicts]
+        lines += [Text(f"⚠ {cautions.airspace_cap(cap, units)}", style=DOUBT) for cap in check.caps]
+        if not lines:
+            lines.append(Text("no volume crossed and no band top capped along the planned path", style=GOOD))
+        lines += [Text(f"⚠ {text}", style="dim") for text in cautions.AIRSPACE]
+        lines.append(Text(f"airspace {check.source}" + (" · no conflict" if check.ok else
+                                                         f" · {len(check.conflicts)} conflict"
+                                                         f"{'s' if len(check.conflicts) != 1 else ''}"),
+                          style="dim"))
+        self.query_one("#safety-airspace", Static).update(Group(*lines))
 
     # ------------------------------------------------------------ landables
 
@@ -98,8 +129,11 @@ class SafetyView(ViewScreen):
         for index, entry in enumerate(c.by_leg):
             start, end = plan.legs[entry.leg].from_name, plan.legs[entry.leg].to_name
             leg = f"{entry.leg + 1} {codes.get(start) or start}→{codes.get(end) or end}"
-            also = ", ".join(f"{name} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
-            alternates.add_row(leg, entry.nearest or Text("none in reach", style=BAD),
+            # narrow: fields by their codes, so the list fits the width instead of running off it
+            short = (lambda name: codes.get(name) or name) if self._narrow else (lambda name: name)
+            also = ", ".join(f"{short(name)} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
+            nearest = short(entry.nearest) if entry.nearest else None
+            alternates.add_row(leg, nearest or Text("none in reach", style=BAD),
                                Text(display.distance(units, entry.distance_m), justify="right"), also,
                                key=f"alt-{index}")
 

@@ -10,7 +10,7 @@ from textual.containers import Horizontal, Vertical
 
 from glidetask.tui import messages, task_edits
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.legs_table import LEGEND, LegsTable
+from glidetask.tui.widgets.legs_table import LEGEND, LEGEND_NARROW, LegsTable
 from glidetask.tui.widgets.plan_totals import PlanTotals
 from glidetask.tui.widgets.points_table import PointsTable, role
 from glidetask.tui.widgets.task_sketch import TaskSketch
@@ -63,10 +63,13 @@ class TaskView(ViewScreen):
 
     def on_resize(self, event) -> None:
         compact = event.size.width < NARROW
+        # the whole legend only where the border holds it: never cut mid-word
+        self.query_one("#legs-table").border_subtitle = LEGEND if event.size.width >= len(LEGEND) + 8 else LEGEND_NARROW
         if compact != self._compact:
             self._compact = compact
             if self.app.scenario is not None:
                 self.show_scenario(self.app.scenario)
+                self.show_plan(self.app.plan)
 
     def show_scenario(self, scenario) -> None:
         shown = (scenario.task, scenario.turnpoints, self.app.units, self._compact)
@@ -79,16 +82,15 @@ class TaskView(ViewScreen):
 
     def _stale_changed(self, invalid) -> None:
         if bool(invalid) != self._stale:
-            self.query_one(PlanTotals).show(self.app.plan.plan if self.app.plan else None, self.app.units,
-                                            stale=bool(invalid))
             self._stale = bool(invalid)
+            self.query_one(PlanTotals).stale = self._stale  # the totals redraw in their watcher
 
     def show_plan(self, outcome) -> None:
         units = self.app.units
         plan = outcome.plan if outcome is not None else None
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(LegsTable).show(plan, units, codes)
+        self.query_one(LegsTable).show(plan, units, codes, compact=self._compact)
         self._stale = bool(self.app.invalid_fields)
         self.query_one(PlanTotals).show(plan, units, stale=self._stale)
         self._draw_sketch()
@@ -99,8 +101,9 @@ class TaskView(ViewScreen):
         scenario, outcome = self.app.scenario, self.app.plan
         if scenario is None:
             return
-        path, final_at = None, None
+        path, final_at, check = None, None, None
         if outcome is not None and outcome.scenario.task is scenario.task:
+            check = getattr(outcome.plan, "airspace", None)
             plan_path = getattr(outcome.plan, "path", None)
             if plan_path is not None:
                 path = (plan_path.lats, plan_path.lons)
@@ -109,9 +112,10 @@ class TaskView(ViewScreen):
                     final_at = point_along(plan_path.lats, plan_path.lons, from_m)
         landables = [t for t in scenario.turnpoints if t.landable]
         try:
-            sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at)
+            sketch = build_sketch(scenario.task, path=path, landables=landables, final_glide_at=final_at,
+                                  airspace=scenario.airspace, check=check)
         except Exception as error:  # a drawing problem never takes the view down
-            self.app.notice = f"sketch: {error}"
+            self.post_message(messages.Notice(f"sketch: {error}"))
             return
         self.query_one(TaskSketch).show(sketch, self.app.units)
 

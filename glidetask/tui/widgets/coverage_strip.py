@@ -5,7 +5,6 @@ from __future__ import annotations
 from rich.text import Text
 from textual.widget import Widget
 
-from glidetask.tui.contract import si
 
 
 class CoverageStrip(Widget):
@@ -19,13 +18,12 @@ class CoverageStrip(Widget):
         self.gaps: list[tuple[float, float]] = []
         self.legs_m: list[float] = []
 
-    def show(self, summary: dict | None) -> None:
-        """From the plan's contract form (None: nothing to draw)."""
-        if summary is None or not summary.get("landables"):
+    def show(self, plan) -> None:
+        """From the plan's own SI figures (None, or no landables: nothing to draw)."""
+        if plan is None or plan.landables is None:
             self.show_coverage(None, ())
         else:
-            self.show_coverage([si(leg, "distance_km") or 0.0 for leg in summary["legs"]],
-                               [(si(g, "from_km"), si(g, "to_km")) for g in summary["landables"].get("gaps", [])])
+            self.show_coverage([leg.distance_m for leg in plan.legs], plan.landables.gaps)
 
     def show_coverage(self, legs_m, gaps) -> None:
         """Legs' lengths [m] (None: nothing to draw) and the gaps as ``(from_m, to_m)`` along the task."""

@@ -31,11 +31,18 @@ class DayPlot(PlotextPlot):
         if finish_s is not None:
             plt.vline(finish_s / 3600.0, "orange")
         hours, labels = clock_ticks(first, last)
-        plt.xticks(hours, labels)
+        compact = self.size.width and self.size.width < 40
+        # a small plot: the ticks bare and the hours named in the axis label (the library's
+        # placement of tick labels on so few columns shifts by a column from draw to draw)
+        plt.xticks(hours, [""] * len(hours) if compact else labels)
+        plt.xlim(first / 3600.0, last / 3600.0)  # the axis pinned to the day: the same columns every draw
         top = max(float(np.nanmax(values)) * 1.15, 0.5)
         y_ticks = nice_ticks(0.0, top, 5)
         plt.yticks(y_ticks, number_labels(y_ticks))
-        plt.xlabel("local time · green start · red lift ends · orange planned finish")
+        if compact:
+            plt.xlabel(f"ticks {labels[0]} to {labels[-1]} local")
+        else:
+            plt.xlabel("local time · green start · red lift ends · orange planned finish")
         plt.ylabel(units.vertical_label)
         plt.ylim(0, top)
         self.refresh()

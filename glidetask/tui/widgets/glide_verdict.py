@@ -15,13 +15,26 @@ def verdict_text(margin_m: float, units: UnitSystem) -> Text:
     if margin_m != margin_m:  # NaN
         return Text(" OUT OF REACH against this wind ", style="bold reverse #e06c5a")
     if margin_m >= 0:
-        return Text(f" ON GLIDE · {units.fmt_height(margin_m)} above the required height ",
-                    style="bold reverse #8cc66d")
-    return Text(f" BELOW GLIDE · {units.fmt_height(-margin_m)} short ", style="bold reverse #e06c5a")
+        return Text(f" ABOVE final glide by {units.fmt_height(margin_m)} ", style="bold reverse #8cc66d")
+    return Text(f" BELOW final glide by {units.fmt_height(-margin_m)} ", style="bold reverse #e06c5a")
 
 
 class GlideVerdict(Static):
     """Verdict line, then the final-glide figures (contract 5.2 meanings)."""
+
+    _parts: list = []  # the last answer drawn
+
+    def show_problems(self, problems) -> None:
+        """What makes the question unusable, one line per field, above the last answer
+        (marked as the answer to the last valid question)."""
+        text = Text()
+        for problem in problems:
+            text.append(f"✗ {problem.where[:1].upper()}{problem.where[1:]}: {problem.what}\n", style="#e06c5a")
+        if self._parts:
+            text.append("the figures below are for the last valid input", style="italic #e0b15a")
+            self.update(Group(text, *self._parts))
+        else:
+            self.update(text)
 
     def show(self, answer, units: UnitSystem, plan_note: str = "") -> None:
         """The answer; ``plan_note``: where the plan itself starts its final glide, for comparison."""
@@ -31,14 +44,16 @@ class GlideVerdict(Static):
         grid.add_column(style="dim")
         grid.add_column(justify="right")
         rows = (  # what decides the glide first: on a small screen the rest scrolls
-            ("Required height", display.with_unit(display.height(u, glide.required_height_m), u.height_label)),
+            ("Required height", display.with_unit(display.height(u, glide.required_height_m), f"{u.height_label} MSL")),
             ("Margin", display.with_unit(display.height(u, glide.margin_m), u.height_label)),
             ("MacCready to arrive", display.with_unit(display.vertical(u, glide.mc_to_arrive_ms), u.vertical_label)
              if glide.mc_to_arrive_ms == glide.mc_to_arrive_ms else "not even at 0"),
             ("L/D required", display.ratio(glide.ld_required, 1)),
             ("L/D achievable", display.ratio(glide.ld_achievable, 1)),
             ("Speed to fly (TAS)", display.with_unit(display.speed(u, glide.speed_to_fly_ms), u.speed_label)),
-            ("Ground speed", display.with_unit(display.speed(u, glide.ground_speed_ms), u.speed_label)),
+            ("Speed to fly (IAS)", display.with_unit(display.speed(u, answer.speed_to_fly_ias_ms), u.speed_label)),
+            ("Ground speed", display.with_unit(display.ground_speed(u, glide.ground_speed_ms), u.speed_label)
+             if display.ground_speed(u, glide.ground_speed_ms) != "none" else "none: no headway"),
             ("Heading", display.degrees(glide.heading_deg) + "°"),
             ("Time", display.duration(glide.time_s)),
             ("Polar density at", display.with_unit(display.height(u, answer.altitude_m), u.height_label)),
@@ -64,4 +79,5 @@ class GlideVerdict(Static):
         if plan_note:
             parts.append(Text(""))
             parts.append(Text(f"The plan's own final glide: {plan_note}", style="dim"))
+        self._parts = parts
         self.update(Group(*parts))

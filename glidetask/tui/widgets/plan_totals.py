@@ -11,11 +11,12 @@ import math
 from rich.console import Group
 from rich.table import Table
 from rich.text import Text
+from textual.reactive import var
 from textual.widgets import Static
 
 from glidetask import cautions
 from glidetask.tui import display
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 LABEL = "dim"
 WARNING = "bold #e0b15a"
@@ -40,14 +41,40 @@ def final_glide_text(plan, units: UnitSystem) -> str:
 def particular_cautions(plan, units: UnitSystem) -> list[str]:
     """The plan's own cautions in ``units`` (the general, terrain and landable wording is
     always on screen)."""
-    known = set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES)
+    # the general wording is on f1 (and the airspace ones in Safety's airspace panel too)
+    known = (set(cautions.GENERAL) | set(cautions.TERRAIN) | set(cautions.LANDABLES) | set(cautions.AIRSPACE)
+             | {cautions.FLIGHT_LEVELS})
     return [c for c in cautions.plan_cautions(plan, units) if c not in known]
 
 
 class PlanTotals(Static):
-    """A compact block of the plan's totals and any caution particular to this plan."""
+    """A compact block of the plan's totals and any caution particular to this plan.
+
+    The view sets ``plan`` (the engine's SI ``Plan``, None while planning), ``units`` and
+    ``stale`` (the inputs on screen are refused: this is the last good plan); the block is
+    drawn in the watchers."""
+
+    plan = var(None, always_update=True)
+    units: var[UnitSystem] = var(METRIC)
+    stale = var(False)
 
     def show(self, plan, units: UnitSystem, *, stale: bool = False) -> None:
+        """Set all three at once, drawing once."""
+        self.set_reactive(PlanTotals.units, units)
+        self.set_reactive(PlanTotals.stale, stale)
+        self.plan = plan
+
+    def watch_plan(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_stale(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        plan, units, stale = self.plan, self.units, self.stale
         if plan is None:
             self.update(Text("planning …", style="dim"))
             return
@@ -57,14 +84,16 @@ class PlanTotals(Static):
             grid.add_column(no_wrap=True, min_width=10)
         finish = (Text(display.clock(plan.finish_time_s)) if plan.finished
                   else Text("not home", style=ALARM))
-        grid.add_row("Task", _distance(units, plan.optimized_distance_m),
+        area = plan.area
+        # an area task leads with the distance planned through its areas, as the CLI does
+        first = ("Planned", area.target_distance_m) if area is not None else ("Task", plan.optimized_distance_m)
+        grid.add_row(first[0], _distance(units, first[1]),
                      "Time", display.duration(plan.total_time_s), "Finish", finish)
         grid.add_row("Nominal", _distance(units, plan.nominal_distance_m),
-                     "Speed", display.with_unit(display.speed(units, plan.task_speed_ms), units.speed_label), "", "")
-        area = plan.area
+                     "Task speed", display.with_unit(display.speed(units, plan.task_speed_ms), units.speed_label),
+                     "", "")
         if area is not None:
-            grid.add_row("Planned", _distance(units, area.target_distance_m),
-                         "Min time", display.duration(area.min_time_s), "", "")
+            grid.add_row("", "", "Min time", display.duration(area.min_time_s), "", "")
         parts: list = [grid]
         if area is not None:
             parts.append(Text.assemble(("Areas allow ", LABEL), _distance(units, area.min_distance_m),

@@ -98,7 +98,7 @@ class ProfileEditor(Vertical):
     def remove_selected(self) -> None:
         table = self.query_one(ProfileTable)
         if not self.rows or len(self.rows) == 1:
-            self.app.notice = "the profile needs at least one row"
+            self.post_message(messages.Notice("the profile needs at least one row"))
             return
         texts = [(display.clock(t), display.number(self.units.vertical(v), 4))
                  for i, (t, v) in enumerate(self.rows) if i != table.cursor_row]

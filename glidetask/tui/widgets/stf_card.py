@@ -1,4 +1,5 @@
-"""The speed-to-fly card: MacCready setting, speed to fly, cruise speed, glide ratio."""
+"""The speed-to-fly card: MacCready setting, speed to fly (true and indicated), average
+speed with climbs at the setting, glide ratio (the words of glidetask.tui.glossary)."""
 
 from __future__ import annotations
 
@@ -12,14 +13,18 @@ class SpeedToFlyCard(DataTable):
     """One row per MacCready setting, still air."""
 
     def __init__(self, **kwargs):
-        super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
+        super().__init__(cursor_type="row", zebra_stripes=True, header_height=2, **kwargs)
 
     def show(self, card, units: UnitSystem) -> None:
         self.clear(columns=True)
-        self.add_column(f"MC {units.vertical_label}", key="mc")
-        self.add_column(f"Fly {units.speed_label}", key="speed")
-        self.add_column(f"Cruise {units.speed_label}", key="cruise")
-        self.add_column("L/D", key="ld")
-        for mc, speed, cruise, ratio in zip(card.mc_ms, card.speed_to_fly_ms, card.cruise_speed_ms, card.glide_ratio):
-            self.add_row(display.vertical(units, mc), display.speed(units, speed), display.speed(units, cruise),
-                         display.ratio(ratio), key=f"{mc:.3f}")
+        # two-line headers: the name over its unit, so the card fits its panel at 80 columns
+        self.add_column(f"MC\n{units.vertical_label}", key="mc")
+        self.add_column(f"STF\n{units.speed_label}", key="speed")
+        self.add_column(f"IAS\n{units.speed_label}", key="ias")
+        self.add_column(f"Avg\n{units.speed_label}", key="cruise")  # distance / time, climbs at the setting
+        self.add_column("L/D\n", key="ld")
+        ias = card.speed_to_fly_ias_ms if card.speed_to_fly_ias_ms is not None else [float("nan")] * len(card.mc_ms)
+        for mc, speed, ias_ms, cruise, ratio in zip(card.mc_ms, card.speed_to_fly_ms, ias, card.cruise_speed_ms,
+                                                    card.glide_ratio):
+            self.add_row(display.vertical(units, mc), display.speed(units, speed), display.speed(units, ias_ms),
+                         display.speed(units, cruise), display.ratio(ratio), key=f"{mc:.3f}")

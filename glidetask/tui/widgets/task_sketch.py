@@ -11,12 +11,15 @@ from glidetask.tui.braille import BrailleCanvas
 from glidetask.units import UnitSystem
 
 LAYER_STYLES = {
+    "airspace-near": "#5d5470",
+    "airspace-crossed": "#b48ee0",
+    "airspace-conflict": "bold #e06c9a",
     "landable": "#8cc66d",
     "zone": "#7f8ea3",
     "path": "bold #7a9cc6",
     "final": "bold #e0b15a",
 }
-LAYER_ORDER = ["landable", "zone", "path", "final"]
+LAYER_ORDER = ["airspace-near", "airspace-crossed", "airspace-conflict", "landable", "zone", "path", "final"]
 
 
 def _nice_step(length: float) -> float:
@@ -72,6 +75,9 @@ class TaskSketch(Widget):
             dx, dy = to_dots(x, y)
             for ox, oy in ((0, 0), (1, 0), (0, 1), (1, 1)):
                 canvas.dot(int(dx) + ox, int(dy) + oy, "landable")
+        for xs, ys, kind in self.sketch.airspace:  # outside the task's frame: clipped at the edge
+            dots = [to_dots(x, y) for x, y in zip(xs, ys)]
+            canvas.polyline([d[0] for d in dots], [d[1] for d in dots], f"airspace-{kind}")
         for xs, ys in self.sketch.zones:
             dots = [to_dots(x, y) for x, y in zip(xs, ys)]
             canvas.polyline([d[0] for d in dots], [d[1] for d in dots], "zone")

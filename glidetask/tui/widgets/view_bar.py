@@ -20,7 +20,9 @@ class ViewTab(Label):
         self.view, self.text = view, text
 
     def fit(self, narrow: bool) -> None:
-        self.update(f"{self.text} " if narrow else f" {self.text} ")
+        # narrow: eight views fit 80 columns with "Final glide" as "Final"
+        text = self.text.replace("Final glide", "Final") if narrow else self.text
+        self.update(f"{text} " if narrow else f" {self.text} ")
 
     def on_click(self) -> None:
         self.post_message(messages.ViewRequested(self.view))
@@ -34,7 +36,7 @@ class ViewBar(Horizontal):
         self.active_view = active_view
 
     def compose(self) -> ComposeResult:
-        from glidetask.tui.app import VIEWS
+        from glidetask.tui.views import VIEWS
 
         for index, (name, (_, _, title)) in enumerate(VIEWS.items(), start=1):
             yield ViewTab(name, f"{index} {title}", name == self.active_view)
@@ -57,8 +59,11 @@ class ViewBar(Horizontal):
         app = self.app
         scenario = getattr(app, "scenario", None)
         name = scenario.task.name if scenario is not None else "no task"
-        if self.size.width and self.size.width < NARROW:
-            name = ""  # the Task view's points panel names the task
+        narrow = bool(self.size.width and self.size.width < NARROW)
+        # narrow: the Task view's points panel names the task, and the eight tabs need the width
+        self.query_one("#view-bar-task", Label).display = not narrow
+        if narrow:
+            name = ""
         mark = " ●" if getattr(app, "dirty", False) else ""
         busy = " ⟳" if getattr(app, "busy", False) else ""
         self.query_one("#view-bar-task", Label).update(name)
