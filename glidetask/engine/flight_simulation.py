@@ -72,6 +72,9 @@ class Simulation(FinalGlideRequirement):
         # Inside the core distances are metres flown: the planned path's times the detour
         # factor; results and the requirement hook are in metres of the planned path.
         self.detour = course.detour_factor
+        if self.detour != 1.0:  # the ground and airspace hooks work in metres of the planned path
+            self.ground = None if self.ground is None else _InFlownMetres(self.ground, self.detour)
+            self.ceiling = None if self.ceiling is None else _InFlownMetres(self.ceiling, self.detour)
         self.leg_length = course.distance_m * self.detour
         self.course_deg = course.course_deg
         self.leg_start = course.leg_start_m * self.detour
@@ -111,7 +114,8 @@ class Simulation(FinalGlideRequirement):
     def _mark(self, rows, phase: str) -> None:
         """Record the first flight's position and height (a vertex of its planned profile)."""
         if self.trace is not None and rows.size and np.any(rows == 0):
-            self.trace.append((float(self.leg_start[self.leg[0]] + self.position[0]), float(self.height[0]), phase))
+            self.trace.append((float(self.leg_start[self.leg[0]] + self.position[0]) / self.detour, float(self.height[0]),
+                               phase))
 
     def _allocate(self, n: int, legs: int) -> None:
         nan_n, nan_nl = (lambda: np.full(n, np.nan)), (lambda: np.full((n, legs), np.nan))
@@ -498,9 +502,9 @@ class Simulation(FinalGlideRequirement):
         ``last`` (the finish), or to ``end_m`` [m along the course] on leg ``last``."""
         for j in range(int(k), int(last) + 1):
             if end_m is not None and j == last:
-                self.trace.append((end_m, end_height, phase))
+                self.trace.append((end_m / self.detour, end_height, phase))
             else:
-                self.trace.append((float(self.leg_start[j + 1]), float(height_after[j]), phase))
+                self.trace.append((float(self.leg_start[j + 1]) / self.detour, float(height_after[j]), phase))
 
     def _landed(self, rows, reason: int) -> None:
         """Flights that reached the arrival floor where they are (searching for a climb)."""
@@ -608,3 +612,18 @@ def _heading(course_deg, airspeed_ms, across_ms):
     across = np.asarray(across_ms, dtype=float)
     angle = correction_angle_deg(v, across)
     return np.mod(np.asarray(course_deg, dtype=float)[None, :] - np.asarray(angle), 360.0)
+
+
+class _InFlownMetres:
+    """A ground floor or airspace ceiling (:mod:`glidetask.engine.flight_ground`), which works in
+    metres of the planned path, seen from the core, which works in metres flown (the detour)."""
+
+    def __init__(self, hook, detour: float):
+        self.hook, self.detour = hook, detour
+
+    def contact(self, start_m, height_m, per_metre, limit_m, above_m):
+        d = self.hook.contact(start_m / self.detour, height_m, per_metre * self.detour, limit_m / self.detour, above_m)
+        return d * self.detour
+
+    def top(self, position_m, band_top_m, per_metre):
+        return self.hook.top(position_m / self.detour, band_top_m, per_metre * self.detour)

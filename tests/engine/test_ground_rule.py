@@ -165,3 +165,22 @@ def test_a_capped_band_costs_nothing_in_the_pure_macready_model_and_is_kept_unde
     # The whole task takes the same time (leg times differ by where the cycles fall: height
     # carried over a leg's end is time moved between legs).
     assert capped.total_time_s[0] == pytest.approx(free.total_time_s[0], abs=1.0)
+
+
+def test_with_a_detour_the_profile_and_the_ground_stay_on_the_planned_path():
+    # Source: the definitions (contract 3): a detour makes the flight longer, not the task; the
+    # profile is drawn along the planned path, and the clearance holds under every glide there.
+    from pathlib import Path
+
+    from glidetask.engine.plan import plan
+    from glidetask.formats.task_file import load_scenario
+
+    root = Path(__file__).resolve().parents[2]
+    scenario = load_scenario(root / "demo_tasks" / "vardmoor-ridge-final-glide.toml")
+    assert scenario.day.detour_percent > 0.0
+    result = plan(scenario)
+    profile = result.profile
+    assert profile.distance_m[-1] == pytest.approx(result.path.total_m, abs=1.0)
+    glides = np.array([phase != "climb" for phase in profile.phase]) & np.isfinite(profile.terrain_m)
+    clearance = scenario.safety.terrain_clearance_m
+    assert np.all(profile.height_m[glides] >= profile.terrain_m[glides] + clearance - 1.0)
