@@ -11,6 +11,7 @@ from textual.containers import Vertical, VerticalScroll
 from textual.screen import ModalScreen
 from textual.widgets import Label, Static
 
+from glidetask import cautions
 from glidetask.tui import display
 from glidetask.units import KNOT
 
@@ -41,9 +42,14 @@ def heights_table(outcome, units, codes: dict[str, str] | None = None) -> Table:
     for head in ("At", f"To go {units.distance_label}", "Plan",
                  *(f"MC {units.vertical(m):.0f}" for m in settings)):
         table.add_column(head, justify="right", no_wrap=True)
+    top = plan.scenario.day.band_top_m
+
+    def need(value) -> str:  # as the briefing reads it: a figure within the band, else "above"
+        return cautions.need_text(value, top, units) or "above"
+
     for i, name in enumerate(names):
-        table.add_row(name, display.clock(clocks[i]), display.distance(units, to_go[i]), display.height(units, planned[i]),
-                      *(display.height(units, card[j, i]) for j in range(len(settings))))
+        table.add_row(name, display.clock(clocks[i]), display.distance(units, to_go[i]), need(planned[i]),
+                      *(need(card[j, i]) for j in range(len(settings))))
     return table
 
 
