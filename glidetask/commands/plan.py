@@ -15,13 +15,13 @@ import argparse
 import math
 
 from glidetask import cautions, units
-from glidetask.cli import CMDLINE, check_number, parse_wind
+from glidetask.cli import CMDLINE, check_number, parse_wind, what_if_problems
 from glidetask.commands._output import caution_block, print_json
 from glidetask.errors import InputError, Problem
 from glidetask.formats.wind_text import wind_text
 
 
-def what_if_problems(args: argparse.Namespace) -> list[Problem]:
+def option_problems(args: argparse.Namespace) -> list[Problem]:
     """Range checks of the what-if options (shared with ``export``); parsed values go on ``args``."""
     problems = (check_number(args, "mc-ms", minimum=0.0, maximum=10.0)
                 + check_number(args, "ballast-kg", minimum=0.0)
@@ -48,11 +48,10 @@ def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = No
     maximum).
     """
     from glidetask.engine.plan import plan
-    from glidetask.engine.scenario import with_what_ifs
-    from glidetask.engine.scenario import Wind
+    from glidetask.engine.scenario import WhatIfError, Wind, with_what_ifs
     from glidetask.formats.task_file import load_scenario
 
-    problems = list(problems or []) + what_if_problems(args)
+    problems = list(problems or []) + option_problems(args)
     scenario = None
     try:
         scenario = load_scenario(args.task)
@@ -66,9 +65,9 @@ def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = No
     if scenario is not None:
         try:
             with_what_ifs(scenario, **what_ifs)
-        except InputError as error:  # what the options' own checks have not said already
+        except WhatIfError as error:  # what the options' own checks have not said already
             said = {(p.file, p.where) for p in problems}
-            problems += [p for p in error.problems if (p.file, p.where) not in said]
+            problems += [p for p in what_if_problems(error) if (p.file, p.where) not in said]
     if problems:
         raise InputError(problems)
     return plan(scenario, **what_ifs)
