@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from glidetask.engine.compare import TASK_TERRAIN, fly_stacked, planned_route
 from glidetask.engine.flight import Flown, course_for, flights_for, fly
 from glidetask.engine.plan import Notice, Plan
-from glidetask.engine.scenario import Profile, Scenario, Wind, apply_what_ifs, scenario_problems
+from glidetask.engine.scenario import Profile, Scenario, apply_what_ifs, scenario_problems
 from glidetask.units import KMH
 
 WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
@@ -67,20 +67,12 @@ class SensitivityRow:
 
 @dataclass(frozen=True)
 class Sensitivity:
-    """The forecast plan and its what-ifs (first row: the forecast).
-
-    ``wind``, ``start_time_s``, ``bugs_percent`` and ``lift_is_strength`` are the
-    forecast's, for describing the what-ifs in any units.
-    """
+    """The forecast plan and its what-ifs (first row: the forecast)."""
 
     task_name: str
     kind: str
     rows: tuple[SensitivityRow, ...]
     notes: tuple[Notice, ...]  # facts; :func:`glidetask.cautions.notice_text` words them
-    wind: Wind
-    start_time_s: float
-    bugs_percent: float
-    lift_is_strength: bool
 
     @property
     def forecast(self) -> SensitivityRow:
@@ -168,9 +160,7 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
     rows = [dataclasses.replace(row, delta_s=row.total_time_s - forecast.total_time_s
                                 if row.finished and forecast.finished else math.nan) for row in rows]
     notes = [Notice("what_ifs_area_targets")] if scenario.task.kind == "area" else []
-    day = scenario.day
-    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes), day.wind_at(day.band_middle_m),
-                       day.start_time_s, scenario.glider.bugs_percent, day.climb is None)
+    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes))
 
 
 def _sensitivity_row(key: str, facts: dict, flown: Flown | None, scenario: Scenario, path) -> SensitivityRow:

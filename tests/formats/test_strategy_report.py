@@ -13,7 +13,6 @@ from glidetask import cautions
 from glidetask.engine.compare import BallastSweep
 from glidetask.engine.plan import Notice
 from glidetask.engine.sensitivity import Sensitivity, SensitivityRow
-from glidetask.engine.scenario import Wind
 from glidetask.engine.simulate import ChoiceOdds, DaySpread, Odds, SpacingOdds
 from glidetask.formats import strategy_report as report
 from glidetask.units import AVIATION, KMH, KNOT
@@ -119,8 +118,7 @@ def hand_sensitivity() -> Sensitivity:
             row("later_start", {"by_s": 1800.0, "start_time_s": 12.5 * 3600.0}, 9000.0, NAN, finished=False,
                 landout=250e3),
             row("more_bugs", {"by_percent": 5.0, "bugs_percent": 5.0}, 11100.0, 300.0))
-    return Sensitivity("hand-made", "racing", rows, (Notice("what_ifs_area_targets"),), Wind(250.0, 15 * KMH),
-                       12 * 3600.0, 0.0, False)
+    return Sensitivity("hand-made", "racing", rows, (Notice("what_ifs_area_targets"),))
 
 
 def test_sensitivity_text_shows_times_and_signed_changes():
