@@ -112,8 +112,10 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     lines.append(f"            MacCready {mc}; final glide at {fg}; arrival "
                  f"{unit.fmt_height(safety.arrival_margin_m)} over the finish "
                  f"({unit.fmt_height(plan.arrival_floor_m)})")
-    lines.append(f"            centring {day.centring_s:g} s a climb, detour {day.detour_percent:g} % (common practice); "
-                 f"thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius ({day.thermal_radius_source})")
+    lines.append(f"            centring {day.centring_s:g} s a climb, detour {day.detour_percent:g} %, circling at "
+                 f"{day.stall_margin:g} x the banked stall speed (common practice)")
+    lines.append(f"            thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius "
+                 f"({day.thermal_radius_source})")
     return lines
 
 

@@ -282,7 +282,8 @@ def climb_table(scenario: Scenario, ballast_kg, strengths_ms):
     day = scenario.day
     polar = _band_polar(scenario, np.asarray(ballast_kg, dtype=float)[None, :])
     strengths = np.asarray(strengths_ms, dtype=float)[:, None]
-    climb = np.asarray(achieved_climb(polar, strengths, day.effective_thermal_radius_m).climb_ms, dtype=float)
+    climb = np.asarray(achieved_climb(polar, strengths, day.effective_thermal_radius_m,
+                                      stall_margin=day.stall_margin).climb_ms, dtype=float)
     with np.errstate(invalid="ignore"):
         cruise = np.asarray(cruise_in_wind(polar, np.maximum(climb, 0.0), 0.0, 0.0).cruise_speed_ms, dtype=float)
     cruise = np.where(climb > 0.0, cruise, np.nan)

@@ -16,6 +16,7 @@ import numpy as np
 
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.circling import DEFAULT_STALL_MARGIN
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.engine.thermals import thermal_radii
 from glidetask.errors import InputError, Problem
@@ -303,6 +304,9 @@ class Day:
     climb_ballast_kg: float | None = None  # the ballast ``climb`` was given for; None: the glider's own
     centring_s: float = 0.0  # time lost centring each thermal [s] (the task file's default: 30, common practice)
     detour_percent: float = 0.0  # the planned path flown this much longer [%] (task file default: 5, common practice)
+    #: Circling speed over the banked stall speed [-] (the circling model's margin, contract
+    #: section 3; common practice 1.15).
+    stall_margin: float = DEFAULT_STALL_MARGIN
     #: The band top through the day [m MSL] (None: ``band_top_m`` all day). When set,
     #: ``band_top_m`` is its highest value (the density of the cruise, the checks).
     band_top_profile: Profile | None = None

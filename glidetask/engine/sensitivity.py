@@ -13,7 +13,7 @@ import math
 from dataclasses import dataclass
 
 from glidetask.engine.compare import TASK_TERRAIN, fly_stacked, planned_route
-from glidetask.engine.flight import Flown, course_for, flights_for, fly
+from glidetask.engine.flight import Flown, course_for, flights_for
 from glidetask.engine.plan import Notice, Plan
 from glidetask.engine.scenario import Profile, Scenario, apply_what_ifs, scenario_problems
 from glidetask.units import KMH

@@ -183,8 +183,8 @@ def _day(plan, unit) -> list[str]:
         f"- MacCready: {mc}; final glide at {fg}; arrival margin {unit.fmt_height(safety.arrival_margin_m)} over "
         f"the finish ({unit.fmt_height(plan.arrival_floor_m)}).",
         f"- Practical speeds: {day.centring_s:g} s centring each climb, the path flown {day.detour_percent:g} % "
-        f"longer (both common practice); thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius "
-        f"({day.thermal_radius_source}).",
+        f"longer, circling at {day.stall_margin:g} times the banked stall speed (all common practice); thermals "
+        f"{unit.fmt_height(day.effective_thermal_radius_m)} in radius ({day.thermal_radius_source}).",
     ]
 
 

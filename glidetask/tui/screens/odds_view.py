@@ -18,7 +18,7 @@ from textual.containers import Vertical
 from textual.widgets import Static
 
 from glidetask import cautions
-from glidetask.tui import display, messages
+from glidetask.tui import messages
 from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.form_field import FormField
 from glidetask.tui.widgets.progress_notice import ProgressNotice
