@@ -98,7 +98,7 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "climb" if day.climb is not None else "thermal strength"
     lift = ", ".join(f"{units.format_clock(t)} {unit.vertical(v):.1f}" for t, v in zip(profile.times_s, profile.values))
-    wind = wind_text(day.wind, unit)
+    wind = wind_text(day.wind, unit, band=(day.band_bottom_m, day.band_top_m))
     top = unit.fmt_height(day.band_top_m)
     if day.band_top_profile is not None:
         top = f"{unit.fmt_height(day.band_top_at(day.start_time_s))} at the start (highest {top})"

@@ -169,7 +169,7 @@ def _day(plan, unit) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "Achieved climb" if day.climb is not None else "Thermal strength (circling model gives the climb)"
     lift = ", ".join(f"{format_clock(t)} {unit.fmt_vertical(v)}" for t, v in zip(profile.times_s, profile.values))
-    wind = wind_text(day.wind, unit, words=True)
+    wind = wind_text(day.wind, unit, words=True, band=(day.band_bottom_m, day.band_top_m))
     mc = "the climb of each thermal" if day.mc_ms is None else unit.fmt_vertical(day.mc_ms)
     fg = "the cruise setting at that moment" if safety.final_glide_mc_ms is None else \
         unit.fmt_vertical(safety.final_glide_mc_ms)
