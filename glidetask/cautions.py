@@ -6,7 +6,8 @@ here. The general cautions are constants; a plan's own cautions (its notices: fa
 numbers, :class:`glidetask.engine.plan.Notice`), and the terrain and landable cautions of
 one plan or one glide, are worded by the functions below from the engine's results (read
 by their attributes, so this module imports nothing of the engine) in the unit system the
-reader chose (:func:`plan_cautions`).
+reader chose (:func:`plan_cautions`). The notes of a ballast sweep, of the odds and of the
+what-ifs are notices too (:func:`notes_text`); JSON takes them in metric.
 """
 
 from __future__ import annotations
