@@ -34,7 +34,7 @@ class SensitivityRow:
         Which what-if: one of :data:`WHAT_IFS`.
     facts : dict
         What was changed, with the new value, for wording it in any units
-        (:func:`glidetask.cautions.what_if_words`): ``weaker_climbs`` ``by_ms`` and
+        (:func:`glidetask.formats.strategy_report.what_if_words`): ``weaker_climbs`` ``by_ms`` and
         ``strength`` (bool: the day gives thermal strength, not achieved climb);
         ``more_wind`` ``by_ms``, ``from_deg`` and ``speed_ms`` (the what-if's wind at the
         band middle, the cruise's); ``later_start`` ``by_s`` and ``start_time_s``;
