@@ -23,6 +23,8 @@ Zone keys, sizes in km (contract 2.3):
 absent, the typical radius for the day's convective layer (Allen 2006,
 :func:`glidetask.engine.thermals.thermal_radii`), the layer being the band top above the
 ground: ``[day] surface_elevation_m`` where given, else the task's lowest turnpoint.
+``[day] stall_margin`` (optional, 1.05-1.5, default 1.15, common practice): the circling
+model's speed over the banked stall speed.
 """
 
 from __future__ import annotations
