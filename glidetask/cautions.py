@@ -6,7 +6,8 @@ here. The general cautions are constants; a plan's own cautions (its notices: fa
 numbers, :class:`glidetask.engine.plan.Notice`), and the terrain and landable cautions of
 one plan or one glide, are worded by the functions below from the engine's results (read
 by their attributes, so this module imports nothing of the engine) in the unit system the
-reader chose (:func:`plan_cautions`).
+reader chose (:func:`plan_cautions`). The notes of a ballast sweep, of the odds and of the
+what-ifs are notices too (:func:`notes_text`); JSON takes them in metric.
 """
 
 from __future__ import annotations
@@ -180,7 +181,8 @@ def _ends_short(f: dict, units: "UnitSystem") -> str:
 
 
 def notice_text(notice, units: "UnitSystem") -> str:
-    """One fact about a plan (a :class:`glidetask.engine.plan.Notice`) in words and ``units``."""
+    """One fact about a plan, a ballast sweep, the odds or the what-ifs (a
+    :class:`glidetask.engine.plan.Notice`) in words and ``units``."""
     f, code = notice.facts, notice.code
     if code == "ends_short":
         return _ends_short(f, units)
@@ -214,7 +216,74 @@ def notice_text(notice, units: "UnitSystem") -> str:
         return (f"Even the longest path through the areas ({units.fmt_distance(f['distance_m'])}) takes only "
                 f"{format_duration(f['time_s'])}, under the minimum time {format_duration(f['min_time_s'])}: "
                 f"the speed is scored over the minimum time.")
+    return _strategy_note_text(code, f, units)
+
+
+# ---------------------------------------------------------------- the sweep's, the odds' and the what-ifs' notes
+
+STRATEGY_NOTES = {
+    "no_water_ballast": "This glider carries no water ballast: only the empty glider is shown.",
+    "sweep_area_targets": "Area task: the times are for the targets the plan chose; the minimum time still applies.",
+    "dump_water": "Dump water before landing out, and whenever the climbs turn weak.",
+    "odds_landout_meaning": ("A land-out here means reaching the finish elevation plus the arrival margin away from "
+                             "the finish: choose a field well before that."),
+    "odds_area_targets": "Area task: every day flies the forecast plan's targets.",
+    "what_ifs_area_targets": ("Area task: the what-ifs fly the forecast plan's targets; on the day, move the "
+                              "targets to keep the minimum time."),
+}
+
+
+def _setting(value_ms: float, units: "UnitSystem") -> str:
+    """A setting as typed (``1.5 m/s``, ``2 m/s``): no more decimals than it needs."""
+    return f"{round(units.vertical(value_ms), units.vertical_decimals + 1):g} {units.vertical_label}"
+
+
+def bad_day_words(spread) -> str:
+    """The bad-day mode of a :class:`glidetask.engine.simulate.DaySpread` in words,
+    e.g. "1 day in 10 the lift ends 1-2 h early"."""
+    p = spread.bad_day_probability
+    if p <= 0.0 or spread.bad_day_early_s[1] <= 0.0:
+        return "no bad days"
+    shortest, longest = (t / 3600.0 for t in spread.bad_day_early_s)
+    share = f"1 day in {1.0 / p:.0f}" if abs(1.0 / p - round(1.0 / p)) < 1e-9 else f"{100 * p:g} % of days"
+    return f"{share} the lift ends {shortest:g}-{longest:g} h early"
+
+
+def layer_depth(depth_m: float, units: "UnitSystem") -> str:
+    """The depth of a convective layer: in km (one decimal) in metric, as heights elsewhere."""
+    return units.fmt_distance(depth_m) if units.distance_label == "km" else units.fmt_height(depth_m)
+
+
+def search_source(odds, units: "UnitSystem") -> str:
+    """Where the odds' thermal search distance comes from (:class:`glidetask.engine.simulate.Odds`),
+    in words; "" where the spread gave it."""
+    depth = getattr(odds, "search_layer_m", math.nan)
+    return "" if not math.isfinite(depth) else f"Allen (2006) for a {layer_depth(depth, units)} convective layer"
+
+
+def _strategy_note_text(code: str, f: dict, units: "UnitSystem") -> str:
+    if code in STRATEGY_NOTES:
+        return STRATEGY_NOTES[code]
+    if code == "sweep_one_thermal":
+        return (f"Thermals are taken as constant in strength all day and of one size "
+                f"({units.fmt_height(f['thermal_radius_m'])} radius, {f['source']}): real days vary, and a narrower "
+                f"thermal punishes ballast more.")
+    if code == "sweep_ignores_fixed_mc":
+        return (f"The sweep flies at a MacCready setting equal to the achieved climb, not the day's fixed setting "
+                f"of {_setting(f['mc_ms'], units)}.")
+    if code == "odds_spread_assumed":
+        s = f["spread"]
+        return (f"The spread of days is a planning assumption of glidetask, not a forecast: strength "
+                f"x exp(N(0, {s.climb_log_sd:g})), wind speed +/- {units.fmt_speed(s.wind_speed_sd_ms)} "
+                f"and direction +/- {s.wind_direction_sd_deg:.0f} deg (1 sd), end of lift +/- "
+                f"{s.lift_end_sd_s / 60:.0f} min, {bad_day_words(s)}, next climb on average "
+                f"{units.fmt_distance(s.thermal_search_mean_m)} beyond the band bottom.")
     raise ValueError(f"unknown notice {code!r}")
+
+
+def notes_text(notes, units: "UnitSystem") -> list[str]:
+    """The notes of a sweep, the odds or the what-ifs (their ``notes``: facts) in ``units``."""
+    return [notice_text(note, units) for note in notes]
 
 
 def safety_cautions(plan, units: "UnitSystem") -> list[str]:

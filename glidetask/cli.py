@@ -77,6 +77,19 @@ def check_number(args: argparse.Namespace, name: str, *, minimum: float | None =
     return []
 
 
+#: The command-line option of each what-if, by the task-file key it replaces (the engine's
+#: check, :func:`glidetask.engine.scenario.scenario_problems`, names keys only).
+WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
+                   "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
+
+
+def what_if_problems(error) -> list[Problem]:
+    """A :class:`glidetask.engine.scenario.WhatIfError` as the command line words it: a
+    problem a what-if made is named by its option, one of the task file by file and key."""
+    return [Problem(CMDLINE, WHAT_IF_OPTIONS[key], message) if key in error.what_ifs else problem
+            for (key, message), problem in zip(error.pairs, error.problems)]
+
+
 # ---------------------------------------------------------------- the parser
 
 

@@ -68,3 +68,20 @@ def test_the_whole_flight_cautions_follow_the_chosen_units():
     text = cautions.notice_text(short, aviation)
     assert "10.0 NM along the task" in text and "terrain of 5000 ft" in text and "2.0 NM E of Kellow Hill" in text
     assert "cannot be flown as set" in text
+
+
+def test_the_sweep_odds_and_what_if_notes_follow_the_chosen_units(demo_dir):
+    # The engine gives the notes as facts; worded here once, for the CLI text, the briefing
+    # and the UI in the units shown, and in metric for JSON. Conversions as above:
+    # 200 m = 656 ft, 8 km/h = 4.3 kt.
+    from glidetask.engine.compare import ballast_sweep
+    from glidetask.engine.simulate import simulate_days
+
+    scenario = load_scenario(demo_dir / "vardmoor-forecast-day.toml")  # thermals of 200 m given in the task
+    sweep, odds = ballast_sweep(scenario), simulate_days(scenario, runs=10, seed=1)
+    aviation = cautions.notes_text(sweep.notes, AVIATION) + cautions.notes_text(odds.notes, AVIATION)
+    metric = cautions.notes_text(sweep.notes, METRIC) + cautions.notes_text(odds.notes, METRIC)
+    assert "(656 ft radius, given in the task)" in aviation[0] and "(200 m radius, given in the task)" in metric[0]
+    assert any("wind speed +/- 4 kt" in text for text in aviation)
+    assert any("wind speed +/- 8 km/h" in text for text in metric)
+    assert not any(METRIC_QUANTITY.search(text) for text in aviation), aviation

@@ -14,10 +14,10 @@ from __future__ import annotations
 import argparse
 import math
 
-from glidetask.cli import CMDLINE
+from glidetask.cli import CMDLINE, what_if_problems
 from glidetask.commands._output import print_json
-from glidetask.engine.scenario import with_what_ifs
-from glidetask.commands.sweep import with_day_source_notes
+from glidetask.engine.scenario import WhatIfError, with_what_ifs
+from glidetask.commands.sweep import day_cautions
 from glidetask.engine.simulate import DaySpread, simulate_days, spacing_odds
 from glidetask.errors import InputError, Problem
 from glidetask.formats import strategy_report
@@ -47,8 +47,8 @@ def ballast_problems(scenario, ballasts) -> list[Problem]:
     for value in ballasts:
         try:
             with_what_ifs(scenario, ballast_kg=value)
-        except InputError as error:
-            problems += [p for p in error.problems if p.where == "--ballast-kg" and p not in problems]
+        except WhatIfError as error:
+            problems += [p for p in what_if_problems(error) if p.where == "--ballast-kg" and p not in problems]
     return problems
 
 
@@ -68,7 +68,7 @@ def run(args: argparse.Namespace) -> int:
     odds = simulate_days(scenario, runs=args.runs, seed=args.seed, ballasts_kg=ballasts, spread=spread)
     odds = spacing_odds(scenario, odds)  # what the odds rest on (none with --spread 0)
     if args.json:
-        print_json(strategy_report.odds_to_dict(with_day_source_notes(odds, scenario, "metric")))
+        print_json(strategy_report.odds_to_dict(odds, day_cautions(scenario, "metric")))
     else:
-        print(strategy_report.odds_text(with_day_source_notes(odds, scenario, args.units), args.units))
+        print(strategy_report.odds_text(odds, args.units, day_cautions(scenario, args.units)))
     return 0

@@ -15,13 +15,13 @@ import argparse
 import math
 
 from glidetask import cautions, units
-from glidetask.cli import CMDLINE, check_number, parse_wind
+from glidetask.cli import CMDLINE, check_number, parse_wind, what_if_problems
 from glidetask.commands._output import caution_block, print_json
 from glidetask.errors import InputError, Problem
 from glidetask.formats.wind_text import wind_text
 
 
-def what_if_problems(args: argparse.Namespace) -> list[Problem]:
+def option_problems(args: argparse.Namespace) -> list[Problem]:
     """Range checks of the what-if options (shared with ``export``); parsed values go on ``args``."""
     problems = (check_number(args, "mc-ms", minimum=0.0, maximum=10.0)
                 + check_number(args, "ballast-kg", minimum=0.0)
@@ -48,11 +48,10 @@ def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = No
     maximum).
     """
     from glidetask.engine.plan import plan
-    from glidetask.engine.scenario import with_what_ifs
-    from glidetask.engine.scenario import Wind
+    from glidetask.engine.scenario import WhatIfError, Wind, with_what_ifs
     from glidetask.formats.task_file import load_scenario
 
-    problems = list(problems or []) + what_if_problems(args)
+    problems = list(problems or []) + option_problems(args)
     scenario = None
     try:
         scenario = load_scenario(args.task)
@@ -66,9 +65,9 @@ def plan_from_args(args: argparse.Namespace, problems: list[Problem] | None = No
     if scenario is not None:
         try:
             with_what_ifs(scenario, **what_ifs)
-        except InputError as error:  # what the options' own checks have not said already
+        except WhatIfError as error:  # what the options' own checks have not said already
             said = {(p.file, p.where) for p in problems}
-            problems += [p for p in error.problems if (p.file, p.where) not in said]
+            problems += [p for p in what_if_problems(error) if (p.file, p.where) not in said]
     if problems:
         raise InputError(problems)
     return plan(scenario, **what_ifs)
@@ -99,7 +98,7 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "climb" if day.climb is not None else "thermal strength"
     lift = ", ".join(f"{units.format_clock(t)} {unit.vertical(v):.1f}" for t, v in zip(profile.times_s, profile.values))
-    wind = wind_text(day.wind, unit)
+    wind = wind_text(day.wind, unit, band=(day.band_bottom_m, day.band_top_m))
     top = unit.fmt_height(day.band_top_m)
     if day.band_top_profile is not None:
         top = f"{unit.fmt_height(day.band_top_at(day.start_time_s))} at the start (highest {top})"
@@ -113,8 +112,10 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
     lines.append(f"            MacCready {mc}; final glide at {fg}; arrival "
                  f"{unit.fmt_height(safety.arrival_margin_m)} over the finish "
                  f"({unit.fmt_height(plan.arrival_floor_m)})")
-    lines.append(f"            centring {day.centring_s:g} s a climb, detour {day.detour_percent:g} % (common practice); "
-                 f"thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius ({day.thermal_radius_source})")
+    lines.append(f"            centring {day.centring_s:g} s a climb, detour {day.detour_percent:g} %, circling at "
+                 f"{day.stall_margin:g} x the banked stall speed (common practice)")
+    lines.append(f"            thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius "
+                 f"({day.thermal_radius_source})")
     return lines
 
 

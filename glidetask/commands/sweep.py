@@ -22,18 +22,15 @@ def run(args: argparse.Namespace) -> int:
     scenario = load_scenario(args.task)
     sweep = sweep_by_thermal_size(scenario)  # the day's thermals, and narrow and broad ones beside
     if args.json:
-        print_json(strategy_report.sweep_to_dict(with_day_source_notes(sweep, scenario, "metric")))
+        print_json(strategy_report.sweep_to_dict(sweep, day_cautions(scenario, "metric")))
     else:
-        print(strategy_report.sweep_text(with_day_source_notes(sweep, scenario, args.units), args.units))
+        print(strategy_report.sweep_text(sweep, args.units, day_cautions(scenario, args.units)))
     return 0
 
 
-def with_day_source_notes(result, scenario, unit_name: str):
-    """A sweep or odds result whose notes carry the cautions of a day derived from a
-    sounding (the keys typed over it, the sounding's own), in ``unit_name``."""
-    import dataclasses
-
+def day_cautions(scenario, unit_name: str) -> list[str]:
+    """The cautions of a day derived from a sounding (the keys typed over it, the
+    sounding's own) in ``unit_name``, for a sweep or the odds; none for a typed day."""
     from glidetask import cautions, units
 
-    extra = cautions.day_source_cautions(scenario.day_source, units.by_name(unit_name), scenario.day.start_time_s)
-    return dataclasses.replace(result, notes=tuple(extra) + tuple(result.notes)) if extra else result
+    return cautions.day_source_cautions(scenario.day_source, units.by_name(unit_name), scenario.day.start_time_s)

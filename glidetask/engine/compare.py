@@ -207,8 +207,9 @@ class BallastSweep:
         achieved-climb profile [m/s].
     phases : int
         Number of positions of the climbs along the route averaged over.
-    notes : tuple of str
-        What the pilot should know about this sweep (cautions of its own).
+    notes : tuple of Notice
+        What the pilot should know about this sweep, as facts
+        (:class:`glidetask.engine.plan.Notice`; :mod:`glidetask.cautions` words them).
     """
 
     task_name: str
@@ -227,7 +228,7 @@ class BallastSweep:
     scenario_ballast_kg: float
     forecast_strength_ms: float
     phases: int
-    notes: tuple[str, ...]
+    notes: tuple[planning.Notice, ...]
     thermal_radius_source: str = ""
     #: The best ballast in narrow, typical and broad thermals (:func:`sweep_by_thermal_size`);
     #: empty if not asked.
@@ -281,7 +282,8 @@ def climb_table(scenario: Scenario, ballast_kg, strengths_ms):
     day = scenario.day
     polar = _band_polar(scenario, np.asarray(ballast_kg, dtype=float)[None, :])
     strengths = np.asarray(strengths_ms, dtype=float)[:, None]
-    climb = np.asarray(achieved_climb(polar, strengths, day.effective_thermal_radius_m).climb_ms, dtype=float)
+    climb = np.asarray(achieved_climb(polar, strengths, day.effective_thermal_radius_m,
+                                      stall_margin=day.stall_margin).climb_ms, dtype=float)
     with np.errstate(invalid="ignore"):
         cruise = np.asarray(cruise_in_wind(polar, np.maximum(climb, 0.0), 0.0, 0.0).cruise_speed_ms, dtype=float)
     cruise = np.where(climb > 0.0, cruise, np.nan)
@@ -453,17 +455,16 @@ def _first_strength(strengths: np.ndarray, mask: np.ndarray) -> float:
     return float(strengths[hits[0]]) if hits.size else math.nan
 
 
-def _sweep_notes(scenario: Scenario, ballast: np.ndarray) -> list[str]:
-    notes = ["Thermals are taken as constant in strength all day and of one size "
-             f"({scenario.day.effective_thermal_radius_m:.0f} m radius, {scenario.day.thermal_radius_source}): "
-             "real days vary, and a narrower thermal "
-             "punishes ballast more."]
+def _sweep_notes(scenario: Scenario, ballast: np.ndarray) -> list[planning.Notice]:
+    """What the pilot must know about a sweep, as facts (:func:`glidetask.cautions.notice_text` words them)."""
+    day = scenario.day
+    notes = [planning.Notice("sweep_one_thermal", {"thermal_radius_m": day.effective_thermal_radius_m,
+                                                   "source": day.thermal_radius_source})]
     if ballast.max() <= 0.0:
-        notes.append("This glider carries no water ballast: only the empty glider is shown.")
+        notes.append(planning.Notice("no_water_ballast"))
     if scenario.task.kind == "area":
-        notes.append("Area task: the times are for the targets the plan chose; the minimum time still applies.")
-    if scenario.day.mc_ms is not None:
-        notes.append("The sweep flies at a MacCready setting equal to the achieved climb, not the day's "
-                     f"fixed setting of {scenario.day.mc_ms:g} m/s.")
-    notes.append("Dump water before landing out, and whenever the climbs turn weak.")
+        notes.append(planning.Notice("sweep_area_targets"))
+    if day.mc_ms is not None:
+        notes.append(planning.Notice("sweep_ignores_fixed_mc", {"mc_ms": day.mc_ms}))
+    notes.append(planning.Notice("dump_water"))
     return notes

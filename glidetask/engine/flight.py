@@ -65,7 +65,7 @@ from glidetask.engine.flight_simulation import (  # the reasons a flight ends, n
     UNRESOLVED, Simulation,
 )
 from glidetask.engine.polar import PolarSpec
-from glidetask.engine.circling import strength_for_climb
+from glidetask.engine.circling import DEFAULT_STALL_MARGIN, strength_for_climb
 from glidetask.engine.scenario import Profile, Scenario, WindProfile
 
 __all__ = ["BELOW_FLOOR", "FINAL_GLIDE", "LIFT_ENDED", "NO_CLIMB", "NO_THERMAL_FOUND", "REASONS", "TERRAIN_ABOVE_BAND",
@@ -169,6 +169,9 @@ class Flights:
         ISA temperature deviation [degC].
     centring_s : array_like
         Time lost centring each thermal before the climb begins [s] (common practice: 30 s).
+    stall_margin : array_like
+        Circling speed over the banked stall speed, with ``lift_is_strength`` [-]
+        (:func:`glidetask.engine.circling.achieved_climb`; common practice 1.15).
     """
 
     spec: PolarSpec
@@ -196,11 +199,12 @@ class Flights:
     band_top_values: object = ()
     centring_s: object = 0.0
     wind_profile: object = None
+    stall_margin: object = DEFAULT_STALL_MARGIN
 
     _PER_FLIGHT = ("mass_kg", "start_time_s", "start_height_m", "band_top_m", "band_bottom_m", "lift_ends_s",
                    "finish_elevation_m", "bugs_percent", "wind_from_deg", "wind_speed_ms", "lift_scale",
                    "thermal_radius_m", "mc_ms", "final_glide_mc_ms", "arrival_margin_m", "glide_airmass_ms",
-                   "isa_deviation_c", "centring_s")
+                   "isa_deviation_c", "centring_s", "stall_margin")
 
     def columns(self) -> dict[str, np.ndarray]:
         """The per-flight fields as float arrays of one shape (N,) (read-only views)."""
@@ -433,7 +437,7 @@ def flights_for(scenario: Scenario) -> Flights:
         final_glide_mc_ms=nan if safety.final_glide_mc_ms is None else safety.final_glide_mc_ms,
         finish_elevation_m=scenario.task.points[-1].turnpoint.elevation_m,
         arrival_margin_m=safety.arrival_margin_m, glide_airmass_ms=day.glide_airmass_ms,
-        isa_deviation_c=day.isa_deviation_c, centring_s=day.centring_s)
+        isa_deviation_c=day.isa_deviation_c, centring_s=day.centring_s, stall_margin=day.stall_margin)
 
 
 def day_lift(scenario: Scenario) -> tuple[Profile, bool]:
@@ -463,7 +467,8 @@ def climb_strengths(scenario: Scenario) -> np.ndarray:
     ballast = glider.ballast_kg if day.climb_ballast_kg is None else day.climb_ballast_kg
     own = glider.polar_at(day.band_middle_m, day.isa_deviation_c, ballast_kg=ballast)
     values = np.asarray(day.climb.values, dtype=float)
-    strength = np.asarray(strength_for_climb(own, values, day.effective_thermal_radius_m), dtype=float)
+    strength = np.asarray(strength_for_climb(own, values, day.effective_thermal_radius_m,
+                                             stall_margin=day.stall_margin), dtype=float)
     return np.where(values > 0.0, np.nan_to_num(strength, nan=0.0), 0.0)
 
 

@@ -32,10 +32,10 @@ class LiftClock:
         # Per flight: the profile is thermal strength (True) or achieved climb (False).
         self.is_strength = np.broadcast_to(np.asarray(flights.lift_is_strength, dtype=bool), self.ends.shape)
         if self.is_strength.any():
-            self._tabulate(polar, columns["thermal_radius_m"])
+            self._tabulate(polar, columns["thermal_radius_m"], columns["stall_margin"])
 
-    def _tabulate(self, polar: Polar, radius) -> None:
-        """Achieved climb on a fixed strength grid, one row per distinct polar and radius.
+    def _tabulate(self, polar: Polar, radius, stall_margin) -> None:
+        """Achieved climb on a fixed strength grid, one row per distinct polar, radius and stall margin.
 
         The grid does not depend on the batch, so a flight gets the same table in any batch.
         """
@@ -44,12 +44,13 @@ class LiftClock:
         grid = np.arange(steps) * STRENGTH_STEP_MS
         # The circling speed rests on the stall speed (circling.py), so it is part of the key.
         keys = np.column_stack([np.broadcast_to(np.asarray(x, dtype=float), radius.shape) for x in (
-            polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, polar.wings_level_stall_ms, radius)])
+            polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms, polar.wings_level_stall_ms, radius,
+            stall_margin)])
         unique, self.table_row = np.unique(keys, axis=0, return_inverse=True)
         self.table_row = self.table_row.ravel()
         rows = Polar(a=unique[:, :1], b=unique[:, 1:2], c=unique[:, 2:3], min_speed_ms=unique[:, 3:4],
                      vne_ms=unique[:, 4:5], stall_speed_ms=unique[:, 5:6])
-        self.table = np.asarray(achieved_climb(rows, grid[None, :], unique[:, 6:7]).climb_ms)
+        self.table = np.asarray(achieved_climb(rows, grid[None, :], unique[:, 6:7], stall_margin=unique[:, 7:8]).climb_ms)
 
     def profile(self, rows, time_s):
         """The profile's value (x scale) for flights ``rows`` at their times ``time_s``."""

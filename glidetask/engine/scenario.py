@@ -16,6 +16,7 @@ import numpy as np
 
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine.atmosphere import density_ratio
+from glidetask.engine.circling import DEFAULT_STALL_MARGIN
 from glidetask.engine.polar import Polar, PolarSpec, scaled_polar
 from glidetask.engine.thermals import thermal_radii
 from glidetask.errors import InputError, Problem
@@ -25,10 +26,9 @@ if TYPE_CHECKING:  # imported for type names only; keeps this module cheap
     from glidetask.engine.task import Task, Turnpoint
 
 
-CMDLINE = "command line"
-#: The command-line option of each what-if, by the task-file key it replaces.
-WHAT_IF_OPTIONS = {"[glider] ballast_kg": "--ballast-kg", "[glider] bugs_percent": "--bugs-percent",
-                   "[day] mc_ms": "--mc-ms", "[day] wind": "--wind", "[day] start_time": "--start"}
+#: The "file" of a problem a what-if made (its place is the task-file key the what-if replaced);
+#: the command line and the UI name it in their own terms (:class:`WhatIfError`).
+WHAT_IF = "what-if"
 #: Kept below every airspace floor and above every ceiling unless the task says otherwise [m]
 #: (common practice).
 DEFAULT_AIRSPACE_MARGIN_M = 100.0
@@ -43,7 +43,7 @@ def scenario_problems(scenario: "Scenario") -> list[tuple[str, str]]:
     """What makes a scenario inconsistent, as ``(task-file key, message)`` pairs.
 
     The one check of a whole scenario: the task-file reader, the command line's what-ifs
-    (:func:`with_what_ifs`) and the UI each name the key in their
+    (:func:`with_what_ifs`, :class:`WhatIfError`) and the UI each name the key in their
     own terms. Empty when the scenario can be planned.
     """
     glider, day = scenario.glider, scenario.day
@@ -304,6 +304,9 @@ class Day:
     climb_ballast_kg: float | None = None  # the ballast ``climb`` was given for; None: the glider's own
     centring_s: float = 0.0  # time lost centring each thermal [s] (the task file's default: 30, common practice)
     detour_percent: float = 0.0  # the planned path flown this much longer [%] (task file default: 5, common practice)
+    #: Circling speed over the banked stall speed [-] (the circling model's margin, contract
+    #: section 3; common practice 1.15).
+    stall_margin: float = DEFAULT_STALL_MARGIN
     #: The band top through the day [m MSL] (None: ``band_top_m`` all day). When set,
     #: ``band_top_m`` is its highest value (the density of the cruise, the checks).
     band_top_profile: Profile | None = None
@@ -401,19 +404,31 @@ class Scenario:
 # ---------------------------------------------------------------- what-ifs
 
 
-def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None,
-                  wind: "Wind | WindProfile | None" = None,
-                  start_time_s=None) -> Scenario:
-    """The scenario with the given what-ifs (None keeps the scenario's value).
+#: The task-file key each what-if of :func:`with_what_ifs` replaces, by its argument.
+WHAT_IF_KEYS = {"ballast_kg": "[glider] ballast_kg", "bugs_percent": "[glider] bugs_percent",
+                "mc_ms": "[day] mc_ms", "wind": "[day] wind", "start_time_s": "[day] start_time"}
 
-    Raises
-    ------
-    InputError
-        A what-if that makes the inputs inconsistent (ballast above the polar's
-        maximum, a mass above the maximum mass, a start at or after the end of lift, a
-        negative setting), named by its command-line option; problems of the scenario
-        itself are named by the task file and key.
+
+class WhatIfError(InputError):
+    """What-ifs that make a scenario inconsistent.
+
+    ``pairs`` are :func:`scenario_problems`' ``(task-file key, message)`` pairs;
+    ``what_ifs`` the keys a what-if replaced (:data:`WHAT_IF_KEYS`). As an
+    :class:`~glidetask.errors.InputError` each problem is named by the task file and key,
+    or by :data:`WHAT_IF` and the key where a what-if gave the value; the command line
+    and the UI map the keys to their own option and field names.
     """
+
+    def __init__(self, pairs: list[tuple[str, str]], what_ifs: frozenset[str], file: str):
+        self.pairs, self.what_ifs = list(pairs), frozenset(what_ifs)
+        super().__init__([Problem(WHAT_IF if key in self.what_ifs else file, key, message)
+                          for key, message in self.pairs])
+
+
+def apply_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None,
+                   wind: "Wind | WindProfile | None" = None, start_time_s=None) -> Scenario:
+    """The scenario with the given what-ifs (None keeps the scenario's value), unchecked:
+    :func:`scenario_problems` says whether it can be planned."""
     glider, day = scenario.glider, scenario.day
     if ballast_kg is not None:
         glider = dataclasses.replace(glider, ballast_kg=float(ballast_kg))
@@ -425,12 +440,23 @@ def with_what_ifs(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_perce
         day = dataclasses.replace(day, wind=wind)
     if start_time_s is not None:
         day = dataclasses.replace(day, start_time_s=float(start_time_s))
-    result = dataclasses.replace(scenario, glider=glider, day=day)
-    given = {"[glider] ballast_kg": ballast_kg, "[glider] bugs_percent": bugs_percent, "[day] mc_ms": mc_ms,
-             "[day] wind": wind, "[day] start_time": start_time_s}
-    file = scenario.source or "task"
-    problems = [Problem(CMDLINE, WHAT_IF_OPTIONS[key], message) if given.get(key) is not None
-                else Problem(file, key, message) for key, message in scenario_problems(result)]
-    if problems:
-        raise InputError(problems)
+    return dataclasses.replace(scenario, glider=glider, day=day)
+
+
+def with_what_ifs(scenario: Scenario, **what_ifs) -> Scenario:
+    """The scenario with the given what-ifs (:func:`apply_what_ifs`' arguments), checked.
+
+    Raises
+    ------
+    WhatIfError
+        A what-if that makes the inputs inconsistent (ballast above the polar's
+        maximum, a mass above the maximum mass, a start at or after the end of lift, a
+        negative setting), or a problem of the scenario itself, as ``(key, message)``
+        pairs.
+    """
+    result = apply_what_ifs(scenario, **what_ifs)
+    pairs = scenario_problems(result)
+    if pairs:
+        given = frozenset(WHAT_IF_KEYS[name] for name, value in what_ifs.items() if value is not None)
+        raise WhatIfError(pairs, given, scenario.source or "task")
     return result

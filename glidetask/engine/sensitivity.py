@@ -13,11 +13,10 @@ import math
 from dataclasses import dataclass
 
 from glidetask.engine.compare import TASK_TERRAIN, fly_stacked, planned_route
-from glidetask.engine.flight import Flown, course_for, flights_for, fly
-from glidetask.engine.plan import Plan
-from glidetask.engine.scenario import Profile, Scenario, Wind, with_what_ifs
-from glidetask.errors import InputError
-from glidetask.units import KMH, format_clock
+from glidetask.engine.flight import Flown, course_for, flights_for
+from glidetask.engine.plan import Notice, Plan
+from glidetask.engine.scenario import Profile, Scenario, apply_what_ifs, scenario_problems
+from glidetask.units import KMH
 
 WEAKER_CLIMB_MS = 0.5  # what-if: climbs (or thermals) this much weaker [m/s]
 MORE_WIND_MS = 10.0 * KMH  # what-if: this much more wind [m/s] (10 km/h)
@@ -33,10 +32,15 @@ class SensitivityRow:
     ----------
     key : str
         Which what-if: one of :data:`WHAT_IFS`.
-    label : str
-        The what-if in words ("Climbs 0.5 m/s weaker"; "Forecast" for the plan itself).
-    change : str
-        What was changed, with the new value ("wind 250/25 km/h").
+    facts : dict
+        What was changed, with the new value, for wording it in any units
+        (:func:`glidetask.formats.strategy_report.what_if_words`): ``weaker_climbs`` ``by_ms`` and
+        ``strength`` (bool: the day gives thermal strength, not achieved climb);
+        ``more_wind`` ``by_ms``, ``from_deg`` and ``speed_ms`` (the what-if's wind at the
+        band middle, the cruise's); ``later_start`` ``by_s`` and ``start_time_s``;
+        ``more_bugs`` ``by_percent`` and ``bugs_percent``; ``pure_model`` the planned
+        ``centring_s`` and ``detour_percent``. ``refused`` (the task-file key the what-if
+        makes inconsistent, e.g. ``"[day] start_time"``) where it cannot be flown.
     total_time_s : float
         Start to finish, or to where the flight ends short [s]; NaN if it cannot start.
     delta_s : float
@@ -52,8 +56,7 @@ class SensitivityRow:
     """
 
     key: str
-    label: str
-    change: str
+    facts: dict
     total_time_s: float
     delta_s: float
     finished: bool
@@ -64,20 +67,12 @@ class SensitivityRow:
 
 @dataclass(frozen=True)
 class Sensitivity:
-    """The forecast plan and its what-ifs (first row: the forecast).
-
-    ``wind``, ``start_time_s``, ``bugs_percent`` and ``lift_is_strength`` are the
-    forecast's, for describing the what-ifs in any units.
-    """
+    """The forecast plan and its what-ifs (first row: the forecast)."""
 
     task_name: str
     kind: str
     rows: tuple[SensitivityRow, ...]
-    notes: tuple[str, ...]
-    wind: Wind
-    start_time_s: float
-    bugs_percent: float
-    lift_is_strength: bool
+    notes: tuple[Notice, ...]  # facts; :func:`glidetask.cautions.notice_text` words them
 
     @property
     def forecast(self) -> SensitivityRow:
@@ -91,36 +86,35 @@ def _weaker(profile: Profile, by: float) -> Profile:
 WHAT_IFS = ("forecast", "weaker_climbs", "more_wind", "later_start", "more_bugs", "pure_model")
 
 
-def what_if_scenarios(scenario: Scenario) -> list[tuple[str, str, str, Scenario | None]]:
-    """``(key, label, change, scenario)`` for the forecast and each what-if of
-    :data:`WHAT_IFS`; the scenario is None where the what-if cannot be flown (a start at
-    or after the end of lift)."""
+def what_if_scenarios(scenario: Scenario) -> list[tuple[str, dict, Scenario | None]]:
+    """``(key, facts, scenario)`` for the forecast and each what-if of :data:`WHAT_IFS`
+    (facts as :class:`SensitivityRow` has them); the scenario is None where the what-if
+    cannot be flown (a start at or after the end of lift)."""
     day, glider = scenario.day, scenario.glider
     if day.climb is not None:
         weaker_day = dataclasses.replace(day, climb=_weaker(day.climb, WEAKER_CLIMB_MS))
-        weaker = ("Climbs 0.5 m/s weaker", "achieved climb -0.5 m/s all day")
     else:
         weaker_day = dataclasses.replace(day, thermal_strength=_weaker(day.thermal_strength, WEAKER_CLIMB_MS))
-        weaker = ("Thermals 0.5 m/s weaker", "thermal strength -0.5 m/s all day")
     wind = day.wind.stronger(MORE_WIND_MS)
     shown = wind.at(day.band_middle_m)  # a profile: the cruise's wind, at the band middle
     start = day.start_time_s + LATER_START_S
     bugs = glider.bugs_percent + MORE_BUGS_PERCENT
-    out = [("forecast", "Forecast", "the plan as given", scenario),
-           ("weaker_climbs", *weaker, dataclasses.replace(scenario, day=weaker_day))]
-    for key, label, change, what_if in (
-            ("more_wind", "Wind 10 km/h stronger", f"wind {shown.from_deg:03.0f}/{shown.speed_ms / KMH:.0f} km/h",
+    out = [("forecast", {}, scenario),
+           ("weaker_climbs", {"by_ms": WEAKER_CLIMB_MS, "strength": day.climb is None},
+            dataclasses.replace(scenario, day=weaker_day))]
+    for key, facts, what_if in (
+            ("more_wind", {"by_ms": MORE_WIND_MS, "from_deg": shown.from_deg, "speed_ms": shown.speed_ms},
              {"wind": wind}),
-            ("later_start", "Start 30 min later", f"start {format_clock(start)}", {"start_time_s": start}),
-            ("more_bugs", "5 % more bugs", f"bugs {bugs:g} % (sink rate)", {"bugs_percent": bugs})):
-        try:
-            out.append((key, label, change, with_what_ifs(scenario, **what_if)))
-        except InputError:
-            out.append((key, label, change + ": at or after the end of lift", None))
+            ("later_start", {"by_s": LATER_START_S, "start_time_s": start}, {"start_time_s": start}),
+            ("more_bugs", {"by_percent": MORE_BUGS_PERCENT, "bugs_percent": bugs}, {"bugs_percent": bugs})):
+        what_if_scenario = apply_what_ifs(scenario, **what_if)
+        refused = scenario_problems(what_if_scenario)
+        if refused:
+            facts = {**facts, "refused": refused[0][0]}
+        out.append((key, facts, None if refused else what_if_scenario))
     if day.centring_s > 0.0 or day.detour_percent > 0.0:  # what the practical allowances cost
         pure = dataclasses.replace(day, centring_s=0.0, detour_percent=0.0)
-        out.append(("pure_model", "No centring, no detour",
-                    f"centring 0 s, detour 0 % (planned: {day.centring_s:g} s a climb, {day.detour_percent:g} %)",
+        out.append(("pure_model", {"centring_s": day.centring_s, "detour_percent": day.detour_percent},
                     dataclasses.replace(scenario, day=pure)))
     return out
 
@@ -156,29 +150,22 @@ def sensitivity(scenario: Scenario, *, path=None, requirement=TASK_TERRAIN) -> S
 
     path, requirement = planned_route(scenario, path, requirement)
     variants = what_if_scenarios(scenario)
-    flyable = [v for v in variants if v[3] is not None]
-    flown = fly_stacked(course_for(path, scenario.day.detour_percent), [flights_for(v[3]) for v in flyable],
-                        [course_for(path, v[3].day.detour_percent).detour_factor for v in flyable],
+    flyable = [v for v in variants if v[2] is not None]
+    flown = fly_stacked(course_for(path, scenario.day.detour_percent), [flights_for(v[2]) for v in flyable],
+                        [course_for(path, v[2].day.detour_percent).detour_factor for v in flyable],
                         requirement=requirement, detail=False)
-    by_key = {key: flown[i] for i, (key, _, _, _) in enumerate(flyable)}
-    rows = [_sensitivity_row(key, label, change, by_key.get(key), scenario, path)
-            for key, label, change, _ in variants]
+    by_key = {key: flown[i] for i, (key, _, _) in enumerate(flyable)}
+    rows = [_sensitivity_row(key, facts, by_key.get(key), scenario, path) for key, facts, _ in variants]
     forecast = rows[0]
     rows = [dataclasses.replace(row, delta_s=row.total_time_s - forecast.total_time_s
                                 if row.finished and forecast.finished else math.nan) for row in rows]
-    notes = []
-    if scenario.task.kind == "area":
-        notes.append("Area task: the what-ifs fly the forecast plan's targets; on the day, move the targets "
-                     "to keep the minimum time.")
-    day = scenario.day
-    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes), day.wind_at(day.band_middle_m),
-                       day.start_time_s, scenario.glider.bugs_percent, day.climb is None)
+    notes = [Notice("what_ifs_area_targets")] if scenario.task.kind == "area" else []
+    return Sensitivity(scenario.task.name, scenario.task.kind, tuple(rows), tuple(notes))
 
 
-def _sensitivity_row(key: str, label: str, change: str, flown: Flown | None, scenario: Scenario,
-                     path) -> SensitivityRow:
+def _sensitivity_row(key: str, facts: dict, flown: Flown | None, scenario: Scenario, path) -> SensitivityRow:
     if flown is None:
-        return SensitivityRow(key, label, change, math.nan, math.nan, False, math.nan, math.nan, math.nan)
+        return SensitivityRow(key, facts, math.nan, math.nan, False, math.nan, math.nan, math.nan)
     finished = bool(flown.finished[0])
     total = float(flown.total_time_s[0])
     task = scenario.task
@@ -188,7 +175,7 @@ def _sensitivity_row(key: str, label: str, change: str, flown: Flown | None, sce
         speed = path.total_m / max(total, float(task.min_time_s))
     else:
         speed = path.total_m / total
-    return SensitivityRow(key, label, change, total, math.nan, finished, float(flown.finish_time_s[0]),
+    return SensitivityRow(key, facts, total, math.nan, finished, float(flown.finish_time_s[0]),
                           float(flown.landout_m[0]), speed)
 
 

@@ -58,6 +58,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from glidetask.engine import flight
+from glidetask.engine import plan as planning
 from glidetask.engine.compare import planned_route, stack_flights, usable_ballast_kg
 from glidetask.engine.flight import Flights, course_for, flights_for, fly
 from glidetask.engine.scenario import Scenario, with_what_ifs
@@ -151,11 +152,6 @@ def day_search_mean_m(scenario: Scenario) -> float:
     """The day's mean distance to the next thermal [m]: :func:`thermal_search_distance`
     of its convective layer (Allen 2006, from memory)."""
     return float(thermal_search_distance(scenario.day.layer_depth_m))
-
-
-def search_source(scenario: Scenario) -> str:
-    """Where the day's own search distance comes from, in words."""
-    return f"Allen (2006) for a {scenario.day.layer_depth_m / 1000.0:.1f} km convective layer"
 
 
 @dataclass(frozen=True)
@@ -309,9 +305,11 @@ class Odds:
     seed: int
     spread: DaySpread
     choices: tuple[ChoiceOdds, ...]
-    notes: tuple[str, ...]
-    #: Where the search distance comes from, in words ("" when given).
-    search_source: str = ""
+    #: What the pilot must know, as facts (:class:`glidetask.engine.plan.Notice`).
+    notes: tuple["planning.Notice", ...]
+    #: The convective layer whose typical thermal spacing (Allen 2006) gave the search
+    #: distance [m]; NaN when the spread gave the distance itself.
+    search_layer_m: float = math.nan
     #: The finishing odds at other thermal spacings (:func:`spacing_odds`); empty if not asked.
     spacing: tuple["SpacingOdds", ...] = ()
 
@@ -406,7 +404,7 @@ def simulate_days(scenario: Scenario, *, runs: int = DEFAULT_RUNS, seed: int = 1
     results = tuple(_choice(choices[c], setups[c], flown, slice(c * runs, (c + 1) * runs), forecast.flight(c),
                             len(legs)) for c in range(len(choices)))
     return Odds(scenario.task.name, legs, runs, int(seed), spread, results, tuple(_notes(scenario, spread)),
-                search_source="" if given else search_source(scenario))
+                search_layer_m=math.nan if given else scenario.day.layer_depth_m)
 
 
 def spacing_odds(scenario: Scenario, odds: Odds, factors=SPACING_FACTORS, *, path=None,
@@ -491,24 +489,10 @@ def _choice(ballast: float, setup: Flights, flown, rows: slice, forecast, legs: 
         finish_times_s=np.sort(times))
 
 
-def bad_day_words(spread: DaySpread) -> str:
-    """The bad-day mode in words, e.g. "1 day in 10 the lift ends 1-2 h early"."""
-    p = spread.bad_day_probability
-    if p <= 0.0 or spread.bad_day_early_s[1] <= 0.0:
-        return "no bad days"
-    shortest, longest = (t / 3600.0 for t in spread.bad_day_early_s)
-    share = f"1 day in {1.0 / p:.0f}" if abs(1.0 / p - round(1.0 / p)) < 1e-9 else f"{100 * p:g} % of days"
-    return f"{share} the lift ends {shortest:g}-{longest:g} h early"
-
-
-def _notes(scenario: Scenario, spread: DaySpread) -> list[str]:
-    notes = ["The spread of days is a planning assumption of glidetask, not a forecast: strength "
-             f"x exp(N(0, {spread.climb_log_sd:g})), wind speed +/- {spread.wind_speed_sd_ms / KMH:.0f} km/h "
-             f"and direction +/- {spread.wind_direction_sd_deg:.0f} deg (1 sd), end of lift +/- "
-             f"{spread.lift_end_sd_s / 60:.0f} min, {bad_day_words(spread)}, next climb on average "
-             f"{spread.thermal_search_mean_m / 1000:.1f} km beyond the band bottom."]
-    notes.append("A land-out here means reaching the finish elevation plus the arrival margin away from the "
-                 "finish: choose a field well before that.")
+def _notes(scenario: Scenario, spread: DaySpread) -> list[planning.Notice]:
+    """What the pilot must know about the odds, as facts (:func:`glidetask.cautions.notice_text` words them)."""
+    notes = [planning.Notice("odds_spread_assumed", {"spread": spread})]
+    notes.append(planning.Notice("odds_landout_meaning"))
     if scenario.task.kind == "area":
-        notes.append("Area task: every day flies the forecast plan's targets.")
+        notes.append(planning.Notice("odds_area_targets"))
     return notes

@@ -169,7 +169,7 @@ def _day(plan, unit) -> list[str]:
     profile = day.climb if day.climb is not None else day.thermal_strength
     kind = "Achieved climb" if day.climb is not None else "Thermal strength (circling model gives the climb)"
     lift = ", ".join(f"{format_clock(t)} {unit.fmt_vertical(v)}" for t, v in zip(profile.times_s, profile.values))
-    wind = wind_text(day.wind, unit, words=True)
+    wind = wind_text(day.wind, unit, words=True, band=(day.band_bottom_m, day.band_top_m))
     mc = "the climb of each thermal" if day.mc_ms is None else unit.fmt_vertical(day.mc_ms)
     fg = "the cruise setting at that moment" if safety.final_glide_mc_ms is None else \
         unit.fmt_vertical(safety.final_glide_mc_ms)
@@ -183,8 +183,8 @@ def _day(plan, unit) -> list[str]:
         f"- MacCready: {mc}; final glide at {fg}; arrival margin {unit.fmt_height(safety.arrival_margin_m)} over "
         f"the finish ({unit.fmt_height(plan.arrival_floor_m)}).",
         f"- Practical speeds: {day.centring_s:g} s centring each climb, the path flown {day.detour_percent:g} % "
-        f"longer (both common practice); thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius "
-        f"({day.thermal_radius_source}).",
+        f"longer, circling at {day.stall_margin:g} times the banked stall speed (all common practice); thermals "
+        f"{unit.fmt_height(day.effective_thermal_radius_m)} in radius ({day.thermal_radius_source}).",
     ]
 
 

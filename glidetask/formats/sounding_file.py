@@ -38,8 +38,8 @@ from glidetask.engine.sounding import (
 )
 from glidetask.errors import InputError, Problem, ProblemCollector
 from glidetask.formats.files import file_problem, read_text
-from glidetask.formats.toml_reader import TomlReader, is_number, show
-from glidetask.units import KMH, format_clock, parse_clock
+from glidetask.formats.toml_reader import TomlReader, show
+from glidetask.units import KMH, format_clock
 
 COLUMNS = ("pressure_hpa", "height_m", "temperature_c", "dewpoint_c", "wind_from_deg", "wind_speed_kmh")
 #: Valid range of each column (inclusive); beyond these a value is a typing or unit error.
@@ -196,41 +196,26 @@ class DaySounding:
 
 
 def _surface(reader: TomlReader, raw) -> SurfaceForecast | None:
-    where = "[day] surface"
     shape = "[\"HH:MM\", temperature_c, dewpoint_c]"
-    if not isinstance(raw, list) or len(raw) < 2:
-        reader.add(where, f"must be a list of at least two {shape} entries, got {show(raw)}")
-        return None
-    times, temperatures, dewpoints, ok = [], [], [], True
     low, high = SURFACE_RANGE_C
-    for number, entry in enumerate(raw, start=1):
-        here = f"{where}[{number}]"
-        if not (isinstance(entry, list) and len(entry) == 3 and isinstance(entry[0], str)
-                and is_number(entry[1]) and is_number(entry[2])):
-            reader.add(here, f"must be {shape}, got {show(entry)}")
-            ok = False
-            continue
-        try:
-            time_s = parse_clock(entry[0])
-        except ValueError:
-            reader.add(here, f"expected a local time as HH:MM, got {entry[0][:20]!r}")
-            ok = False
-            continue
-        temperature, dewpoint = float(entry[1]), float(entry[2])
-        if not all(math.isfinite(v) and low <= v <= high for v in (temperature, dewpoint)):
+
+    def check(here: str, entry: list, values: tuple) -> bool:
+        temperature, dewpoint = values
+        if not all(v is not None and math.isfinite(v) and low <= v <= high for v in values):
             reader.add(here, f"temperature and dew point must be in [{low:g}, {high:g}] C, "
                              f"got {show(entry[1])} and {show(entry[2])}")
-            ok = False
-        elif dewpoint > temperature:
+            return False
+        if dewpoint > temperature:
             reader.add(here, f"the dew point ({dewpoint:g} C) is above the temperature ({temperature:g} C)")
-            ok = False
-        if times and time_s <= times[-1]:
-            reader.add(here, f"times must increase: {entry[0]} is not after {format_clock(times[-1])}")
-            ok = False
-        times.append(time_s)
-        temperatures.append(temperature)
-        dewpoints.append(dewpoint)
-    return SurfaceForecast(tuple(times), tuple(temperatures), tuple(dewpoints)) if ok else None
+            return False
+        return True
+
+    read = reader.timed_rows(raw, "[day] surface", listing=f"at least two {shape} entries", entry=shape, width=2,
+                             least=2, check=check)
+    if read is None:
+        return None
+    times, rows = read
+    return SurfaceForecast(times, tuple(row[0] for row in rows), tuple(row[1] for row in rows))
 
 
 def read_day_sounding(document: dict, task_path: str | os.PathLike) -> DaySounding | None:

@@ -77,8 +77,9 @@ def _caution_lines(extra) -> list[str]:
 # ---------------------------------------------------------------- ballast sweep
 
 
-def sweep_to_dict(sweep) -> dict:
-    """The sweep as JSON (contract 5.4 plus extras), keys with units.
+def sweep_to_dict(sweep, day_cautions=()) -> dict:
+    """The sweep as JSON (contract 5.4 plus extras), keys with units; cautions in metric,
+    ``day_cautions`` (those of a day from a sounding, :func:`day_cautions`) before its own.
 
     ``task_time_s[i][j]`` is the task time at ``thermal_strength_ms[i]`` and
     ``ballast_kg[j]`` (null where the task cannot be finished); ``best_ballast_kg[i]``
@@ -110,7 +111,7 @@ def sweep_to_dict(sweep) -> dict:
             "full_ballast_from_ms": _number(size.full_ballast_from_ms),
             "achieved_climb_ms": grid(size.achieved_climb_ms),
         } for size in getattr(sweep, "by_thermal_size", ())],
-        "cautions": cautions.general() + list(sweep.notes),
+        "cautions": cautions.general() + list(day_cautions) + cautions.notes_text(sweep.notes, unit_systems.METRIC),
     }
 
 
@@ -150,8 +151,9 @@ def _source(sweep) -> str:
     return f" ({sweep.thermal_radius_source})" if getattr(sweep, "thermal_radius_source", "") else ""
 
 
-def sweep_text(sweep, units: UnitSystem | str = "metric") -> str:
-    """The readable sweep: strengths as rows, ballast as columns, task times H:MM, the best marked."""
+def sweep_text(sweep, units: UnitSystem | str = "metric", day_cautions=()) -> str:
+    """The readable sweep: strengths as rows, ballast as columns, task times H:MM, the best marked;
+    the cautions end it (``day_cautions`` first)."""
     units = _units(units)
     lines = [f"Ballast against thermal strength: {sweep.task_name}",
              f"  path {units.fmt_distance(sweep.planned_distance_m)} as planned; thermals "
@@ -182,7 +184,8 @@ def sweep_text(sweep, units: UnitSystem | str = "metric") -> str:
                      f"{best:.0f} kg" if _finite(best) else DASH])
     lines += _table(head, rows)
     lines += thermal_size_lines(sweep, units)
-    lines += ["", sweep_verdict(sweep, units), forecast_line(sweep, units), ""] + _caution_lines(sweep.notes)
+    lines += ["", sweep_verdict(sweep, units), forecast_line(sweep, units), ""]
+    lines += _caution_lines([*day_cautions, *cautions.notes_text(sweep.notes, units)])
     return "\n".join(lines)
 
 
@@ -249,40 +252,49 @@ def sweep_markdown(sweep, units: UnitSystem | str = "metric") -> str:
              f"Task time by thermal strength (constant all day, {units.fmt_height(sweep.thermal_radius_m)} radius) "
              "and water ballast; the fastest in bold, - not finished.", ""]
     lines += _markdown_table(head, rows) + ["", sweep_verdict(sweep, units) + " " + forecast_line(sweep, units), ""]
-    lines += [f"- {note}" for note in sweep.notes]
+    lines += [f"- {note}" for note in cautions.notes_text(sweep.notes, units)]
     return "\n".join(lines) + "\n"
 
 
 # ---------------------------------------------------------------- sensitivity
 
 
-def _what_if_words(s, row, units: UnitSystem) -> tuple[str, str]:
-    """(label, change) of a sensitivity row in the units shown."""
-    from glidetask.engine import sensitivity as what_ifs  # lazily: the UI imports this module at start-up
+#: Why a what-if could not be flown, by the task-file key it made inconsistent.
+REFUSED = {"[day] start_time": "at or after the end of lift", "[day] wind": "above the strongest wind allowed"}
 
-    if row.key == "weaker_climbs":
-        thing = "Thermals" if s.lift_is_strength else "Climbs"
-        change = "thermal strength" if s.lift_is_strength else "achieved climb"
-        by = _vertical(units, what_ifs.WEAKER_CLIMB_MS)
-        return f"{thing} {by} weaker", f"{change} -{by} all day"
-    if row.key == "more_wind":
-        more = units.fmt_speed(what_ifs.MORE_WIND_MS)
-        speed = units.fmt_speed(s.wind.speed_ms + what_ifs.MORE_WIND_MS)
-        return f"Wind {more} stronger", f"wind {s.wind.from_deg:03.0f}/{speed}"
-    if row.key == "later_start":
-        start = format_clock(s.start_time_s + what_ifs.LATER_START_S)
-        suffix = "" if row.finished or _finite(row.total_time_s) else ", after lift ends"
-        return f"Start {what_ifs.LATER_START_S / 60:.0f} min later", f"start {start}{suffix}"
-    if row.key == "more_bugs":
-        return (f"{what_ifs.MORE_BUGS_PERCENT:g} % more bugs",
-                f"bugs {s.bugs_percent + what_ifs.MORE_BUGS_PERCENT:g} % (sink rate)")
-    return row.label, row.change
+
+def what_if_words(row, units: UnitSystem | str = "metric") -> tuple[str, str]:
+    """(label, change) of a :class:`glidetask.engine.sensitivity.SensitivityRow` in ``units``:
+    ``("Wind 10 km/h stronger", "wind 250/25 km/h")``. The text, the briefing, the UI and
+    (in metric) the JSON all word the what-ifs here."""
+    units, f = _units(units), row.facts
+    if row.key == "forecast":
+        label, change = "Forecast", "the plan as given"
+    elif row.key == "weaker_climbs":
+        by = _vertical(units, f["by_ms"])
+        label = f"{'Thermals' if f['strength'] else 'Climbs'} {by} weaker"
+        change = f"{'thermal strength' if f['strength'] else 'achieved climb'} -{by} all day"
+    elif row.key == "more_wind":
+        label = f"Wind {units.fmt_speed(f['by_ms'])} stronger"
+        change = f"wind {f['from_deg']:03.0f}/{units.fmt_speed(f['speed_ms'])}"
+    elif row.key == "later_start":
+        label, change = f"Start {f['by_s'] / 60:.0f} min later", f"start {format_clock(f['start_time_s'])}"
+    elif row.key == "more_bugs":
+        label, change = f"{f['by_percent']:g} % more bugs", f"bugs {f['bugs_percent']:g} % (sink rate)"
+    elif row.key == "pure_model":
+        label = "No centring, no detour"
+        change = f"centring 0 s, detour 0 % (planned: {f['centring_s']:g} s a climb, {f['detour_percent']:g} %)"
+    else:
+        raise ValueError(f"unknown what-if {row.key!r}")
+    if "refused" in f:
+        change += f": {REFUSED.get(f['refused'], 'not a valid input')}"
+    return label, change
 
 
 def _sensitivity_cells(s, units: UnitSystem) -> list[list[str]]:
     rows = []
     for row in s.rows:
-        label, change = _what_if_words(s, row, units)
+        label, change = what_if_words(row, units)
         if row.finished:
             time, delta = _duration(row.total_time_s), "" if row.key == "forecast" else _signed_minutes(row.delta_s)
         elif _finite(row.total_time_s):
@@ -294,14 +306,16 @@ def _sensitivity_cells(s, units: UnitSystem) -> list[list[str]]:
 
 
 def sensitivity_to_dict(s) -> dict:
-    """The sensitivity as JSON: one entry per what-if."""
+    """The sensitivity as JSON: one entry per what-if (its words in metric)."""
+    metric = unit_systems.METRIC
+    words = [what_if_words(row, metric) for row in s.rows]
     return {"rows": [{
-        "what_if": row.key, "label": row.label, "change": row.change, "finished": row.finished,
+        "what_if": row.key, "label": label, "change": change, "finished": row.finished,
         "total_time_s": _number(row.total_time_s, 0), "change_s": _number(row.delta_s, 0),
         "finish_time": format_clock(row.finish_time_s) if _finite(row.finish_time_s) else None,
         "landout_km": _number(row.landout_m / 1000.0) if _finite(row.landout_m) else None,
         "task_speed_kmh": _number(row.task_speed_ms / unit_systems.KMH, 1) if _finite(row.task_speed_ms) else None,
-    } for row in s.rows], "notes": list(s.notes)}
+    } for row, (label, change) in zip(s.rows, words)], "notes": cautions.notes_text(s.notes, metric)}
 
 
 def sensitivity_text(s, units: UnitSystem | str = "metric", *, heading: bool = True) -> str:
@@ -309,7 +323,7 @@ def sensitivity_text(s, units: UnitSystem | str = "metric", *, heading: bool = T
     units = _units(units)
     lines = ["How the task time answers to the day"] if heading else []
     lines += _table(["what if", "change", "task time", "vs forecast"], _sensitivity_cells(s, units), left=2)
-    lines += [f"  {note}" for note in s.notes]
+    lines += [f"  {note}" for note in cautions.notes_text(s.notes, units)]
     return "\n".join(lines)
 
 
@@ -318,7 +332,7 @@ def sensitivity_markdown(s, units: UnitSystem | str = "metric", *, heading: bool
     units = _units(units)
     lines = ["## How the task time answers to the day", ""] if heading else []
     lines += _markdown_table(["What if", "Change", "Task time", "vs forecast"], _sensitivity_cells(s, units), left=2)
-    lines += [""] + [f"- {note}" for note in s.notes]
+    lines += [""] + [f"- {note}" for note in cautions.notes_text(s.notes, units)]
     return "\n".join(lines).rstrip() + "\n"
 
 
@@ -331,8 +345,9 @@ def reason_words(key: str) -> str:
     return {k: words for k, words in LANDOUT_REASONS.values()}.get(key, key)
 
 
-def odds_to_dict(odds) -> dict:
-    """The simulation as JSON: assumptions, and per ballast choice the odds, times and land-outs."""
+def odds_to_dict(odds, day_cautions=()) -> dict:
+    """The simulation as JSON: assumptions, and per ballast choice the odds, times and land-outs;
+    cautions in metric, ``day_cautions`` before its own."""
     spread = odds.spread
     legs = [{"leg": i + 1, "from": a, "to": b} for i, (a, b) in enumerate(odds.legs)]
     choices = []
@@ -356,7 +371,7 @@ def odds_to_dict(odds) -> dict:
             "wind_direction_sd_deg": spread.wind_direction_sd_deg,
             "lift_end_sd_s": spread.lift_end_sd_s,
             "thermal_search_mean_km": _number(spread.thermal_search_mean_m / 1000.0),
-            "thermal_search_source": getattr(odds, "search_source", "") or "given",
+            "thermal_search_source": cautions.search_source(odds, unit_systems.METRIC) or "given",
             "bad_day_probability": spread.bad_day_probability,
             "bad_day_early_s": list(spread.bad_day_early_s),
         },
@@ -367,7 +382,7 @@ def odds_to_dict(odds) -> dict:
                          "finish_probability_se": _number(se, 4)}
                         for c, p, se in zip(odds.choices, row.finish_probability, row.finish_probability_se)],
         } for row in getattr(odds, "spacing", ())],
-        "cautions": cautions.general() + list(odds.notes),
+        "cautions": cautions.general() + list(day_cautions) + cautions.notes_text(odds.notes, unit_systems.METRIC),
     }
 
 
@@ -382,13 +397,12 @@ def probability_bar(p: float, width: int = BAR_WIDTH) -> str:
 
 
 def assumption_text(odds, units: UnitSystem) -> str:
-    from glidetask.engine.simulate import bad_day_words  # lazily: the UI imports this module at start-up
-
+    """The spread of days assumed, in one line."""
     s = odds.spread
-    source = getattr(odds, "search_source", "")
+    source = cautions.search_source(odds, units)
     return (f"strength x exp(N(0, {s.climb_log_sd:g})); wind +/- {units.fmt_speed(s.wind_speed_sd_ms)}, "
             f"+/- {s.wind_direction_sd_deg:.0f} deg; end of lift +/- {s.lift_end_sd_s / 60:.0f} min; "
-            f"{bad_day_words(s)}; next climb on average {units.fmt_distance(s.thermal_search_mean_m)} beyond "
+            f"{cautions.bad_day_words(s)}; next climb on average {units.fmt_distance(s.thermal_search_mean_m)} beyond "
             f"the band bottom" + (f" ({source})" if source else ""))
 
 
@@ -407,8 +421,9 @@ def spacing_lines(odds, units: UnitSystem) -> list[str]:
     return lines
 
 
-def odds_text(odds, units: UnitSystem | str = "metric") -> str:
-    """The readable odds: a bar and percentiles per ballast, land-outs by leg and why."""
+def odds_text(odds, units: UnitSystem | str = "metric", day_cautions=()) -> str:
+    """The readable odds: a bar and percentiles per ballast, land-outs by leg and why; the
+    cautions end it (``day_cautions`` first)."""
     units = _units(units)
     lines = [f"Odds of getting home: {odds.task_name}",
              f"  {odds.runs} simulated days around the forecast (seed {odds.seed}), the same days for each ballast",
@@ -435,7 +450,7 @@ def odds_text(odds, units: UnitSystem | str = "metric") -> str:
         rows = [[reason_words(key)] + [str(dict(c.landouts_by_reason).get(key, 0)) for c in odds.choices]
                 for key in reasons]
         lines += _table(["reason"] + [f"{c.ballast_kg:.0f} kg" for c in odds.choices], rows)
-    lines += [""] + _caution_lines(odds.notes)
+    lines += [""] + _caution_lines([*day_cautions, *cautions.notes_text(odds.notes, units)])
     return "\n".join(lines)
 
 
@@ -448,5 +463,5 @@ def odds_markdown(odds, units: UnitSystem | str = "metric") -> str:
              f"{odds.runs} simulated days around the forecast (seed {odds.seed}); spread (our planning "
              f"assumptions, not a forecast): {assumption_text(odds, units)}.", ""]
     lines += _markdown_table(["Ballast", "Finish", "10 %", "50 %", "90 %", "Land-outs"], rows)
-    lines += [""] + [f"- {note}" for note in odds.notes]
+    lines += [""] + [f"- {note}" for note in cautions.notes_text(odds.notes, units)]
     return "\n".join(lines) + "\n"

@@ -23,6 +23,8 @@ Zone keys, sizes in km (contract 2.3):
 absent, the typical radius for the day's convective layer (Allen 2006,
 :func:`glidetask.engine.thermals.thermal_radii`), the layer being the band top above the
 ground: ``[day] surface_elevation_m`` where given, else the task's lowest turnpoint.
+``[day] stall_margin`` (optional, 1.05-1.5, default 1.15, common practice): the circling
+model's speed over the banked stall speed.
 """
 
 from __future__ import annotations
@@ -35,6 +37,7 @@ import os
 from pathlib import Path
 from typing import Any
 
+from glidetask.engine.circling import DEFAULT_STALL_MARGIN
 from glidetask.engine.scenario import (
     DEFAULT_AIRSPACE_MARGIN_M, MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind, WindLevel,
     WindProfile,
@@ -52,7 +55,7 @@ TASK_KEYS = ("name", "kind", "turnpoints", "min_time_min", "points")
 GLIDER_KEYS = ("polar", "pilot_kg", "ballast_kg", "bugs_percent")
 DAY_KEYS = ("start_time", "start_height_m", "band_top_m", "band_bottom_m", "wind", "climb_ms",
             "thermal_strength_ms", "lift_ends", "glide_airmass_ms", "isa_deviation_c", "mc_ms", "thermal_radius_m",
-            "centring_s", "detour_percent",
+            "centring_s", "detour_percent", "stall_margin",
             # the day from a sounding (contract 2.7), read by glidetask.formats.sounding_file
             "sounding", "surface", "surface_elevation_m", "band_top_margin_m", "band_bottom_agl_m")
 #: The typed [day] keys that override a derived day's values (climb_ms overrides the
@@ -66,6 +69,9 @@ ZONE_SIZE_LIMIT_KM = 1000.0  # far beyond any observation zone (common practice:
 PILOT_LIMIT_KG = 400.0  # two heavy pilots with parachutes in a two-seater, and then some
 DEFAULT_CENTRING_S = 30.0  # time lost centring each thermal [s] (common practice; contract 2.3)
 DEFAULT_DETOUR_PERCENT = 5.0  # distance flown beyond the planned path [%] (common practice; contract 2.3)
+#: ``[day] stall_margin``: circling speed over the banked stall speed [-]. Below 1.05 a gust
+#: stalls the wing in the turn; above 1.5 nobody circles (common practice).
+STALL_MARGIN_RANGE = (1.05, 1.5)
 
 # Zone keys by (task kind, role, zone name): which keys apply, with defaults (None: required).
 _START_FINISH = {"line": {"length_km": None}, "cylinder": {"radius_km": None}}
@@ -211,10 +217,8 @@ def _make_zone(reader: _Reader, values: dict, where: str, name: str, task_kind: 
                             values["inner_radius_km"] * 1000.0)
 
 
-def _task(reader: _Reader, table: dict, base: Path, default_name: str):
-    """``(Task or None, turnpoints, turnpoint file path or None)`` from the [task] table."""
-    reader.unknown(table, "[task]", TASK_KEYS)
-    name = reader.text(table, "[task]", "name", default=default_name)
+def _task_kind(reader: _Reader, table: dict) -> tuple[str | None, float | None]:
+    """``(kind, min_time_min)`` of the [task] table; the kind None where it is bad."""
     kind = reader.text(table, "[task]", "kind", default="racing")
     if kind is not None and kind not in ("racing", "area"):
         reader.add("[task] kind", f"unknown task kind {kind!r}; expected \"racing\" or \"area\"")
@@ -224,29 +228,30 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
         reader.add("[task] min_time_min", "a minimum time belongs to area tasks (kind = \"area\") only")
     if kind == "area" and "min_time_min" not in table:
         reader.add("[task] min_time_min", "missing key: an area task needs its minimum time in minutes")
-    turnpoints: tuple[Turnpoint, ...] = ()
-    turnpoint_file = None
-    file_value = reader.text(table, "[task]", "turnpoints", required=True)
-    if file_value is not None:
-        turnpoint_file = _resolve(base, file_value)
-        missing = file_problem(turnpoint_file)
-        if missing is not None:
-            reader.add("[task] turnpoints", f"{missing}: {turnpoint_file}")
-        else:
-            from glidetask.formats.turnpoints import read_turnpoints
+    return kind, minutes
 
-            try:
-                turnpoints = read_turnpoints(turnpoint_file)
-            except InputError as error:
-                reader.problems.extend(error.problems)
-    entries = table.get("points")
-    if entries is None:
-        reader.add("[[task.points]]", "missing: list the task points, first = start, last = finish")
-        return None, turnpoints, turnpoint_file
-    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
-        reader.add("[[task.points]]", "must be an array of tables ([[task.points]] entries)")
-        return None, turnpoints, turnpoint_file
-    find = _lookup(turnpoints) if turnpoints else None
+
+def _task_turnpoints(reader: _Reader, table: dict, base: Path) -> tuple[tuple[Turnpoint, ...], Path | None]:
+    """``(turnpoints, the file's path or None)`` named by ``[task] turnpoints``."""
+    file_value = reader.text(table, "[task]", "turnpoints", required=True)
+    if file_value is None:
+        return (), None
+    turnpoint_file = _resolve(base, file_value)
+    missing = file_problem(turnpoint_file)
+    if missing is not None:
+        reader.add("[task] turnpoints", f"{missing}: {turnpoint_file}")
+        return (), turnpoint_file
+    from glidetask.formats.turnpoints import read_turnpoints
+
+    try:
+        return read_turnpoints(turnpoint_file), turnpoint_file
+    except InputError as error:
+        reader.problems.extend(error.problems)
+        return (), turnpoint_file
+
+
+def _task_points(reader: _Reader, entries: list, kind: str | None, find) -> list[TaskPoint] | None:
+    """The ``[[task.points]]`` entries as task points; None where any is bad (each reported)."""
     points, ok = [], kind is not None
     previous = None
     for number, entry in enumerate(entries, start=1):
@@ -278,7 +283,24 @@ def _task(reader: _Reader, table: dict, base: Path, default_name: str):
             reader.add("[[task.points]]", f"{_a(kind)} task needs at least {least} points (start, "
                                           f"{'turns, ' if kind == 'area' else ''}finish), got {len(entries)}")
             ok = False
-    if not ok or reader.problems or name is None:
+    return points if ok else None
+
+
+def _task(reader: _Reader, table: dict, base: Path, default_name: str):
+    """``(Task or None, turnpoints, turnpoint file path or None)`` from the [task] table."""
+    reader.unknown(table, "[task]", TASK_KEYS)
+    name = reader.text(table, "[task]", "name", default=default_name)
+    kind, minutes = _task_kind(reader, table)
+    turnpoints, turnpoint_file = _task_turnpoints(reader, table, base)
+    entries = table.get("points")
+    if entries is None:
+        reader.add("[[task.points]]", "missing: list the task points, first = start, last = finish")
+        return None, turnpoints, turnpoint_file
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        reader.add("[[task.points]]", "must be an array of tables ([[task.points]] entries)")
+        return None, turnpoints, turnpoint_file
+    points = _task_points(reader, entries, kind, _lookup(turnpoints) if turnpoints else None)
+    if points is None or reader.problems or name is None:
         return None, turnpoints, turnpoint_file
     min_time_s = minutes * 60.0 if kind == "area" and minutes is not None else None
     for index, message in task_problems(kind, [p.zone.kind for p in points], min_time_s):
@@ -320,34 +342,17 @@ def _glider(reader: _Reader, table: dict, base: Path) -> GliderSetup | None:
 
 def _profile(reader: _Reader, table: dict, key: str, low: float = 0.0, high: float = 15.0,
              unit: str = "m/s") -> Profile | None:
-    where = f"[day] {key}"
-    raw = table[key]
-    if not isinstance(raw, list) or not raw:
-        reader.add(where, f"must be a list of [\"HH:MM\", value] pairs, got {show(raw)}")
-        return None
-    times, values, ok = [], [], True
-    for number, pair in enumerate(raw, start=1):
-        here = f"{where}[{number}]"
-        if not (isinstance(pair, list) and len(pair) == 2 and isinstance(pair[0], str) and is_number(pair[1])):
-            reader.add(here, f"must be a pair [\"HH:MM\", {unit}], got {show(pair)}")
-            ok = False
-            continue
-        try:
-            time_s = parse_clock(pair[0])
-        except ValueError:
-            reader.add(here, f"expected a local time as HH:MM, got {pair[0]!r}")
-            ok = False
-            continue
-        value = as_float(pair[1])
+    """``[day] key`` as ``[["HH:MM", value], ...]`` pairs, each value in [low, high] ``unit``."""
+    def check(here: str, pair: list, values: tuple) -> bool:
+        value = values[0]
         if value is None or not math.isfinite(value) or not low <= value <= high:
             reader.add(here, f"the value must be in [{low:g}, {high:g}] {unit}, got {show(pair[1])}")
-            ok = False
-        if times and time_s <= times[-1]:
-            reader.add(here, f"times must increase: {pair[0]} is not after {format_clock(times[-1])}")
-            ok = False
-        times.append(time_s)
-        values.append(value)
-    return Profile(tuple(times), tuple(values)) if ok else None
+            return False
+        return True
+
+    read = reader.timed_rows(table[key], f"[day] {key}", listing="[\"HH:MM\", value] pairs",
+                             entry=f"a pair [\"HH:MM\", {unit}]", width=1, check=check)
+    return None if read is None else Profile(read[0], tuple(row[0] for row in read[1]))
 
 
 def _wind(reader: _Reader, table: dict) -> Wind | WindProfile | None:
@@ -411,18 +416,9 @@ def _wind_profile(reader: _Reader, raw: list) -> WindProfile | None:
     return WindProfile(tuple(levels)) if ok else None
 
 
-def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = False) -> Day | None:
-    """The [day] table as a Day; with a sounding (``source``, a
-    :class:`glidetask.engine.sounding.DaySource`) the keys it derives may be left out, and
-    typed ones override them. ``sounding_failed``: the sounding's problems are reported
-    already, so the keys it would have given are not reported missing."""
-    reader.unknown(table, "[day]", DAY_KEYS)
-    derived = None if source is None else source.inputs
-    optional = derived is not None or sounding_failed
-    start = reader.clock(table, "[day]", "start_time", required=True)
-    lift_ends = reader.clock(table, "[day]", "lift_ends", required=not optional)
-    if lift_ends is None and "lift_ends" not in table and derived is not None:
-        lift_ends = derived.lift_ends_s
+def _day_band(reader: _Reader, table: dict, derived, optional: bool, start: float | None):
+    """``(band_top_m, band top profile or None, band_bottom_m, start_height_m)`` of [day],
+    typed or derived, with the checks between them."""
     if optional and "band_top_m" not in table:
         top, top_profile = (None, None) if derived is None else (derived.band_top_m, derived.band_top)
     else:
@@ -441,39 +437,70 @@ def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = Fals
         top_name = "band_top_m" if top_profile is None else "the band top at the start"
         reader.add("[day] start_height_m", f"the start height ({start_height:g} m) is above {top_name} "
                                            f"({start_top:g} m)")
+    return top, top_profile, bottom, start_height
+
+
+def _day_lift(reader: _Reader, table: dict, derived, sounding_failed: bool) -> tuple[Profile | None, Profile | None]:
+    """``(climb, thermal_strength)`` of [day]: exactly one is typed, or the derived strength."""
+    given = [key for key in ("climb_ms", "thermal_strength_ms") if key in table]
+    if not given and derived is not None:
+        return None, derived.thermal_strength
+    if not given and sounding_failed:
+        return None, None
+    if len(given) != 1:
+        reader.add("[day] climb_ms", "give exactly one of climb_ms (achieved climb) and thermal_strength_ms "
+                                     f"(thermal core strength), got {' and '.join(given) or 'neither'}")
+        return None, None
+    if given[0] == "climb_ms":
+        return _profile(reader, table, "climb_ms"), None
+    return None, _profile(reader, table, "thermal_strength_ms")
+
+
+def _day_settings(reader: _Reader, table: dict) -> dict | None:
+    """The [day] settings with defaults, as :class:`Day` keywords; None where any is bad."""
+    settings = {
+        "glide_airmass_ms": reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0),
+        "isa_deviation_c": reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0),
+        "mc_ms": reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0),
+        "thermal_radius_m": reader.number(table, "[day]", "thermal_radius_m", positive=True, high=5000.0),
+        "centring_s": reader.number(table, "[day]", "centring_s", default=DEFAULT_CENTRING_S, low=0.0, high=600.0),
+        "detour_percent": reader.number(table, "[day]", "detour_percent", default=DEFAULT_DETOUR_PERCENT, low=0.0,
+                                        high=50.0),
+        "stall_margin": reader.number(table, "[day]", "stall_margin", default=DEFAULT_STALL_MARGIN,
+                                      low=STALL_MARGIN_RANGE[0], high=STALL_MARGIN_RANGE[1]),
+    }
+    optional = ("mc_ms", "thermal_radius_m")  # None when absent
+    if any(value is None and (key not in optional or key in table) for key, value in settings.items()):
+        return None
+    return settings
+
+
+def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = False) -> Day | None:
+    """The [day] table as a Day; with a sounding (``source``, a
+    :class:`glidetask.engine.sounding.DaySource`) the keys it derives may be left out, and
+    typed ones override them. ``sounding_failed``: the sounding's problems are reported
+    already, so the keys it would have given are not reported missing."""
+    reader.unknown(table, "[day]", DAY_KEYS)
+    derived = None if source is None else source.inputs
+    optional = derived is not None or sounding_failed
+    start = reader.clock(table, "[day]", "start_time", required=True)
+    lift_ends = reader.clock(table, "[day]", "lift_ends", required=not optional)
+    if lift_ends is None and "lift_ends" not in table and derived is not None:
+        lift_ends = derived.lift_ends_s
+    top, top_profile, bottom, start_height = _day_band(reader, table, derived, optional, start)
     if start is not None and lift_ends is not None and start >= lift_ends:
         reader.add("[day] start_time", f"the start ({format_clock(start)}) must be before lift_ends "
                                        f"({format_clock(lift_ends)})")
-    given = [key for key in ("climb_ms", "thermal_strength_ms") if key in table]
-    climb = strength = None
-    if not given and derived is not None:
-        strength = derived.thermal_strength
-    elif not given and sounding_failed:
-        pass
-    elif len(given) != 1:
-        reader.add("[day] climb_ms", "give exactly one of climb_ms (achieved climb) and thermal_strength_ms "
-                                     f"(thermal core strength), got {' and '.join(given) or 'neither'}")
-    elif given[0] == "climb_ms":
-        climb = _profile(reader, table, "climb_ms")
-    else:
-        strength = _profile(reader, table, "thermal_strength_ms")
+    climb, strength = _day_lift(reader, table, derived, sounding_failed)
     wind = derived.wind_profile if "wind" not in table and derived is not None else _wind(reader, table)
-    airmass = reader.number(table, "[day]", "glide_airmass_ms", default=0.0, low=-5.0, high=5.0)
-    isa = reader.number(table, "[day]", "isa_deviation_c", default=0.0, low=-50.0, high=50.0)
-    mc = reader.number(table, "[day]", "mc_ms", low=0.0, high=10.0)
-    radius = reader.number(table, "[day]", "thermal_radius_m", positive=True, high=5000.0)
-    centring = reader.number(table, "[day]", "centring_s", default=DEFAULT_CENTRING_S, low=0.0, high=600.0)
-    detour = reader.number(table, "[day]", "detour_percent", default=DEFAULT_DETOUR_PERCENT, low=0.0, high=50.0)
-    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind, airmass, isa):
+    settings = _day_settings(reader, table)
+    if (climb is None and strength is None) or None in (start, lift_ends, top, bottom, wind) or settings is None:
         return None
-    if ("start_height_m" in table and start_height is None) or ("mc_ms" in table and mc is None):
-        return None
-    if ("thermal_radius_m" in table and radius is None) or centring is None or detour is None:
+    if "start_height_m" in table and start_height is None:
         return None
     return Day(start_time_s=start, band_top_m=top, band_bottom_m=bottom, lift_ends_s=lift_ends, wind=wind,
-               climb=climb, thermal_strength=strength, start_height_m=start_height, glide_airmass_ms=airmass,
-               isa_deviation_c=isa, mc_ms=mc, thermal_radius_m=radius, band_top_profile=top_profile,
-               centring_s=centring, detour_percent=detour)
+               climb=climb, thermal_strength=strength, start_height_m=start_height, band_top_profile=top_profile,
+               **settings)
 
 
 def _quiet_clock(value) -> float | None:
@@ -762,23 +789,11 @@ def _wind_value(wind: Wind | WindProfile):
     return {"from_deg": wind.from_deg, "speed_kmh": wind.speed_ms / KMH}
 
 
-def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
-                     header: str | None = None) -> str:
-    """The TOML text of a task file for ``scenario``, with paths relative to ``folder``."""
-    task, glider, day, safety = scenario.task, scenario.glider, scenario.day, scenario.safety
-    lines = [f"# {line}".rstrip() for line in (header or "").splitlines()]
-    if lines:
-        lines.append("")
-    lines += ["[task]", f"name = {_toml_value(task.name)}", f"kind = {_toml_value(task.kind)}",
-              f"turnpoints = {_toml_value(_relative(turnpoints_file, folder))}"]
-    if task.min_time_s is not None:
-        lines.append(f"min_time_min = {_toml_value(task.min_time_s / 60.0)}")
-    for point in task.points:
-        lines += ["", "[[task.points]]"] + [f"{k} = {_toml_value(v)}" for k, v in _zone_entry(point).items()]
-    lines += ["", "[glider]", f"polar = {_toml_value(_relative(glider.polar_file, folder))}",
-              f"pilot_kg = {_toml_value(glider.pilot_kg)}", f"ballast_kg = {_toml_value(glider.ballast_kg)}",
-              f"bugs_percent = {_toml_value(glider.bugs_percent)}"]
-    lines += ["", "[day]"]
+def _day_lines(scenario: Scenario, folder: Path) -> list[str]:
+    """The [day] table's lines: the keys typed (a derived day's own are left to the sounding)
+    and the settings that differ from their defaults."""
+    task, day = scenario.task, scenario.day
+    lines: list[str] = []
     typed = _typed_day_keys(scenario)
     if scenario.day_source is not None and scenario.day_source.settings is not None:
         lines += _sounding_lines(scenario.day_source.settings, folder)
@@ -804,6 +819,8 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
         lines.append(f"centring_s = {_toml_value(day.centring_s)}")
     if day.detour_percent != DEFAULT_DETOUR_PERCENT:
         lines.append(f"detour_percent = {_toml_value(day.detour_percent)}")
+    if day.stall_margin != DEFAULT_STALL_MARGIN:
+        lines.append(f"stall_margin = {_toml_value(day.stall_margin)}")
     lowest = min(point.turnpoint.elevation_m for point in task.points)
     if scenario.day_source is None and day.ground_m != lowest:  # the layer's ground, as read (a sounding gives its own)
         lines.append(f"surface_elevation_m = {_toml_value(day.ground_m)}")
@@ -813,6 +830,26 @@ def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os
               f"isa_deviation_c = {_toml_value(day.isa_deviation_c)}"]
     if day.mc_ms is not None:
         lines.append(f"mc_ms = {_toml_value(day.mc_ms)}")
+    return lines
+
+
+def scenario_to_toml(scenario: Scenario, folder: Path, turnpoints_file: str | os.PathLike,
+                     header: str | None = None) -> str:
+    """The TOML text of a task file for ``scenario``, with paths relative to ``folder``."""
+    task, glider, safety = scenario.task, scenario.glider, scenario.safety
+    lines = [f"# {line}".rstrip() for line in (header or "").splitlines()]
+    if lines:
+        lines.append("")
+    lines += ["[task]", f"name = {_toml_value(task.name)}", f"kind = {_toml_value(task.kind)}",
+              f"turnpoints = {_toml_value(_relative(turnpoints_file, folder))}"]
+    if task.min_time_s is not None:
+        lines.append(f"min_time_min = {_toml_value(task.min_time_s / 60.0)}")
+    for point in task.points:
+        lines += ["", "[[task.points]]"] + [f"{k} = {_toml_value(v)}" for k, v in _zone_entry(point).items()]
+    lines += ["", "[glider]", f"polar = {_toml_value(_relative(glider.polar_file, folder))}",
+              f"pilot_kg = {_toml_value(glider.pilot_kg)}", f"ballast_kg = {_toml_value(glider.ballast_kg)}",
+              f"bugs_percent = {_toml_value(glider.bugs_percent)}"]
+    lines += ["", "[day]"] + _day_lines(scenario, folder)
     if scenario.terrain_file:
         lines += ["", "[terrain]", f"file = {_toml_value(_relative(scenario.terrain_file, folder))}"]
     if scenario.airspace_file:
@@ -855,7 +892,7 @@ _TABLE_DEFAULTS = {
     "task": {"kind": "racing"},
     "glider": {"pilot_kg": DEFAULT_PILOT_KG, "ballast_kg": 0.0, "bugs_percent": 0.0},
     "day": {"centring_s": DEFAULT_CENTRING_S, "detour_percent": DEFAULT_DETOUR_PERCENT, "glide_airmass_ms": 0.0,
-            "isa_deviation_c": 0.0,
+            "isa_deviation_c": 0.0, "stall_margin": DEFAULT_STALL_MARGIN,
             "wind": {"from_deg": 0.0, "speed_kmh": 0.0}},
     "safety": {"arrival_margin_m": 200.0, "terrain_clearance_m": 150.0, "airspace_margin_m": DEFAULT_AIRSPACE_MARGIN_M},
     "terrain": {},

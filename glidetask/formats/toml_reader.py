@@ -8,10 +8,11 @@ import json
 import math
 import tomllib
 from pathlib import Path
-from typing import Any
+from typing import Any, Callable
 
 from glidetask.errors import InputError, Problem, ProblemCollector
 from glidetask.formats.files import read_text
+from glidetask.units import format_clock, parse_clock
 
 
 def is_number(value: Any) -> bool:
@@ -134,3 +135,42 @@ class TomlReader:
             self.add(here, f"must be non-empty text, got {show(value)}")
             return None
         return value.strip()
+
+    def timed_rows(self, raw: Any, where: str, *, listing: str, entry: str, width: int, least: int = 1,
+                   check: Callable[[str, list, tuple], bool]) -> tuple[tuple[float, ...], list[tuple]] | None:
+        """A quantity through the day, ``[["HH:MM", value, ...], ...]`` (a task's lift and
+        band-top profiles, the surface forecast): ``(times_s, rows)`` with the times strictly
+        increasing and ``width`` numbers after each time, or None with a problem per bad entry
+        (placed ``where[n]``, entries counted from 1).
+
+        ``listing`` and ``entry`` word the expected list and entry in messages; ``check(here,
+        entry, values)`` reports a row whose values (floats, None for a number too large) are
+        out of range and returns False for it.
+        """
+        if not isinstance(raw, list) or len(raw) < least:
+            self.add(where, f"must be a list of {listing}, got {show(raw)}")
+            return None
+        times: list[float] = []
+        rows: list[tuple] = []
+        ok = True
+        for number, item in enumerate(raw, start=1):
+            here = f"{where}[{number}]"
+            if not (isinstance(item, list) and len(item) == width + 1 and isinstance(item[0], str)
+                    and all(is_number(v) for v in item[1:])):
+                self.add(here, f"must be {entry}, got {show(item)}")
+                ok = False
+                continue
+            try:
+                time_s = parse_clock(item[0])
+            except ValueError:
+                self.add(here, f"expected a local time as HH:MM, got {item[0][:20]!r}")
+                ok = False
+                continue
+            values = tuple(as_float(v) for v in item[1:])
+            ok = check(here, item, values) and ok
+            if times and time_s <= times[-1]:
+                self.add(here, f"times must increase: {item[0]} is not after {format_clock(times[-1])}")
+                ok = False
+            times.append(time_s)
+            rows.append(values)
+        return (tuple(times), rows) if ok else None

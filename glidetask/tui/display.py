@@ -7,8 +7,6 @@ one :class:`glidetask.units.UnitSystem` formats, so the UI, the CLI and the brie
 from __future__ import annotations
 
 import math
-import re
-import re
 
 from glidetask import units as units_module
 from glidetask.units import UnitSystem
@@ -87,26 +85,3 @@ def number(value, decimals: int = 1) -> str:
         return ""
     text = f"{float(value):.{decimals}f}"
     return text.rstrip("0").rstrip(".") if "." in text else text
-
-
-_QUANTITY = re.compile(r"(?<![\w.])(-?\d+(?:\.\d+)?) (km/h|m/s|km|m)(?![\w/])")
-
-
-def in_units(text: str, units: UnitSystem) -> str:
-    """Engine notes worded in metric only (the sweep's, the odds' and the what-if labels:
-    ``"(250 m radius)"``) in the units on screen.
-
-    A plan's cautions come worded in the units from :func:`glidetask.cautions.plan_cautions`;
-    the comparison and odds notes have no such home in the engine yet, so until they do the
-    UI converts the figures it finds in them, and a panel never mixes units.
-    """
-    if units.name == "metric":
-        return text
-
-    def convert(match: re.Match) -> str:
-        value, unit = float(match.group(1)), match.group(2)
-        si = value * {"km/h": units_module.KMH, "m/s": 1.0, "km": 1000.0, "m": 1.0}[unit]
-        return {"km/h": units.fmt_speed, "m/s": units.fmt_vertical, "km": units.fmt_distance,
-                "m": units.fmt_height}[unit](si)
-
-    return _QUANTITY.sub(convert, text)

@@ -56,6 +56,8 @@ def test_text_plan_shows_legs_totals_heights_verdict_and_cautions(capsys):
     assert f"FINISHED at {data['finish_time']}" in text
     assert f"{data['final_glide']['start_height_m']:.0f} m" in text
     assert "Heights needed to final-glide home" in text
+    # The circling model's default margin, shown with the other practical defaults (common practice).
+    assert "centring 30 s a climb, detour 5 %, circling at 1.15 x the banked stall speed (common practice)" in text
     for caution in cautions.GENERAL:
         assert caution in text
 

@@ -255,3 +255,37 @@ def test_a_saved_task_keeps_its_sounding_and_types_only_what_was_edited(tmp_path
     save_task(target, edited)
     reread = load_scenario(target)
     assert reread.day.band_bottom_m == 1100.0 and reread.day_source.overridden == ("band_bottom_m",)
+
+
+def test_the_day_line_shows_the_wind_through_the_working_band_only(capsys):
+    # The sounding's wind has levels up to 10 km; the plan flies between the band bottom and
+    # its highest top, so the Day line shows the levels there and the wind at both ends.
+    import csv
+    import math
+
+    import numpy as np
+
+    day = load_scenario(FORECAST).day
+    bottom, top = day.band_bottom_m, day.band_top_m
+    with open(DEMO / "vardmoor-sounding.csv", newline="") as handle:
+        rows = [{key: float(value) for key, value in row.items()} for row in csv.DictReader(handle)]
+    heights = np.array([row["height_m"] for row in rows])
+    assert bottom not in heights and top not in heights  # both ends fall between the levels
+    assert main(["plan", str(FORECAST)]) == 0
+    line = next(line for line in capsys.readouterr().out.splitlines() if line.startswith("  Day "))
+    shown = re.findall(r"(\d{3})/(\d+) km/h at (\d+) m( \(band (?:bottom|top)\))?", line.split(", wind ", 1)[1])
+    inside = [row for row in rows if bottom < row["height_m"] < top]
+    assert [int(h) for _, _, h, _ in shown] == [round(bottom)] + [int(r["height_m"]) for r in inside] + [round(top)]
+    assert shown[0][3] == " (band bottom)" and shown[-1][3] == " (band top)"
+    for (direction, speed, _, _), row in zip(shown[1:-1], inside):  # each level as the sounding gives it
+        assert (int(direction), int(speed)) == (row["wind_from_deg"], row["wind_speed_kmh"])
+
+    def between(z):
+        # Source: contract 2.3, a wind profile interpolates the wind vector linearly in height;
+        # worked here by hand from the CSV (from-direction vector: east = s sin(d), north = s cos(d)).
+        east = np.interp(z, heights, [r["wind_speed_kmh"] * math.sin(math.radians(r["wind_from_deg"])) for r in rows])
+        north = np.interp(z, heights, [r["wind_speed_kmh"] * math.cos(math.radians(r["wind_from_deg"])) for r in rows])
+        return round(math.degrees(math.atan2(east, north)) % 360.0), round(math.hypot(east, north))
+
+    assert (int(shown[0][0]), int(shown[0][1])) == between(bottom)
+    assert (int(shown[-1][0]), int(shown[-1][1])) == between(top)

@@ -84,7 +84,7 @@ def test_a_glider_without_water_gets_one_column_and_says_so(demo):
     ridge = demo["ridge-final-glide"]  # the club example carries no water (its polar file)
     sweep = compare.ballast_sweep(ridge)
     assert sweep.ballast_kg.tolist() == [0.0]
-    assert any("no water ballast" in note for note in sweep.notes)
+    assert any(note.code == "no_water_ballast" for note in sweep.notes)
     assert list(sweep.thermal_strength_ms) == pytest.approx([0.5 * i for i in range(1, 11)])
 
 
@@ -315,13 +315,13 @@ def test_a_start_after_the_end_of_lift_is_not_flown():
     s = synthetic(climb=2.0, lift_ends=12.25 * HOUR)  # lift ends 15 min after the start
     result = what_ifs.sensitivity(s)
     later = [row for row in result.rows if row.key == "later_start"][0]
-    assert not later.finished and math.isnan(later.total_time_s) and "after the end of lift" in later.change
+    assert not later.finished and math.isnan(later.total_time_s) and later.facts["refused"] == "[day] start_time"
 
 
 def test_area_task_sensitivity_keeps_the_forecast_targets(demo):
     s = demo["area-3h"]
     result = what_ifs.sensitivity(s)
-    assert result.notes and "targets" in result.notes[0]
+    assert result.notes and result.notes[0].code == "what_ifs_area_targets"
     forecast = plan(s)
     assert result.forecast.total_time_s == pytest.approx(forecast.total_time_s, abs=1e-6)
     assert result.forecast.task_speed_ms == pytest.approx(forecast.task_speed_ms, rel=1e-12)

@@ -17,7 +17,7 @@ from glidetask.engine.flight import flights_for
 from glidetask.engine.plan import final_glide_card, plan
 from glidetask.engine.polar import PolarSpec, scaled_polar
 from glidetask.engine.scenario import (
-    MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, Wind, with_what_ifs,
+    MAX_WIND_SPEED_KMH, Day, GliderSetup, Profile, Safety, Scenario, WhatIfError, Wind, with_what_ifs,
 )
 from glidetask.engine.task import Task, TaskPoint, Turnpoint
 from glidetask.engine.zones import Zone
@@ -166,10 +166,11 @@ def test_wind_too_strong_is_a_result_not_an_error():
 
 def test_a_wind_above_the_input_limit_is_refused_by_name():
     # One wind limit for every input (the task file's 200 km/h): a what-if above it is an
-    # input error naming the option; the same wind in the scenario itself names the key.
+    # input error naming the key as a what-if (the command line names its option); the same
+    # wind in the scenario itself names the key in the file.
     with pytest.raises(InputError) as what_if:
         plan(scenario(OUT_AND_RETURN), wind=Wind(270.0, 900 * KMH))
-    assert [(p.file, p.where) for p in what_if.value.problems] == [("command line", "--wind")]
+    assert [(p.file, p.where) for p in what_if.value.problems] == [("what-if", "[day] wind")]
     with pytest.raises(InputError) as in_file:
         plan(scenario(OUT_AND_RETURN, wind=Wind(90.0, 300 * KMH)))
     assert [p.where for p in in_file.value.problems] == ["[day] wind"]
@@ -254,21 +255,27 @@ def test_what_ifs_replace_the_scenario_values():
     assert s.glider.ballast_kg == 0.0  # the original is untouched
 
 
-@pytest.mark.parametrize("what_if, option", [
-    (dict(ballast_kg=151.0), "--ballast-kg"),  # above the polar's 150 kg
-    (dict(ballast_kg=140.0), "--ballast-kg"),  # 260 + 90 + 140 = 490 kg is fine ...
-    (dict(start_time_s=19 * HOUR), "--start"),  # at the end of lift
-    (dict(mc_ms=-1.0), "--mc-ms"),
-    (dict(bugs_percent=-5.0), "--bugs-percent"),
+@pytest.mark.parametrize("what_if, key, option", [
+    (dict(ballast_kg=151.0), "[glider] ballast_kg", "--ballast-kg"),  # above the polar's 150 kg
+    (dict(ballast_kg=140.0), "[glider] ballast_kg", "--ballast-kg"),  # 260 + 90 + 140 = 490 kg is fine ...
+    (dict(start_time_s=19 * HOUR), "[day] start_time", "--start"),  # at the end of lift
+    (dict(mc_ms=-1.0), "[day] mc_ms", "--mc-ms"),
+    (dict(bugs_percent=-5.0), "[glider] bugs_percent", "--bugs-percent"),
 ])
-def test_bad_what_ifs_are_input_errors_naming_the_option(what_if, option):
+def test_bad_what_ifs_are_input_errors_naming_the_key(what_if, key, option):
+    # The engine names the task-file key a what-if replaced; the command line its option.
+    from glidetask.cli import what_if_problems
+
     s = scenario(OUT_AND_RETURN)
     if what_if == dict(ballast_kg=140.0):  # ... but not with a heavier pilot: 260 + 130 + 140 > 525
         s = dataclasses.replace(s, glider=dataclasses.replace(s.glider, pilot_kg=130.0))
-    with pytest.raises(InputError) as caught:
+    with pytest.raises(WhatIfError) as caught:
         plan(s, **what_if)
+    assert caught.value.pairs[0][0] == key and caught.value.what_ifs == {key}
     problem = caught.value.problems[0]
-    assert (problem.file, problem.where) == ("command line", option)
+    assert (problem.file, problem.where) == ("what-if", key)
+    named = what_if_problems(caught.value)[0]
+    assert (named.file, named.where, named.what) == ("command line", option, problem.what)
 
 
 def test_inconsistent_scenario_is_blamed_on_the_file():

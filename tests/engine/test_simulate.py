@@ -192,7 +192,7 @@ def test_bad_options_are_refused(demo):
         DaySpread(climb_log_sd=-0.1)
     with pytest.raises(InputError) as error:
         simulate_days(s, runs=10, ballasts_kg=[200.0])
-    assert error.value.problems[0].where == "--ballast-kg"
+    assert (error.value.problems[0].file, error.value.problems[0].where) == ("what-if", "[glider] ballast_kg")
 
 
 # ---------------------------------------------------------------- calibrated odds
@@ -207,9 +207,9 @@ def test_the_search_distance_comes_from_the_convective_layer(demo):
     assert zi == pytest.approx(1935.0)
     odds = simulate_days(s, runs=20, seed=1)
     assert odds.spread.thermal_search_mean_m == pytest.approx(zi / 1.2)
-    assert "Allen (2006)" in odds.search_source and "1.9 km" in odds.search_source
+    assert odds.search_layer_m == pytest.approx(zi)  # worded "Allen (2006) for a 1.9 km convective layer"
     given = simulate_days(s, runs=20, seed=1, spread=DaySpread(thermal_search_mean_m=2000.0))
-    assert given.spread.thermal_search_mean_m == 2000.0 and given.search_source == ""
+    assert given.spread.thermal_search_mean_m == 2000.0 and math.isnan(given.search_layer_m)
     # A deeper layer: thermals further apart (the same thermal density per layer depth and radius).
     deep = dataclasses.replace(s, day=dataclasses.replace(s.day, ground_m=s.day.ground_m - 600.0))
     assert simulate.day_search_mean_m(deep) == pytest.approx((zi + 600.0) / 1.2)

@@ -154,3 +154,4 @@ def test_day_assumed_states_the_practical_speeds(triangle):
     assert f"{day.centring_s:g} s centring each climb" in section
     assert f"{day.detour_percent:g} % longer" in section
     assert f"{day.effective_thermal_radius_m:.0f} m in radius" in section
+    assert f"circling at {day.stall_margin:g} times the banked stall speed" in section  # 1.15, common practice

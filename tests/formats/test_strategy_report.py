@@ -11,8 +11,8 @@ import pytest
 
 from glidetask import cautions
 from glidetask.engine.compare import BallastSweep
+from glidetask.engine.plan import Notice
 from glidetask.engine.sensitivity import Sensitivity, SensitivityRow
-from glidetask.engine.scenario import Wind
 from glidetask.engine.simulate import ChoiceOdds, DaySpread, Odds, SpacingOdds
 from glidetask.formats import strategy_report as report
 from glidetask.units import AVIATION, KMH, KNOT
@@ -33,7 +33,12 @@ def hand_sweep() -> BallastSweep:
                         task_time_s=times, best_ballast_kg=np.array([NAN, 0.0, 100.0]),
                         fastest_ballast_kg=np.array([NAN, 0.0, 100.0]), ballast_pays_from_ms=3.0,
                         full_ballast_from_ms=3.0, scenario_ballast_kg=50.0, forecast_strength_ms=2.5,
-                        phases=16, notes=("a note of the sweep",))
+                        phases=16, notes=(Notice("sweep_one_thermal", {"thermal_radius_m": 150.0, "source": "given"}),
+                                          Notice("sweep_ignores_fixed_mc", {"mc_ms": 2.0}), Notice("dump_water")))
+
+
+ONE_THERMAL = ("Thermals are taken as constant in strength all day and of one size (150 m radius, given): real "
+               "days vary, and a narrower thermal punishes ballast more.")
 
 
 # ---------------------------------------------------------------- sweep
@@ -53,7 +58,11 @@ def test_sweep_json_has_the_contract_keys_with_their_meanings():
     assert data["cruise_speed_kmh"][1][0] == pytest.approx(28.0 / KMH, abs=0.05)
     assert data["cruise_speed_kmh"][0] == [None, None, None]
     assert data["ballast_pays_from_ms"] == 3.0 and data["full_ballast_from_ms"] == 3.0
-    assert data["cautions"] == cautions.general() + ["a note of the sweep"]
+    # The notes are facts worded here, in metric for JSON (as the contract keeps them).
+    assert data["cautions"] == cautions.general() + [
+        ONE_THERMAL, "The sweep flies at a MacCready setting equal to the achieved climb, not the day's fixed "
+        "setting of 2 m/s.", cautions.STRATEGY_NOTES["dump_water"]]
+    assert report.sweep_to_dict(hand_sweep(), ["a day caution"])["cautions"][len(cautions.GENERAL)] == "a day caution"
 
 
 def test_sweep_text_marks_the_best_and_shows_times_as_hours_and_minutes():
@@ -65,14 +74,17 @@ def test_sweep_text_marks_the_best_and_shows_times_as_hours_and_minutes():
     assert row_3.split()[2:] == ["3:00", "2:54", "*2:48"]  # 2.9 h = 2:54, 2.8 h = 2:48
     assert "Ballast pays from 3.0 m/s thermals" in text and "Full ballast is fastest from 3.0 m/s" in text
     assert "about 2.5 m/s" in text
-    assert "CAUTION" in text and cautions.GENERAL[0] in text and "a note of the sweep" in text
+    assert "CAUTION" in text and cautions.GENERAL[0] in text and ONE_THERMAL in text
 
 
 def test_sweep_text_in_aviation_units():
     text = report.sweep_text(hand_sweep(), "aviation")
     # Source: 1 kt = 1852/3600 m/s (contract section 6): 2.0 m/s = 3.9 kt, 3.0 m/s = 5.8 kt
     assert f"{2.0 / KNOT:.1f} kt" == "3.9 kt"
-    assert "3.9 kt" in text and "5.8 kt" in text and "m/s" not in text.split("CAUTION")[0]
+    assert "3.9 kt" in text and "5.8 kt" in text and "m/s" not in text
+    # The notes too: 150 m = 492 ft (0.3048 m a foot); 2 m/s = 3.89 kt, a setting as typed to two decimals.
+    assert "(492 ft radius, given)" in text and "fixed setting of 3.89 kt." in text
+    assert " m " not in text.split("CAUTION")[1]
 
 
 def test_sweep_markdown_is_a_table_with_the_best_in_bold():
@@ -81,7 +93,7 @@ def test_sweep_markdown_is_a_table_with_the_best_in_bold():
     assert rows[0] == "| Thermal | 0 kg | 50 kg | 100 kg |"
     assert rows[1] == "| :-- | --: | --: | --: |"
     assert rows[3] == "| 2.0 m/s | **4:00** | 4:30 | - |"
-    assert "- a note of the sweep" in text
+    assert f"- {ONE_THERMAL}" in text
 
 
 def test_sweep_verdicts():
@@ -96,16 +108,17 @@ def test_sweep_verdicts():
 
 
 def hand_sensitivity() -> Sensitivity:
-    def row(key, label, change, time, delta, finished=True, landout=NAN):
-        return SensitivityRow(key, label, change, time, delta, finished, 12 * 3600.0 + time if finished else NAN,
+    def row(key, facts, time, delta, finished=True, landout=NAN):
+        return SensitivityRow(key, facts, time, delta, finished, 12 * 3600.0 + time if finished else NAN,
                               landout, 300e3 / time if finished else NAN)
 
-    rows = (row("forecast", "Forecast", "the plan as given", 10800.0, 0.0),
-            row("weaker_climbs", "Climbs 0.5 m/s weaker", "x", 12000.0, 1200.0),
-            row("more_wind", "Wind 10 km/h stronger", "x", 10810.0, 10.0),
-            row("later_start", "Start 30 min later", "x", 9000.0, NAN, finished=False, landout=250e3),
-            row("more_bugs", "5 % more bugs", "x", 11100.0, 300.0))
-    return Sensitivity("hand-made", "racing", rows, ("a note",), Wind(250.0, 15 * KMH), 12 * 3600.0, 0.0, False)
+    rows = (row("forecast", {}, 10800.0, 0.0),
+            row("weaker_climbs", {"by_ms": 0.5, "strength": False}, 12000.0, 1200.0),
+            row("more_wind", {"by_ms": 10 * KMH, "from_deg": 250.0, "speed_ms": 25 * KMH}, 10810.0, 10.0),
+            row("later_start", {"by_s": 1800.0, "start_time_s": 12.5 * 3600.0}, 9000.0, NAN, finished=False,
+                landout=250e3),
+            row("more_bugs", {"by_percent": 5.0, "bugs_percent": 5.0}, 11100.0, 300.0))
+    return Sensitivity("hand-made", "racing", rows, (Notice("what_ifs_area_targets"),))
 
 
 def test_sensitivity_text_shows_times_and_signed_changes():
@@ -117,7 +130,21 @@ def test_sensitivity_text_shows_times_and_signed_changes():
     assert "no change" in lines[4]  # 10 s rounds to no change in minutes
     assert "lands out" in lines[5] and "250.0 km" in lines[5] and "start 12:30" in lines[5]
     assert "wind 250/25 km/h" in text and "bugs 5 % (sink rate)" in text
-    assert "a note" in text
+    assert cautions.STRATEGY_NOTES["what_ifs_area_targets"] in text
+
+
+def test_what_if_words_from_the_facts():
+    rows = hand_sensitivity().rows
+    assert [report.what_if_words(r) for r in rows] == [
+        ("Forecast", "the plan as given"), ("Climbs 0.5 m/s weaker", "achieved climb -0.5 m/s all day"),
+        ("Wind 10 km/h stronger", "wind 250/25 km/h"), ("Start 30 min later", "start 12:30"),
+        ("5 % more bugs", "bugs 5 % (sink rate)")]
+    refused = SensitivityRow("later_start", {"by_s": 1800.0, "start_time_s": 19 * 3600.0,
+                                             "refused": "[day] start_time"}, NAN, NAN, False, NAN, NAN, NAN)
+    assert report.what_if_words(refused, AVIATION) == ("Start 30 min later", "start 19:00: at or after the end of lift")
+    strength = SensitivityRow("weaker_climbs", {"by_ms": 0.5, "strength": True}, NAN, NAN, False, NAN, NAN, NAN)
+    # Source: 1 kt = 1852/3600 m/s (contract section 6): 0.5 m/s = 0.97 kt
+    assert report.what_if_words(strength, AVIATION) == ("Thermals 1.0 kt weaker", "thermal strength -1.0 kt all day")
 
 
 def test_sensitivity_in_aviation_units():
@@ -155,7 +182,8 @@ def hand_odds() -> Odds:
     spacing = (SpacingOdds(0.5, 1000.0, (0.99, 0.0), (0.003, 0.0)), SpacingOdds(1.0, 2000.0, (0.95, 0.0), (0.0069, 0.0)),
                SpacingOdds(4.0, 8000.0, (0.4, 0.0), (0.0155, 0.0)))
     return Odds("hand-made", (("A", "B"), ("B", "C"), ("C", "A")), 1000, 7, DaySpread(thermal_search_mean_m=2000.0),
-                (choice, heavy), ("n",), search_source="", spacing=spacing)
+                (choice, heavy), (Notice("odds_spread_assumed", {"spread": DaySpread(thermal_search_mean_m=2000.0)}),
+                                  Notice("odds_landout_meaning")), spacing=spacing)
 
 
 def test_odds_json():
@@ -177,7 +205,13 @@ def test_odds_json():
     last = data["thermal_spacing"][-1]
     assert last["thermal_search_mean_km"] == 8.0
     assert last["choices"][0] == {"ballast_kg": 0.0, "finish_probability": 0.4, "finish_probability_se": 0.0155}
-    assert data["cautions"][-1] == "n"
+    assert data["cautions"][-1] == cautions.STRATEGY_NOTES["odds_landout_meaning"]
+    assert data["cautions"][-2].endswith("wind speed +/- 8 km/h and direction +/- 20 deg (1 sd), end of lift +/- 30 "
+                                         "min, 1 day in 10 the lift ends 1-2 h early, next climb on average 2.0 km "
+                                         "beyond the band bottom.")
+    day = Odds(**{**hand_odds().__dict__, "search_layer_m": 1900.0})
+    assert report.odds_to_dict(day)["assumptions"]["thermal_search_source"] == ("Allen (2006) for a 1.9 km "
+                                                                                 "convective layer")
 
 
 def test_probability_bar_fills_in_proportion():
@@ -210,3 +244,8 @@ def test_odds_text_shows_the_spacing_table_and_the_bad_days():
     assert "1 day in 10 the lift ends 1-2 h early" in text
     aviation = report.odds_text(hand_odds(), AVIATION)
     assert "4.3 NM" in aviation  # 8 km = 4.32 NM
+    # The spread's note in the chosen units too: 8 km/h = 4.3 kt, 2 km = 1.1 NM (1852 m).
+    assert "wind speed +/- 4 kt and direction" in aviation and "on average 1.1 NM beyond" in aviation
+    assert "km" not in aviation
+    day = Odds(**{**hand_odds().__dict__, "search_layer_m": 1900.0})
+    assert "(Allen (2006) for a 6234 ft convective layer)" in report.odds_text(day, AVIATION)  # 1900 / 0.3048

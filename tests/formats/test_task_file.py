@@ -277,6 +277,8 @@ BAD_RACING = [
     ('turnpoints = "points.csv"', 'turnpoints = "nope.csv"', "[task] turnpoints", "no such file"),
     ("arrival_margin_m = 250.0", "arrival_margin_m = -5.0", "[safety] arrival_margin_m", "must be in"),
     ("[safety]", "[weather]", "[weather]", "unknown table"),
+    ('lift_ends = "18:15"', 'lift_ends = "18:15"\nstall_margin = 1.01', "[day] stall_margin", "must be in [1.05, 1.5]"),
+    ('lift_ends = "18:15"', 'lift_ends = "18:15"\nstall_margin = 2', "[day] stall_margin", "must be in [1.05, 1.5]"),
     ('name = "Test triangle"', 'name = 42', "[task] name", "must be non-empty text"),
 ]
 
@@ -374,3 +376,54 @@ def test_a_60_degree_sector_and_a_non_default_keyhole_are_built_and_flown(folder
     assert optimized_path(task).total_m == pytest.approx(brute_force(task)[0], abs=0.5)
     # The keyhole's 1 km cylinder (not 0.5) lets the path cut closer: it differs from the default.
     assert optimized_path(task).total_m < optimized_path(default).total_m - 500.0
+
+
+# ---------------------------------------------------------------- [day] stall_margin
+
+
+def test_the_stall_margin_sets_the_achieved_climb_as_the_circling_model_says(folder):
+    # A constant thermal strength of 3 m/s (on the core's strength grid, so no interpolation):
+    # every leg's climb is the circling model's for the glider at the band middle.
+    from glidetask.engine import circling
+    from glidetask.engine.plan import plan
+
+    text = _edit(AREA, 'thermal_strength_ms = [["11:00", 2.0], ["13:00", 3.2]]', 'thermal_strength_ms = [["11:00", 3.0]]')
+    common = load_scenario(_write(folder, text))
+    careful = load_scenario(_write(folder, text.replace('lift_ends = "18:30"', 'lift_ends = "18:30"\nstall_margin = 1.3'),
+                                   "careful.toml"))
+    assert common.day.stall_margin == 1.15  # the default (common practice)
+    assert careful.day.stall_margin == 1.3
+    day = common.day
+    polar = common.glider.polar_at(day.band_middle_m, day.isa_deviation_c)
+    climbs = []
+    for scenario, margin in ((common, 1.15), (careful, 1.3)):
+        expected = float(circling.achieved_climb(polar, 3.0, 120.0, stall_margin=margin).climb_ms)
+        legs = [leg for leg in plan(scenario).legs if not leg.final_glide]
+        assert legs
+        # Tolerance: the core reads the model from a table on a 0.05 m/s strength grid; 3.0 lies on it.
+        assert all(leg.climb_ms == pytest.approx(expected, rel=1e-9) for leg in legs)
+        climbs.append(expected)
+    # Source: circling faster over the stall (a bigger margin) widens the circle into weaker
+    # lift and sinks faster (contract section 3, the circling model): less climb.
+    assert climbs[1] < climbs[0]
+
+
+def test_the_stall_margin_is_saved_back(folder):
+    text = AREA.replace('lift_ends = "18:30"', 'lift_ends = "18:30"\nstall_margin = 1.25  # a careful pilot')
+    scenario = load_scenario(_write(folder, text))
+    save_task(folder / "copy.toml", replace(scenario, day=replace(scenario.day, stall_margin=1.2)))
+    saved = (folder / "copy.toml").read_text()
+    assert "stall_margin = 1.2  # a careful pilot" in saved  # the user's comment kept
+    assert load_scenario(folder / "copy.toml").day.stall_margin == 1.2
+    save_task(folder / "plain.toml", load_scenario(_write(folder, AREA, "plain-source.toml")))
+    assert "stall_margin" not in (folder / "plain.toml").read_text()  # the default is not written
+
+
+def test_a_bad_stall_margin_is_one_line_naming_file_and_key(folder):
+    import subprocess
+    import sys
+
+    path = _write(folder, AREA.replace('lift_ends = "18:30"', 'lift_ends = "18:30"\nstall_margin = 1.01'))
+    run = subprocess.run([sys.executable, "-m", "glidetask", "plan", str(path)], capture_output=True, text=True)
+    assert run.returncode == 2 and run.stdout == ""
+    assert run.stderr.splitlines() == [f"glidetask: error: {path}: [day] stall_margin: must be in [1.05, 1.5], got 1.01"]

@@ -54,3 +54,21 @@ async def test_heights_read_whole_at_80x24(acknowledged):
         text = "\n".join("".join(s.text for s in strip) for strip in app.screen._compositor.render_strips())
         assert "…" not in text, text
         assert "MC 3" in text and "VAR" in text  # codes for names, every column whole
+
+
+async def test_what_ifs_in_aviation_units_are_the_clis_words(acknowledged):
+    # The what-if labels come from the engine's facts, worded once (strategy_report.what_if_words):
+    # the screen in aviation units reads as `glidetask plan --units aviation` does.
+    from glidetask.tui.recompute import what_ifs as compute
+    from glidetask.units import AVIATION
+
+    app = make_app(paths.demo_task(), units="aviation")
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        await pilot.press("h")
+        await settle(pilot, 5)
+        what_ifs = " ".join(text_of(app.screen.query_one("#what-ifs"), width=110).split())
+        expected = sensitivity_text(compute(app.plan), AVIATION)
+        for line in expected.splitlines()[1:]:
+            assert " ".join(line.split()) in what_ifs, line
+        assert " kt " in what_ifs and "km/h" not in what_ifs and "m/s" not in what_ifs

@@ -93,17 +93,6 @@ async def test_the_day_fields_keep_their_si_values_through_a_units_switch(synthe
         assert app.scenario is scenario and app.scenario.day.band_top_m == 1750.0
 
 
-def test_engine_notes_follow_the_units_on_screen():
-    from glidetask.tui.display import in_units
-    from glidetask.units import METRIC
-
-    note = "thermals assumed broad (250 m radius): a 20 min climb at 1.5 m/s over 12.5 km, wind 30 km/h"
-    assert in_units(note, METRIC) == note
-    # Source: 1 ft = 0.3048 m, 1 NM = 1852 m, 1 kt = 1852/3600 m/s (ICAO Annex 5 units)
-    assert in_units(note, AVIATION) == ("thermals assumed broad (820 ft radius): a 20 min climb at 2.9 kt "
-                                        "over 6.7 NM, wind 16 kt")
-
-
 async def test_compare_notes_in_aviation_units(synthetic, acknowledged):
     app = make_app(scenario=synthetic, units="aviation")
     async with app.run_test(size=(120, 40)) as pilot:

@@ -139,6 +139,7 @@ class CompareView(ViewScreen):
     def _draw(self) -> None:
         if not self._figures_mounted or self.sweep is None or self._computed_for is None or self.sweep.task_name != self._computed_for.scenario.task.name:
             return  # never another task's figures
+        from glidetask import cautions
         from glidetask.formats.strategy_report import forecast_line, sweep_verdict
 
         units, sweep = self.app.units, self.sweep
@@ -151,7 +152,7 @@ class CompareView(ViewScreen):
                       "the same strength all day; "
                       f"times averaged over where the climbs fall ({sweep.phases} positions). The best is the "
                       "lightest ballast within 0.2 % of the fastest.", style="dim")]
-        lines += [Text(f"⚠ {display.in_units(note, units)}", style="#e0b15a") for note in sweep.notes]
+        lines += [Text(f"⚠ {note}", style="#e0b15a") for note in cautions.notes_text(sweep.notes, units)]
         scenario = self.app.scenario
         if scenario is not None and scenario.day.climb is not None:
             lines.append(Text(CLIMB_NOTE, style="dim"))

@@ -12,6 +12,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Label, Static
 
 from glidetask import cautions
+from glidetask.formats.strategy_report import what_if_words
 from glidetask.tui import display
 from glidetask.units import KNOT
 
@@ -69,9 +70,9 @@ def what_if_table(sensitivity, units) -> Table:
             time, delta = "lands out", f"at {units.fmt_distance(row.landout_m)}"
         else:
             time, delta = display.DASH, "cannot start"
-        table.add_row(display.in_units(row.label, units), display.in_units(row.change, units), time, delta)
-    for note in sensitivity.notes:
-        table.add_row(Text(display.in_units(note, units), style="dim"), "", "", "")
+        table.add_row(*what_if_words(row, units), time, delta)
+    for note in cautions.notes_text(sensitivity.notes, units):
+        table.add_row(Text(note, style="dim"), "", "", "")
     return table
 
 

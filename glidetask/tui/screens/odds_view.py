@@ -17,7 +17,8 @@ from textual.app import ComposeResult
 from textual.containers import Vertical
 from textual.widgets import Static
 
-from glidetask.tui import display, messages
+from glidetask import cautions
+from glidetask.tui import messages
 from glidetask.tui.screens.base import ViewScreen
 from glidetask.tui.widgets.form_field import FormField
 from glidetask.tui.widgets.progress_notice import ProgressNotice
@@ -235,8 +236,8 @@ class OddsView(ViewScreen):
         text = Text(assumption_text(odds, self.app.units) + ".")
         text.append("\nPlanning assumptions of glidetask, not a forecast. The same days for each ballast.",
                     style="italic")
-        for note in odds.notes[1:]:
-            text.append(f"\n⚠ {display.in_units(note, self.app.units)}", style="#e0b15a")
+        for note in cautions.notes_text(odds.notes[1:], self.app.units):
+            text.append(f"\n⚠ {note}", style="#e0b15a")
         scenario = self.app.scenario
         if scenario is not None and scenario.day.climb is not None:
             from glidetask.tui.screens.compare_view import CLIMB_NOTE
