@@ -11,7 +11,9 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 
-from glidetask.engine.atmosphere import ias_from_tas_at
+import numpy as np
+
+from glidetask.engine.atmosphere import ias_from_tas, ias_from_tas_at
 from glidetask.engine.finalglide import density_height_m
 from glidetask.engine.polar import scaled_polar
 from glidetask.engine.speedtofly import glide_in_wind
@@ -78,3 +80,17 @@ def final_glide_speeds(plan) -> tuple[FinalGlideLeg, ...]:
             indicated_airspeed_ms=float(ias_from_tas_at(glide.airspeed_ms, sigma)),
             airspeed_ms=float(glide.airspeed_ms), ground_speed_ms=float(glide.ground_speed_ms)))
     return tuple(out)
+
+
+def last_leg_speeds_to_fly(plan, mc_values) -> np.ndarray:
+    """The speed to fly [m/s IAS] on the task's last leg at each MacCready setting, for the
+    heights card's columns: a final glide from the band top, the polar and the wind at the
+    middle of the band top and the arrival floor (NaN where no speed makes progress)."""
+    scenario = plan.scenario
+    day = scenario.day
+    height = float(density_height_m(day.band_top_m, plan.arrival_floor_m))
+    polar = scenario.glider.polar_at(height, day.isa_deviation_c)
+    wind = day.wind_at(height)
+    along, across = wind_components(plan.path.legs[-1].course_deg, wind.from_deg, wind.speed_ms)
+    glide = glide_in_wind(polar, np.asarray(mc_values, dtype=float), along, across, day.glide_airmass_ms)
+    return np.asarray(ias_from_tas(glide.airspeed_ms, height, day.isa_deviation_c), dtype=float)

@@ -156,12 +156,19 @@ def _heights(plan, unit) -> list[str]:
     for i, name in enumerate(names):
         rows.append([name, unit.fmt_distance(to_go[i]), need_cell(plan, planned[i], unit)]
                     + [need_cell(plan, card[j, i], unit) for j in range(len(settings))])
+    from glidetask.engine.final_glide_speeds import final_glide_speeds, last_leg_speeds_to_fly
+
+    own = [leg for leg in final_glide_speeds(plan) if leg.leg == len(plan.legs) - 1]
+    speeds = [own[0].indicated_airspeed_ms if own else math.nan, *last_leg_speeds_to_fly(plan, settings)]
+    rows.append([f"Fly on the last leg ({unit.speed_label} IAS)", "", *(_num(unit.speed(v)) if math.isfinite(v)
+                                                                         else "-" for v in speeds)])
     margin = unit.fmt_height(plan.scenario.safety.arrival_margin_m)
     return ["## Heights needed to get home", "",
             f"Final glide from each turnpoint over the rest of the task in the day's wind, arriving {margin} over the "
             f"finish; {unit.height_label} MSL. *Plan*: at the plan's final-glide setting there; MC columns: at that "
             f"MacCready setting ({unit.vertical_label}). Above the band top ({unit.fmt_height(plan.scenario.day.band_top_m)}) "
-            f"a final glide is no plan: {need_note(plan, unit)}.", ""] + _table(head, rows)
+            f"a final glide is no plan: {need_note(plan, unit)}. The last row: the speed to fly on the last leg, "
+            f"*Plan* as the plan's final glide flies it, the MC columns from the band top.", ""] + _table(head, rows)
 
 
 def final_glide_speed_text(plan, unit) -> str:

@@ -134,3 +134,17 @@ def test_final_glide_speed_into_a_headwind_is_faster_and_agrees_with_the_core_on
     calm = final_glide_speeds(plan(scenario(task, climb=2.0, final_mc=1.0)))
     # the last leg flies south into the wind from 180 deg: fly faster than in calm air
     assert legs[-1].airspeed_ms > calm[-1].airspeed_ms + 1.0
+
+
+def test_heights_card_speeds_are_the_macready_speeds_on_the_last_leg():
+    from glidetask.engine.final_glide_speeds import last_leg_speeds_to_fly
+
+    s = scenario(OUT_AND_RETURN, climb=2.0)
+    p = plan(s)
+    speeds = last_leg_speeds_to_fly(p, [0.0, 1.0, 2.0, 3.0])
+    height = 0.5 * (s.day.band_top_m + p.arrival_floor_m)
+    polar = s.glider.polar_at(height)
+    sigma = isa_density_ratio(height)
+    for mc, ias in zip([0.0, 1.0, 2.0, 3.0], speeds):
+        assert ias == pytest.approx(macready_speed_by_search(polar, mc) * math.sqrt(sigma), rel=2e-4)
+    assert np.all(np.diff(speeds) > 0.0)  # a higher setting flies faster

@@ -51,3 +51,13 @@ def test_briefing_carries_both(triangle):
     (leg,) = final_glide_speeds(triangle)
     assert f"fly {leg.indicated_airspeed_ms * 3.6:.0f} km/h IAS" in text
     assert "- Circling at 15:30: core" in text
+
+
+def test_briefing_heights_card_ends_with_the_speeds_to_fly(triangle):
+    from glidetask.engine.final_glide_speeds import last_leg_speeds_to_fly
+
+    text = plan_to_markdown(triangle, "metric")
+    (leg,) = final_glide_speeds(triangle)
+    mc = [f"{v * 3.6:.0f}" for v in last_leg_speeds_to_fly(triangle, [0.0, 1.0, 2.0, 3.0])]
+    row = f"| Fly on the last leg (km/h IAS) |  | {leg.indicated_airspeed_ms * 3.6:.0f} | " + " | ".join(mc) + " |"
+    assert row in text
