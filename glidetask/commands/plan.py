@@ -116,7 +116,24 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
                  f"{day.stall_margin:g} x the banked stall speed (common practice)")
     lines.append(f"            thermals {unit.fmt_height(day.effective_thermal_radius_m)} in radius "
                  f"({day.thermal_radius_source})")
+    lines += circling_lines(scenario, unit)
     return lines
+
+
+def circling_lines(scenario, unit: units.UnitSystem) -> list[str]:
+    """The best circle in the day's strongest thermals: the core, what the variometer reads on
+    the circle, the sink in the turn and the climb (empty on a day with no lift)."""
+    from glidetask.engine.circling_card import day_circling
+
+    card = day_circling(scenario)
+    if card is None:
+        return []
+    best, v = card.solution, unit.vertical
+    return [f"            circling at {units.format_clock(card.time_s)}: core {unit.fmt_vertical(card.strength_ms)} on the "
+            f"thermal's axis; {best.bank_deg:.0f} deg bank at {unit.fmt_speed(card.indicated_airspeed_ms)} IAS, "
+            f"circle {unit.fmt_height(best.turn_radius_m)} in radius,",
+            f"            where the air rises {v(best.updraft_ms):.1f} (the netto reading) and the glider sinks "
+            f"{v(best.sink_ms):.1f}: climb {unit.fmt_vertical(best.climb_ms)}"]
 
 
 def _source_lines(source) -> list[str]:
@@ -162,6 +179,8 @@ def _legs_table(plan, unit: units.UnitSystem) -> list[str]:
 
 
 def _totals(plan, unit: units.UnitSystem) -> list[str]:
+    from glidetask.formats.briefing import final_glide_speed_text  # lazily: the plan's text only
+
     lines = []
     if plan.finished:
         lines.append(f"Total     {units.format_duration(plan.total_time_s)} for {unit.fmt_distance(plan.planned_distance_m)}"
@@ -174,7 +193,7 @@ def _totals(plan, unit: units.UnitSystem) -> list[str]:
         to_go = plan.planned_distance_m - plan.final_glide_from_m
         lines.append(f"Final     glide from {unit.fmt_distance(plan.final_glide_from_m)} ({unit.fmt_distance(to_go)}"
                      f" out) at {unit.fmt_height(plan.final_glide_height_m)}, MacCready "
-                     f"{unit.fmt_vertical(plan.final_glide_mc_ms)}")
+                     f"{unit.fmt_vertical(plan.final_glide_mc_ms)}{final_glide_speed_text(plan, unit)}")
     return lines
 
 

@@ -162,6 +162,10 @@ class ClimbSolution:
         Radius of the circle [m].
     wings_level_speed_ms : float or ndarray
         The wings-level airspeed at the same lift coefficient [m/s TAS].
+    updraft_ms : float or ndarray
+        The air's rise on that circle [m/s]: what a netto variometer reads in the turn.
+    sink_ms : float or ndarray
+        The glider's sink in the turn [m/s], ``sink(v) n^1.5``; ``climb = updraft - sink``.
     """
 
     climb_ms: float
@@ -169,6 +173,8 @@ class ClimbSolution:
     airspeed_ms: float
     turn_radius_m: float
     wings_level_speed_ms: float
+    updraft_ms: float
+    sink_ms: float
 
 
 def _climb_grid(a, b, c, core, radius, bank, speed):
@@ -248,12 +254,18 @@ def achieved_climb(polar: Polar, core_ms, radius_m=150.0, *, stall_margin=DEFAUL
     best = _climb_grid(a, b, c, core, radius, best_bank, best_speed)[..., 0, 0]
     bank_deg, wings_level = best_bank[..., 0, 0], best_speed[..., 0, 0]
     in_turn = np.asarray(circling_speed(wings_level, bank_deg))
+    circle = np.asarray(turn_radius(in_turn, bank_deg))
+    rise = np.asarray(updraft(circle, core[..., 0, 0], radius[..., 0, 0]))
+    level_sink = (a[..., 0, 0] * wings_level + b[..., 0, 0]) * wings_level + c[..., 0, 0]
+    sink = level_sink * np.asarray(load_factor(bank_deg)) ** 1.5
     return ClimbSolution(
         climb_ms=scalar_or_array(best),
         bank_deg=scalar_or_array(bank_deg),
         airspeed_ms=scalar_or_array(in_turn),
-        turn_radius_m=scalar_or_array(turn_radius(in_turn, bank_deg)),
+        turn_radius_m=scalar_or_array(circle),
         wings_level_speed_ms=scalar_or_array(wings_level),
+        updraft_ms=scalar_or_array(rise),
+        sink_ms=scalar_or_array(sink),
     )
 
 

@@ -61,7 +61,7 @@ def _summary(plan, unit) -> list[str]:
     if math.isfinite(plan.final_glide_from_m):
         out = plan.planned_distance_m - plan.final_glide_from_m
         final = (f" Final glide from {unit.fmt_distance(out)} out at {unit.fmt_height(plan.final_glide_height_m)}, "
-                 f"MacCready {unit.fmt_vertical(plan.final_glide_mc_ms)}.")
+                 f"MacCready {unit.fmt_vertical(plan.final_glide_mc_ms)}{final_glide_speed_text(plan, unit)}.")
     return [
         f"# Pre-flight briefing: {task.name}",
         "",
@@ -156,12 +156,49 @@ def _heights(plan, unit) -> list[str]:
     for i, name in enumerate(names):
         rows.append([name, unit.fmt_distance(to_go[i]), need_cell(plan, planned[i], unit)]
                     + [need_cell(plan, card[j, i], unit) for j in range(len(settings))])
+    from glidetask.engine.final_glide_speeds import final_glide_speeds, last_leg_speeds_to_fly
+
+    own = [leg for leg in final_glide_speeds(plan) if leg.leg == len(plan.legs) - 1]
+    speeds = [own[0].indicated_airspeed_ms if own else math.nan, *last_leg_speeds_to_fly(plan, settings)]
+    rows.append([f"Fly on the last leg ({unit.speed_label} IAS)", "", *(_num(unit.speed(v)) if math.isfinite(v)
+                                                                         else "-" for v in speeds)])
     margin = unit.fmt_height(plan.scenario.safety.arrival_margin_m)
     return ["## Heights needed to get home", "",
             f"Final glide from each turnpoint over the rest of the task in the day's wind, arriving {margin} over the "
             f"finish; {unit.height_label} MSL. *Plan*: at the plan's final-glide setting there; MC columns: at that "
             f"MacCready setting ({unit.vertical_label}). Above the band top ({unit.fmt_height(plan.scenario.day.band_top_m)}) "
-            f"a final glide is no plan: {need_note(plan, unit)}.", ""] + _table(head, rows)
+            f"a final glide is no plan: {need_note(plan, unit)}. The last row: the speed to fly on the last leg, "
+            f"*Plan* as the plan's final glide flies it, the MC columns from the band top.", ""] + _table(head, rows)
+
+
+def final_glide_speed_text(plan, unit) -> str:
+    """``, fly 169 km/h IAS (178 TAS)`` for a final glide on one leg; per leg when it spans
+    several (``, fly leg 2 150, leg 3 169 km/h IAS``); empty without a final glide."""
+    from glidetask.engine.final_glide_speeds import final_glide_speeds
+
+    legs = [leg for leg in final_glide_speeds(plan) if math.isfinite(leg.indicated_airspeed_ms)]
+    if not legs:
+        return ""
+    if len(legs) == 1:
+        return (f", fly {unit.fmt_speed(legs[0].indicated_airspeed_ms)} IAS "
+                f"({unit.speed(legs[0].airspeed_ms):.0f} TAS)")
+    each = ", ".join(f"leg {leg.leg + 1} {unit.speed(leg.indicated_airspeed_ms):.0f}" for leg in legs)
+    return f", fly {each} {unit.speed_label} IAS"
+
+
+def circling_text(scenario, unit) -> str:
+    """One sentence: the best circle in the day's strongest thermals, or empty with no lift."""
+    from glidetask.engine.circling_card import day_circling
+
+    card = day_circling(scenario)
+    if card is None:
+        return ""
+    best, v = card.solution, unit.vertical
+    return (f"Circling at {format_clock(card.time_s)}: core {unit.fmt_vertical(card.strength_ms)} on the thermal's "
+            f"axis; {best.bank_deg:.0f} deg bank at {unit.fmt_speed(card.indicated_airspeed_ms)} IAS on a circle "
+            f"{unit.fmt_height(best.turn_radius_m)} in radius, where the air rises {v(best.updraft_ms):.1f} (the netto "
+            f"reading) and the glider sinks {v(best.sink_ms):.1f} {unit.vertical_label}: climb "
+            f"{unit.fmt_vertical(best.climb_ms)}.")
 
 
 def _day(plan, unit) -> list[str]:
@@ -185,7 +222,7 @@ def _day(plan, unit) -> list[str]:
         f"- Practical speeds: {day.centring_s:g} s centring each climb, the path flown {day.detour_percent:g} % "
         f"longer, circling at {day.stall_margin:g} times the banked stall speed (all common practice); thermals "
         f"{unit.fmt_height(day.effective_thermal_radius_m)} in radius ({day.thermal_radius_source}).",
-    ]
+    ] + ([f"- {text}"] if (text := circling_text(plan.scenario, unit)) else [])
 
 
 #: Wind levels shown: up to this far above the highest thermal top [m].

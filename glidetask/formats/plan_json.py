@@ -4,7 +4,7 @@ Every key carries its unit as a suffix (``_km``, ``_m``, ``_s``, ``_kmh``, ``_ms
 ``_kg``, ``_deg``, ``_kgm2``); numbers that are undefined (a leg not reached, the
 finish time of a plan that ends short) are ``null``. Keys beyond the contract's are
 additions, never changes of meaning: ``planned_distance_km``, ``start_time``,
-``reason``, ``day``, per leg ``final_glide`` and ``start_time``, ``sensitivity`` (the task
+``reason``, ``day`` (with ``circling``), per leg ``final_glide`` and ``start_time``, ``sensitivity`` (the task
 time under what-ifs), and the extras inside ``terrain`` and ``landables``.
 """
 
@@ -106,6 +106,31 @@ def _day(plan) -> dict[str, Any]:
         "glide_airmass_ms": _number(day.glide_airmass_ms, digits=2),
         "isa_deviation_c": _number(day.isa_deviation_c, digits=1),
         **_band_top_and_source(plan.scenario),
+        "circling": circling_dict(plan.scenario),
+    }
+
+
+def circling_dict(scenario) -> dict[str, Any] | None:
+    """``day.circling``: the best circle in the day's strongest thermals for the glider as
+    loaded (:func:`glidetask.engine.circling_card.day_circling`), or None with no lift."""
+    from glidetask.engine.circling_card import day_circling
+
+    card = day_circling(scenario)
+    if card is None:
+        return None
+    best = card.solution
+    return {
+        "time": format_clock(card.time_s),
+        "core_strength_ms": _number(card.strength_ms, digits=2),
+        "thermal_radius_m": _number(card.thermal_radius_m, digits=0),
+        "height_m": _number(card.height_m, digits=0),
+        "bank_deg": _number(best.bank_deg, digits=0),
+        "airspeed_kmh": _number(best.airspeed_ms, KMH, 1),
+        "indicated_airspeed_kmh": _number(card.indicated_airspeed_ms, KMH, 1),
+        "circle_radius_m": _number(best.turn_radius_m, digits=0),
+        "updraft_at_circle_ms": _number(best.updraft_ms, digits=2),
+        "circling_sink_ms": _number(best.sink_ms, digits=2),
+        "climb_ms": _number(best.climb_ms, digits=2),
     }
 
 

@@ -63,9 +63,11 @@ def test_final_glide_card_shows_the_engine_requirements(triangle):
     assert rows[0][3:] == [f"MC {m:.0f}" for m in CARD_MC_MS]
     card = final_glide_card(p)
     top = p.scenario.day.band_top_m
-    for i, row in enumerate(rows[1:]):
+    heights, speeds = rows[1:-1], rows[-1]
+    assert speeds[0].startswith("Fly on the last leg")  # the speeds row: tests/formats/test_circling_and_final_speed_text.py
+    for i, row in enumerate(heights):
         assert row[3:] == [f"{card[j, i]:.0f}" if card[j, i] <= top else "above" for j in range(len(CARD_MC_MS))]
-    assert rows[-1][3:] == [f"{p.arrival_floor_m:.0f}"] * len(CARD_MC_MS)  # at the finish: the arrival floor
+    assert heights[-1][3:] == [f"{p.arrival_floor_m:.0f}"] * len(CARD_MC_MS)  # at the finish: the arrival floor
 
 
 def test_above_the_band_top_the_briefing_says_where_a_final_glide_from_it_starts(triangle):
