@@ -33,7 +33,9 @@ class ProfileView(ViewScreen):
         units = self.app.units
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(FlightProfile).show(plan, units, codes)
+        drawing = self.query_one(FlightProfile)
+        drawing.units, drawing.codes = units, codes
+        drawing.plan = plan
         facts = self.query_one("#profile-facts", Static)
         if plan is None:
             facts.update(Text("planning …", style=CALM))

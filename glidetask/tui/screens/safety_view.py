@@ -108,7 +108,7 @@ class SafetyView(ViewScreen):
         alternates.clear(columns=True)
         if c is None or c.landable_count == 0:
             summary.update(Text("no turnpoint is marked landable: coverage not checked", style="dim"))
-            self.query_one(CoverageStrip).show(None)
+            self.query_one(CoverageStrip).plan = plan  # nothing to draw
             return
         terrain = f", clearing terrain by {units.fmt_height(c.clearance_m)}" if c.terrain_checked else ""
         summary.update(Text.assemble(
@@ -116,7 +116,7 @@ class SafetyView(ViewScreen):
             (f" · {len(c.gaps)} gap{'s' if len(c.gaps) != 1 else ''}", GOOD if not c.gaps else DOUBT),
             (f"  from {units.fmt_height(c.band_bottom_m)} at MacCready 0, arriving "
              f"{units.fmt_height(c.margin_m)} above the field{terrain}", "dim")))
-        self.query_one(CoverageStrip).show_coverage([leg.distance_m for leg in plan.legs], c.gaps)
+        self.query_one(CoverageStrip).plan = plan
         d = units.distance_label
         for key, label in (("from", f"From {d}"), ("to", f"To {d}"), ("length", f"Length {d}"), ("why", "Why")):
             gaps_table.add_column(label, key=key)
@@ -145,16 +145,19 @@ class SafetyView(ViewScreen):
         units = self.app.units
         widget = self.query_one("#terrain-summary", Static)
         profile = self.query_one(TerrainProfile)
+        profile.units = units
         source = plan.terrain_source
         if source is None:
             widget.update(Text("no elevation model in this task ([terrain] file)", style="dim"))
-            profile.show(None, units, "no elevation model in this task")
+            profile.note = "no elevation model in this task"
+            profile.check = None
             return
         terrain = plan.terrain
         if terrain is None:
             widget.update(Group(Text("not checked: the plan has no final glide", style=DOUBT),
                                 Text(f"model {source}", style="dim")))
-            profile.show(None, units, "no final glide in this plan")
+            profile.note = "no final glide in this plan"
+            profile.check = None
             return
         lines = []
         for label, text in terrain_facts(terrain, units):
@@ -162,4 +165,5 @@ class SafetyView(ViewScreen):
             lines.append(Text.assemble((f"{label:<16}", "dim"), (text, style)))
         lines.append(Text(f"model {source}", style="dim"))
         widget.update(Group(*lines))
-        profile.show(terrain, units)
+        profile.note = ""
+        profile.check = terrain

@@ -3,29 +3,43 @@
 
 from __future__ import annotations
 
+from textual.reactive import var
 from textual.widgets import Static
 
 from glidetask.tui.profile_drawing import profile_text
+from glidetask.units import METRIC, UnitSystem
 
 
 class FlightProfile(Static):
-    """Height against distance along the task: terrain, band, climbs and glides, floors, airspace."""
+    """Height against distance along the task: terrain, band, climbs and glides, floors, airspace.
+
+    The view sets ``units`` and ``codes`` before ``plan``; each watcher draws again."""
+
+    plan = var(None, always_update=True, init=False)  # the engine's SI Plan (None: being computed)
+    units: var[UnitSystem] = var(METRIC, init=False)
+    codes: var[dict] = var(dict, init=False)  # turnpoint names -> short codes on the distance axis
 
     def __init__(self, **kwargs):
         super().__init__("", **kwargs)
-        self._what = None  # (plan, units, codes)
+        self._told = False  # nothing is drawn before the view has set the plan once
 
-    def show(self, plan, units, codes: dict[str, str] | None = None) -> None:
-        self._what = (plan, units, codes or {})
+    def watch_plan(self) -> None:
+        self._told = True
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_codes(self) -> None:
         self._draw()
 
     def on_resize(self, _event) -> None:
         self._draw()
 
     def _draw(self) -> None:
-        if self._what is None:
+        if not self._told:
             return
-        plan, units, codes = self._what
+        plan, units, codes = self.plan, self.units, self.codes
         width, height = self.content_region.width, self.content_region.height
         if width < 20 or height < 6:
             return
