@@ -81,12 +81,14 @@ def test_no_widget_is_drawn_through_a_show_method():
 def test_the_drawing_widgets_declare_their_inputs_as_reactives():
     from glidetask.tui.widgets.coverage_strip import CoverageStrip
     from glidetask.tui.widgets.day_plot import DayPlot
-    from glidetask.tui.widgets.flight_profile import FlightProfile
+    from glidetask.tui.widgets.flight_profile import FlightProfile, ProfileFacts
     from glidetask.tui.widgets.glide_verdict import GlideVerdict
     from glidetask.tui.widgets.glider_figures import GliderFigures
     from glidetask.tui.widgets.points_table import PointsTable
     from glidetask.tui.widgets.polar_plot import PolarPlot
     from glidetask.tui.widgets.profile_editor import ProfileEditor
+    from glidetask.tui.widgets.safety_panels import (AirspacePanel, AlternatesTable, CoverageSummary, GapsTable,
+                                                     TerrainSummary)
     from glidetask.tui.widgets.stf_card import SpeedToFlyCard
     from glidetask.tui.widgets.task_sketch import TaskSketch
     from glidetask.tui.widgets.terrain_profile import TerrainProfile
@@ -97,11 +99,13 @@ def test_the_drawing_widgets_declare_their_inputs_as_reactives():
         GlideVerdict: ("answer", "units", "plan_note", "problems"), TerrainProfile: ("check", "units", "note"),
         GliderFigures: ("card", "units"), PolarPlot: ("card", "units"), SpeedToFlyCard: ("card", "units"),
         FlightProfile: ("plan", "units", "codes"), DayPlot: ("day", "units", "finish_s"),
-        ProfileEditor: ("day", "units"),
+        ProfileEditor: ("day", "units"), ProfileFacts: ("plan", "units"), AirspacePanel: ("plan", "units"),
+        CoverageSummary: ("plan", "units"), GapsTable: ("plan", "units"), TerrainSummary: ("plan", "units"),
+        AlternatesTable: ("plan", "units", "codes", "narrow"),
     }
     for widget, names in inputs.items():
         for name in names:
-            assert isinstance(widget.__dict__.get(name), Reactive), f"{widget.__name__}.{name}"
+            assert isinstance(widget._reactives.get(name), Reactive), f"{widget.__name__}.{name}"
             # a render()-drawn widget repaints on its own; the others draw in a watcher
             assert hasattr(widget, f"watch_{name}") or widget in (TaskSketch, CoverageStrip), f"{widget.__name__}.{name}"
 
@@ -136,6 +140,13 @@ async def test_a_units_change_alone_redraws_the_widget(acknowledged):
         assert strip.plan is plan and plan.landables.landable_count > 0
         assert strip.total_m == sum(leg.distance_m for leg in plan.legs)
         assert strip.gaps == [(float(a), float(b)) for a, b in plan.landables.gaps]
+        from glidetask.tui.widgets.safety_panels import CoverageSummary
+
+        summary = app.screen.query_one(CoverageSummary)
+        assert " m above the field" in text_of(summary) and " ft " not in text_of(summary)
+        summary.units = AVIATION
+        await pilot.pause()
+        assert " ft above the field" in text_of(summary)
         profile = app.screen.query_one(TerrainProfile)
         assert profile.check is plan.terrain and profile.units == METRIC
         profile.note, profile.check = "nothing to draw here", None  # the watcher draws the note instead
