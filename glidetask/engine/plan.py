@@ -284,7 +284,7 @@ class Plan:
 
 
 def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, wind: Wind | None = None,
-         start_time_s=None, requirement_for=None) -> Plan:
+         start_time_s=None, requirement_for=None, memo=None) -> Plan:
     """Fly the scenario's task on paper.
 
     Parameters
@@ -304,6 +304,10 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
         height along a candidate path (see :data:`glidetask.engine.flight.RequirementHook`),
         asked once per path flown. Default: the task's elevation model, if it has one
         (:func:`glidetask.engine.plan_safety.terrain_requirement`).
+    memo : callable, optional
+        ``memo(kind, key, compute)``: keeps the terrain sampled along a path and the
+        landable coverage by the values they depend on (``plan_safety.Memo``); the
+        terminal UI's recompute passes one, as it replans on every edit. None: computed.
 
     Returns
     -------
@@ -324,7 +328,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
                              start_time_s=start_time_s)
     model = load_terrain_for(scenario)
     if requirement_for is None and model is not None:
-        requirement_for = terrain_requirement(model)
+        requirement_for = terrain_requirement(model, memo)
     elif requirement_for is None:  # no terrain: a land-out ends in the field it reaches
         requirement_for = landing_fields
     if scenario.airspace is not None:  # the band top capped under the task's airspace (plan_airspace)
@@ -351,7 +355,7 @@ def plan(scenario: Scenario, *, mc_ms=None, ballast_kg=None, bugs_percent=None, 
     result = _assemble(scenario, path, flown, task_geometry.nominal_distance_m(task), optimized.total_m, area, notes)
     profile, floors, uncovered, landout = ground_facts(scenario, path, flown, hook)
     result = dataclasses.replace(result, profile=profile, floors=floors, uncovered=uncovered, landout=landout)
-    result = with_safety(result, hook, model)
+    result = with_safety(result, hook, model, memo)
     result = dataclasses.replace(result, notices=_ground_notices(result))
     return dataclasses.replace(result, airspace=airspace_check(result))
 

@@ -7,10 +7,11 @@ flies; :func:`with_safety` adds to the flown plan the final glide checked over t
 terrain from the same samples and the landable coverage along the planned path from the
 band bottom (:func:`glidetask.engine.reach_coverage.coverage`), whose cautions :mod:`glidetask.cautions` words.
 
-Sampling a path and searching fields are the slow parts of a replan, and the UI replans
-on every edit: both results are kept in small caches keyed on the values they depend on
-(the path's vertices, the elevation model's file identity, the polar, the wind, the
-margins), never on object identities.
+Sampling a path and searching fields are the slow parts of a replan. The engine keeps
+no cache of them: it names what each result depends on (the path's vertices, the
+elevation model's file identity, the polar, the wind, the margins; values, never object
+identities) and hands that key to the caller's ``memo``, if any. The terminal UI, which
+replans on every edit, keeps the results (:mod:`glidetask.tui.recompute`).
 """
 
 from __future__ import annotations
@@ -18,9 +19,8 @@ from __future__ import annotations
 import dataclasses
 import math
 import os
-import threading
-from collections import OrderedDict
 from pathlib import Path
+from typing import Any, Callable
 
 import numpy as np
 
@@ -36,7 +36,10 @@ from glidetask.engine.wind import wind_components
 from glidetask.errors import InputError, Problem
 
 COVERAGE_SPACING_M = 1000.0  # landable coverage sampled along the path at least this often [m]
-_COVERAGE_CACHE_SIZE = 16  # coverage results kept for repeated plans (the UI replans on every edit)
+
+# ``memo(kind, key, compute)``: the result of ``compute()`` for the value ``key``, which the
+# caller may remember (kind: "path_terrain" or "coverage"); None: computed every time
+Memo = Callable[[str, tuple, Callable[[], Any]], Any]
 
 
 def load_terrain_for(scenario: Scenario):
@@ -56,35 +59,24 @@ def load_terrain_for(scenario: Scenario):
         raise InputError([Problem(scenario.source or "task", "[terrain] file", f"{error.path}: {error.what}")]) from None
 
 
-_PATH_TERRAIN_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
-_PATH_TERRAIN_CACHE_SIZE = 32  # an area task tries up to about 16 paths per plan
-_PATH_TERRAIN_LOCK = threading.Lock()
-
-
-def terrain_requirement(model):
+def terrain_requirement(model, memo: Memo | None = None):
     """``requirement_for`` of :func:`plan` for an elevation model: the terrain sampled along
     each path flown (every 250 m), at the scenario's terrain clearance.
 
-    The samples are cached by path, model file (:attr:`Terrain.file_key`) and clearance:
-    a replan after an edit that leaves the path alone (the day, the glider, the margins)
-    samples nothing again. A model built in memory has no file key and is not cached.
+    The samples depend on the path, the model file (:attr:`Terrain.file_key`) and the
+    clearance: with a ``memo`` keeping them, a replan after an edit that leaves the path
+    alone (the day, the glider, the margins) samples nothing again. A model built in
+    memory has no file key and is sampled every time.
     """
     def requirement_for(scenario: Scenario, path):
         clearance = scenario.safety.terrain_clearance_m
-        if model.file_key is None:
+
+        def sample():
             return path_terrain(model, path.lats, path.lons, clearance)
-        key = (model.file_key, model.source, _vertices(path), clearance)
-        with _PATH_TERRAIN_LOCK:
-            cached = _PATH_TERRAIN_CACHE.get(key)
-            if cached is not None:
-                _PATH_TERRAIN_CACHE.move_to_end(key)
-                return cached
-        hook = path_terrain(model, path.lats, path.lons, clearance)
-        with _PATH_TERRAIN_LOCK:
-            _PATH_TERRAIN_CACHE[key] = hook
-            while len(_PATH_TERRAIN_CACHE) > _PATH_TERRAIN_CACHE_SIZE:
-                _PATH_TERRAIN_CACHE.popitem(last=False)
-        return hook
+
+        if memo is None or model.file_key is None:
+            return sample()
+        return memo("path_terrain", (model.file_key, model.source, _vertices(path), clearance), sample)
 
     return requirement_for
 
@@ -122,11 +114,7 @@ def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
     return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float) * detour, (len(path.legs),)).copy()
 
 
-_COVERAGE_CACHE: "OrderedDict[tuple, object]" = OrderedDict()
-_COVERAGE_LOCK = threading.Lock()
-
-
-def landable_coverage(scenario: Scenario, path, model=None):
+def landable_coverage(scenario: Scenario, path, model=None, memo: Memo | None = None):
     """Landable coverage along a planned path from the band bottom, or None without landables.
 
     Every :data:`COVERAGE_SPACING_M` along the path (and at every turnpoint), the fields
@@ -140,9 +128,9 @@ def landable_coverage(scenario: Scenario, path, model=None):
     and the arrival floor (finish elevation plus margin): the heights glided through on
     the way down to a field. Air rising in the glides is not counted on (a glide to a
     field plans with ``min(glide_airmass_ms, 0)``): a pilot low and looking for a field
-    cannot rely on it. Results are cached, keyed by everything they depend on, so an
-    edit that changes none of it (a climb, a start time, a MacCready setting) costs
-    nothing here.
+    cannot rely on it. The key handed to ``memo`` holds everything the result depends
+    on, so with a memo an edit that changes none of it (a climb, a start time, a
+    MacCready setting) costs nothing here.
     """
     fields = tuple((p.name, p.lat, p.lon, p.elevation_m) for p in scenario.turnpoints if getattr(p, "landable", False))
     if not fields:
@@ -157,24 +145,17 @@ def landable_coverage(scenario: Scenario, path, model=None):
            tuple(float(x) for x in (polar.a, polar.b, polar.c, polar.min_speed_ms, polar.vne_ms)),
            reach_wind, day.band_bottom_m, safety.arrival_margin_m, airmass,
            model_key)
-    cacheable = model is None or model.file_key is not None
-    with _COVERAGE_LOCK:
-        cached = _COVERAGE_CACHE.get(key) if cacheable else None
-        if cached is not None:
-            _COVERAGE_CACHE.move_to_end(key)
-            return cached
-    lats, lons, along = path.sample(COVERAGE_SPACING_M)
-    leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
-    result = reach_coverage.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar, reach_wind,
-                            day.band_bottom_m, safety.arrival_margin_m, model, safety.terrain_clearance_m,
-                            airmass_ms=airmass)
-    if not cacheable:
-        return result
-    with _COVERAGE_LOCK:
-        _COVERAGE_CACHE[key] = result
-        while len(_COVERAGE_CACHE) > _COVERAGE_CACHE_SIZE:
-            _COVERAGE_CACHE.popitem(last=False)
-    return result
+
+    def search():
+        lats, lons, along = path.sample(COVERAGE_SPACING_M)
+        leg = np.clip(np.searchsorted(path.cumulative_m, along, side="right") - 1, 0, len(path.legs) - 1)
+        return reach_coverage.coverage(lats, lons, along, leg, reach.landable_index(scenario.turnpoints), polar,
+                                       reach_wind, day.band_bottom_m, safety.arrival_margin_m, model,
+                                       safety.terrain_clearance_m, airmass_ms=airmass)
+
+    if memo is None or (model is not None and model.file_key is None):
+        return search()
+    return memo("coverage", key, search)
 
 
 def shown_terrain_source(scenario: Scenario) -> str | None:
@@ -198,10 +179,11 @@ def shown_terrain_source(scenario: Scenario) -> str | None:
         return Path(target).as_posix()
 
 
-def with_safety(plan, hook, model):
+def with_safety(plan, hook, model, memo: Memo | None = None):
     """The plan (a :class:`glidetask.engine.plan.Plan`) with its terrain check and landable
     coverage (facts :func:`glidetask.cautions.plan_cautions` words); the model named as the
-    task names it (:func:`shown_terrain_source`) wherever the plan shows it."""
+    task names it (:func:`shown_terrain_source`) wherever the plan shows it; ``memo`` as
+    for :func:`landable_coverage`."""
     terrain = None
     source = None if model is None else shown_terrain_source(plan.scenario)
     if hasattr(hook, "final_glide") and math.isfinite(plan.final_glide_from_m):
@@ -209,5 +191,5 @@ def with_safety(plan, hook, model):
         terrain = hook.final_glide(plan.final_glide_from_m, final_glide_per_metre(plan.scenario, plan.path, plan.flown),
                                    plan.arrival_floor_m, start_height_m=plan.final_glide_height_m, landmarks=landmarks)
         terrain = dataclasses.replace(terrain, source=source)
-    return dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model),
+    return dataclasses.replace(plan, terrain=terrain, landables=landable_coverage(plan.scenario, plan.path, model, memo),
                                requirement=hook, terrain_source=source)

@@ -25,6 +25,7 @@ class GliderCard:
     cruise_speed_ms: np.ndarray  # still-air average speed with climbs at the setting [m/s]
     glide_ratio: np.ndarray  # still-air glide ratio at the speed to fly [-]
     speed_to_fly_ias_ms: np.ndarray | None = None  # the speed to fly as indicated at ``altitude_m`` [m/s IAS]
+    mass_kg: float = float("nan")  # the flying mass of the set-up [kg]
 
 
 def card_settings_ms(units: UnitSystem) -> np.ndarray:
@@ -55,7 +56,7 @@ def glider_card(setup: GliderSetup, altitude_m: float, isa_deviation_c: float,
     from glidetask.engine.atmosphere import ias_from_tas
 
     ias = np.asarray(ias_from_tas(speeds, altitude_m, isa_deviation_c), dtype=float)
-    return GliderCard(reference, current, float(altitude_m), settings, speeds, cruise, ratio, ias)
+    return GliderCard(reference, current, float(altitude_m), settings, speeds, cruise, ratio, ias, float(setup.mass_kg))
 
 
 @dataclass(frozen=True)

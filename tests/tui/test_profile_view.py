@@ -184,7 +184,7 @@ async def test_profile_view_follows_an_edit(acknowledged):
 
         region = widget.content_region
         assert str(widget.render()) == profile_text(app.plan.plan, METRIC, region.width, region.height,
-                                                    widget._what[2]).plain
+                                                    widget.codes).plain
         assert before != str(widget.render())
 
 

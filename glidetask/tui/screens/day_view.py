@@ -70,7 +70,9 @@ class DayView(ViewScreen):
             for field_id, kind, _ in fields:
                 self.query_one(f"#{field_id}").parent.show(edits.field_text(scenario, field_id, units),
                                                            unit_label(kind, units), force=force)
-        self.query_one(ProfileEditor).show(scenario.day, units)
+        editor = self.query_one(ProfileEditor)
+        editor.units = units
+        editor.day = scenario.day
         self._show_sounding(scenario)
         self._draw_plot()
 
@@ -113,4 +115,6 @@ class DayView(ViewScreen):
         finish_s = None
         if outcome is not None and outcome.plan.finished:
             finish_s = float(outcome.plan.finish_time_s)
-        self.query_one(DayPlot).show(scenario.day, self.app.units, finish_s)
+        plot = self.query_one(DayPlot)
+        plot.units, plot.finish_s = self.app.units, finish_s
+        plot.day = scenario.day

@@ -261,7 +261,7 @@ class GlideView(ViewScreen):
         except InputError as error:
             # shown in the calculator itself, and gone as soon as the question makes sense again
             self.answer = None
-            self.query_one(GlideVerdict).show_problems(error.problems)
+            self.query_one(GlideVerdict).problems = tuple(error.problems)
             return
         self.answer_in_background(self.app.scenario, question)
 
@@ -282,7 +282,12 @@ class GlideView(ViewScreen):
 
         self.answer = answer
         outcome = self.app.plan
-        note = final_glide_text(outcome.plan, self.app.units) if outcome is not None else ""
-        self.query_one(GlideVerdict).show(answer, self.app.units, note)
-        self.query_one(TerrainProfile).show(answer.terrain, self.app.units,
-                                            answer.terrain_note or "needs a terrain model and a glide between two turnpoints")
+        units = self.app.units
+        note = final_glide_text(outcome.plan, units) if outcome is not None else ""
+        verdict = self.query_one(GlideVerdict)
+        verdict.units, verdict.plan_note, verdict.problems = units, note, ()
+        verdict.answer = answer
+        profile = self.query_one(TerrainProfile)
+        profile.units = units
+        profile.note = answer.terrain_note or "needs a terrain model and a glide between two turnpoints"
+        profile.check = answer.terrain

@@ -68,9 +68,9 @@ class GliderView(ViewScreen):
         except ValueError as error:
             self.post_message(messages.Notice(f"glider: {error}"))
             return
-        self.query_one(GliderFigures).show(card, scenario.glider, units)
-        self.query_one(PolarPlot).show(card.reference, card.current, units)
-        self.query_one(SpeedToFlyCard).show(card, units)
+        for widget in (self.query_one(GliderFigures), self.query_one(PolarPlot), self.query_one(SpeedToFlyCard)):
+            widget.units = units
+            widget.card = card
 
     @on(messages.FieldEdited)
     def _altitude_typed(self, message: messages.FieldEdited) -> None:

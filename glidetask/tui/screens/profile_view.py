@@ -4,15 +4,10 @@ airspace, from the plan's own results (``Plan.profile``, ``floors``, ``airspace`
 
 from __future__ import annotations
 
-from rich.text import Text
 from textual.app import ComposeResult
-from textual.widgets import Static
 
-from glidetask.tui.profile_drawing import profile_facts
 from glidetask.tui.screens.base import ViewScreen
-from glidetask.tui.widgets.flight_profile import FlightProfile
-
-WARN, CALM = "#e0b15a", "dim"
+from glidetask.tui.widgets.flight_profile import FlightProfile, ProfileFacts
 
 
 class ProfileView(ViewScreen):
@@ -22,7 +17,7 @@ class ProfileView(ViewScreen):
 
     def compose_body(self) -> ComposeResult:
         yield FlightProfile(id="flight-profile", classes="panel")
-        yield Static(id="profile-facts", classes="panel", markup=False)
+        yield ProfileFacts(id="profile-facts", classes="panel", markup=False)
 
     def on_mount(self) -> None:
         self.query_one("#flight-profile").border_title = "Planned height along the task"
@@ -33,14 +28,9 @@ class ProfileView(ViewScreen):
         units = self.app.units
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(FlightProfile).show(plan, units, codes)
-        facts = self.query_one("#profile-facts", Static)
-        if plan is None:
-            facts.update(Text("planning …", style=CALM))
-            return
-        lines = profile_facts(plan, units)
-        text = Text()
-        for index, line in enumerate(lines):
-            calm = line.startswith(("Least clearance", "No terrain"))
-            text.append(("" if index == 0 else "\n") + ("" if calm else "⚠ ") + line, style=CALM if calm else WARN)
-        facts.update(text)
+        drawing = self.query_one(FlightProfile)
+        drawing.units, drawing.codes = units, codes
+        drawing.plan = plan
+        facts = self.query_one(ProfileFacts)
+        facts.units = units
+        facts.plan = plan

@@ -55,7 +55,9 @@ class TaskView(ViewScreen):
         self.query_one("#points-table").border_title = "Task points"
         self.query_one("#points-table").border_subtitle = "a add · r replace · x remove · ⇧↑↓ move · z zone"
         self.query_one("#sketch-panel").border_title = "Sketch"
-        self.query_one(LegsTable).show(None, self.app.units)
+        legs = self.query_one(LegsTable)
+        legs.units = self.app.units
+        legs.plan = None  # the headers, in the units on screen
         # a refused input marks the plan on screen as the last good one
         self.watch(self.app, "invalid_fields", self._stale_changed, init=False)
 
@@ -76,7 +78,9 @@ class TaskView(ViewScreen):
         if shown == self._shown:
             return  # the glider or the day changed: the points and the sketch wait for the plan
         self._shown = shown
-        self.query_one(PointsTable).show(scenario.task, self.app.units, compact=self._compact)
+        points = self.query_one(PointsTable)
+        points.units, points.compact = self.app.units, self._compact
+        points.shown_task = scenario.task
         self.query_one("#points-table").border_title = f"Task points · {scenario.task.name} ({scenario.task.kind})"
         self._draw_sketch()
 
@@ -90,9 +94,13 @@ class TaskView(ViewScreen):
         plan = outcome.plan if outcome is not None else None
         scenario = self.app.scenario
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(LegsTable).show(plan, units, codes, compact=self._compact)
+        legs = self.query_one(LegsTable)
+        legs.units, legs.codes, legs.compact = units, codes, self._compact
+        legs.plan = plan
         self._stale = bool(self.app.invalid_fields)
-        self.query_one(PlanTotals).show(plan, units, stale=self._stale)
+        totals = self.query_one(PlanTotals)
+        totals.units, totals.stale = units, self._stale
+        totals.plan = plan
         self._draw_sketch()
 
     def _draw_sketch(self) -> None:
@@ -117,7 +125,9 @@ class TaskView(ViewScreen):
         except Exception as error:  # a drawing problem never takes the view down
             self.post_message(messages.Notice(f"sketch: {error}"))
             return
-        self.query_one(TaskSketch).show(sketch, self.app.units)
+        drawing = self.query_one(TaskSketch)
+        drawing.units = self.app.units
+        drawing.sketch = sketch
 
     # ------------------------------------------------------------ editing
 

@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 from rich.text import Text
+from textual.reactive import reactive
 from textual.widget import Widget
-
 
 
 class CoverageStrip(Widget):
@@ -12,28 +12,24 @@ class CoverageStrip(Widget):
 
     DEFAULT_CSS = "CoverageStrip { height: 2; }"
 
+    # set by the view: the engine's SI Plan (None, no landables or none marked: nothing drawn)
+    plan = reactive(None, always_update=True)
+
     def __init__(self, **kwargs):
         super().__init__(**kwargs)
         self.total_m: float | None = None
-        self.gaps: list[tuple[float, float]] = []
+        self.gaps: list[tuple[float, float]] = []  # (from_m, to_m) along the task
         self.legs_m: list[float] = []
 
-    def show(self, plan) -> None:
-        """From the plan's own SI figures (None, or no landables: nothing to draw)."""
-        if plan is None or plan.landables is None:
-            self.show_coverage(None, ())
-        else:
-            self.show_coverage([leg.distance_m for leg in plan.legs], plan.landables.gaps)
-
-    def show_coverage(self, legs_m, gaps) -> None:
-        """Legs' lengths [m] (None: nothing to draw) and the gaps as ``(from_m, to_m)`` along the task."""
-        if legs_m is None:
+    def watch_plan(self, plan) -> None:
+        """The legs' lengths and the gaps from the plan's own SI figures; drawn in ``render``."""
+        coverage = None if plan is None else plan.landables
+        if coverage is None or coverage.landable_count == 0:
             self.total_m = None
-        else:
-            self.legs_m = [float(length) for length in legs_m]
-            self.total_m = sum(self.legs_m)
-            self.gaps = [(float(a), float(b)) for a, b in gaps]
-        self.refresh()
+            return
+        self.legs_m = [float(leg.distance_m) for leg in plan.legs]
+        self.total_m = sum(self.legs_m)
+        self.gaps = [(float(a), float(b)) for a, b in coverage.gaps]
 
     def render(self) -> Text:
         width = self.content_size.width

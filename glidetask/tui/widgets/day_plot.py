@@ -3,16 +3,35 @@
 from __future__ import annotations
 
 import numpy as np
+from textual.reactive import var
 from textual_plotext import PlotextPlot
 
 from glidetask.tui.plot_ticks import clock_ticks, nice_ticks, number_labels
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 
 class DayPlot(PlotextPlot):
-    """Achieved climb (or thermal strength) against the clock, with the day's marks."""
+    """Achieved climb (or thermal strength) against the clock, with the day's marks.
 
-    def show(self, day, units: UnitSystem, finish_s: float | None = None) -> None:
+    The view sets ``units`` and ``finish_s`` before ``day``; each watcher draws again."""
+
+    day = var(None, always_update=True, init=False)  # the engine's Day
+    units: var[UnitSystem] = var(METRIC, init=False)
+    finish_s = var(None, init=False)  # the planned finish [s after midnight], None: not home or no plan
+
+    def watch_day(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_finish_s(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        day, units, finish_s = self.day, self.units, self.finish_s
+        if day is None:
+            return
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()

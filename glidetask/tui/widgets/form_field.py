@@ -16,6 +16,8 @@ class FormField(Horizontal):
 
     The input's id is the field id of :mod:`glidetask.tui.edits`, so the screen can mark it
     ``-invalid`` when the app refuses what was typed.
+
+    Imperative (:meth:`show`), not reactive: while the pilot types, the text is theirs and a new one is declined.
     """
 
     DEFAULT_CSS = """

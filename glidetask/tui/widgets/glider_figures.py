@@ -3,22 +3,37 @@
 from __future__ import annotations
 
 from rich.table import Table
+from textual.reactive import var
 from textual.widgets import Static
 
 from glidetask.tui import display
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 
 class GliderFigures(Static):
-    """A two-column card of figures for the current loading and altitude."""
+    """A two-column card of figures for the current loading and altitude.
 
-    def show(self, card, setup, units: UnitSystem) -> None:
+    The view sets ``units`` before ``card``; each watcher draws the card again."""
+
+    card = var(None, always_update=True, init=False)  # a derived.GliderCard
+    units: var[UnitSystem] = var(METRIC, init=False)
+
+    def watch_card(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        card, units = self.card, self.units
+        if card is None:
+            return
         polar = card.current
         table = Table.grid(padding=(0, 2))
         table.add_column(style="dim")
         table.add_column(justify="right")
         rows = [
-            ("Flying mass", f"{display.kilograms(setup.mass_kg)} kg"),
+            ("Flying mass", f"{display.kilograms(card.mass_kg)} kg"),
             ("Wing loading", f"{float(polar.wing_loading_kgm2):.1f} kg/m²"),
             ("Minimum sink", display.with_unit(display.vertical(units, polar.min_sink_ms), units.vertical_label)),
             ("  at", display.with_unit(display.speed(units, polar.min_sink_speed_ms), units.speed_label)),

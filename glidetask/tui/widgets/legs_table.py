@@ -104,28 +104,31 @@ class LegsTable(DataTable):
         self._units: UnitSystem | None = None  # the unit system of the headers shown
         self._compact_drawn = False
 
-    # what the table shows, set by the view; drawn in ``watch_plan`` (the others are set
-    # first, without drawing, by :meth:`show`)
+    # what the table shows, set by the view (the others before ``plan``): each watcher draws
     plan = var(None, always_update=True)  # the engine's SI Plan (None: headers only)
-    units: var[UnitSystem] = var(METRIC)
-    codes: var[dict] = var(dict)  # turnpoint names -> short codes for the Leg column
-    compact = var(False)  # a narrow screen: IAS is left out (the Glider view's card and the calculator show it)
+    units: var[UnitSystem] = var(METRIC, init=False)
+    codes: var[dict] = var(dict, init=False)  # turnpoint names -> short codes for the Leg column
+    compact = var(False, init=False)  # a narrow screen: IAS is left out (the Glider view's card and the calculator show it)
 
     def shown_columns(self) -> tuple:
         return tuple(c for c in COLUMNS if not (self.compact and c[0] in NARROW_LEAVES_OUT))
 
-    def show(self, plan, units: UnitSystem, codes: dict[str, str] | None = None, *, compact: bool | None = None) -> None:
-        """Set what to show and draw it once."""
-        self.set_reactive(LegsTable.units, units)
-        self.set_reactive(LegsTable.codes, codes or {})
-        if compact is not None:
-            self.set_reactive(LegsTable.compact, compact)
-        self.plan = plan
+    def watch_units(self) -> None:
+        self._draw()
 
-    def watch_plan(self, plan) -> None:
+    def watch_codes(self) -> None:
+        self._draw()
+
+    def watch_compact(self) -> None:
+        self._draw()
+
+    def watch_plan(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
         if not self.is_mounted:
             return
-        units, codes = self.units, self.codes
+        plan, units, codes = self.plan, self.units, self.codes
         if self._compact_drawn != self.compact:
             self._compact_drawn, self._units = self.compact, None  # the columns change
             # narrow: no padding around cells, one space before each instead (every column fits 80)

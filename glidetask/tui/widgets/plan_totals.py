@@ -55,14 +55,8 @@ class PlanTotals(Static):
     drawn in the watchers."""
 
     plan = var(None, always_update=True)
-    units: var[UnitSystem] = var(METRIC)
-    stale = var(False)
-
-    def show(self, plan, units: UnitSystem, *, stale: bool = False) -> None:
-        """Set all three at once, drawing once."""
-        self.set_reactive(PlanTotals.units, units)
-        self.set_reactive(PlanTotals.stale, stale)
-        self.plan = plan
+    units: var[UnitSystem] = var(METRIC, init=False)
+    stale = var(False, init=False)
 
     def watch_plan(self) -> None:
         self._draw()

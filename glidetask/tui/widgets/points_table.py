@@ -5,11 +5,12 @@ from __future__ import annotations
 from rich.text import Text
 from textual.binding import Binding
 from textual.message import Message
+from textual.reactive import var
 from textual.widgets import DataTable
 
 from glidetask.formats.zone_text import zone_text
 from glidetask.tui import display
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 
 def role(index: int, count: int) -> str:
@@ -39,8 +40,24 @@ class PointsTable(DataTable):
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
-    def show(self, task, units: UnitSystem, *, compact: bool = False) -> None:
-        """Fill the table; ``compact`` (a narrow screen) leaves out the codes and elevations."""
+    # what the table shows, set by the view (``shown_task`` last); each watcher fills the table
+    shown_task = var(None, always_update=True, init=False)  # the engine's Task (``task`` is taken: the message loop's)
+    units: var[UnitSystem] = var(METRIC, init=False)
+    compact = var(False, init=False)  # a narrow screen: no codes and no elevations
+
+    def watch_shown_task(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_compact(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        task, units, compact = self.shown_task, self.units, self.compact
+        if task is None:
+            return
         row = self.cursor_row
         self.clear(columns=True)
         columns = [("role", "Point"), ("name", "Turnpoint"), ("zone", "Zone")]

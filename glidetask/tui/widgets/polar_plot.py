@@ -3,16 +3,32 @@
 from __future__ import annotations
 
 import numpy as np
+from textual.reactive import var
 from textual_plotext import PlotextPlot
 
 from glidetask.tui.plot_ticks import nice_ticks, number_labels
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 
 class PolarPlot(PlotextPlot):
-    """Sink against true airspeed, within each polar's valid speed range."""
+    """Sink against true airspeed, within each polar's valid speed range: the card's
+    reference polar and this flight's (a ``derived.GliderCard``).
 
-    def show(self, reference, current, units: UnitSystem) -> None:
+    The view sets ``units`` before ``card``; each watcher draws again."""
+
+    card = var(None, always_update=True, init=False)  # a derived.GliderCard
+    units: var[UnitSystem] = var(METRIC, init=False)
+
+    def watch_card(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        if self.card is None:
+            return
+        reference, current, units = self.card.reference, self.card.current, self.units
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()

@@ -13,6 +13,7 @@ from textual import on
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
+from textual.reactive import var
 from textual.widgets import DataTable, Input, Label, Select
 
 from glidetask.tui import display, edits, messages
@@ -29,13 +30,17 @@ class ProfileTable(DataTable):
 
 
 class ProfileEditor(Vertical):
-    """Rows of the day's lift profile and a two-field editor for them."""
+    """Rows of the day's lift profile and a two-field editor for them.
+
+    The view sets ``units`` before ``day``; each watcher fills the rows again."""
+
+    day = var(None, always_update=True, init=False)  # the engine's Day
+    units: var[UnitSystem | None] = var(None, init=False)  # None: not shown yet (edits wait)
 
     def __init__(self, **kwargs):
         super().__init__(**kwargs)
-        self.rows: list[tuple[float, float]] = []  # (time_s, value_ms)
+        self.rows: list[tuple[float, float]] = []  # (time_s, value_ms) as shown
         self.kind = "climb"
-        self.units: UnitSystem | None = None
 
     def compose(self) -> ComposeResult:
         yield Select(KINDS, value="climb", allow_blank=False, id="profile-kind", compact=True)
@@ -47,8 +52,16 @@ class ProfileEditor(Vertical):
             yield Input(placeholder="m/s", id="profile-value", compact=True)
         yield Label("enter: set row · x: remove row", classes="figure-label")
 
-    def show(self, day, units: UnitSystem) -> None:
-        self.units = units
+    def watch_day(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        day, units = self.day, self.units
+        if day is None or units is None:
+            return
         profile = day.climb if day.climb is not None else day.thermal_strength
         self.kind = "climb" if day.climb is not None else "thermal"
         with self.prevent(Select.Changed):

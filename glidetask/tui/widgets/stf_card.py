@@ -3,19 +3,34 @@ speed with climbs at the setting, glide ratio (the words of glidetask.tui.glossa
 
 from __future__ import annotations
 
+from textual.reactive import var
 from textual.widgets import DataTable
 
 from glidetask.tui import display
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 
 class SpeedToFlyCard(DataTable):
-    """One row per MacCready setting, still air."""
+    """One row per MacCready setting, still air (a ``derived.GliderCard``).
+
+    The view sets ``units`` before ``card``; each watcher fills the table again."""
+
+    card = var(None, always_update=True, init=False)  # a derived.GliderCard
+    units: var[UnitSystem] = var(METRIC, init=False)
 
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, header_height=2, **kwargs)
 
-    def show(self, card, units: UnitSystem) -> None:
+    def watch_card(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        card, units = self.card, self.units
+        if card is None:
+            return
         self.clear(columns=True)
         # two-line headers: the name over its unit, so the card fits its panel at 80 columns
         self.add_column(f"MC\n{units.vertical_label}", key="mc")

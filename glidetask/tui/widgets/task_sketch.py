@@ -5,6 +5,7 @@ from __future__ import annotations
 import math
 
 from rich.text import Text
+from textual.reactive import reactive
 from textual.widget import Widget
 
 from glidetask.tui.braille import BrailleCanvas
@@ -45,14 +46,9 @@ class TaskSketch(Widget):
 
     DEFAULT_CSS = "TaskSketch { width: 1fr; height: 1fr; }"
 
-    def __init__(self, **kwargs):
-        super().__init__(**kwargs)
-        self.sketch = None
-        self.units: UnitSystem | None = None
-
-    def show(self, sketch, units: UnitSystem) -> None:
-        self.sketch, self.units = sketch, units
-        self.refresh()
+    # set by the view; either repaints the widget (drawn in ``render``, to the size it has then)
+    sketch = reactive(None, always_update=True)  # a Sketch, None: nothing drawn
+    units: reactive[UnitSystem | None] = reactive(None)  # of the scale bar
 
     def render(self) -> Text:
         width, height = self.content_size.width, self.content_size.height

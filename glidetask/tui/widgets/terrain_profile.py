@@ -3,17 +3,33 @@
 from __future__ import annotations
 
 import numpy as np
+from textual.reactive import var
 from textual_plotext import PlotextPlot
 
 from glidetask.tui.plot_ticks import nice_ticks, number_labels
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 
 class TerrainProfile(PlotextPlot):
-    """Terrain (brown), the glide line (cyan) and terrain plus clearance (red dots)."""
+    """Terrain (brown), the glide line (cyan) and terrain plus clearance (red dots).
 
-    def show(self, check, units: UnitSystem, note: str = "") -> None:
-        """Draw ``check`` (an ``engine.clearance.FinalGlideTerrain``); None: ``note`` instead."""
+    The view sets ``units`` and ``note`` before ``check``; each watcher draws again."""
+
+    check = var(None, always_update=True, init=False)  # an engine.clearance.FinalGlideTerrain; None: ``note``
+    units: var[UnitSystem] = var(METRIC, init=False)
+    note = var("", init=False)  # what to say instead of a drawing
+
+    def watch_check(self) -> None:
+        self._draw()
+
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_note(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        check, units, note = self.check, self.units, self.note
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
