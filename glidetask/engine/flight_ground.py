@@ -133,14 +133,22 @@ class GroundFloor:
         """The floor at positions along the course [m MSL] (-inf where unknown)."""
         return np.interp(position_m, self.distance, self._known)
 
-    def shortfall(self, glide, x, floor_x, line, leg=None) -> np.ndarray:
-        """The rule: how far glide ``glide`` of ``line`` is below the floor ``floor_x`` at ``x`` [m].
+    @staticmethod
+    def shortfall(floor_m, height_m) -> np.ndarray:
+        """The rule at points: how far a glide at ``height_m`` is below the floor ``floor_m`` there [m].
 
-        ``F(x) - G(x)`` for pairs (``glide``, ``x``); positive where the glide breaks the
-        clearance, -inf where the floor or the glide is unknown (no floor: nothing to break).
+        ``F(x) - G(x)``; positive where the glide breaks the clearance, -inf where the floor or
+        the glide is unknown (no floor: nothing to break).
         """
-        short = floor_x - line.height(glide, x, leg)
+        short = floor_m - height_m
         return np.where(np.isfinite(short), short, -np.inf)
+
+    def shortfall_along(self, height_m) -> np.ndarray:
+        """For one glide given by its heights at the samples (linear between them) [m MSL]: the
+        largest shortfall from each sample to the course's end, shape (J,) (-inf where nothing
+        ahead is known): :meth:`largest_shortfall` started at every sample at once, in O(J)."""
+        short = self.shortfall(self.floor, np.asarray(height_m, dtype=float))
+        return np.maximum.accumulate(short[::-1])[::-1] if short.size else short
 
     def largest_shortfall(self, start_m, line) -> np.ndarray:
         """The largest shortfall of glides (n,) of ``line`` from ``start_m`` to the course's end [m].
@@ -156,13 +164,13 @@ class GroundFloor:
         """
         start = np.atleast_1d(np.asarray(start_m, dtype=float))
         glides = np.arange(start.size)
-        here = self.shortfall(glides, start, self.at(start), line, self.leg_of(start))
+        here = self.shortfall(self.at(start), line.height(glides, start, self.leg_of(start)))
         if start.size * self.distance.size <= DIRECT_PAIRS_LIMIT:
             glide, sample = np.nonzero(self.distance[None, :] >= start[:, None])
         else:
             glide, sample = self._hull_candidates(start, line)
         ahead = np.full(start.size, -np.inf)
-        short = self.shortfall(glide, self.distance[sample], self._known[sample], line, self.sample_leg[sample])
+        short = self.shortfall(self._known[sample], line.height(glide, self.distance[sample], self.sample_leg[sample]))
         np.maximum.at(ahead, glide, short)
         return np.maximum(here, ahead)
 
@@ -211,7 +219,8 @@ class GroundFloor:
         j = raised[np.repeat(first, count) + offset]
         x1 = self.distance[j]
         x0 = np.maximum(self.distance[np.maximum(j - 1, 0)], start[glide])
-        s0, s1 = self.shortfall(glide, x0, self.at(x0), line), self.shortfall(glide, x1, self._known[j], line)
+        s0 = self.shortfall(self.at(x0), line.height(glide, x0))
+        s1 = self.shortfall(self._known[j], line.height(glide, x1))
         with np.errstate(invalid="ignore", divide="ignore"):
             t = np.where(np.isfinite(s0) & (s0 < 0.0), s0 / (s0 - s1), 0.0)
         x = np.where(s1 > 0.0, x0 + np.clip(t, 0.0, 1.0) * (x1 - x0), np.inf)
