@@ -163,27 +163,30 @@ class GroundFloor:
         :meth:`shortfall`'s, at the chosen samples.
         """
         start = np.atleast_1d(np.asarray(start_m, dtype=float))
-        glides = np.arange(start.size)
-        here = self.shortfall(self.at(start), line.height(glides, start, self.leg_of(start)))
+        glide = np.arange(start.size)[:, None]
+        here = self.shortfall(self.at(start), line.height(glide[:, 0], start, self.leg_of(start)))
         if start.size * self.distance.size <= DIRECT_PAIRS_LIMIT:
-            glide, sample = np.nonzero(self.distance[None, :] >= start[:, None])
+            sample = np.broadcast_to(np.arange(self.distance.size), (start.size, self.distance.size))
+            ahead = self.distance[None, :] >= start[:, None]
         else:
-            glide, sample = self._hull_candidates(start, line)
-        ahead = np.full(start.size, -np.inf)
+            sample, ahead = self._hull_candidates(start, line)
         short = self.shortfall(self._known[sample], line.height(glide, self.distance[sample], self.sample_leg[sample]))
-        np.maximum.at(ahead, glide, short)
-        return np.maximum(here, ahead)
+        return np.maximum(here, np.max(np.where(ahead, short, -np.inf), axis=1, initial=-np.inf))
 
     def _hull_candidates(self, start, line):
-        """Per glide and leg, the sample ahead where the floor rises most above the glide: the
-        vertex of the upper hull of ``(x_j, F_j)`` ahead where the hull's slopes pass ``-slope``."""
+        """Per glide and leg (n, L), the sample ahead where the floor rises most above the glide (the
+        vertex of the upper hull of ``(x_j, F_j)`` ahead where the hull's slopes pass ``-slope``),
+        and whether the leg has one."""
         hulls = self._hulls
         first = np.searchsorted(self.distance, start, side="left")
         begin = np.maximum(first[:, None], hulls.leg_first[None, :])  # (n, L): first sample ahead on each leg
         inside = begin < hulls.leg_end[None, :]
         vertex = np.where(inside, hulls.start[np.minimum(begin, hulls.start.size - 1)], -1)
-        glide, leg = np.nonzero(vertex >= 0)
-        return glide, hulls.highest(vertex[glide, leg], line.slope(glide, leg))
+        found = vertex >= 0
+        glide, leg = np.nonzero(found)
+        sample = np.zeros(vertex.shape, dtype=np.intp)
+        sample[glide, leg] = hulls.highest(vertex[glide, leg], line.slope(glide, leg))
+        return sample, found
 
     @cached_property
     def _hulls(self) -> "_SuffixHulls":
