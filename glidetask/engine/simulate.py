@@ -516,14 +516,8 @@ def _notes(scenario: Scenario, spread: DaySpread) -> list[str]:
              f"and direction +/- {spread.wind_direction_sd_deg:.0f} deg (1 sd), end of lift +/- "
              f"{spread.lift_end_sd_s / 60:.0f} min, {bad_day_words(spread)}, next climb on average "
              f"{spread.thermal_search_mean_m / 1000:.1f} km beyond the band bottom."]
-    if scenario.terrain_file:
-        notes.append("A land-out here means the glide came down to the terrain clearance above the terrain, "
-                     "or to the finish elevation plus the arrival margin, away from the finish: choose a field "
-                     "well before that.")
-    else:
-        notes.append("A land-out here means reaching the elevation of the field in reach plus the arrival margin "
-                     "(the finish elevation plus the margin with none in reach, or after a search for a climb) "
-                     "away from the finish: choose a field well before that.")
+    notes.append("A land-out here means reaching the finish elevation plus the arrival margin away from the "
+                 "finish: choose a field well before that.")
     if scenario.task.kind == "area":
         notes.append("Area task: every day flies the forecast plan's targets.")
     return notes
