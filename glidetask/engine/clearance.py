@@ -1,13 +1,14 @@
 """Clearance over the terrain: a final glide checked against the ground under it.
 
-This is where the rule "no glide closer to the terrain than the terrain clearance"
-lives. :func:`final_glide_clearance` is the terrain-aware final glide: the clearance of
+The rule "no glide closer to the terrain than the terrain clearance" is
+:class:`glidetask.engine.flight_ground.GroundFloor`'s, for every glide of the flight. Here it
+is read as a report on one final glide: :func:`final_glide_clearance` gives the clearance of
 the glide line over the ground, the least clearance and where, and how much the required
-height must rise (and which obstacle decides it) so that the clearance holds everywhere.
-:func:`final_glide_over_terrain` builds the required-height line from the height used
-per metre on each leg and runs that check on a sampled path.
+height must rise (the largest shortfall ahead, :meth:`GroundFloor.shortfall_along`) and
+which obstacle decides it. :func:`final_glide_over_terrain` builds the required-height line
+from the height used per metre on each leg and runs that check on a sampled path.
 
-The same rule applied inside the flight core, along a task's whole planned path, is
+The same rule inside the flight core, along a task's whole planned path, is
 :mod:`glidetask.engine.clearance_hook` (:class:`~glidetask.engine.clearance_hook.PathTerrain`).
 """
 
@@ -21,6 +22,7 @@ import numpy as np
 
 from glidetask.engine.arrays import scalar_or_array
 from glidetask.engine import geodesy
+from glidetask.engine.flight_ground import GroundFloor
 from glidetask.engine.terrain import Terrain
 from glidetask.engine.terrain_profile import (
     PATH_SPACING_M, PathProfile, covered_share_of, flagged_runs, sample_path,
@@ -145,22 +147,11 @@ class FinalGlideTerrain:
         A step function: at ``s`` it is the largest shortfall of any sample at or beyond
         ``s`` (0 beyond the last sample), the same suffix maximum as ``adjusted_m``.
         """
-        deficit = _deficit(self.terrain_m, self.clearance_m, self.required_m)
-        suffix = np.concatenate((_suffix_max(deficit), [0.0]))
+        ahead = GroundFloor(self.distance_m, self.terrain_m + self.clearance_m).shortfall_along(self.required_m)
+        suffix = np.concatenate((ahead, [0.0]))
         index = np.searchsorted(self.distance_m, np.asarray(distance_m, dtype=float), side="left")
         result = np.maximum(suffix[index], 0.0)
         return scalar_or_array(result)
-
-
-def _deficit(terrain_m, clearance_m, required_m) -> np.ndarray:
-    """``T + C - R`` per sample; -inf where the terrain or the requirement is unknown."""
-    deficit = np.asarray(terrain_m, dtype=float) + clearance_m - np.asarray(required_m, dtype=float)
-    return np.where(np.isfinite(deficit), deficit, -np.inf)
-
-
-def _suffix_max(values: np.ndarray) -> np.ndarray:
-    """``out[i] = max(values[i:])``."""
-    return np.maximum.accumulate(values[::-1])[::-1] if values.size else values
 
 
 def _landmark_fields(landmark):
@@ -267,8 +258,9 @@ def final_glide_clearance(distance_m, required_height_m, terrain_m, clearance_m:
     lats = None if lats is None else np.broadcast_to(np.asarray(lats, dtype=float), distance.shape)
     lons = None if lons is None else np.broadcast_to(np.asarray(lons, dtype=float), distance.shape)
 
-    deficit = _deficit(terrain, clearance_m, required)
-    rise = np.maximum(_suffix_max(deficit), 0.0)
+    ground = GroundFloor(distance, terrain + clearance_m)  # the clearance rule (flight_ground)
+    deficit = ground.shortfall(ground.floor, required)
+    rise = np.maximum(ground.shortfall_along(required), 0.0)
     adjusted = required + rise
     raised_by = float(rise[0])
     required_start = float(adjusted[0])

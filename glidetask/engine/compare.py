@@ -39,6 +39,8 @@ import numpy as np
 from glidetask.engine import plan as planning
 from glidetask.engine.circling import achieved_climb
 from glidetask.engine.flight import Flights, climb_strengths, course_for, flights_for, fly
+from glidetask.engine.landing_fields import landing_fields
+from glidetask.engine.plan_airspace import corridor
 from glidetask.engine.plan_safety import load_terrain_for, terrain_requirement
 from glidetask.engine.scenario import Profile, Scenario
 from glidetask.engine.speedtofly import cruise_in_wind
@@ -123,8 +125,10 @@ def planned_route(scenario: Scenario, path=None, requirement=TASK_TERRAIN):
         The planned path; default the one :func:`glidetask.engine.plan.plan` chooses
         (racing: optimized; area: the chosen targets), and then its hook as well.
     requirement : RequirementHook, None or "task"
-        Extra final-glide height along the path; ``"task"`` (default): what ``plan()``
-        uses by default, the task's elevation model sampled along ``path`` (None without one).
+        Extra final-glide height along the path; ``"task"`` (default): the hook ``plan()``
+        flies ``path`` with: the task's elevation model sampled along it, or without one the
+        landable fields along it (a land-out ends in the field it reaches), under the task's
+        airspace corridor when it has airspace.
 
     Returns
     -------
@@ -137,7 +141,9 @@ def planned_route(scenario: Scenario, path=None, requirement=TASK_TERRAIN):
         if requirement != TASK_TERRAIN:
             raise ValueError(f"requirement must be a hook, None or {TASK_TERRAIN!r}")
         model = load_terrain_for(scenario)
-        requirement = None if model is None else terrain_requirement(model)(scenario, path)
+        requirement = (landing_fields if model is None else terrain_requirement(model))(scenario, path)
+        if scenario.airspace is not None:
+            requirement = corridor(scenario, path, requirement, model)
     return path, requirement
 
 

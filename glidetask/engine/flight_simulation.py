@@ -507,7 +507,8 @@ class Simulation(FinalGlideRequirement):
                 self.trace.append((float(self.leg_start[j + 1]) / self.detour, float(height_after[j]), phase))
 
     def _landed(self, rows, reason: int) -> None:
-        """Flights that reached the arrival floor where they are (searching for a climb)."""
+        """Flights that land where they are: a search for a climb down to its floor, terrain above the
+        band top, or a flight the core could not resolve."""
         if not rows.size:
             return
         self.stop_time[rows] = self.time[rows]

@@ -15,6 +15,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import NamedTuple
 
 import numpy as np
 
@@ -52,9 +53,10 @@ class PlannedProfile:
         return float(gap[i]), float(self.distance_m[i])
 
 
-@dataclass(frozen=True)
-class Floor:
-    """Where the ground raised the glides' floor above the band bottom [m along the task], [m MSL]."""
+class Floor(NamedTuple):
+    """A stretch ``(from_m, to_m, floor_m)`` of :func:`~glidetask.engine.flight_profile.raised_floors`,
+    named: where the ground raised the glides' floor above the band bottom [m along the task],
+    and the highest floor there [m MSL]."""
 
     from_m: float
     to_m: float
@@ -98,8 +100,8 @@ def ground_facts(scenario, path, flown, hook):
         profile = PlannedProfile(distance, height, ground, phase)
     floors, uncovered = (), ()
     if terrain is not None:
-        floors = tuple(Floor(*f) for f in raised_floors(terrain.distance_m, terrain.elevation_m, hook.clearance_m,
-                                                        scenario.day.band_bottom_m))
+        floors = tuple(map(Floor._make, raised_floors(terrain.distance_m, terrain.elevation_m, hook.clearance_m,
+                                                      scenario.day.band_bottom_m)))
         uncovered = tuple((float(a), float(b)) for a, b in terrain.uncovered_ranges())
     landout = None
     if not bool(flown.finished[0]) and math.isfinite(float(flown.landout_m[0])):

@@ -30,9 +30,18 @@ own, not a forecast model; every spread can be set, and zero reproduces the plan
   :func:`glidetask.engine.thermals.thermal_search_distance` (``zi / 1.2`` from Allen's
   thermal density [3]_; 1.6 km for a 1.9 km layer); it grows as the day's strength
   factor falls (``mean / factor``: weak days have fewer usable thermals). The odds rest
-  much on this number: :func:`spacing_odds` gives them at other spacings. A pilot who reaches
-  the arrival floor (finish elevation plus the margin, taken as the ground) before
-  finding one lands out there.
+  much on this number: :func:`spacing_odds` gives them at other spacings. A pilot who
+  comes down to the arrival floor (the finish elevation plus the margin) before finding
+  one lands out there; with an elevation model, where the glide first comes down to the
+  terrain clearance above the terrain, if that is sooner.
+
+Where the climbs end (the end of lift, no climb) before the final glide can start, the
+flight glides on at MacCready 0 and lands out by the plan's own rule, so a simulated
+land-out is where the plan's would be on the same day: with an elevation model, where that
+glide comes down to the terrain clearance above the terrain under it (the contact rule of
+every glide, :mod:`glidetask.engine.flight_ground`); without one, at the elevation of the
+landable field it reaches plus the arrival margin (:mod:`glidetask.engine.landing_fields`),
+or at the finish elevation plus the margin when no field is in reach.
 
 The days are drawn once per run and shared by every ballast choice (common random
 numbers), so the choices are compared on the same days.

@@ -3,7 +3,7 @@
 :func:`sample_path` samples a :class:`~glidetask.engine.terrain.Terrain` along the WGS84
 geodesics between a path's vertices (a task path) into a :class:`PathProfile`, which
 reports the share of the path the model covers and the stretches it does not. The
-clearance of a glide over these samples is :mod:`glidetask.engine.clearance`'s job.
+clearance of a glide over these samples is :mod:`glidetask.engine.flight_ground`'s job.
 """
 
 from __future__ import annotations

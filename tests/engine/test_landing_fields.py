@@ -85,3 +85,20 @@ def test_odds_with_no_spread_land_where_the_plan_does():
                       thermal_search_mean_m=0.0)
     odds = simulate_days(s, runs=20, seed=3, spread=still, ballasts_kg=(0.0,))
     assert odds.choices[0].finished == 0 and odds.choices[0].landouts_by_leg[0] == 20
+
+
+def test_an_explicit_path_flies_with_the_plan_s_hook_and_lands_in_the_same_field():
+    # planned_route with the plan's own path (as the odds and the sweep are given one) must
+    # fly it with the hook the plan flies it with: without terrain, the landable fields.
+    # Source: the setup of test_the_glide_ends_at_the_reached_field_s_elevation_plus_the_margin
+    # (common practice: height x L/D at MacCready 0 in still air): High Lea is in reach, and
+    # the glide ends at its elevation plus the margin, (1,500 - 400 - 200) m x L/D along the course.
+    s = with_fields(field("High Lea", 35e3, 1e3, 400.0), field("Far Meadow", 60e3, 1e3, 100.0))
+    p = plan(s)
+    path, hook = planned_route(s, p.path)
+    assert isinstance(hook, LandingFields) and hook.names == ("High Lea", "Far Meadow")
+    flown = fly(course_for(path, s.day.detour_percent), flights_for(s), requirement=hook, detail=False)
+    assert not flown.finished[0] and not p.finished
+    assert hook.names[int(flown.landout_field[0])] == p.landout.field == "High Lea"
+    assert float(flown.landout_m[0]) == pytest.approx(p.landout_m, abs=1e-6)
+    assert p.landout_m == pytest.approx((1500.0 - 400.0 - 200.0) * band_polar(s).best_ld, rel=1e-9)

@@ -602,11 +602,12 @@ SEARCHES = pytest.mark.parametrize("direct_limit", [0, 10**12], ids=["hulls", "e
 def test_the_fast_requirement_hook_equals_the_direct_maximum(direct_limit, case):
     # The hook searches convex hulls of the samples ahead instead of every sample: the
     # answer must be the direct maximum's, to round-off (1e-9 m).
-    from glidetask.engine import clearance_hook
+    from glidetask.engine import flight_ground
+    from glidetask.engine.clearance_hook import PathTerrain
 
     profile, clearance, position, per_metre, floor = case
-    with mock.patch.object(clearance_hook, "DIRECT_PAIRS_LIMIT", direct_limit):
-        fast = clearance_hook.PathTerrain(profile, clearance)(position, per_metre, floor)
+    with mock.patch.object(flight_ground, "DIRECT_PAIRS_LIMIT", direct_limit):
+        fast = PathTerrain(profile, clearance)(position, per_metre, floor)
     direct = direct_extra_required(profile, clearance, position, per_metre, floor)
     np.testing.assert_allclose(fast, direct, rtol=0.0, atol=1e-9)
 
@@ -615,7 +616,7 @@ def test_the_fast_requirement_hook_equals_the_direct_maximum(direct_limit, case)
 def test_the_fast_requirement_hook_equals_the_direct_maximum_over_the_demo_terrain(direct_limit, demo_dir):
     # The demo triangle's planned path over the demo model (hills, a ridge, the plain), and
     # final-glide tables across the whole plausible range (glide ratios 15 to 60).
-    from glidetask.engine import clearance_hook
+    from glidetask.engine import flight_ground
     from glidetask.engine.clearance_hook import path_terrain
     from glidetask.engine.task_search import optimized_path
     from glidetask.formats.task_file import load_scenario
@@ -628,7 +629,7 @@ def test_the_fast_requirement_hook_equals_the_direct_maximum_over_the_demo_terra
     position = rng.uniform(0.0, along.profile.total_m, count)
     per_metre = rng.uniform(1 / 60.0, 1 / 15.0, (count, len(path.legs)))
     floor = rng.uniform(100.0, 800.0, count)
-    with mock.patch.object(clearance_hook, "DIRECT_PAIRS_LIMIT", direct_limit):
+    with mock.patch.object(flight_ground, "DIRECT_PAIRS_LIMIT", direct_limit):
         fast = along(position, per_metre, floor)
     assert np.count_nonzero(fast) > count // 4  # the terrain does decide somewhere
     direct = direct_extra_required(along.profile, 150.0, position, per_metre, floor)
