@@ -225,8 +225,6 @@ STRATEGY_NOTES = {
     "no_water_ballast": "This glider carries no water ballast: only the empty glider is shown.",
     "sweep_area_targets": "Area task: the times are for the targets the plan chose; the minimum time still applies.",
     "dump_water": "Dump water before landing out, and whenever the climbs turn weak.",
-    "odds_landout_meaning": ("A land-out here means reaching the finish elevation plus the arrival margin away from "
-                             "the finish: choose a field well before that."),
     "odds_area_targets": "Area task: every day flies the forecast plan's targets.",
     "what_ifs_area_targets": ("Area task: the what-ifs fly the forecast plan's targets; on the day, move the "
                               "targets to keep the minimum time."),
@@ -271,6 +269,14 @@ def _strategy_note_text(code: str, f: dict, units: "UnitSystem") -> str:
     if code == "sweep_ignores_fixed_mc":
         return (f"The sweep flies at a MacCready setting equal to the achieved climb, not the day's fixed setting "
                 f"of {_setting(f['mc_ms'], units)}.")
+    if code == "odds_landout_meaning":
+        if f.get("terrain"):
+            return ("A land-out here is where the glide after the climbs comes down to the terrain clearance (or "
+                    "after a failed search for a climb, the finish elevation plus the arrival margin if that comes "
+                    "first), away from the finish: choose a field well before that.")
+        return ("A land-out here means reaching the elevation of the field in reach plus the arrival margin (the "
+                "finish elevation plus the margin with none in reach, or after a failed search for a climb), away "
+                "from the finish: choose a field well before that.")
     if code == "odds_spread_assumed":
         s = f["spread"]
         return (f"The spread of days is a planning assumption of glidetask, not a forecast: strength "

@@ -85,3 +85,15 @@ def test_the_sweep_odds_and_what_if_notes_follow_the_chosen_units(demo_dir):
     assert any("wind speed +/- 4 kt" in text for text in aviation)
     assert any("wind speed +/- 8 km/h" in text for text in metric)
     assert not any(METRIC_QUANTITY.search(text) for text in aviation), aviation
+
+
+def test_odds_landout_note_follows_the_rule_the_task_is_flown_with():
+    # the plan's land-out rule (shared/CONTRACT.md section 3 as built): with terrain the glide
+    # after the climbs comes down to the clearance; without, to the reached field (else the finish)
+    from glidetask.engine.plan import Notice
+    from glidetask.units import METRIC
+
+    with_terrain = cautions.notice_text(Notice("odds_landout_meaning", {"terrain": True}), METRIC)
+    without = cautions.notice_text(Notice("odds_landout_meaning", {"terrain": False}), METRIC)
+    assert "comes down to the terrain clearance" in with_terrain
+    assert "elevation of the field in reach plus the arrival margin" in without

@@ -501,7 +501,7 @@ def _choice(ballast: float, setup: Flights, flown, rows: slice, forecast, legs: 
 def _notes(scenario: Scenario, spread: DaySpread) -> list[planning.Notice]:
     """What the pilot must know about the odds, as facts (:func:`glidetask.cautions.notice_text` words them)."""
     notes = [planning.Notice("odds_spread_assumed", {"spread": spread})]
-    notes.append(planning.Notice("odds_landout_meaning"))
+    notes.append(planning.Notice("odds_landout_meaning", {"terrain": bool(scenario.terrain_file)}))
     if scenario.task.kind == "area":
         notes.append(planning.Notice("odds_area_targets"))
     return notes

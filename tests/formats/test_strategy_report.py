@@ -205,7 +205,8 @@ def test_odds_json():
     last = data["thermal_spacing"][-1]
     assert last["thermal_search_mean_km"] == 8.0
     assert last["choices"][0] == {"ballast_kg": 0.0, "finish_probability": 0.4, "finish_probability_se": 0.0155}
-    assert data["cautions"][-1] == cautions.STRATEGY_NOTES["odds_landout_meaning"]
+    assert data["cautions"][-1].startswith("A land-out here means reaching the elevation of the field in reach plus "
+                                           "the arrival margin")
     assert data["cautions"][-2].endswith("wind speed +/- 8 km/h and direction +/- 20 deg (1 sd), end of lift +/- 30 "
                                          "min, 1 day in 10 the lift ends 1-2 h early, next climb on average 2.0 km "
                                          "beyond the band bottom.")
