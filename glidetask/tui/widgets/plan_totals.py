@@ -28,14 +28,21 @@ def _distance(units: UnitSystem, metres) -> str:
 
 
 def final_glide_text(plan, units: UnitSystem) -> str:
-    """Where the final glide starts, how far out, how high and at which setting."""
+    """Where the final glide starts, how far out, how high, at which setting and the speed to
+    fly on its first leg as indicated (``glidetask.engine.final_glide_speeds``)."""
+    from glidetask.engine.final_glide_speeds import final_glide_speeds
+
     start = plan.final_glide_from_m
     if start is None or not math.isfinite(start):
         return "none: the plan does not reach a final glide"
     out = max(plan.planned_distance_m - start, 0.0)
-    return (f"from {_distance(units, start)} ({_distance(units, out)} out) at "
+    text = (f"from {_distance(units, start)} ({_distance(units, out)} out) at "
             f"{display.with_unit(display.height(units, plan.final_glide_height_m), units.height_label)}, "
             f"MacCready {display.with_unit(display.vertical(units, plan.final_glide_mc_ms), units.vertical_label)}")
+    legs = [leg for leg in final_glide_speeds(plan) if math.isfinite(leg.indicated_airspeed_ms)]
+    if legs:
+        text += f", fly {display.with_unit(display.speed(units, legs[0].indicated_airspeed_ms), units.speed_label)} IAS"
+    return text
 
 
 def particular_cautions(plan, units: UnitSystem) -> list[str]:
