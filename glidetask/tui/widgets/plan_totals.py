@@ -27,9 +27,11 @@ def _distance(units: UnitSystem, metres) -> str:
     return display.with_unit(display.distance(units, metres), units.distance_label)
 
 
-def final_glide_text(plan, units: UnitSystem) -> str:
+def final_glide_text(plan, units: UnitSystem, width: int | None = None) -> str:
     """Where the final glide starts, how far out, how high, at which setting and the speed to
-    fly on its first leg as indicated (``glidetask.engine.final_glide_speeds``)."""
+    fly on its first leg as indicated (``glidetask.engine.final_glide_speeds``). Where the
+    line would not fit ``width`` (with its label), where it starts along the task is left out
+    (how far out is kept: the pilot's figure)."""
     from glidetask.engine.final_glide_speeds import final_glide_speeds
 
     start = plan.final_glide_from_m
@@ -42,7 +44,12 @@ def final_glide_text(plan, units: UnitSystem) -> str:
     legs = [leg for leg in final_glide_speeds(plan) if math.isfinite(leg.indicated_airspeed_ms)]
     if legs:
         text += f", fly {display.with_unit(display.speed(units, legs[0].indicated_airspeed_ms), units.speed_label)} IAS"
+    if width is not None and len(FINAL_GLIDE_LABEL) + len(text) > width:
+        text = text.replace(f"from {_distance(units, start)} (", "", 1).replace(" out) at ", " out at ", 1)
     return text
+
+
+FINAL_GLIDE_LABEL = "Final glide "
 
 
 def particular_cautions(plan, units: UnitSystem) -> list[str]:
@@ -74,6 +81,9 @@ class PlanTotals(Static):
     def watch_stale(self) -> None:
         self._draw()
 
+    def on_resize(self) -> None:
+        self._draw()  # the final glide's line is shortened to fit
+
     def _draw(self) -> None:
         plan, units, stale = self.plan, self.units, self.stale
         if plan is None:
@@ -99,7 +109,8 @@ class PlanTotals(Static):
         if area is not None:
             parts.append(Text.assemble(("Areas allow ", LABEL), _distance(units, area.min_distance_m),
                                        (" to ", LABEL), _distance(units, area.max_distance_m)))
-        parts.append(Text.assemble(("Final glide ", LABEL), final_glide_text(plan, units)))
+        width = self.content_region.width or None
+        parts.append(Text.assemble((FINAL_GLIDE_LABEL, LABEL), final_glide_text(plan, units, width)))
         if not plan.finished and plan.landout_m is not None and math.isfinite(plan.landout_m):
             parts.append(Text(f"Ends short {_distance(units, plan.landout_m)} along the task: {plan.reason}",
                               style=ALARM))
