@@ -406,11 +406,54 @@ class GlideTaskApp(App[int]):
         else:
             start = str(path)
 
-        def chosen(answer: str | None) -> None:
-            if answer and self._save_to(Path(answer).expanduser().absolute()) and then_quit:
+        def saved(target: Path) -> None:
+            if self._save_to(target) and then_quit:
                 self.exit(0)
 
+        def chosen(answer: str | None) -> None:
+            if answer:
+                self._save_as_checked(Path(answer).expanduser().absolute(), saved)
+
         self.push_screen(PathModal(title, start, action="Save", hint=hint), chosen)
+
+    def _save_as_checked(self, target: Path, save) -> None:
+        """Save As to ``target`` through ``save(target)``: at once to the task's own file or a new
+        name; after a confirmation naming it for any other existing file; never over a file the
+        task reads (its polar, turnpoints, terrain, airspace, sounding) or the bundled demo."""
+        import os
+
+        from glidetask.formats.export import input_files, same_file_as
+
+        own, scenario = self.session.path, self.session.scenario
+        if own is not None and not is_bundled(own) and same_file_as(target, [own]) is not None:
+            save(target)  # the task's own file: what Save does
+            return
+        # the files the task reads besides the task file itself (already saved elsewhere once saved as)
+        reads = same_file_as(target, [f for f in input_files(scenario) if f != os.fspath(scenario.source or "")])
+        problem = None
+        if is_bundled(target):
+            problem = "the bundled demo stays as shipped; choose another name"
+        elif reads is not None:
+            problem = f"{str(target)!r} is {str(reads)!r}, a file the task reads; choose another name"
+        if problem is None and target.is_dir():
+            problem = f"{str(target)!r} is a folder; give a file name"
+        if problem:
+            self.problems = tuple(self.session.problems) + (Problem(str(target), "Save as", f"not saved: {problem}"),)
+            self.notice = f"not saved: {problem}"
+            return
+        if not os.path.lexists(target):
+            save(target)
+            return
+        from glidetask.tui.screens.confirm_modal import ConfirmModal
+
+        def answered(yes: bool | None) -> None:
+            if yes:
+                save(target)
+            else:
+                self.notice = f"not saved: {target} kept as it is"
+
+        self.push_screen(ConfirmModal(f"{target} exists. Replace it with this task?", yes="Replace",
+                                      no="Keep it"), answered)
 
     def _save_to(self, path: Path) -> bool:
         from glidetask.tui import recompute
