@@ -111,3 +111,20 @@ async def test_odds_draw_the_first_ballast_choice_while_the_others_are_flown(ack
             for field in dataclasses.fields(engine):
                 assert np.array_equal(np.asarray(getattr(shown, field.name), dtype=object),
                                       np.asarray(getattr(engine, field.name), dtype=object)), field.name
+
+
+async def test_a_first_visit_styles_its_view_without_restyling_the_app(acknowledged, monkeypatch):
+    """A new view is styled widget by widget as it mounts; Textual's refresh of the whole style
+    sheet (re-read and every other view restyled, 50-100 ms before the first frame) is not run."""
+    app = make_app(paths.demo_task())
+    async with app.run_test(size=(120, 40)) as pilot:
+        await settle(pilot)
+        refreshes = []
+        real = app.refresh_css
+        monkeypatch.setattr(app, "refresh_css", lambda *a, **k: (refreshes.append(1), real(*a, **k)))
+        await pilot.press("6")
+        await settle(pilot, 6)
+        assert not refreshes
+        view = app.screen
+        assert view.query_one("#sweep-summary").styles.width.value == 46  # the view's own styles
+        assert view.query_one("#sweep-panel").styles.border_top[0] == "round"  # the app's .panel
