@@ -90,19 +90,21 @@ class OddsView(ViewScreen):
     def compose_body(self) -> ComposeResult:
         with Vertical(id="odds-left"):
             yield ProgressNotice(WAITING, id="odds-waiting")
-            with Vertical(id="odds-inputs", classes="panel"):
-                for field_id, label, unit in FIELDS:
-                    yield FormField(field_id, label, unit, placeholder="empty, half, full" if "ballast" in field_id
-                                    else "")
+            yield Vertical(id="odds-inputs", classes="panel")  # its fields come with the figures
             yield ProbabilityBars(id="odds-bars", classes="panel")
             yield Static(id="odds-assumptions", classes="panel")
-        # the tables and the plot (costly to style and draw) are mounted just after the first
-        # frame, so the key shows the progress line at once
+        # the inputs, the tables and the plot (costly to style and draw) are mounted just after
+        # the first frame, so the key shows the progress line at once
         yield Vertical(id="odds-right")
 
     _figures_mounted = False
 
     async def _mount_figures(self) -> None:
+        await self.query_one("#odds-inputs").mount_all(
+            [FormField(field_id, label, unit, placeholder="empty, half, full" if "ballast" in field_id else "")
+             for field_id, label, unit in FIELDS])
+        self._field("odds-runs").show(str(self.runs), force=True)
+        self._field("odds-seed").show(str(self.seed), force=True)
         parts = [OddsTable(id="odds-table", classes="panel"), LandoutsTable(id="landouts-table", classes="panel"),
                  FinishPlot(id="finish-plot", classes="panel")]
         await self.query_one("#odds-right").mount_all(parts)
@@ -116,8 +118,6 @@ class OddsView(ViewScreen):
         self.query_one("#odds-inputs").border_title = "Simulation"
         self.query_one("#odds-bars").border_title = "Odds of finishing"
         self.query_one("#odds-assumptions").border_title = "The spread of days assumed"
-        self._field("odds-runs").show(str(self.runs), force=True)
-        self._field("odds-seed").show(str(self.seed), force=True)
         self._show_parts(False)
         self.call_after_refresh(self._mount_figures)
 

@@ -16,6 +16,17 @@ from textual.containers import Vertical
 from textual.widgets import ProgressBar, Static
 
 
+class ProgressText(Static):
+    """The notice's words; notes when they are first drawn into a frame while a computation runs."""
+
+    def render_lines(self, crop):
+        lines = super().render_lines(crop)
+        notice = self.parent
+        if isinstance(notice, ProgressNotice) and notice.first_started is not None and notice.first_painted is None:
+            notice.first_painted = time.perf_counter()
+        return lines
+
+
 class ProgressNotice(Vertical):
     """A line saying what is computed (or awaited) and a bar that moves while it runs."""
 
@@ -30,10 +41,10 @@ class ProgressNotice(Vertical):
         self._text = text
         self.started: float | None = None
         self.first_started: float | None = None  # when a computation was first said to run (benchmarks)
-        self.first_painted: float | None = None  # when the frame saying so had been drawn (benchmarks)
+        self.first_painted: float | None = None  # when a frame first drew it so (benchmarks)
 
     def compose(self) -> ComposeResult:
-        yield Static(self._text, markup=False, classes="progress-text")
+        yield ProgressText(self._text, markup=False, classes="progress-text")
         bar = ProgressBar(total=None, show_eta=False, show_percentage=False, classes="progress-bar")
         bar.display = False
         yield bar
@@ -54,8 +65,3 @@ class ProgressNotice(Vertical):
         self.started = time.perf_counter() if working else None
         if working and self.first_started is None:
             self.first_started = self.started
-            self.call_after_refresh(self._painted)
-
-    def _painted(self) -> None:
-        if self.first_painted is None:
-            self.first_painted = time.perf_counter()
