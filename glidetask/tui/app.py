@@ -427,19 +427,17 @@ class GlideTaskApp(App[int]):
         task reads (its polar, turnpoints, terrain, airspace, sounding) or the bundled demo."""
         import os
 
-        from glidetask.formats.export import input_files, same_file_as
+        from glidetask.formats.export import same_file_as
+        from glidetask.tui.exporting import read_by_task_problem
 
-        own, scenario = self.session.path, self.session.scenario
+        own = self.session.path
         if own is not None and not is_bundled(own) and same_file_as(target, [own]) is not None:
             save(target)  # the task's own file: what Save does
             return
-        # the files the task reads besides the task file itself (already saved elsewhere once saved as)
-        reads = same_file_as(target, [f for f in input_files(scenario) if f != os.fspath(scenario.source or "")])
-        problem = None
         if is_bundled(target):
             problem = "the bundled demo stays as shipped; choose another name"
-        elif reads is not None:
-            problem = f"{str(target)!r} is {str(reads)!r}, a file the task reads; choose another name"
+        else:  # the task file it was read from is not among them: once saved as, the task is elsewhere
+            problem = read_by_task_problem(target, self.session.scenario, task_file=False)
         if problem is None and target.is_dir():
             problem = f"{str(target)!r} is a folder; give a file name"
         if problem:

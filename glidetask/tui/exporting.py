@@ -12,18 +12,40 @@ from pathlib import Path
 FORMATS = {".gpx": "GPX 1.1 route", ".md": "pre-flight briefing (Markdown)", ".json": "plan (JSON, contract 5.3)"}
 
 
+def files_the_task_reads(scenario, *, task_file: bool = True) -> list[str]:
+    """Every file the scenario reads: :func:`glidetask.formats.export.input_files` (the task
+    file with ``task_file``, the polar, turnpoints, terrain, airspace) and its sounding."""
+    from glidetask.formats.export import input_files
+
+    files = input_files(scenario)
+    if not task_file and scenario.source:
+        files = [f for f in files if f != os.fspath(scenario.source)]
+    sounding = getattr(getattr(scenario, "day_source", None), "sounding_file", None)
+    if sounding:
+        files.append(os.fspath(sounding))
+    return files
+
+
+def read_by_task_problem(path: str | Path, scenario, *, task_file: bool = True) -> str | None:
+    """Why ``path`` must never be written for this task (it is a file the task reads), or None."""
+    from glidetask.formats.export import same_file_as
+
+    source = same_file_as(path, files_the_task_reads(scenario, task_file=task_file))
+    if source is None:
+        return None
+    return f"{os.fspath(path)!r} is {os.fspath(source)!r}, a file the task reads; choose another name"
+
+
 def export_problem(path: str | Path, scenario) -> str | None:
     """Why ``path`` cannot take an export at all (an unknown suffix, a folder, a file the task
     reads), or None."""
-    from glidetask.formats.export import protected_target_problem
-
     target = Path(path).expanduser()
     suffix = target.suffix.lower()
     if suffix not in FORMATS:
         return f"unknown export format {suffix or '(none)'}: use .gpx, .md or .json"
     if target.is_dir():
         return f"{os.fspath(target)!r} is a folder; give a file name"
-    return protected_target_problem(target, scenario)
+    return read_by_task_problem(target, scenario)
 
 
 def export_plan(path: str | Path, plan, unit_name: str = "metric", *, replace: bool = False) -> Path:

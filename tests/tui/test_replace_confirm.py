@@ -157,6 +157,19 @@ async def test_save_as_never_replaces_a_file_the_task_reads(demo_copy, acknowled
     assert target.read_bytes() == before
 
 
+async def test_save_as_never_replaces_the_sounding(demo_copy, acknowledged):
+    task = demo_copy.parent / "vardmoor-forecast-day.toml"
+    sounding = demo_copy.parent / "vardmoor-sounding.csv"
+    before = sounding.read_bytes()
+    app = make_app(task)
+    async with app.run_test(size=(80, 24)) as pilot:
+        await settle(pilot)
+        await save_as(pilot, sounding)
+        assert not isinstance(app.screen, ConfirmModal)
+        assert "a file the task reads" in app.notice and "vardmoor-sounding.csv" in app.notice
+    assert sounding.read_bytes() == before
+
+
 @pytest.mark.parametrize("answer", ["answer-no", "answer-yes"])
 async def test_export_over_an_existing_file_asks(demo_copy, acknowledged, answer):
     from glidetask.formats.export import render
