@@ -4,7 +4,7 @@ inputs: what is being computed, for which task, and a progress bar.
 Given the steps of the work (the ballast choices flown, the sweeps made), the bar shows
 how many are done; it moves only when one is, so drawing it never takes the processor
 from the computation (an animated bar redrawn 15 times a second slowed the simulated
-days by a quarter on a 2-core machine). Without steps the bar sweeps to and fro.
+days by about a fifth on a 2-core machine). Without steps the bar sweeps to and fro.
 """
 
 from __future__ import annotations
