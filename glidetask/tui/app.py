@@ -32,7 +32,12 @@ def _view_factory(name: str):
 
     def build():  # imported on first visit: the first screen only pays for its own view
         module = importlib.import_module(f"glidetask.tui.screens.{module_name}")
-        return getattr(module, class_name)()
+        screen = getattr(module, class_name)()
+        # Textual styles each widget as it mounts, and reads any new widget's styles then.
+        # Left as new, the screen would also make it re-read the whole style sheet and restyle
+        # every other view, twice, before its first frame (50-100 ms on a first visit).
+        screen._css_update_count = screen.app._css_update_count
+        return screen
 
     return build
 
@@ -406,11 +411,52 @@ class GlideTaskApp(App[int]):
         else:
             start = str(path)
 
-        def chosen(answer: str | None) -> None:
-            if answer and self._save_to(Path(answer).expanduser().absolute()) and then_quit:
+        def saved(target: Path) -> None:
+            if self._save_to(target) and then_quit:
                 self.exit(0)
 
+        def chosen(answer: str | None) -> None:
+            if answer:
+                self._save_as_checked(Path(answer).expanduser().absolute(), saved)
+
         self.push_screen(PathModal(title, start, action="Save", hint=hint), chosen)
+
+    def _save_as_checked(self, target: Path, save) -> None:
+        """Save As to ``target`` through ``save(target)``: at once to the task's own file or a new
+        name; after a confirmation naming it for any other existing file; never over a file the
+        task reads (its polar, turnpoints, terrain, airspace, sounding) or the bundled demo."""
+        import os
+
+        from glidetask.formats.export import same_file_as
+        from glidetask.tui.exporting import read_by_task_problem
+
+        own = self.session.path
+        if own is not None and not is_bundled(own) and same_file_as(target, [own]) is not None:
+            save(target)  # the task's own file: what Save does
+            return
+        if is_bundled(target):
+            problem = "the bundled demo stays as shipped; choose another name"
+        else:  # the task file it was read from is not among them: once saved as, the task is elsewhere
+            problem = read_by_task_problem(target, self.session.scenario, task_file=False)
+        if problem is None and target.is_dir():
+            problem = f"{str(target)!r} is a folder; give a file name"
+        if problem:
+            self.problems = tuple(self.session.problems) + (Problem(str(target), "Save as", f"not saved: {problem}"),)
+            self.notice = f"not saved: {problem}"
+            return
+        if not os.path.lexists(target):
+            save(target)
+            return
+        from glidetask.tui.screens.confirm_modal import ConfirmModal
+
+        def answered(yes: bool | None) -> None:
+            if yes:
+                save(target)
+            else:
+                self.notice = f"not saved: {target} kept as it is"
+
+        self.push_screen(ConfirmModal(f"{target} exists. Replace it with this task?", yes="Replace",
+                                      no="Keep it"), answered)
 
     def _save_to(self, path: Path) -> bool:
         from glidetask.tui import recompute

@@ -2,6 +2,13 @@
 
 plotext places ticks at evenly split, unrounded values (``1696.3``, ``12.6`` hours); these
 helpers give round values (1, 2 or 5 times a power of ten) and their labels.
+
+Importing this module also makes plotext draw the same picture in every run: it removes
+duplicate ticks and points through a ``set``, whose order follows Python's string hashing,
+which is seeded afresh in every process (PYTHONHASHSEED). Ticks whose labels collide on a
+small plot were then placed in a different order, moving a label by a column from run to
+run (the Day view's plot at 80x24), and of two points on one cell a different one was drawn.
+:func:`deterministic_plotext` keeps the first of each in the order given.
 """
 
 from __future__ import annotations
@@ -9,6 +16,21 @@ from __future__ import annotations
 import math
 
 from glidetask import units as units_module
+
+
+def _first_of_each(data) -> list:
+    """The items of ``data`` without repeats, in their first order (plotext's own keeps a set's order)."""
+    return list(dict.fromkeys(data))
+
+
+def deterministic_plotext() -> None:
+    """Make plotext's duplicate removal keep the order given (see the module's notes)."""
+    import plotext._utility as utility
+
+    utility.no_duplicates = _first_of_each  # read at each call by brush(), xticks() and the build
+
+
+deterministic_plotext()
 
 
 def nice_step(span: float, count: int) -> float:

@@ -57,3 +57,53 @@ def test_scale_bar_is_a_round_length_in_the_units_on_screen(units, longest_m, ex
     assert label == expected
     assert length_m <= longest_m
     assert units.distance(length_m) == pytest.approx(float(expected.split()[0]))
+
+
+DAY_PLOT_TEXT = """
+import numpy as np
+import glidetask.tui.plot_ticks  # noqa: F401 - makes plotext keep the order given
+from textual_plotext.plot import Plot
+from glidetask import paths, units
+from glidetask.tui import recompute
+from glidetask.tui.plot_ticks import clock_ticks
+
+day = recompute.load_task(paths.demo_task()).day
+first = min(day.climb.times_s[0], day.start_time_s) - 1800.0
+last = max(day.climb.times_s[-1], day.lift_ends_s) + 1800.0
+times = np.linspace(first, last, 200)
+plt = Plot()
+plt.plot(times / 3600.0, units.METRIC.vertical(np.asarray(day.lift_profile_at(times), dtype=float)),
+         color="cyan", marker="braille", label="achieved climb")
+plt.vline(day.start_time_s / 3600.0, "green")
+plt.vline(day.lift_ends_s / 3600.0, "red")
+hours, labels = clock_ticks(first, last)
+plt.xticks(hours, labels)
+plt.xlim(first / 3600.0, last / 3600.0)
+plt.plotsize(34, 8)
+print(plt.build())
+"""
+
+
+def test_a_plot_draws_the_same_in_every_process():
+    """The Day view's plot at its 80x24 size, drawn under different string-hash seeds: plotext
+    removes duplicates through a set whose order follows the seed, which moved a clock label by
+    a column from run to run; glidetask.tui.plot_ticks makes it keep the order given."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[2]
+    drawings = set()
+    for seed in ("1", "3", "6"):  # seeds that drew three different pictures before
+        env = {**os.environ, "PYTHONHASHSEED": seed, "PYTHONPATH": str(root)}
+        result = subprocess.run([sys.executable, "-c", DAY_PLOT_TEXT], env=env, capture_output=True, text=True,
+                                check=True, timeout=120)
+        drawings.add(result.stdout)
+    assert len(drawings) == 1 and "12:00" in drawings.pop()
+
+
+def test_duplicates_keep_their_first_order():
+    import plotext._utility as utility
+
+    assert utility.no_duplicates([(2.0, "b"), (1.0, "a"), (2.0, "b"), (0.5, "c")]) == [(2.0, "b"), (1.0, "a"), (0.5, "c")]

@@ -81,12 +81,7 @@ def test_view_at_120x40(snap_compare, acknowledged, index, view):
     assert snap_compare(demo_app(), terminal_size=(120, 40), run_before=showing(str(index)))
 
 
-# The Day view at 80x24 is left out for now: its plot's drawing differs by a column from run to
-# run (seen in about one run in three); its fit at 80x24 is asserted in test_fit.py.
-AT_80X24 = [(index, view) for index, view in enumerate(VIEWS, start=1) if view != "day"]
-
-
-@pytest.mark.parametrize("index,view", AT_80X24)
+@pytest.mark.parametrize("index,view", list(enumerate(VIEWS, start=1)))
 def test_view_at_80x24(snap_compare, acknowledged, index, view):
     """The classic terminal: every view readable, nothing cut mid-word."""
     assert snap_compare(demo_app(), terminal_size=(80, 24), run_before=showing(str(index)))

@@ -6,6 +6,7 @@ from __future__ import annotations
 import dataclasses
 
 import numpy as np
+import pytest
 from conftest import settle
 
 from glidetask import cautions
@@ -40,24 +41,36 @@ async def open_view(pilot, key: str) -> None:
 # ---------------------------------------------------------------- Compare
 
 
+def by_key(table, row: int, key: str) -> str:
+    value = table.get_cell(f"s{row}", key)
+    return (value.plain if hasattr(value, "plain") else str(value)).strip()
+
+
+def ballast_keys(table) -> list[int]:
+    """Indexes of the ballasts whose time columns are shown."""
+    return [int(str(c.key.value)[1:]) for c in table.ordered_columns if str(c.key.value).startswith("b")]
+
+
 async def test_compare_table_is_the_engines_sweep(synthetic, acknowledged):
     app = make_app(scenario=synthetic)
     async with app.run_test(size=(120, 40)) as pilot:
         await open_view(pilot, "6")
         sweep = ballast_sweep(synthetic)
         table = app.screen.query_one("#sweep-table")
+        shown = ballast_keys(table)
         assert table.row_count == 10 and table.ordered_columns[1].label.plain.strip() == "0"
-        assert len(table.columns) == 2 + len(sweep.ballast_kg)  # strength, every ballast, the best
+        # strength, the ballasts that fit (every one if they all do), the best in three thermal sizes
+        assert len(table.columns) == 1 + len(shown) + 3 and shown[0] == 0 and shown[-1] == len(sweep.ballast_kg) - 1
         for i, strength in enumerate(sweep.thermal_strength_ms):
             assert cell(table, i, 0) == f"{strength:.1f} m/s"
-            for j, ballast in enumerate(sweep.ballast_kg):
+            for j in shown:
                 time = sweep.task_time_s[i, j]
                 expected = display.duration(time) if np.isfinite(time) else display.DASH
-                if ballast == sweep.best_ballast_kg[i]:
+                if sweep.ballast_kg[j] == sweep.best_ballast_kg[i]:
                     expected = "*" + expected  # the best ballast per strength is marked
-                assert cell(table, i, j + 1) == expected
-            best = sweep.best_ballast_kg[i]
-            assert cell(table, i, len(sweep.ballast_kg) + 1) == (f"{best:.0f}" if np.isfinite(best) else display.DASH)
+                assert by_key(table, i, f"b{j}") == expected
+            best = sweep.best_ballast_kg[i]  # the day's own thermals: the typical column
+            assert by_key(table, i, "size-typical") == (f"{best:.0f} kg" if np.isfinite(best) else display.DASH)
         assert sweep_verdict(sweep, METRIC) in summary_text(app)
         assert cautions.COMPACT in str(app.screen.query_one("#caution-bar").render())
 
@@ -69,11 +82,52 @@ async def test_compare_table_fits_80_columns_and_keeps_full_tanks_and_the_best(s
         sweep = ballast_sweep(synthetic)
         table = app.screen.query_one("#sweep-table")
         assert table.virtual_size.width <= table.size.width  # no sideways scrolling
-        shown = [float(c.label.plain) for c in table.ordered_columns[1:-1]]
+        shown = ballast_keys(table)
         assert 2 < len(shown) < len(sweep.ballast_kg)
-        assert shown[0] == 0.0 and shown[-1] == round(float(sweep.ballast_kg[-1]))  # empty and full tanks
+        assert shown[0] == 0 and shown[-1] == len(sweep.ballast_kg) - 1  # empty and full tanks
         for i, best in enumerate(sweep.best_ballast_kg):
-            assert cell(table, i, len(shown) + 1) == (f"{best:.0f}" if np.isfinite(best) else display.DASH)
+            assert by_key(table, i, "size-typical") == (f"{best:.0f} kg" if np.isfinite(best) else display.DASH)
+
+
+async def test_compare_shows_the_best_ballast_in_narrow_typical_and_broad_thermals(acknowledged):
+    """Issue 12 item 2: the best ballast by thermal size side by side, as the engine finds it
+    for the demo triangle, with the three radii and where they come from, at 80x24 and 120x40."""
+    from glidetask import paths
+    from glidetask.engine.compare import sweep_by_thermal_size
+    from glidetask.engine.thermals import RADIUS_SPREAD
+    from glidetask.formats.strategy_report import thermal_size_cells
+    from glidetask.tui import recompute
+
+    scenario = recompute.load_task(paths.demo_task())
+    expected = sweep_by_thermal_size(scenario)
+    sizes = expected.by_thermal_size
+    assert [size.name for size in sizes] == ["narrow", "typical", "broad"]
+    for size_of_screen, units in (((80, 24), METRIC), ((120, 40), METRIC), ((120, 40), AVIATION)):
+        app = make_app(paths.demo_task(), units.name)
+        async with app.run_test(size=size_of_screen) as pilot:
+            await open_view(pilot, "6")
+            await settle(pilot)
+            view = app.screen
+            assert view.sized is not None
+            table = view.query_one("#sweep-table")
+            assert table.virtual_size.width <= table.size.width  # nothing off to the right
+            cells = table.size_cells()
+            for i in range(len(expected.thermal_strength_ms)):
+                for k, size in enumerate(sizes):
+                    best = size.best_ballast_kg[i]
+                    # the engine's answer, rounded to the kilogram as the CLI's sweep prints it
+                    assert cells[i][k] == (f"{best:.0f} kg" if np.isfinite(best) else display.DASH)
+            head, rows = thermal_size_cells(expected, units)
+            assert [[c if c != "-" else display.DASH for c in row[1:]] for row in rows] == cells
+            for k, size in enumerate(sizes):  # the radii in the chosen units under the names
+                label = table.ordered_columns[-3 + k].label.plain.split()
+                assert label == [size.name, *units.fmt_height(size.thermal_radius_m).split()]
+            source = str(view.query_one("#sweep-sizes-source").render())
+            assert "given in the task" in source and f"÷{RADIUS_SPREAD:g}" in source and "our choice" in source
+            assert f"typical {units.fmt_height(sizes[1].thermal_radius_m)}" in source
+    # Source: the thermal model's spread of sizes (engine/thermals.py, RADIUS_SPREAD = 1.5, our choice)
+    assert sizes[0].thermal_radius_m * RADIUS_SPREAD == pytest.approx(sizes[1].thermal_radius_m)
+    assert sizes[2].thermal_radius_m == pytest.approx(sizes[1].thermal_radius_m * RADIUS_SPREAD)
 
 
 async def test_compare_follows_the_units_switch(synthetic, acknowledged):

@@ -1,4 +1,4 @@
-"""Small questions: discard unsaved changes? quit?"""
+"""Small questions: discard unsaved changes? replace an existing file? quit?"""
 
 from __future__ import annotations
 
@@ -9,12 +9,13 @@ from textual.widgets import Button, Static
 
 
 class ConfirmModal(ModalScreen[bool]):
-    """A yes/no question; escape answers no."""
+    """A yes/no question; escape answers no, and so does enter at first (the focus starts on
+    the "no" button: a stray key never confirms)."""
 
     BINDINGS = [("escape", "answer(False)", "Cancel")]
 
-    def __init__(self, question: str, *, yes: str = "Yes", no: str = "No"):
-        super().__init__(classes="question-modal")
+    def __init__(self, question: str, *, yes: str = "Yes", no: str = "No", id: str | None = "confirm-modal"):
+        super().__init__(classes="question-modal", id=id)
         self.question, self.yes, self.no = question, yes, no
 
     def compose(self) -> ComposeResult:

@@ -16,7 +16,8 @@ from glidetask.tui.screens.path_modal import PathSuggester
 
 
 class ExportModal(ModalScreen):
-    """Format (GPX, briefing, JSON), a path; enter writes the file and closes."""
+    """Format (GPX, briefing, JSON), a path; enter writes the file (asking first before it
+    replaces an existing one) and closes."""
 
     BINDINGS = [("escape", "cancel", "Cancel")]
 
@@ -49,23 +50,45 @@ class ExportModal(ModalScreen):
 
     def on_option_list_option_selected(self, event: OptionList.OptionSelected) -> None:
         event.stop()
-        self._write(self.query_one("#export-path", Input).value)
+        self._write(self.query_one("#export-path", Input).value.strip())
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         event.stop()
-        self._write(event.value)
+        self._write(event.value.strip())
 
-    def _write(self, path_text: str) -> None:
+    def _write(self, path_text: str, replace: bool = False) -> None:
+        import os
+
         from glidetask.tui.exporting import export_plan
 
         app = self.app
+        error_line = self.query_one("#export-error", Static)
         try:
-            target = export_plan(path_text.strip(), app.plan.plan, app.units.name)
+            target = export_plan(path_text, app.plan.plan, app.units.name, replace=replace)
+        except FileExistsError:
+            # as ``glidetask export`` without --force: an existing file is replaced only when the pilot says so
+            from glidetask.tui.screens.confirm_modal import ConfirmModal
+
+            target = Path(path_text).expanduser()
+            read_only = " It is read-only." if not os.access(target, os.W_OK) else ""
+            error_line.update("")
+            self.app.push_screen(
+                ConfirmModal(f"{target} exists.{read_only} Replace it with the {target.suffix} export?",
+                             yes="Replace", no="Keep it"),
+                lambda yes: self._replace_answered(path_text, yes))
+            return
         except Exception as error:  # a failed export is a message in the dialog, never a crash
-            self.query_one("#export-error", Static).update(f"✗ not written: {error}")
+            error_line.update(f"✗ not written: {error}")
             return
         self.post_message(messages.Notice(f"exported {target}"))
         self.dismiss(str(target))
+
+    def _replace_answered(self, path_text: str, yes: bool | None) -> None:
+        if yes:
+            self._write(path_text, replace=True)
+        else:
+            self.query_one("#export-error", Static).update(f"not written: {path_text} kept as it is; choose another name")
+            self.query_one("#export-path", Input).focus()
 
     def action_cancel(self) -> None:
         self.dismiss(None)

@@ -4,6 +4,11 @@ the seed or the ballast choices.
 
 Finishing odds as bars, task-time percentiles among the finishers, land-outs by leg and
 why, and the spread of days assumed (planning assumptions of our own, not a forecast).
+
+The progress line is painted before the worker starts. The worker flies the days for the
+first ballast choice, whose bar and percentiles are drawn at once, then for the others
+(the same days for each, so the figures are those of one simulation of every choice);
+the land-outs and the plot follow with the last.
 """
 
 from __future__ import annotations
@@ -78,26 +83,29 @@ class OddsView(ViewScreen):
     def __init__(self):
         super().__init__()
         self.runs, self.seed, self.ballasts = DEFAULT_RUNS, 1, None
-        self.odds = None
+        self.odds = None  # the engine's Odds for the current inputs, every choice flown
+        self.partial = None  # the choices flown so far while the rest are being flown
         self._computed_for = None
         self._token = 0
 
     def compose_body(self) -> ComposeResult:
         with Vertical(id="odds-left"):
             yield ProgressNotice(WAITING, id="odds-waiting")
-            with Vertical(id="odds-inputs", classes="panel"):
-                for field_id, label, unit in FIELDS:
-                    yield FormField(field_id, label, unit, placeholder="empty, half, full" if "ballast" in field_id
-                                    else "")
+            yield Vertical(id="odds-inputs", classes="panel")  # its fields come with the figures
             yield ProbabilityBars(id="odds-bars", classes="panel")
             yield Static(id="odds-assumptions", classes="panel")
-        # the tables and the plot (costly to style and draw) are mounted just after the first
-        # frame, so the key shows the progress line at once
+        # the inputs, the tables and the plot (costly to style and draw) are mounted just after
+        # the first frame, so the key shows the progress line at once
         yield Vertical(id="odds-right")
 
     _figures_mounted = False
 
     async def _mount_figures(self) -> None:
+        await self.query_one("#odds-inputs").mount_all(
+            [FormField(field_id, label, unit, placeholder="empty, half, full" if "ballast" in field_id else "")
+             for field_id, label, unit in FIELDS])
+        self._field("odds-runs").show(str(self.runs), force=True)
+        self._field("odds-seed").show(str(self.seed), force=True)
         parts = [OddsTable(id="odds-table", classes="panel"), LandoutsTable(id="landouts-table", classes="panel"),
                  FinishPlot(id="finish-plot", classes="panel")]
         await self.query_one("#odds-right").mount_all(parts)
@@ -111,20 +119,28 @@ class OddsView(ViewScreen):
         self.query_one("#odds-inputs").border_title = "Simulation"
         self.query_one("#odds-bars").border_title = "Odds of finishing"
         self.query_one("#odds-assumptions").border_title = "The spread of days assumed"
-        self._field("odds-runs").show(str(self.runs), force=True)
-        self._field("odds-seed").show(str(self.seed), force=True)
         self._show_parts(False)
         self.call_after_refresh(self._mount_figures)
 
-    def _show_parts(self, ready: bool) -> None:
-        self.query_one("#odds-waiting").display = not ready
+    def _show_parts(self, ready: bool, partial: bool = False) -> None:
+        """``ready``: figures to show; ``partial``: only some ballast choices flown yet."""
+        self.query_one("#odds-waiting").display = not ready or partial
         for widget_id in ("#odds-bars", "#odds-assumptions", "#odds-right"):
             self.query_one(widget_id).display = ready
+        if self._figures_mounted:
+            for widget_id in ("#landouts-table", "#finish-plot"):
+                self.query_one(widget_id).display = ready and not partial
 
     # ------------------------------------------------------------ inputs
 
     def _field(self, field_id: str) -> FormField:
         return self.query_one(f"#{field_id}").parent
+
+    def _default_choices(self) -> int:
+        from glidetask.engine.simulate import default_ballasts_kg
+
+        scenario = self.app.scenario
+        return len(default_ballasts_kg(scenario)) if scenario is not None else 1
 
     def _most_kg(self) -> float:
         from glidetask.engine.compare import usable_ballast_kg
@@ -180,29 +196,66 @@ class OddsView(ViewScreen):
         else:
             self._show_parts(False)
         notice = self.query_one(ProgressNotice)
-        notice.say(f"Flying {name} over {self.runs} simulated days for each ballast choice …", working=True)
+        notice.say(f"Flying {name} over {self.runs} simulated days for each ballast choice …", working=True,
+                   steps=len(self.ballasts) if self.ballasts is not None else self._default_choices())
         notice.display = True
-        plan = outcome.plan
-        self.simulate_in_background(outcome.scenario, (plan.path, getattr(plan, "requirement", None)), self.runs,
-                                    self.seed, self.ballasts, self._token)
+        self.partial = None
+        # the worker starts once the progress line is on screen: the engine's numpy would
+        # otherwise hold the interpreter while the first frame is drawn
+        self.call_after_refresh(self._start_simulation, outcome, self._token)
+
+    def _start_simulation(self, outcome, token: int) -> None:
+        if token == self._token:
+            plan = outcome.plan
+            self.simulate_in_background(outcome.scenario, (plan.path, getattr(plan, "requirement", None)), self.runs,
+                                        self.seed, self.ballasts, token)
 
     @work(thread=True, exclusive=True, group="odds")
     def simulate_in_background(self, scenario, route, runs: int, seed: int, ballasts, token: int) -> None:
-        from glidetask.engine.simulate import simulate_days
+        import dataclasses
 
+        from textual.worker import get_current_worker
+
+        from glidetask.engine.simulate import default_ballasts_kg, simulate_days
+
+        worker = get_current_worker()
         path, requirement = route
         try:
-            odds = simulate_days(scenario, runs=runs, seed=seed, ballasts_kg=ballasts, path=path,
-                                 requirement=requirement)
+            choices = tuple(default_ballasts_kg(scenario) if ballasts is None else ballasts)
+            # the first choice alone, drawn as soon as it is flown, then the others together (each
+            # call of the engine has a cost of its own: one per choice made the whole 15 % slower);
+            # the same seed flies the same days for every choice, so the parts are one simulation
+            flown = []
+            for group in (choices[:1], choices[1:]):
+                if not group:
+                    continue
+                part = simulate_days(scenario, runs=runs, seed=seed, ballasts_kg=group, path=path,
+                                     requirement=requirement)
+                flown += part.choices
+                odds = dataclasses.replace(part, choices=tuple(flown))
+                if len(flown) < len(choices):
+                    self.app.call_from_thread(self._flown_so_far, token, odds, choices[len(flown):])
+                    if worker.is_cancelled:
+                        return
         except Exception as error:  # shown, never a crash; the last result stays
             self.app.call_from_thread(self._failed, token, f"{type(error).__name__}: {error}")
             return
         self.app.call_from_thread(self._simulated, token, odds)
 
+    def _flown_so_far(self, token: int, partial, pending: tuple[float, ...]) -> None:
+        if token != self._token or (self.odds is not None and self.odds.task_name == partial.task_name):
+            return  # superseded; or the previous figures stay, dimmed, until every choice is flown
+        self.partial = partial
+        done, total = len(partial.choices), len(partial.choices) + len(pending)
+        self.query_one(ProgressNotice).say(
+            f"Flying {partial.task_name} over {partial.runs} simulated days: {done} of {total} ballast choices "
+            "flown …", working=True, done=done, steps=total)
+        self._draw_partial(pending)
+
     def _simulated(self, token: int, odds) -> None:
         if token != self._token:
             return
-        self.odds = odds
+        self.odds, self.partial = odds, None
         self.remove_class("-stale")
         self.query_one(ProgressNotice).say(WAITING, working=False)
         self._draw()
@@ -218,12 +271,21 @@ class OddsView(ViewScreen):
     def show_units(self) -> None:
         self._draw()
 
+    def _draw_partial(self, pending: tuple[float, ...]) -> None:
+        odds = self.partial
+        if not self._figures_mounted or odds is None or self._computed_for is None \
+                or odds.task_name != self._computed_for.scenario.task.name:
+            return
+        self._show_parts(True, partial=True)
+        self.query_one("#odds-bars").border_subtitle = f"{odds.runs} days · seed {odds.seed}"
+        self.query_one(ProbabilityBars).show(odds, pending)
+        self.query_one(OddsTable).show(odds, pending)
+        self._draw_assumptions(odds)
+
     def _draw(self) -> None:
         odds = self.odds
         if not self._figures_mounted or odds is None or self._computed_for is None or odds.task_name != self._computed_for.scenario.task.name:
             return  # never another task's figures
-        from glidetask.formats.strategy_report import assumption_text
-
         self._show_parts(True)
         self._field("odds-ballasts").show(", ".join(f"{c.ballast_kg:g}" for c in odds.choices))
         self.query_one("#odds-bars").border_subtitle = f"{odds.runs} days · seed {odds.seed}"
@@ -233,6 +295,11 @@ class OddsView(ViewScreen):
         codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
         self.query_one(LandoutsTable).show(odds, codes)
         self.query_one(FinishPlot).show(odds)
+        self._draw_assumptions(odds)
+
+    def _draw_assumptions(self, odds) -> None:
+        from glidetask.formats.strategy_report import assumption_text
+
         text = Text(assumption_text(odds, self.app.units) + ".")
         text.append("\nPlanning assumptions of glidetask, not a forecast. The same days for each ballast.",
                     style="italic")

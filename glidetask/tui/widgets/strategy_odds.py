@@ -1,10 +1,16 @@
 """The simulated days shown: finishing odds as bars, task-time percentiles, land-outs by
-leg and why (engine/simulate.py)."""
+leg and why (engine/simulate.py).
+
+Each widget holds the engine's ``Odds`` in a reactive attribute set by the Odds view and
+draws it in a ``watch_`` method. The bars and the percentiles also draw a partial result
+(the ballast choices flown so far) with the choices still to come marked as computing.
+"""
 
 from __future__ import annotations
 
 import numpy as np
 from rich.text import Text
+from textual.reactive import var
 from textual.widgets import DataTable, Static
 from textual_plotext import PlotextPlot
 
@@ -14,6 +20,7 @@ from glidetask.tui.plot_ticks import duration_ticks
 
 BAR_WIDTH = 24
 PLOT_COLOURS = ("cyan", "green", "orange", "magenta", "red")
+COMPUTING = "…"
 
 
 def odds_style(p: float) -> str:
@@ -29,14 +36,20 @@ class ProbabilityBars(Static):
     ProbabilityBars { height: auto; }
     """
 
-    odds = None
+    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
+    pending: var[tuple[float, ...]] = var(())  # ballast choices [kg] still being flown
+
+    def show(self, odds, pending: tuple[float, ...] = ()) -> None:
+        """Set what to show and draw it once."""
+        self.set_reactive(ProbabilityBars.pending, tuple(pending))
+        self.odds = odds
 
     def on_resize(self) -> None:
-        if self.odds is not None:
-            self.show(self.odds)
+        self.watch_odds(self.odds)
 
-    def show(self, odds) -> None:
-        self.odds = odds
+    def watch_odds(self, odds) -> None:
+        if odds is None:
+            return
         # "1234 kg " bar " 100.0 % ± 0.1": the bar takes what the figures leave
         width = self.content_size.width
         bar = BAR_WIDTH if not width else max(6, min(BAR_WIDTH, width - 22))
@@ -49,6 +62,9 @@ class ProbabilityBars(Static):
             text.append(probability_bar(p, bar), style=odds_style(p))
             text.append(f" {100 * p:5.1f} %", style="bold")
             text.append(f" ± {100 * choice.finish_probability_se:.1f}", style="dim")
+        for ballast in self.pending:
+            text.append(f"\n{ballast:>4.0f} kg ")
+            text.append(f"{COMPUTING} flying the days", style="dim")
         self.update(text)
 
 
@@ -60,13 +76,25 @@ class OddsTable(DataTable):
     OddsTable { height: auto; }
     """
 
+    COLUMNS = (("ballast", "Water kg"), ("finish", "Finish %"), ("se", "± %"), ("p10", "10 %"),
+               ("p50", "50 %"), ("p90", "90 %"), ("forecast", "Forecast"))
+
+    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
+    pending: var[tuple[float, ...]] = var(())  # ballast choices [kg] still being flown
+
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
-    def show(self, odds) -> None:
+    def show(self, odds, pending: tuple[float, ...] = ()) -> None:
+        """Set what to show and draw it once."""
+        self.set_reactive(OddsTable.pending, tuple(pending))
+        self.odds = odds
+
+    def watch_odds(self, odds) -> None:
+        if odds is None or not self.is_mounted:
+            return
         self.clear(columns=True)
-        for key, label in (("ballast", "Water kg"), ("finish", "Finish %"), ("se", "± %"), ("p10", "10 %"),
-                           ("p50", "50 %"), ("p90", "90 %"), ("forecast", "Forecast")):
+        for key, label in self.COLUMNS:
             self.add_column(label, key=key)
         for index, c in enumerate(odds.choices):
             p10, p50, p90 = (display.duration(t) for t in c.task_time_s)
@@ -74,6 +102,9 @@ class OddsTable(DataTable):
             cells = (f"{c.ballast_kg:.0f}", f"{100 * c.finish_probability:.1f}", f"{100 * c.finish_probability_se:.1f}",
                      p10, p50, p90, forecast)
             self.add_row(*(Text(cell, justify="right") for cell in cells), key=f"choice-{index}")
+        for index, ballast in enumerate(self.pending, start=len(odds.choices)):
+            self.add_row(Text(f"{ballast:.0f}", justify="right"),
+                         *(Text(COMPUTING, justify="right", style="dim") for _ in self.COLUMNS[1:]), key=f"choice-{index}")
 
 
 class LandoutsTable(DataTable):
@@ -83,12 +114,21 @@ class LandoutsTable(DataTable):
     LandoutsTable { height: auto; }
     """
 
+    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
+    codes: var[dict] = var(dict)  # turnpoint names -> short codes for the Leg column
+
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
     def show(self, odds, codes: dict[str, str] | None = None) -> None:
-        """Fill the table; ``codes`` maps turnpoint names to short codes for the Leg column."""
-        codes = codes or {}
+        """Set what to show and draw it once; ``codes`` maps turnpoint names to short codes."""
+        self.set_reactive(LandoutsTable.codes, dict(codes or {}))
+        self.odds = odds
+
+    def watch_odds(self, odds) -> None:
+        if odds is None or not self.is_mounted:
+            return
+        codes = self.codes
         self.clear(columns=True)
         self.add_column("Leg", key="leg")
         for index, c in enumerate(odds.choices):
@@ -107,7 +147,15 @@ class FinishPlot(PlotextPlot):
     """Share of the simulated days on which the task is finished within a given task time,
     one curve per ballast choice (it levels off at the finishing odds)."""
 
+    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
+
     def show(self, odds) -> None:
+        """Set what to show and draw it once."""
+        self.odds = odds
+
+    def watch_odds(self, odds) -> None:
+        if odds is None:
+            return
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()

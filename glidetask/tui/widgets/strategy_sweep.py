@@ -1,5 +1,6 @@
-"""The ballast sweep drawn: a heat-map table of task time by strength and ballast, and a
-plot of task time against ballast for a few strengths (engine/compare.py)."""
+"""The ballast sweep drawn: a heat-map table of task time by strength and ballast with the
+best ballast in narrow, typical and broad thermals beside it, and a plot of task time
+against ballast for a few strengths (engine/compare.py)."""
 
 from __future__ import annotations
 
@@ -7,12 +8,13 @@ import math
 
 import numpy as np
 from rich.text import Text
+from textual.reactive import var
 from textual.widgets import DataTable
 from textual_plotext import PlotextPlot
 
 from glidetask.tui import display
 from glidetask.tui.plot_ticks import duration_ticks, nice_ticks, number_labels
-from glidetask.units import UnitSystem
+from glidetask.units import METRIC, UnitSystem
 
 # Cell backgrounds from the row's fastest (green) through amber to red at SLOWEST_SHARE slower.
 HEAT = ((0x2e, 0x5e, 0x3a), (0x6e, 0x5e, 0x22), (0x74, 0x2c, 0x28))
@@ -38,14 +40,18 @@ def strength_label(units: UnitSystem, strength_ms: float) -> str:
 
 CELL = 5  # characters of a time column
 LABEL = 8  # the strength column
+SIZE_CELL = 8  # a best-ballast column of the thermal sizes (" typical", "  170 kg")
+SIZES = 3  # narrow, typical, broad
+WAITING_CELL = "…"  # a best ballast still being computed
 
 
 def shown_columns(count: int, width: int | None) -> list[int]:
-    """Which of ``count`` ballast columns fit in ``width`` characters (every one if None):
-    evenly every second, third, ... and always the last (full tanks)."""
+    """Which of ``count`` ballast columns fit in ``width`` characters (every one if None)
+    beside the strength and the three best-ballast columns: evenly every second, third, ...
+    and always the last (full tanks)."""
     if width is None:
         return list(range(count))
-    room = max((width - LABEL - 2 * CELL) // CELL, 2)
+    room = max((width - LABEL - SIZES * SIZE_CELL - 1) // CELL, 2)
     stride = max(1, -(-count // room))
     picked = list(range(0, count, stride))
     if picked[-1] != count - 1:
@@ -53,35 +59,85 @@ def shown_columns(count: int, width: int | None) -> list[int]:
     return picked
 
 
-class SweepTable(DataTable):
-    """Task time (H:MM) by thermal strength (rows) and water ballast (columns, kg); each
-    row coloured from its fastest time, the best ballast marked ``*`` on green and named
-    in the last column (on a narrow screen only every second or third ballast is shown)."""
+def size_heads(radii_m: dict[str, float], units: UnitSystem) -> list[tuple[str, str]]:
+    """(name, radius) header lines of the best-ballast columns, narrow first."""
+    return [(name, units.fmt_height(radius)) for name, radius in radii_m.items()]
 
-    DEFAULT_CSS = """
-    SweepTable { height: auto; max-height: 14; }
+
+class SweepTable(DataTable):
+    """Task time (H:MM) by thermal strength (rows) and water ballast (columns, kg) in the
+    day's thermals; each row coloured from its fastest time, the best ballast marked ``*``
+    on green; then the best ballast in narrow, typical and broad thermals side by side
+    (:func:`glidetask.formats.strategy_report.thermal_size_cells`; on a narrow screen only
+    every second or third ballast of the times is shown).
+
+    The view sets what to show; :meth:`watch_sweep` and :meth:`watch_sizes` draw it.
     """
 
-    def __init__(self, **kwargs):
-        super().__init__(cursor_type="row", cell_padding=0, zebra_stripes=False, **kwargs)
+    DEFAULT_CSS = """
+    SweepTable { height: auto; max-height: 15; }
+    """
 
-    def show(self, sweep, units: UnitSystem, width: int | None = None) -> None:
-        """Fill the table; ``width``: the characters available (None: every column)."""
+    sweep = var(None, always_update=True)  # the engine's BallastSweep of the day's thermals (None: nothing yet)
+    units: var[UnitSystem] = var(METRIC)
+    width_available: var[int | None] = var(None)  # characters for the table (None: every column)
+    radii_m: var[dict] = var(dict)  # thermal size -> radius [m] (engine.compare.thermal_size_radii_m)
+    sizes = var(None, always_update=True)  # the sweep with by_thermal_size set (None: still computing)
+
+    def __init__(self, **kwargs):
+        super().__init__(cursor_type="row", cell_padding=0, zebra_stripes=False, header_height=2, **kwargs)
+
+    def show(self, sweep, units: UnitSystem, width: int | None = None, radii_m: dict | None = None,
+             sizes=None) -> None:
+        """Set what to show and draw it once; ``width``: the characters available (None:
+        every column); ``sizes``: the sweep with the thermal sizes once they are computed."""
+        self.set_reactive(SweepTable.units, units)
+        self.set_reactive(SweepTable.width_available, width)
+        self.set_reactive(SweepTable.radii_m, dict(radii_m or {}))
+        self.set_reactive(SweepTable.sizes, sizes)
+        self.sweep = sweep
+
+    def watch_sweep(self, _sweep) -> None:
+        self._draw()
+
+    def watch_sizes(self, _sizes) -> None:
+        self._draw()
+
+    def size_cells(self) -> list[list[str]]:
+        """The best-ballast cells by thermal size as shown, one list per strength (for tests)."""
+        keys = [f"size-{name}" for name in self.radii_m]
+        return [[self._plain(self.get_cell(f"s{i}", key)) for key in keys] for i in range(self.row_count)]
+
+    @staticmethod
+    def _plain(value) -> str:
+        return (value.plain if isinstance(value, Text) else str(value)).strip()
+
+    def _draw(self) -> None:
+        sweep, units = self.sweep, self.units
+        if not self.is_mounted or sweep is None:
+            return
+        from glidetask.formats.strategy_report import DASH as REPORT_DASH, thermal_size_cells
+
         self.clear(columns=True)
-        columns = shown_columns(len(sweep.ballast_kg), width)
-        self.add_column(Text("thermal ", justify="left"), key="strength")
+        columns = shown_columns(len(sweep.ballast_kg), self.width_available)
+        self.add_column(Text("thermal\n", justify="left"), key="strength")
         for j in columns:
-            self.add_column(Text(f"{sweep.ballast_kg[j]:.0f}".rjust(CELL), justify="right"), key=f"b{j}")
-        self.add_column(Text(" best".rjust(CELL + 1), justify="right"), key="best")
+            self.add_column(Text(f"\n{sweep.ballast_kg[j]:.0f}".rjust(CELL), justify="right"), key=f"b{j}")
+        for name, radius in size_heads(self.radii_m, units):
+            self.add_column(Text(f"{name.rjust(SIZE_CELL)}\n{radius.rjust(SIZE_CELL)}", justify="right"),
+                            key=f"size-{name}")
+        size_rows = thermal_size_cells(self.sizes, units)[1] if self.sizes is not None else []
         for i, strength in enumerate(sweep.thermal_strength_ms):
             row = sweep.task_time_s[i]
             fastest = np.nanmin(row) if np.isfinite(row).any() else math.nan
             cells = [Text(strength_label(units, strength) + " ")]
             for j in columns:
                 cells.append(self._cell(row[j], fastest, sweep.ballast_kg[j] == sweep.best_ballast_kg[i]))
-            best = sweep.best_ballast_kg[i]
-            cells.append(Text((f"{best:.0f}" if math.isfinite(best) else display.DASH).rjust(CELL + 1),
-                              justify="right", style="bold"))
+            best = size_rows[i][1:] if size_rows else [WAITING_CELL] * len(self.radii_m)
+            for name, text in zip(self.radii_m, best):
+                text = display.DASH if text == REPORT_DASH else text  # not finished: the UI's dash
+                cells.append(Text(text.rjust(SIZE_CELL), justify="right",
+                                  style="bold" if name == "typical" else "", no_wrap=True))
             self.add_row(*cells, key=f"s{i}")
 
     @staticmethod
@@ -106,9 +162,21 @@ def plotted_strengths(sweep, count: int = PLOT_STRENGTHS) -> list[int]:
 
 
 class SweepPlot(PlotextPlot):
-    """Task time [h] against ballast [kg] for a few thermal strengths; the best marked."""
+    """Task time [h] against ballast [kg] for a few thermal strengths; the best marked.
+    The view sets what to show; :meth:`watch_sweep` draws it."""
+
+    sweep = var(None, always_update=True)  # the engine's BallastSweep (None: nothing yet)
+    units: var[UnitSystem] = var(METRIC)
 
     def show(self, sweep, units: UnitSystem) -> None:
+        """Set what to show and draw it once."""
+        self.set_reactive(SweepPlot.units, units)
+        self.sweep = sweep
+
+    def watch_sweep(self, sweep) -> None:
+        if sweep is None:
+            return
+        units = self.units
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()
