@@ -51,7 +51,21 @@ def heights_table(outcome, units, codes: dict[str, str] | None = None) -> Table:
     for i, name in enumerate(names):
         table.add_row(name, display.clock(clocks[i]), display.distance(units, to_go[i]), need(planned[i]),
                       *(need(card[j, i]) for j in range(len(settings))))
+    table.add_row(*speeds_row(plan, settings, units))
     return table
+
+
+def speeds_row(plan, settings, units) -> list[str]:
+    """The speed to fly on the last leg as indicated: the plan's own final glide, then each
+    setting from the band top (the briefing's last row, ``glidetask.engine.final_glide_speeds``)."""
+    import math
+
+    from glidetask.engine.final_glide_speeds import final_glide_speeds, last_leg_speeds_to_fly
+
+    own = [leg for leg in final_glide_speeds(plan) if leg.leg == len(plan.legs) - 1]
+    speeds = [own[0].indicated_airspeed_ms if own else math.nan, *last_leg_speeds_to_fly(plan, settings)]
+    return [f"Fly ({units.speed_label} IAS)", "", "",
+            *(f"{units.speed(v):.0f}" if math.isfinite(v) else display.DASH for v in speeds)]
 
 
 def what_if_table(sensitivity, units) -> Table:
@@ -100,7 +114,9 @@ class HeightsModal(ModalScreen[None]):
         margin = units.fmt_height(self.outcome.scenario.safety.arrival_margin_m)
         note = Text(f"Final glide from each turnpoint over the rest of the task in the day's wind, arriving {margin} "
                     f"over the finish; {units.height_label} MSL. Plan: at the plan's final-glide setting there; "
-                    f"MC columns: at that MacCready setting ({units.vertical_label}). At: clock time there.",
+                    f"MC columns: at that MacCready setting ({units.vertical_label}). At: clock time there. Fly: the "
+                    f"speed to fly on the last leg, Plan as the plan's final glide flies it, the MC columns from "
+                    f"the band top.",
                     style="dim")
         from rich.console import Group
 
