@@ -29,7 +29,7 @@ class FieldSpec:
 
     section: str  # "glider", "day" or "safety"
     key: str  # the task-file key (contract 2.3)
-    kind: str  # mass | percent | height | vertical | clock | wind | celsius
+    kind: str  # mass | percent | height | vertical | clock | wind | celsius | seconds | ratio
     minimum: float | None = None  # SI
     maximum: float | None = None  # SI
     optional: bool = False  # empty text means "not set" (None)
@@ -59,6 +59,11 @@ FIELDS: dict[str, FieldSpec] = {
         FieldSpec("day", "glide_airmass_ms", "vertical", -5.0, 5.0, label="Air in glides (+up)"),
         FieldSpec("day", "isa_deviation_c", "celsius", -40.0, 40.0, label="ISA deviation"),
         FieldSpec("day", "mc_ms", "vertical", 0.0, 10.0, optional=True, label="MacCready (fixed)"),
+        # the practical assumptions and the thermals (bounds as the task file's reader)
+        FieldSpec("day", "thermal_radius_m", "height", 10.0, 5000.0, optional=True, label="Thermal radius"),
+        FieldSpec("day", "centring_s", "seconds", 0.0, 600.0, label="Centring a climb"),
+        FieldSpec("day", "detour_percent", "percent", 0.0, 50.0, label="Detour"),
+        FieldSpec("day", "stall_margin", "ratio", 1.05, 1.5, label="Circling x stall"),
         FieldSpec("safety", "arrival_margin_m", "height", 0.0, 2000.0, label="Arrival margin"),
         FieldSpec("safety", "terrain_clearance_m", "height", 0.0, 2000.0, label="Terrain clearance"),
         FieldSpec("safety", "final_glide_mc_ms", "vertical", 0.0, 10.0, optional=True, label="Final-glide MC"),
@@ -117,6 +122,10 @@ def _shown(spec: FieldSpec, si: float, units: UnitSystem) -> str:
         return f"{si:g} %"
     if spec.kind == "celsius":
         return f"{si:g} °C"
+    if spec.kind == "seconds":
+        return f"{si:g} s"
+    if spec.kind == "ratio":
+        return f"{si:g} x"
     return f"{si:g} kg"
 
 
@@ -185,13 +194,16 @@ def field_text(scenario: Scenario, field_id: str, units: UnitSystem) -> str:
         return display.number(units.height(value), 0)
     if spec.kind == "vertical":
         return display.number(units.vertical(value), 1)
+    if spec.kind == "ratio":
+        return display.number(value, 2)
     return display.number(value, 1)
 
 
 def unit_of(spec: FieldSpec, units: UnitSystem) -> str:
     """The unit a field is typed in (empty for clock times)."""
     return {"mass": "kg", "percent": "%", "celsius": "°C", "height": units.height_label,
-            "vertical": units.vertical_label, "wind": units.speed_label}.get(spec.kind, "")
+            "vertical": units.vertical_label, "wind": units.speed_label, "seconds": "s",
+            "ratio": "x"}.get(spec.kind, "")
 
 
 def field_shown(scenario: Scenario, field_id: str, units: UnitSystem) -> str:

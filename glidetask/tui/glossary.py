@@ -27,6 +27,11 @@ GLOSSARY: tuple[tuple[str, str], ...] = (
     ("Ballast", "water carried in the wings to raise the wing loading: faster glides, slower climbs"),
     ("Bugs", "insects on the wing: extra sink, in per cent"),
     ("MSL, AGL", "height above mean sea level; above the ground below"),
+    ("Thermal radius", "the size of the thermal's core in the circling model (empty: from the day's layer, Allen 2006)"),
+    ("Centring a climb", "time lost finding the core at each climb, added to the climb's time (common practice)"),
+    ("Detour", "how much longer than the planned path the flight is flown, in per cent (common practice)"),
+    ("Circling x stall", "circling speed as a multiple of the stall speed at that bank and mass (common practice)"),
+    ("Netto", "the air's own rise or sink: on the circle, what the glider climbs plus its sink in the turn"),
 )
 
 

@@ -26,6 +26,12 @@ PANELS = (
         ("day-start_time", "clock", "HH:MM"),
         ("day-lift_ends", "clock", "HH:MM"),
     )),
+    ("day-practice", "Thermals and practice", (
+        ("day-thermal_radius_m", "height", "from the day"),
+        ("day-centring_s", "seconds", "30"),
+        ("day-detour_percent", "percent", "5"),
+        ("day-stall_margin", "ratio", "1.15"),
+    )),
     ("day-margins", "MacCready and margins", (
         ("day-mc_ms", "vertical", "= climb"),
         ("safety-arrival_margin_m", "height", ""),
@@ -37,7 +43,14 @@ PANELS = (
 
 def unit_label(kind: str, units) -> str:
     return {"speed": units.speed_label, "height": units.height_label, "vertical": units.vertical_label,
-            "celsius": "°C", "clock": "local"}.get(kind, "")
+            "celsius": "°C", "clock": "local", "seconds": "s", "percent": "%", "ratio": "x"}.get(kind, "")
+
+
+def practice_note(day, units) -> str:
+    """Where the thermal radius comes from and that the practical figures are common practice,
+    for the panel's foot: every free assumption named with its source."""
+    radius = units.fmt_height(day.effective_thermal_radius_m)
+    return f"Radius {radius}: {day.thermal_radius_source}. Empty: from the day. The rest: common practice."
 
 
 class DayView(ViewScreen):
@@ -52,6 +65,8 @@ class DayView(ViewScreen):
                     for field_id, kind, placeholder in fields:
                         yield FormField(field_id, edits.FIELDS[field_id].label, unit_label(kind, self.app.units),
                                         placeholder=placeholder)
+                    if panel_id == "day-practice":
+                        yield Static(id="day-practice-note", classes="dim", markup=False)
             yield Static(id="day-sounding", classes="panel day-panel", markup=False)
         with Vertical(id="day-right"):
             yield ProfileEditor(id="profile-editor", classes="panel")
@@ -70,6 +85,7 @@ class DayView(ViewScreen):
             for field_id, kind, _ in fields:
                 self.query_one(f"#{field_id}").parent.show(edits.field_text(scenario, field_id, units),
                                                            unit_label(kind, units), force=force)
+        self.query_one("#day-practice-note", Static).update(practice_note(scenario.day, units))
         editor = self.query_one(ProfileEditor)
         editor.units = units
         editor.day = scenario.day
