@@ -343,7 +343,7 @@ def _volume_name(name: str, airspace_class: str | None) -> str:
 
 
 def airspace_conflict(c, units: "UnitSystem", what: str = "Leg") -> str:
-    """One conflict in words: a :class:`glidetask.engine.airspace.Conflict`.
+    """One conflict in words: a :class:`glidetask.engine.airspace_conflicts.Conflict`.
 
     ``what`` names the stretch's part of the flight: ``"Leg"`` (followed by the leg's
     number) for a plan, or a phrase such as ``"The glide"`` for a single glide.
@@ -359,14 +359,14 @@ def airspace_conflict(c, units: "UnitSystem", what: str = "Leg") -> str:
 
 
 def airspace_cap(cap, units: "UnitSystem") -> str:
-    """A lowered band top in words: a :class:`glidetask.engine.airspace.Cap`."""
+    """A lowered band top in words: a :class:`glidetask.engine.airspace_conflicts.Cap`."""
     return (f"{cap.name} caps the band top at {units.fmt_height(cap.top_m)} from {units.fmt_distance(cap.from_m)} "
             f"to {units.fmt_distance(cap.to_m)}: climb no higher there.")
 
 
 def airspace_cautions(check, units: "UnitSystem", what: str = "Leg", flight_levels: bool = False,
                       ground_point: str = "the nearest turnpoint") -> list[str]:
-    """The airspace cautions of one plan or glide: a :class:`glidetask.engine.airspace.AirspaceCheck`.
+    """The airspace cautions of one plan or glide: a :class:`glidetask.engine.airspace_conflicts.AirspaceCheck`.
 
     ``flight_levels``: some volume met is limited by a flight level (add the pressure caution).
     ``ground_point`` names what stood in for the terrain under AGL limits.

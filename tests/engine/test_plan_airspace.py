@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from glidetask.engine.airspace import path_stretches
+from glidetask.engine.airspace_crossings import path_stretches
 from glidetask.engine.plan import plan
 from glidetask.formats.task_file import load_scenario
 
