@@ -440,7 +440,7 @@ def overridden_text(overridden) -> str | None:
 
 def day_source_cautions(source, units: "UnitSystem", start_time_s: float | None = None) -> list[str]:
     """The cautions of a plan whose day comes from a sounding
-    (:class:`glidetask.engine.sounding.DaySource`): the keys typed over it, a start before
+    (:class:`glidetask.engine.sounding_inputs.DaySource`): the keys typed over it, a start before
     the derived lift starts, then the sounding's own cautions; none for a typed day."""
     if source is None:
         return []
