@@ -237,7 +237,7 @@ def _setting(value_ms: float, units: "UnitSystem") -> str:
 
 
 def bad_day_words(spread) -> str:
-    """The bad-day mode of a :class:`glidetask.engine.simulate.DaySpread` in words,
+    """The bad-day mode of a :class:`glidetask.engine.day_spread.DaySpread` in words,
     e.g. "1 day in 10 the lift ends 1-2 h early"."""
     p = spread.bad_day_probability
     if p <= 0.0 or spread.bad_day_early_s[1] <= 0.0:
