@@ -24,10 +24,10 @@ import warnings
 
 import numpy as np
 
-#: Gravity [m/s^2] (ISO 2533 standard value).
-G = 9.80665
+from glidetask.engine.atmosphere import G0_MS2
+
 #: Reference pressure of potential temperature [Pa].
-P0 = 100000.0
+THETA_REFERENCE_PA = 100000.0
 #: Height step of the encroachment integral [m].
 _INTEGRATION_STEP_M = 5.0
 
@@ -44,7 +44,7 @@ def convective_velocity_scale(heat_flux_kms, layer_depth_m, potential_temperatur
     """
     flux = np.asarray(heat_flux_kms, dtype=float)
     depth = np.asarray(layer_depth_m, dtype=float)
-    buoyancy = G / np.asarray(potential_temperature_k, dtype=float) * np.maximum(depth, 0.0) * np.maximum(flux, 0.0)
+    buoyancy = G0_MS2 / np.asarray(potential_temperature_k, dtype=float) * np.maximum(depth, 0.0) * np.maximum(flux, 0.0)
     result = np.cbrt(buoyancy)
     return result if result.ndim else float(result)
 

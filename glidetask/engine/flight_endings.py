@@ -35,50 +35,50 @@ class FlightEndings:
 
     def _remaining(self, rows):
         """Distance left on every leg from the present position, shape (n, L)."""
-        k, s = self.leg[rows], self.position[rows]
+        leg, position = self.leg[rows], self.position[rows]
         j = np.arange(self.legs)[None, :]
-        remaining = np.where(j > k[:, None], self.leg_length[None, :], 0.0)
-        remaining[np.arange(rows.size), k] = self.leg_length[k] - s
+        remaining = np.where(j > leg[:, None], self.leg_length[None, :], 0.0)
+        remaining[np.arange(rows.size), leg] = self.leg_length[leg] - position
         return remaining
 
-    def _final(self, rows, reason: int = FINAL_GLIDE, hpm=None, gs=None, mc=None) -> None:
+    def _final(self, rows, reason: int = FINAL_GLIDE, per_metre=None, ground_speed_ms=None, mc=None) -> None:
         """The final glide from the present point over all remaining legs, then done.
 
         The planned final glide uses the cycle's table; a glide home after the climbs
-        stopped passes the MacCready-0 table (``hpm``, ``gs``) and ``mc`` = 0.
+        stopped passes the MacCready-0 table (``per_metre``, ``ground_speed_ms``) and ``mc`` = 0.
         """
         if not rows.size:
             return
-        planned = hpm is None
-        hpm = self.final_per_metre[rows] if planned else hpm
-        gs = self.final_ground_speed[rows] if planned else gs
+        planned = per_metre is None
+        per_metre = self.final_per_metre[rows] if planned else per_metre
+        ground_speed_ms = self.final_ground_speed[rows] if planned else ground_speed_ms
         remaining = self._remaining(rows)
         flown = remaining != 0.0
-        used = np.where(flown, remaining * hpm, 0.0)
-        time = np.where(flown, remaining / gs, 0.0)
-        k, t, h = self.leg[rows], self.time[rows], self.height[rows]
+        used = np.where(flown, remaining * per_metre, 0.0)
+        time = np.where(flown, remaining / ground_speed_ms, 0.0)
+        leg, t, height = self.leg[rows], self.time[rows], self.height[rows]
         j = np.arange(self.legs)[None, :]
-        ahead, later = j >= k[:, None], j > k[:, None]
+        ahead, later = j >= leg[:, None], j > leg[:, None]
         cumulative_time = np.cumsum(time, axis=1)
         self.leg_time[rows] = np.where(ahead, np.nan_to_num(self.leg_time[rows]) + time, self.leg_time[rows])
-        self.leg_arrival[rows] = np.where(ahead, h[:, None] - np.cumsum(used, axis=1), self.leg_arrival[rows])
+        self.leg_arrival[rows] = np.where(ahead, height[:, None] - np.cumsum(used, axis=1), self.leg_arrival[rows])
         entry = t[:, None] + cumulative_time - time
         self.leg_entry[rows] = np.where(later, entry, self.leg_entry[rows])
         setting = self.final_mc[rows] if planned else mc
         self.leg_final_mc[rows] = np.where(later, self.final_mc[rows][:, None], self.leg_final_mc[rows])
-        whole = later | ((j == k[:, None]) & (self.position[rows] <= 0.0)[:, None] & ~self.leg_has_climb[rows])
+        whole = later | ((j == leg[:, None]) & (self.position[rows] <= 0.0)[:, None] & ~self.leg_has_climb[rows])
         self.leg_final[rows] = whole
         self.leg_mc[rows] = np.where(whole, setting[:, None], self.leg_mc[rows])
         self.leg_climb[rows] = np.where(later, np.maximum(self.climb_rate[rows], 0.0)[:, None], self.leg_climb[rows])
-        self.flown_final_from[rows] = self.leg_start[k] + self.position[rows]
-        self.flown_final_height[rows], self.flown_final_mc[rows], self.flown_final_leg[rows] = h, setting, k
+        self.flown_final_from[rows] = self.leg_start[leg] + self.position[rows]
+        self.flown_final_height[rows], self.flown_final_mc[rows], self.flown_final_leg[rows] = height, setting, leg
         self.flown_final_sigma[rows] = self.final_sigma[rows] if planned else self.band_sigma[rows]
         if not planned:  # the glide home's own table, for the requirements on its legs
-            self.final_per_metre[rows], self.final_height_after[rows] = hpm, self._tail(hpm)
+            self.final_per_metre[rows], self.final_height_after[rows] = per_metre, self._tail(per_metre)
         self.end_time[rows] = t + cumulative_time[:, -1]
         self.finished[rows], self.reason[rows], self.mode[rows] = True, reason, DONE
         if self.trace is not None and rows[0] == 0:
-            self._mark_legs(k[0], h[0] - np.cumsum(used[0]), self.legs - 1, None, "final")
+            self._mark_legs(leg[0], height[0] - np.cumsum(used[0]), self.legs - 1, None, "final")
 
     def _glide_on(self, rows, reason: int) -> None:
         """No more climbs: glide on at MacCready 0 to the arrival floor; home if it reaches."""
@@ -87,24 +87,24 @@ class FlightEndings:
         self.stop_time[rows] = self.time[rows]
         self._mark(rows, "stop")  # where the climbs stopped: the land-out's field is chosen in reach of it
         remaining = self._remaining(rows)
-        hpm, gs = self.best_per_metre[rows], self.best_ground_speed[rows]
+        per_metre, ground_speed_ms = self.best_per_metre[rows], self.best_ground_speed[rows]
         with np.errstate(invalid="ignore"):
-            used = np.where(remaining != 0.0, np.where(np.isfinite(hpm), remaining * hpm, np.inf), 0.0)
+            used = np.where(remaining != 0.0, np.where(np.isfinite(per_metre), remaining * per_metre, np.inf), 0.0)
         cumulative = np.cumsum(used, axis=1)
         available = self.height[rows] - self.floor[rows]
         if self.ground is not None:  # it glides on only while it keeps the clearance
             available = np.minimum(available, glide_allowance(
-                self.ground, self.leg_start, self.leg[rows], self.position[rows], self.height[rows], remaining, hpm,
+                self.ground, self.leg_start, self.leg[rows], self.position[rows], self.height[rows], remaining, per_metre,
                 cumulative, self.floor[rows]))
         home = cumulative[:, -1] <= available
         if home.any():
-            self._final(rows[home], reason, hpm[home], gs[home], np.zeros(int(home.sum())))
+            self._final(rows[home], reason, per_metre[home], ground_speed_ms[home], np.zeros(int(home.sum())))
         out = ~home
         if self.fields is not None and out.any():  # no terrain: down to the field it reaches
             landing = rows[out]
             x0 = (self.leg_start[self.leg[landing]] + self.position[landing]) / self.detour
             floor, field = field_floor(
-                self.fields, x0, self.course_deg[self.leg[landing]], self.height[landing], remaining[out], hpm[out],
+                self.fields, x0, self.course_deg[self.leg[landing]], self.height[landing], remaining[out], per_metre[out],
                 cumulative[out], polar_rows(self.band_polar, landing), self.inputs["wind_from_deg"][landing],
                 self.inputs["wind_speed_ms"][landing], self.airmass[landing], self.inputs["arrival_margin_m"][landing],
                 self.detour)
@@ -113,45 +113,46 @@ class FlightEndings:
             lower = np.minimum(self.height[landing] - floor, np.nextafter(cumulative[out][:, -1], -np.inf))
             available[out] = np.where(found, lower, available[out])
             self.landout_field[landing] = field
-        self._land_between(rows[out], reason, remaining[out], hpm[out], gs[out], cumulative[out], available[out])
+        self._land_between(rows[out], reason, remaining[out], per_metre[out], ground_speed_ms[out], cumulative[out],
+                           available[out])
 
-    def _land_between(self, rows, reason, remaining, hpm, gs, cumulative, available) -> None:
+    def _land_between(self, rows, reason, remaining, per_metre, ground_speed_ms, cumulative, available) -> None:
         """Flights gliding at MacCready 0 that reach the floor before the finish land there."""
         if not rows.size:
             return
-        k = self.leg[rows]
+        leg = self.leg[rows]
         j = np.arange(self.legs)[None, :]
-        beyond = (cumulative > available[:, None]) & (j >= k[:, None])
+        beyond = (cumulative > available[:, None]) & (j >= leg[:, None])
         land_leg = np.argmax(beyond, axis=1)
         line = np.arange(rows.size)
         before = np.where(land_leg > 0, cumulative[line, np.maximum(land_leg - 1, 0)], 0.0)
         with np.errstate(invalid="ignore", divide="ignore"):
-            into = (available - before) / hpm[line, land_leg]
+            into = (available - before) / per_metre[line, land_leg]
         into = np.clip(np.nan_to_num(into, nan=0.0), 0.0, remaining[line, land_leg])
         flown = np.where(j < land_leg[:, None], remaining, 0.0)
         flown[line, land_leg] = into
         with np.errstate(invalid="ignore"):
-            time = np.where(flown != 0.0, flown / gs, 0.0)
-        ahead = (j >= k[:, None]) & (j <= land_leg[:, None])
+            time = np.where(flown != 0.0, flown / ground_speed_ms, 0.0)
+        ahead = (j >= leg[:, None]) & (j <= land_leg[:, None])
         self.leg_time[rows] = np.where(ahead, np.nan_to_num(self.leg_time[rows]) + time, self.leg_time[rows])
-        done = (j >= k[:, None]) & (j < land_leg[:, None])
+        done = (j >= leg[:, None]) & (j < land_leg[:, None])
         self.leg_arrival[rows] = np.where(done, self.height[rows][:, None] - cumulative, self.leg_arrival[rows])
-        entered = (j > k[:, None]) & (j <= land_leg[:, None])
+        entered = (j > leg[:, None]) & (j <= land_leg[:, None])
         entry = self.time[rows][:, None] + np.cumsum(time, axis=1) - time
         self.leg_entry[rows] = np.where(entered, entry, self.leg_entry[rows])
         self.leg_final_mc[rows] = np.where(entered, self.final_mc[rows][:, None], self.leg_final_mc[rows])
-        self.landout_at[rows] = self.leg_start[land_leg] + np.where(land_leg == k, self.position[rows], 0.0) + into
+        self.landout_at[rows] = self.leg_start[land_leg] + np.where(land_leg == leg, self.position[rows], 0.0) + into
         self.landout_leg[rows] = land_leg
         if self.trace is not None and rows[0] == 0:
-            self._mark_legs(k[0], self.height[0] - cumulative[0], land_leg[0], float(self.landout_at[0]), "glide",
-                            float(self.height[0] - (before[0] + into[0] * hpm[0, land_leg[0]])))
+            self._mark_legs(leg[0], self.height[0] - cumulative[0], land_leg[0], float(self.landout_at[0]), "glide",
+                            float(self.height[0] - (before[0] + into[0] * per_metre[0, land_leg[0]])))
         self.end_time[rows] = self.time[rows] + time.sum(axis=1)
         self.reason[rows], self.mode[rows] = reason, DONE
 
-    def _mark_legs(self, k, height_after, last, end_m, phase, end_height=None) -> None:
-        """Record the first flight's vertices at the leg ends it glides past, from leg ``k`` to
+    def _mark_legs(self, leg, height_after, last, end_m, phase, end_height=None) -> None:
+        """Record the first flight's vertices at the leg ends it glides past, from leg ``leg`` to
         ``last`` (the finish), or to ``end_m`` [m along the course] on leg ``last``."""
-        for j in range(int(k), int(last) + 1):
+        for j in range(int(leg), int(last) + 1):
             if end_m is not None and j == last:
                 self.trace.append((end_m / self.detour, end_height, phase))
             else:

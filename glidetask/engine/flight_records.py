@@ -45,8 +45,8 @@ class LegRecords:
         if pairs.size:
             rows, legs = pairs[:, 0], pairs[:, 1]
             zero = np.zeros(rows.size)
-            hpm, _, tail, _ = self.final_table(rows, legs, zero, self.leg_final_mc[rows, legs])
-            required[rows, legs] = self.required(rows, legs, zero, hpm, tail)
+            per_metre, _, tail, _ = self.final_table(rows, legs, zero, self.leg_final_mc[rows, legs])
+            required[rows, legs] = self.required(rows, legs, zero, per_metre, tail)
         return required
 
     def leg_speeds(self):

@@ -193,39 +193,40 @@ class Simulation(FlightEndings, LegRecords, FinalGlideRequirement):
         if now.any():
             self._final(rows[now])
             rows, gap = rows[~now], gap[~now]
-        k, s, h = self.leg[rows], self.position[rows], self.height[rows]
-        along, across = self.wind_along[rows, k], self.wind_across[rows, k]
+        leg, position, height = self.leg[rows], self.position[rows], self.height[rows]
+        along, across = self.wind_along[rows, leg], self.wind_across[rows, leg]
         with np.errstate(invalid="ignore", divide="ignore"):
-            drift_fix = self._cycle_drift_fix(across, self.glide_fraction[rows], self.climb_across[rows, k])
-            cruise_gs = np.asarray(ground_speed(self.cruise_airspeed[rows], along, drift_fix))
+            drift_fix = self._cycle_drift_fix(across, self.glide_fraction[rows], self.climb_across[rows, leg])
+            cruise_ground_ms = np.asarray(ground_speed(self.cruise_airspeed[rows], along, drift_fix))
             pure = self.no_climb[rows]
-            gs = np.where(pure, self.best_ground_speed[rows, k], cruise_gs)
-            hpm = np.where(pure, self.best_per_metre[rows, k], self.cruise_net_sink[rows] / cruise_gs)
-        blocked = ~(gs > 0.0)
+            ground_speed_ms = np.where(pure, self.best_ground_speed[rows, leg], cruise_ground_ms)
+            per_metre = np.where(pure, self.best_per_metre[rows, leg], self.cruise_net_sink[rows] / cruise_ground_ms)
+        blocked = ~(ground_speed_ms > 0.0)
         if blocked.any():
             self._glide_on(rows[blocked], UNREACHABLE)
             keep = ~blocked
-            rows, gap, k, s, h, gs, hpm = rows[keep], gap[keep], k[keep], s[keep], h[keep], gs[keep], hpm[keep]
+            rows, gap, leg, position, height = rows[keep], gap[keep], leg[keep], position[keep], height[keep]
+            ground_speed_ms, per_metre = ground_speed_ms[keep], per_metre[keep]
         if not rows.size:
             return
-        closing = self.final_per_metre[rows, k] - hpm  # the gap grows by this per metre
+        closing = self.final_per_metre[rows, leg] - per_metre  # the gap grows by this per metre
         with np.errstate(invalid="ignore", divide="ignore"):
             to_final = np.where(closing > 0.0, -gap / closing, np.inf)
-            to_stop = np.where(hpm > 0.0, np.maximum(h - self.stop_height[rows], 0.0) / hpm, np.inf)
-        to_leg_end = self.leg_length[k] - s
+            to_stop = np.where(per_metre > 0.0, np.maximum(height - self.stop_height[rows], 0.0) / per_metre, np.inf)
+        to_leg_end = self.leg_length[leg] - position
         to_ground = np.full(rows.size, np.inf)
         if self.ground is not None:  # the glide stops where it would come closer to the ground than the clearance
             limit = np.minimum(np.minimum(to_leg_end, to_stop), np.minimum(self.search_left_m[rows], to_final))
-            to_ground = self.ground.contact(self.leg_start[k] + s, h, hpm, limit, self.stop_height[rows])
+            to_ground = self.ground.contact(self.leg_start[leg] + position, height, per_metre, limit, self.stop_height[rows])
         candidates = np.stack([to_final, to_leg_end, to_stop, self.search_left_m[rows], to_ground])
         event = np.argmin(candidates, axis=0)
-        d = candidates[event, np.arange(rows.size)]
-        dt = d / gs
-        self.position[rows] = s + d
-        self.height[rows] = h - hpm * d
-        self.time[rows] += dt
-        self.leg_time[rows, k] += dt
-        self.search_left_m[rows] -= d
+        distance = candidates[event, np.arange(rows.size)]
+        duration = distance / ground_speed_ms
+        self.position[rows] = position + distance
+        self.height[rows] = height - per_metre * distance
+        self.time[rows] += duration
+        self.leg_time[rows, leg] += duration
+        self.search_left_m[rows] -= distance
         self._reached_requirement(rows[event == 0])
         self._leg_end(rows[event == 1])
         at_stop = rows[event == 2]
@@ -289,16 +290,16 @@ class Simulation(FlightEndings, LegRecords, FinalGlideRequirement):
         self._set_cycle(rows, rate)
         if self.aloft.varies:  # this climb drifts with the mean wind from here to the band top
             self.drift_along[rows] = self.aloft.mean(rows, self.height[rows], self.inputs["band_top_m"][rows])[0]
-        k = self.leg[rows]
-        blocked = ~(self.cruise_speed[rows, k] > 0.0)
+        leg = self.leg[rows]
+        blocked = ~(self.cruise_speed[rows, leg] > 0.0)
         self._glide_on(rows[blocked], UNREACHABLE)
-        rows, k = rows[~blocked], k[~blocked]
-        first = ~self.leg_has_climb[rows, k]
-        self.leg_climb[rows[first], k[first]] = self.climb_rate[rows[first]]
-        self.leg_mc[rows[first], k[first]] = self.cycle_mc[rows[first]]
-        self.leg_has_climb[rows, k] = True
+        rows, leg = rows[~blocked], leg[~blocked]
+        first = ~self.leg_has_climb[rows, leg]
+        self.leg_climb[rows[first], leg[first]] = self.climb_rate[rows[first]]
+        self.leg_mc[rows[first], leg[first]] = self.cycle_mc[rows[first]]
+        self.leg_has_climb[rows, leg] = True
         self.climbs[rows] += 1
-        self._centre(rows, k)
+        self._centre(rows, leg)
         self.mode[rows] = CLIMBING
 
     def band_top(self, rows, time_s):
@@ -323,37 +324,38 @@ class Simulation(FlightEndings, LegRecords, FinalGlideRequirement):
                              / self.climb_rate[rows] * np.maximum(self.drift_along[rows, self.leg[rows]], 0.0), 0.0)
         return self.ceiling.top(here + np.nan_to_num(drift), top, self.flattest[rows])
 
-    def _centre(self, rows, k) -> None:
+    def _centre(self, rows, leg) -> None:
         """Time lost centring the thermal before the climb begins (``centring_s``), at the
         climb's bottom (its drift in that time is neglected: 30 s at 20 km/h is 170 m)."""
         centring = self.inputs["centring_s"][rows]
         self.time[rows] += centring
-        self.leg_time[rows, k] += centring
+        self.leg_time[rows, leg] += centring
 
     def _climb(self, rows) -> None:
-        k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
+        leg, position, height = self.leg[rows], self.position[rows], self.height[rows]
+        t, rate = self.time[rows], self.climb_rate[rows]
         band_top = self._climb_top(rows)
-        drift = self.drift_along[rows, k]
-        gap = h - self.required(rows)
-        closing = rate + self.final_per_metre[rows, k] * drift  # the gap grows by this per second
+        drift = self.drift_along[rows, leg]
+        gap = height - self.required(rows)
+        closing = rate + self.final_per_metre[rows, leg] * drift  # the gap grows by this per second
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
             to_final = np.where(gap >= 0.0, 0.0, np.where(closing > 0.0, -gap / closing, np.inf))
-            to_leg_end = np.where(drift > 0.0, (self.leg_length[k] - s) / drift, np.inf)
-        to_top = np.maximum(band_top - h, 0.0) / rate
+            to_leg_end = np.where(drift > 0.0, (self.leg_length[leg] - position) / drift, np.inf)
+        to_top = np.maximum(band_top - height, 0.0) / rate
         to_lift_end = np.maximum(self.inputs["lift_ends_s"][rows] - t, 0.0)
         candidates = np.stack([to_final, to_top, to_leg_end, to_lift_end])
         event = np.argmin(candidates, axis=0)
-        tau = candidates[event, np.arange(rows.size)]
-        self.height[rows] = h + rate * tau
-        self.position[rows] = s + drift * tau
-        self.time[rows] = t + tau
-        self.leg_time[rows, k] += tau
+        duration = candidates[event, np.arange(rows.size)]
+        self.height[rows] = height + rate * duration
+        self.position[rows] = position + drift * duration
+        self.time[rows] = t + duration
+        self.leg_time[rows, leg] += duration
         self._mark(rows, "climb")
         ended = rows[event != 2]
         self.last_climb_end[ended] = self.time[ended]
         self._reached_requirement(rows[event == 0])
         top = event == 1
-        self.height[rows[top]] = np.maximum(band_top[top], h[top])
+        self.height[rows[top]] = np.maximum(band_top[top], height[top])
         top = rows[top]
         self.mode[top] = GLIDING
         self._leg_end(rows[event == 2])
@@ -363,17 +365,17 @@ class Simulation(FlightEndings, LegRecords, FinalGlideRequirement):
         """Flights at the end of their leg (gliding or drifting in a climb) enter the next."""
         if not rows.size:
             return
-        k = self.leg[rows]
-        self.position[rows] = self.leg_length[k]
-        self.leg_arrival[rows, k] = self.height[rows]
-        last = k == self.legs - 1
+        leg = self.leg[rows]
+        self.position[rows] = self.leg_length[leg]
+        self.leg_arrival[rows, leg] = self.height[rows]
+        last = leg == self.legs - 1
         self._glide_on(rows[last], BELOW_FLOOR)  # at the finish, still below the requirement
-        rows, k = rows[~last], k[~last] + 1
-        self.leg[rows], self.position[rows] = k, 0.0
-        self.leg_entry[rows, k] = self.time[rows]
-        self.leg_time[rows, k] = 0.0
-        self.leg_final_mc[rows, k] = self.final_mc[rows]
-        self.leg_climb[rows, k], self.leg_mc[rows, k] = np.maximum(self.climb_rate[rows], 0.0), self.cycle_mc[rows]
+        rows, leg = rows[~last], leg[~last] + 1
+        self.leg[rows], self.position[rows] = leg, 0.0
+        self.leg_entry[rows, leg] = self.time[rows]
+        self.leg_time[rows, leg] = 0.0
+        self.leg_final_mc[rows, leg] = self.final_mc[rows]
+        self.leg_climb[rows, leg], self.leg_mc[rows, leg] = np.maximum(self.climb_rate[rows], 0.0), self.cycle_mc[rows]
 
 
 class _InFlownMetres:
@@ -384,8 +386,9 @@ class _InFlownMetres:
         self.hook, self.detour = hook, detour
 
     def contact(self, start_m, height_m, per_metre, limit_m, above_m):
-        d = self.hook.contact(start_m / self.detour, height_m, per_metre * self.detour, limit_m / self.detour, above_m)
-        return d * self.detour
+        distance = self.hook.contact(start_m / self.detour, height_m, per_metre * self.detour, limit_m / self.detour,
+                                     above_m)
+        return distance * self.detour
 
     def top(self, position_m, band_top_m, per_metre):
         return self.hook.top(position_m / self.detour, band_top_m, per_metre * self.detour)

@@ -48,7 +48,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from glidetask.engine.convection import (
-    P0, convective_velocity_scale, encroachment_heat_content, lcl_pressure_pa, parcel_cape_jkg,
+    THETA_REFERENCE_PA, convective_velocity_scale, encroachment_heat_content, lcl_pressure_pa, parcel_cape_jkg,
     potential_temperature_k, temperature_from_potential_k, thermal_top_m,
 )
 from glidetask.engine.forecast import Sounding, SurfaceForecast
@@ -453,8 +453,8 @@ def sounding_drawing(sounding: Sounding, derived: DerivedDay, *, step_m: float =
     top = float(derived.thermal_top_m[warmest])
     z = np.append(np.arange(surface, top, step_m), top) if top > surface else np.array([surface])
     kappa = 0.2857  # R/cp of dry air (MetPy's constants.kappa, 2/7) (from memory)
-    theta = (derived.surface_temperature_c[warmest] + 273.15) * (P0 / sounding.pressure_at(surface)) ** kappa
-    parcel = theta * (sounding.pressure_at(z) / P0) ** kappa
+    theta = (derived.surface_temperature_c[warmest] + 273.15) * (THETA_REFERENCE_PA / sounding.pressure_at(surface)) ** kappa
+    parcel = theta * (sounding.pressure_at(z) / THETA_REFERENCE_PA) ** kappa
     keep = sounding.height_m >= surface
     return SoundingDrawing(
         height_m=sounding.height_m[keep], temperature_k=sounding.temperature_k[keep],
