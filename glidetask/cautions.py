@@ -237,7 +237,7 @@ def _setting(value_ms: float, units: "UnitSystem") -> str:
 
 
 def bad_day_words(spread) -> str:
-    """The bad-day mode of a :class:`glidetask.engine.simulate.DaySpread` in words,
+    """The bad-day mode of a :class:`glidetask.engine.day_spread.DaySpread` in words,
     e.g. "1 day in 10 the lift ends 1-2 h early"."""
     p = spread.bad_day_probability
     if p <= 0.0 or spread.bad_day_early_s[1] <= 0.0:
@@ -343,7 +343,7 @@ def _volume_name(name: str, airspace_class: str | None) -> str:
 
 
 def airspace_conflict(c, units: "UnitSystem", what: str = "Leg") -> str:
-    """One conflict in words: a :class:`glidetask.engine.airspace.Conflict`.
+    """One conflict in words: a :class:`glidetask.engine.airspace_conflicts.Conflict`.
 
     ``what`` names the stretch's part of the flight: ``"Leg"`` (followed by the leg's
     number) for a plan, or a phrase such as ``"The glide"`` for a single glide.
@@ -359,14 +359,14 @@ def airspace_conflict(c, units: "UnitSystem", what: str = "Leg") -> str:
 
 
 def airspace_cap(cap, units: "UnitSystem") -> str:
-    """A lowered band top in words: a :class:`glidetask.engine.airspace.Cap`."""
+    """A lowered band top in words: a :class:`glidetask.engine.airspace_conflicts.Cap`."""
     return (f"{cap.name} caps the band top at {units.fmt_height(cap.top_m)} from {units.fmt_distance(cap.from_m)} "
             f"to {units.fmt_distance(cap.to_m)}: climb no higher there.")
 
 
 def airspace_cautions(check, units: "UnitSystem", what: str = "Leg", flight_levels: bool = False,
                       ground_point: str = "the nearest turnpoint") -> list[str]:
-    """The airspace cautions of one plan or glide: a :class:`glidetask.engine.airspace.AirspaceCheck`.
+    """The airspace cautions of one plan or glide: a :class:`glidetask.engine.airspace_conflicts.AirspaceCheck`.
 
     ``flight_levels``: some volume met is limited by a flight level (add the pressure caution).
     ``ground_point`` names what stood in for the terrain under AGL limits.
@@ -440,7 +440,7 @@ def overridden_text(overridden) -> str | None:
 
 def day_source_cautions(source, units: "UnitSystem", start_time_s: float | None = None) -> list[str]:
     """The cautions of a plan whose day comes from a sounding
-    (:class:`glidetask.engine.sounding.DaySource`): the keys typed over it, a start before
+    (:class:`glidetask.engine.sounding_inputs.DaySource`): the keys typed over it, a start before
     the derived lift starts, then the sounding's own cautions; none for a typed day."""
     if source is None:
         return []

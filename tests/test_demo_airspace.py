@@ -14,7 +14,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from glidetask.engine.airspace import check_path
+from glidetask.engine.airspace_conflicts import check_path
 from glidetask.engine.plan import plan
 from glidetask.formats.airspace_file import read_airspace
 from glidetask.formats.task_file import load_scenario

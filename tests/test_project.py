@@ -64,3 +64,43 @@ def test_shipped_text_never_mentions_a_lecture():
             if pattern.search(path.read_text(encoding="utf-8", errors="replace")):
                 offenders.append(str(path.relative_to(ROOT)))
     assert offenders == []
+
+
+# Source: the project's own rules (DEVELOPERS.md, issue 10): engine modules under about 500
+# lines, functions under about 60 lines of code, so that a newcomer can read one whole.
+MAX_ENGINE_MODULE_LINES = 500
+MAX_FUNCTION_CODE_LINES = 60
+
+
+def _code_lines(lines: list[str], node) -> int:
+    """Lines of a function that hold code: not blank, not a comment, not its docstring."""
+    import ast
+
+    body = node.body
+    doc = range(0)
+    if body and isinstance(body[0], ast.Expr) and isinstance(body[0].value, ast.Constant) \
+            and isinstance(body[0].value.value, str):
+        doc = range(body[0].lineno, body[0].end_lineno + 1)
+    return sum(1 for number in range(node.lineno, node.end_lineno + 1)
+               if number not in doc and lines[number - 1].strip() and not lines[number - 1].strip().startswith("#"))
+
+
+def test_engine_modules_stay_readable_in_one_sitting():
+    long = {path.name: n for path in sorted((ROOT / "glidetask" / "engine").glob("*.py"))
+            if (n := len(path.read_text(encoding="utf-8").splitlines())) > MAX_ENGINE_MODULE_LINES}
+    assert long == {}
+
+
+def test_functions_stay_short():
+    import ast
+
+    long = {}
+    for path in sorted((ROOT / "glidetask").rglob("*.py")):
+        text = path.read_text(encoding="utf-8")
+        lines = text.splitlines()
+        for node in ast.walk(ast.parse(text)):
+            if isinstance(node, (ast.FunctionDef, ast.AsyncFunctionDef)):
+                n = _code_lines(lines, node)
+                if n > MAX_FUNCTION_CODE_LINES:
+                    long[f"{path.relative_to(ROOT)}:{node.lineno} {node.name}"] = n
+    assert long == {}

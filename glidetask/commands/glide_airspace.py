@@ -6,7 +6,7 @@ height (goal elevation plus margin) at ``--to``, at the height used per metre of
 glide just computed, sampled every 250 m. Every volume the path crosses is reported with
 the stretch, its limits in metres MSL and the glide's heights there; a stretch where the
 glide is between a floor minus the margin and a ceiling plus the margin is a conflict
-(:func:`glidetask.engine.airspace.conflicts`). AGL limits stand on the terrain model
+(:func:`glidetask.engine.airspace_conflicts.conflicts`). AGL limits stand on the terrain model
 (``--terrain``) or, without one, on the goal elevation, and the output says so.
 """
 
@@ -20,7 +20,8 @@ import numpy as np
 from glidetask import cautions as caution_text
 from glidetask import units as unit_systems
 from glidetask.engine import geodesy
-from glidetask.engine.airspace import check_path, limit_msl_m, nearest_point_ground
+from glidetask.engine.airspace import limit_msl_m, nearest_point_ground
+from glidetask.engine.airspace_conflicts import check_path
 from glidetask.formats.airspace_file import read_airspace
 
 SPACING_M = 250.0  # sample spacing along the glide [m]

@@ -18,7 +18,8 @@ from glidetask.cli import CMDLINE, what_if_problems
 from glidetask.commands._output import print_json
 from glidetask.engine.scenario import WhatIfError, with_what_ifs
 from glidetask.commands.sweep import day_cautions
-from glidetask.engine.simulate import DaySpread, simulate_days, spacing_odds
+from glidetask.engine.day_spread import DaySpread
+from glidetask.engine.simulate import simulate_days, spacing_odds
 from glidetask.errors import InputError, Problem
 from glidetask.formats import strategy_report
 from glidetask.formats.task_file import load_scenario

@@ -48,7 +48,9 @@ References
    climb-and-glide cycles, drift in thermals, final glide (from memory).
 
 Layout: this module holds the core's inputs and results and :func:`fly`;
-:mod:`glidetask.engine.flight_simulation` moves the flights from event to event,
+:mod:`glidetask.engine.flight_simulation` moves the flights from event to event
+(:mod:`glidetask.engine.flight_endings` ends them, :mod:`glidetask.engine.flight_records`
+records each leg),
 :mod:`glidetask.engine.flight_requirement` computes the final-glide requirement and
 :mod:`glidetask.engine.flight_lift` the achieved climb against the clock.
 """
@@ -60,10 +62,11 @@ from typing import Callable
 
 import numpy as np
 
-from glidetask.engine.flight_simulation import (  # the reasons a flight ends, named where the core sets them
+from glidetask.engine.flight_endings import (  # the reasons a flight ends, named where the core sets them
     BELOW_FLOOR, FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, NO_THERMAL_FOUND, REASONS, TERRAIN_ABOVE_BAND, UNREACHABLE,
-    UNRESOLVED, Simulation,
+    UNRESOLVED,
 )
+from glidetask.engine.flight_simulation import Simulation
 from glidetask.engine.polar import PolarSpec
 from glidetask.engine.circling import DEFAULT_STALL_MARGIN, strength_for_climb
 from glidetask.engine.scenario import Profile, Scenario, WindProfile

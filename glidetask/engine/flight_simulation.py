@@ -4,7 +4,8 @@
 (N, L) per flight and leg) and the handlers of the events of contract section 3: glides
 to the next turnpoint, the band bottom, the end of a search or the final-glide height;
 climbs to the band top, the final-glide height, a turnpoint reached by drift or the end
-of lift; and the ways a flight ends. The final-glide requirement comes from
+of lift. How flights end is :class:`glidetask.engine.flight_endings.FlightEndings`,
+what they record per leg :class:`glidetask.engine.flight_records.LegRecords`; the final-glide requirement comes from
 :class:`glidetask.engine.flight_requirement.FinalGlideRequirement`, the achieved climb
 from :class:`glidetask.engine.flight_lift.LiftClock`. :func:`glidetask.engine.flight.fly`
 runs it; the model is described there.
@@ -15,28 +16,22 @@ from __future__ import annotations
 import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
-from glidetask.engine.finalglide import density_height_m
-from glidetask.engine.flight_ground import GroundFloor, glide_allowance
+from glidetask.engine.flight_endings import (  # the reasons a flight ends and what each flight is doing
+    BELOW_FLOOR, CLIMBING, DONE, GLIDING, LIFT_ENDED, NO_CLIMB, NO_THERMAL_FOUND, STARTING_CLIMB, TERRAIN_ABOVE_BAND,
+    UNREACHABLE, UNRESOLVED, FlightEndings,
+)
+from glidetask.engine.flight_ground import GroundFloor
 from glidetask.engine.flight_lift import LiftClock
+from glidetask.engine.flight_records import LegRecords
 from glidetask.engine.flight_requirement import FinalGlideRequirement, polar_rows
 from glidetask.engine.flight_wind import WindAloft
-from glidetask.engine.landing_fields import LandingFields, field_floor
+from glidetask.engine.landing_fields import LandingFields
 from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import band_middle_m
 from glidetask.engine.speedtofly import cruise_in_wind, glide_in_wind
-from glidetask.engine.wind import correction_angle_deg, ground_speed
+from glidetask.engine.wind import ground_speed
 
-# Why a flight ended (``Flown.reason``). A finished flight has FINAL_GLIDE, or the reason
-# its climbs stopped if it then glided home at MacCready 0.
-FINAL_GLIDE, LIFT_ENDED, NO_CLIMB, UNREACHABLE, NO_THERMAL_FOUND, BELOW_FLOOR, UNRESOLVED, TERRAIN_ABOVE_BAND = range(8)
-REASONS = ("final glide", "lift ended", "no climb in the profile", "wind too strong for the glider",
-           "no thermal found", "reached the finish below the arrival floor", "unresolved",
-           "terrain plus clearance above the working band")
-
-_GLIDE, _CLIMB_START, _CLIMB, _DONE = range(4)  # what each flight is doing
-
-
-class Simulation(FinalGlideRequirement):
+class Simulation(FlightEndings, LegRecords, FinalGlideRequirement):
     """The state of N flights and the event handlers that move them on.
 
     State per flight (N,): ``mode`` (gliding, starting a climb, climbing, done), ``leg``,
@@ -119,7 +114,7 @@ class Simulation(FinalGlideRequirement):
 
     def _allocate(self, n: int, legs: int) -> None:
         nan_n, nan_nl = (lambda: np.full(n, np.nan)), (lambda: np.full((n, legs), np.nan))
-        self.mode = np.full(n, _GLIDE)
+        self.mode = np.full(n, GLIDING)
         self.leg = np.zeros(n, dtype=int)
         self.position, self.time, self.height, self.stop_height = np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n)
         self.search_left_m = np.full(n, np.inf)
@@ -181,16 +176,16 @@ class Simulation(FinalGlideRequirement):
 
     def step(self) -> bool:
         """One pass: every flight moves to its next event. False when all are done."""
-        gliding = np.flatnonzero(self.mode == _GLIDE)
+        gliding = np.flatnonzero(self.mode == GLIDING)
         if gliding.size:
             self._glide(gliding)
-        starting = np.flatnonzero(self.mode == _CLIMB_START)
+        starting = np.flatnonzero(self.mode == STARTING_CLIMB)
         if starting.size:
             self._start_climb(starting)
-        climbing = np.flatnonzero(self.mode == _CLIMB)
+        climbing = np.flatnonzero(self.mode == CLIMBING)
         if climbing.size:
             self._climb(climbing)
-        return bool(np.any(self.mode != _DONE))
+        return bool(np.any(self.mode != DONE))
 
     def _glide(self, rows) -> None:
         gap = self.height[rows] - self.required(rows)
@@ -198,39 +193,40 @@ class Simulation(FinalGlideRequirement):
         if now.any():
             self._final(rows[now])
             rows, gap = rows[~now], gap[~now]
-        k, s, h = self.leg[rows], self.position[rows], self.height[rows]
-        along, across = self.wind_along[rows, k], self.wind_across[rows, k]
+        leg, position, height = self.leg[rows], self.position[rows], self.height[rows]
+        along, across = self.wind_along[rows, leg], self.wind_across[rows, leg]
         with np.errstate(invalid="ignore", divide="ignore"):
-            drift_fix = self._cycle_drift_fix(across, self.glide_fraction[rows], self.climb_across[rows, k])
-            cruise_gs = np.asarray(ground_speed(self.cruise_airspeed[rows], along, drift_fix))
+            drift_fix = self._cycle_drift_fix(across, self.glide_fraction[rows], self.climb_across[rows, leg])
+            cruise_ground_ms = np.asarray(ground_speed(self.cruise_airspeed[rows], along, drift_fix))
             pure = self.no_climb[rows]
-            gs = np.where(pure, self.best_ground_speed[rows, k], cruise_gs)
-            hpm = np.where(pure, self.best_per_metre[rows, k], self.cruise_net_sink[rows] / cruise_gs)
-        blocked = ~(gs > 0.0)
+            ground_speed_ms = np.where(pure, self.best_ground_speed[rows, leg], cruise_ground_ms)
+            per_metre = np.where(pure, self.best_per_metre[rows, leg], self.cruise_net_sink[rows] / cruise_ground_ms)
+        blocked = ~(ground_speed_ms > 0.0)
         if blocked.any():
             self._glide_on(rows[blocked], UNREACHABLE)
             keep = ~blocked
-            rows, gap, k, s, h, gs, hpm = rows[keep], gap[keep], k[keep], s[keep], h[keep], gs[keep], hpm[keep]
+            rows, gap, leg, position, height = rows[keep], gap[keep], leg[keep], position[keep], height[keep]
+            ground_speed_ms, per_metre = ground_speed_ms[keep], per_metre[keep]
         if not rows.size:
             return
-        closing = self.final_per_metre[rows, k] - hpm  # the gap grows by this per metre
+        closing = self.final_per_metre[rows, leg] - per_metre  # the gap grows by this per metre
         with np.errstate(invalid="ignore", divide="ignore"):
             to_final = np.where(closing > 0.0, -gap / closing, np.inf)
-            to_stop = np.where(hpm > 0.0, np.maximum(h - self.stop_height[rows], 0.0) / hpm, np.inf)
-        to_leg_end = self.leg_length[k] - s
+            to_stop = np.where(per_metre > 0.0, np.maximum(height - self.stop_height[rows], 0.0) / per_metre, np.inf)
+        to_leg_end = self.leg_length[leg] - position
         to_ground = np.full(rows.size, np.inf)
         if self.ground is not None:  # the glide stops where it would come closer to the ground than the clearance
             limit = np.minimum(np.minimum(to_leg_end, to_stop), np.minimum(self.search_left_m[rows], to_final))
-            to_ground = self.ground.contact(self.leg_start[k] + s, h, hpm, limit, self.stop_height[rows])
+            to_ground = self.ground.contact(self.leg_start[leg] + position, height, per_metre, limit, self.stop_height[rows])
         candidates = np.stack([to_final, to_leg_end, to_stop, self.search_left_m[rows], to_ground])
         event = np.argmin(candidates, axis=0)
-        d = candidates[event, np.arange(rows.size)]
-        dt = d / gs
-        self.position[rows] = s + d
-        self.height[rows] = h - hpm * d
-        self.time[rows] += dt
-        self.leg_time[rows, k] += dt
-        self.search_left_m[rows] -= d
+        distance = candidates[event, np.arange(rows.size)]
+        duration = distance / ground_speed_ms
+        self.position[rows] = position + distance
+        self.height[rows] = height - per_metre * distance
+        self.time[rows] += duration
+        self.leg_time[rows, leg] += duration
+        self.search_left_m[rows] -= distance
         self._reached_requirement(rows[event == 0])
         self._leg_end(rows[event == 1])
         at_stop = rows[event == 2]
@@ -270,7 +266,7 @@ class Simulation(FinalGlideRequirement):
             self.searching[on], self.search_left_m[on], self.stop_height[on] = True, distance[go], self.floor[on]
             self._solve_final(on[np.isnan(self.final_height_after[on, -1])])  # a search may reach the final glide
             rows = rows[~go]
-        self.mode[rows] = _CLIMB_START
+        self.mode[rows] = STARTING_CLIMB
 
     def _searched(self, rows) -> None:
         if not rows.size:
@@ -278,7 +274,7 @@ class Simulation(FinalGlideRequirement):
         self.searching[rows] = False
         self.search_left_m[rows] = np.inf
         self.stop_height[rows] = self.inputs["band_bottom_m"][rows]
-        self.mode[rows] = _CLIMB_START
+        self.mode[rows] = STARTING_CLIMB
 
     def _start_climb(self, rows) -> None:
         t = self.time[rows]
@@ -294,17 +290,17 @@ class Simulation(FinalGlideRequirement):
         self._set_cycle(rows, rate)
         if self.aloft.varies:  # this climb drifts with the mean wind from here to the band top
             self.drift_along[rows] = self.aloft.mean(rows, self.height[rows], self.inputs["band_top_m"][rows])[0]
-        k = self.leg[rows]
-        blocked = ~(self.cruise_speed[rows, k] > 0.0)
+        leg = self.leg[rows]
+        blocked = ~(self.cruise_speed[rows, leg] > 0.0)
         self._glide_on(rows[blocked], UNREACHABLE)
-        rows, k = rows[~blocked], k[~blocked]
-        first = ~self.leg_has_climb[rows, k]
-        self.leg_climb[rows[first], k[first]] = self.climb_rate[rows[first]]
-        self.leg_mc[rows[first], k[first]] = self.cycle_mc[rows[first]]
-        self.leg_has_climb[rows, k] = True
+        rows, leg = rows[~blocked], leg[~blocked]
+        first = ~self.leg_has_climb[rows, leg]
+        self.leg_climb[rows[first], leg[first]] = self.climb_rate[rows[first]]
+        self.leg_mc[rows[first], leg[first]] = self.cycle_mc[rows[first]]
+        self.leg_has_climb[rows, leg] = True
         self.climbs[rows] += 1
-        self._centre(rows, k)
-        self.mode[rows] = _CLIMB
+        self._centre(rows, leg)
+        self.mode[rows] = CLIMBING
 
     def band_top(self, rows, time_s):
         """The band top [m MSL] for flights ``rows`` at ``time_s``: the day's band top then
@@ -328,39 +324,40 @@ class Simulation(FinalGlideRequirement):
                              / self.climb_rate[rows] * np.maximum(self.drift_along[rows, self.leg[rows]], 0.0), 0.0)
         return self.ceiling.top(here + np.nan_to_num(drift), top, self.flattest[rows])
 
-    def _centre(self, rows, k) -> None:
+    def _centre(self, rows, leg) -> None:
         """Time lost centring the thermal before the climb begins (``centring_s``), at the
         climb's bottom (its drift in that time is neglected: 30 s at 20 km/h is 170 m)."""
         centring = self.inputs["centring_s"][rows]
         self.time[rows] += centring
-        self.leg_time[rows, k] += centring
+        self.leg_time[rows, leg] += centring
 
     def _climb(self, rows) -> None:
-        k, s, h, t, rate = self.leg[rows], self.position[rows], self.height[rows], self.time[rows], self.climb_rate[rows]
+        leg, position, height = self.leg[rows], self.position[rows], self.height[rows]
+        t, rate = self.time[rows], self.climb_rate[rows]
         band_top = self._climb_top(rows)
-        drift = self.drift_along[rows, k]
-        gap = h - self.required(rows)
-        closing = rate + self.final_per_metre[rows, k] * drift  # the gap grows by this per second
+        drift = self.drift_along[rows, leg]
+        gap = height - self.required(rows)
+        closing = rate + self.final_per_metre[rows, leg] * drift  # the gap grows by this per second
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):  # huge or inf: that event never comes
             to_final = np.where(gap >= 0.0, 0.0, np.where(closing > 0.0, -gap / closing, np.inf))
-            to_leg_end = np.where(drift > 0.0, (self.leg_length[k] - s) / drift, np.inf)
-        to_top = np.maximum(band_top - h, 0.0) / rate
+            to_leg_end = np.where(drift > 0.0, (self.leg_length[leg] - position) / drift, np.inf)
+        to_top = np.maximum(band_top - height, 0.0) / rate
         to_lift_end = np.maximum(self.inputs["lift_ends_s"][rows] - t, 0.0)
         candidates = np.stack([to_final, to_top, to_leg_end, to_lift_end])
         event = np.argmin(candidates, axis=0)
-        tau = candidates[event, np.arange(rows.size)]
-        self.height[rows] = h + rate * tau
-        self.position[rows] = s + drift * tau
-        self.time[rows] = t + tau
-        self.leg_time[rows, k] += tau
+        duration = candidates[event, np.arange(rows.size)]
+        self.height[rows] = height + rate * duration
+        self.position[rows] = position + drift * duration
+        self.time[rows] = t + duration
+        self.leg_time[rows, leg] += duration
         self._mark(rows, "climb")
         ended = rows[event != 2]
         self.last_climb_end[ended] = self.time[ended]
         self._reached_requirement(rows[event == 0])
         top = event == 1
-        self.height[rows[top]] = np.maximum(band_top[top], h[top])
+        self.height[rows[top]] = np.maximum(band_top[top], height[top])
         top = rows[top]
-        self.mode[top] = _GLIDE
+        self.mode[top] = GLIDING
         self._leg_end(rows[event == 2])
         self._glide_on(rows[event == 3], LIFT_ENDED)
 
@@ -368,251 +365,17 @@ class Simulation(FinalGlideRequirement):
         """Flights at the end of their leg (gliding or drifting in a climb) enter the next."""
         if not rows.size:
             return
-        k = self.leg[rows]
-        self.position[rows] = self.leg_length[k]
-        self.leg_arrival[rows, k] = self.height[rows]
-        last = k == self.legs - 1
+        leg = self.leg[rows]
+        self.position[rows] = self.leg_length[leg]
+        self.leg_arrival[rows, leg] = self.height[rows]
+        last = leg == self.legs - 1
         self._glide_on(rows[last], BELOW_FLOOR)  # at the finish, still below the requirement
-        rows, k = rows[~last], k[~last] + 1
-        self.leg[rows], self.position[rows] = k, 0.0
-        self.leg_entry[rows, k] = self.time[rows]
-        self.leg_time[rows, k] = 0.0
-        self.leg_final_mc[rows, k] = self.final_mc[rows]
-        self.leg_climb[rows, k], self.leg_mc[rows, k] = np.maximum(self.climb_rate[rows], 0.0), self.cycle_mc[rows]
-
-    # ------------------------------------------------------------ how flights end
-
-    def _remaining(self, rows):
-        """Distance left on every leg from the present position, shape (n, L)."""
-        k, s = self.leg[rows], self.position[rows]
-        j = np.arange(self.legs)[None, :]
-        remaining = np.where(j > k[:, None], self.leg_length[None, :], 0.0)
-        remaining[np.arange(rows.size), k] = self.leg_length[k] - s
-        return remaining
-
-    def _final(self, rows, reason: int = FINAL_GLIDE, hpm=None, gs=None, mc=None) -> None:
-        """The final glide from the present point over all remaining legs, then done.
-
-        The planned final glide uses the cycle's table; a glide home after the climbs
-        stopped passes the MacCready-0 table (``hpm``, ``gs``) and ``mc`` = 0.
-        """
-        if not rows.size:
-            return
-        planned = hpm is None
-        hpm = self.final_per_metre[rows] if planned else hpm
-        gs = self.final_ground_speed[rows] if planned else gs
-        remaining = self._remaining(rows)
-        flown = remaining != 0.0
-        used = np.where(flown, remaining * hpm, 0.0)
-        time = np.where(flown, remaining / gs, 0.0)
-        k, t, h = self.leg[rows], self.time[rows], self.height[rows]
-        j = np.arange(self.legs)[None, :]
-        ahead, later = j >= k[:, None], j > k[:, None]
-        cumulative_time = np.cumsum(time, axis=1)
-        self.leg_time[rows] = np.where(ahead, np.nan_to_num(self.leg_time[rows]) + time, self.leg_time[rows])
-        self.leg_arrival[rows] = np.where(ahead, h[:, None] - np.cumsum(used, axis=1), self.leg_arrival[rows])
-        entry = t[:, None] + cumulative_time - time
-        self.leg_entry[rows] = np.where(later, entry, self.leg_entry[rows])
-        setting = self.final_mc[rows] if planned else mc
-        self.leg_final_mc[rows] = np.where(later, self.final_mc[rows][:, None], self.leg_final_mc[rows])
-        whole = later | ((j == k[:, None]) & (self.position[rows] <= 0.0)[:, None] & ~self.leg_has_climb[rows])
-        self.leg_final[rows] = whole
-        self.leg_mc[rows] = np.where(whole, setting[:, None], self.leg_mc[rows])
-        self.leg_climb[rows] = np.where(later, np.maximum(self.climb_rate[rows], 0.0)[:, None], self.leg_climb[rows])
-        self.flown_final_from[rows] = self.leg_start[k] + self.position[rows]
-        self.flown_final_height[rows], self.flown_final_mc[rows], self.flown_final_leg[rows] = h, setting, k
-        self.flown_final_sigma[rows] = self.final_sigma[rows] if planned else self.band_sigma[rows]
-        if not planned:  # the glide home's own table, for the requirements on its legs
-            self.final_per_metre[rows], self.final_height_after[rows] = hpm, self._tail(hpm)
-        self.end_time[rows] = t + cumulative_time[:, -1]
-        self.finished[rows], self.reason[rows], self.mode[rows] = True, reason, _DONE
-        if self.trace is not None and rows[0] == 0:
-            self._mark_legs(k[0], h[0] - np.cumsum(used[0]), self.legs - 1, None, "final")
-
-    def _glide_on(self, rows, reason: int) -> None:
-        """No more climbs: glide on at MacCready 0 to the arrival floor; home if it reaches."""
-        if not rows.size:
-            return
-        self.stop_time[rows] = self.time[rows]
-        self._mark(rows, "stop")  # where the climbs stopped: the land-out's field is chosen in reach of it
-        remaining = self._remaining(rows)
-        hpm, gs = self.best_per_metre[rows], self.best_ground_speed[rows]
-        with np.errstate(invalid="ignore"):
-            used = np.where(remaining != 0.0, np.where(np.isfinite(hpm), remaining * hpm, np.inf), 0.0)
-        cumulative = np.cumsum(used, axis=1)
-        available = self.height[rows] - self.floor[rows]
-        if self.ground is not None:  # it glides on only while it keeps the clearance
-            available = np.minimum(available, glide_allowance(
-                self.ground, self.leg_start, self.leg[rows], self.position[rows], self.height[rows], remaining, hpm,
-                cumulative, self.floor[rows]))
-        home = cumulative[:, -1] <= available
-        if home.any():
-            self._final(rows[home], reason, hpm[home], gs[home], np.zeros(int(home.sum())))
-        out = ~home
-        if self.fields is not None and out.any():  # no terrain: down to the field it reaches
-            landing = rows[out]
-            x0 = (self.leg_start[self.leg[landing]] + self.position[landing]) / self.detour
-            floor, field = field_floor(
-                self.fields, x0, self.course_deg[self.leg[landing]], self.height[landing], remaining[out], hpm[out],
-                cumulative[out], polar_rows(self.band_polar, landing), self.inputs["wind_from_deg"][landing],
-                self.inputs["wind_speed_ms"][landing], self.airmass[landing], self.inputs["arrival_margin_m"][landing],
-                self.detour)
-            found = field >= 0
-            # never past the finish: a field below the finish's floor still ends the glide short of it
-            lower = np.minimum(self.height[landing] - floor, np.nextafter(cumulative[out][:, -1], -np.inf))
-            available[out] = np.where(found, lower, available[out])
-            self.landout_field[landing] = field
-        self._land_between(rows[out], reason, remaining[out], hpm[out], gs[out], cumulative[out], available[out])
-
-    def _land_between(self, rows, reason, remaining, hpm, gs, cumulative, available) -> None:
-        """Flights gliding at MacCready 0 that reach the floor before the finish land there."""
-        if not rows.size:
-            return
-        k = self.leg[rows]
-        j = np.arange(self.legs)[None, :]
-        beyond = (cumulative > available[:, None]) & (j >= k[:, None])
-        land_leg = np.argmax(beyond, axis=1)
-        line = np.arange(rows.size)
-        before = np.where(land_leg > 0, cumulative[line, np.maximum(land_leg - 1, 0)], 0.0)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            into = (available - before) / hpm[line, land_leg]
-        into = np.clip(np.nan_to_num(into, nan=0.0), 0.0, remaining[line, land_leg])
-        flown = np.where(j < land_leg[:, None], remaining, 0.0)
-        flown[line, land_leg] = into
-        with np.errstate(invalid="ignore"):
-            time = np.where(flown != 0.0, flown / gs, 0.0)
-        ahead = (j >= k[:, None]) & (j <= land_leg[:, None])
-        self.leg_time[rows] = np.where(ahead, np.nan_to_num(self.leg_time[rows]) + time, self.leg_time[rows])
-        done = (j >= k[:, None]) & (j < land_leg[:, None])
-        self.leg_arrival[rows] = np.where(done, self.height[rows][:, None] - cumulative, self.leg_arrival[rows])
-        entered = (j > k[:, None]) & (j <= land_leg[:, None])
-        entry = self.time[rows][:, None] + np.cumsum(time, axis=1) - time
-        self.leg_entry[rows] = np.where(entered, entry, self.leg_entry[rows])
-        self.leg_final_mc[rows] = np.where(entered, self.final_mc[rows][:, None], self.leg_final_mc[rows])
-        self.landout_at[rows] = self.leg_start[land_leg] + np.where(land_leg == k, self.position[rows], 0.0) + into
-        self.landout_leg[rows] = land_leg
-        if self.trace is not None and rows[0] == 0:
-            self._mark_legs(k[0], self.height[0] - cumulative[0], land_leg[0], float(self.landout_at[0]), "glide",
-                            float(self.height[0] - (before[0] + into[0] * hpm[0, land_leg[0]])))
-        self.end_time[rows] = self.time[rows] + time.sum(axis=1)
-        self.reason[rows], self.mode[rows] = reason, _DONE
-
-    def _mark_legs(self, k, height_after, last, end_m, phase, end_height=None) -> None:
-        """Record the first flight's vertices at the leg ends it glides past, from leg ``k`` to
-        ``last`` (the finish), or to ``end_m`` [m along the course] on leg ``last``."""
-        for j in range(int(k), int(last) + 1):
-            if end_m is not None and j == last:
-                self.trace.append((end_m / self.detour, end_height, phase))
-            else:
-                self.trace.append((float(self.leg_start[j + 1]) / self.detour, float(height_after[j]), phase))
-
-    def _landed(self, rows, reason: int) -> None:
-        """Flights that land where they are: a search for a climb down to its floor, terrain above the
-        band top, or a flight the core could not resolve."""
-        if not rows.size:
-            return
-        self.stop_time[rows] = self.time[rows]
-        self.landout_at[rows] = self.leg_start[self.leg[rows]] + self.position[rows]
-        self.landout_leg[rows] = self.leg[rows]
-        self.end_time[rows] = self.time[rows]
-        self.reason[rows], self.mode[rows] = reason, _DONE
-
-    def give_up(self) -> None:
-        rows = np.flatnonzero(self.mode != _DONE)
-        self._landed(rows, UNRESOLVED)
-
-    def leg_requirements(self):
-        """Required height at each leg's start reached [m MSL], shape (N, L).
-
-        Legs entered in the final glide take it from the final glide's own table, so the
-        requirement there is what that glide plans to pass with. The others are what a final
-        glide from the leg's start would need at the setting in force then, with the density
-        of its own start and arrival heights (one solve for all of them).
-        """
-        reached = np.isfinite(self.leg_entry) & np.isfinite(self.leg_final_mc)
-        gliding_home = np.arange(self.legs)[None, :] > self.flown_final_leg[:, None]
-        gliding_home &= (self.flown_final_leg >= 0)[:, None] & reached
-        required = np.full((self.n, self.legs), np.nan)
-        pairs = np.argwhere(gliding_home)
-        if pairs.size:
-            rows, legs = pairs[:, 0], pairs[:, 1]
-            required[rows, legs] = self.required(rows, legs, np.zeros(rows.size))
-        pairs = np.argwhere(reached & ~gliding_home)
-        if pairs.size:
-            rows, legs = pairs[:, 0], pairs[:, 1]
-            zero = np.zeros(rows.size)
-            hpm, _, tail, _ = self.final_table(rows, legs, zero, self.leg_final_mc[rows, legs])
-            required[rows, legs] = self.required(rows, legs, zero, hpm, tail)
-        return required
-
-    def leg_speeds(self):
-        """Airspeed, heading and ground speed in each leg's glides, and its cruise speed, at
-        the settings the leg was flown with, shape (N, L) each (see :class:`Flown`)."""
-        inputs, every = self.inputs, np.arange(self.n)
-        climb, mc, final = self.leg_climb, self.leg_mc, self.leg_final
-        airmass = self.airmass[:, None]
-        band = polar_rows(self.band_polar, every)
-        cruise = cruise_in_wind(band, climb, self.wind_along, self.wind_across, airmass, np.maximum(np.nan_to_num(mc), 0.0),
-                                *self._climb_wind())
-        v, fraction = np.asarray(cruise.airspeed_ms), np.asarray(cruise.glide_fraction)
-        with np.errstate(invalid="ignore", divide="ignore"):
-            # air velocity across the course in the glides (contract 3)
-            drift_fix = self._cycle_drift_fix(self.wind_across, fraction, self.climb_across)
-            cruise_ground = np.asarray(ground_speed(v, self.wind_along, drift_fix))
-        cruise_heading = np.mod(self.course_deg[None, :] - np.asarray(correction_angle_deg(v, drift_fix)), 360.0)
-        sigma = np.where(np.isfinite(self.flown_final_sigma), self.flown_final_sigma, density_ratio(0.0))
-        final_polar = polar_rows(scaled_polar(self.spec, inputs["mass_kg"], inputs["bugs_percent"], sigma), every)
-        final_along, final_across = self.wind_along, self.wind_across
-        if self.aloft.varies:  # the final glide's wind at its middle height, where one was flown
-            flown = self.flown_final_leg >= 0
-            mid = density_height_m(np.where(flown, self.flown_final_height, inputs["band_top_m"]), self.floor)
-            final_along, final_across = (np.where(flown[:, None], x, y) for x, y in zip(
-                self.aloft.at(every, mid), (self.wind_along, self.wind_across)))
-        pure = glide_in_wind(final_polar, np.where(final, np.nan_to_num(mc), 0.0), final_along, final_across, airmass)
-        best = glide_in_wind(band, 0.0, self.wind_along, self.wind_across, airmass)
-        pure_heading = _heading(self.course_deg, pure.airspeed_ms, final_across)
-        best_heading = _heading(self.course_deg, best.airspeed_ms, self.wind_across)
-        no_climb = ~(climb > 0.0)  # a glide with no climb ahead (before the lift starts): best glide
-
-        def pick(final_value, best_value, cruise_value):
-            return np.where(final, final_value, np.where(no_climb, best_value, cruise_value))
-
-        shape = (self.n, self.legs)
-        return (np.broadcast_to(pick(pure.airspeed_ms, best.airspeed_ms, v), shape).copy(),
-                np.broadcast_to(pick(pure_heading, best_heading, cruise_heading), shape).copy(),
-                np.broadcast_to(pick(pure.ground_speed_ms, best.ground_speed_ms, cruise_ground), shape).copy(),
-                np.broadcast_to(np.asarray(cruise.cruise_speed_ms, dtype=float), shape).copy())
-
-    def result(self, detail: bool = True) -> dict:
-        """The fields of :class:`glidetask.engine.flight.Flown` (``detail``: see :func:`~glidetask.engine.flight.fly`)."""
-        start = self.inputs["start_time_s"]
-        finish = np.where(self.finished, self.end_time, np.nan)
-        required = self.leg_requirements() if detail else np.full((self.n, self.legs), np.nan)
-        speeds = self.leg_speeds() if detail else tuple(np.full((self.n, self.legs), np.nan) for _ in range(4))
-        return dict(
-            finished=self.finished.copy(), reason=self.reason.copy(), total_time_s=self.end_time - start,
-            finish_time_s=finish, end_time_s=self.end_time.copy(), stop_time_s=self.stop_time.copy(),
-            landout_m=np.where(self.finished, np.nan, self.landout_at / self.detour),
-            landout_leg=np.where(self.finished, -1, self.landout_leg),
-            landout_field=np.where(self.finished, -1, self.landout_field),
-            final_glide_from_m=self.flown_final_from / self.detour, final_glide_height_m=self.flown_final_height.copy(),
-            final_glide_mc_ms=self.flown_final_mc.copy(), final_glide_sigma=self.flown_final_sigma.copy(),
-            final_glide_leg=self.flown_final_leg.copy(), climbs=self.climbs.copy(),
-            last_climb_end_s=self.last_climb_end.copy(), leg_time_s=self.leg_time.copy(),
-            leg_entry_time_s=self.leg_entry.copy(), leg_arrival_height_m=self.leg_arrival.copy(),
-            leg_required_height_m=required, leg_climb_ms=self.leg_climb.copy(),
-            leg_mc_ms=self.leg_mc.copy(), leg_final=self.leg_final.copy(), leg_airspeed_ms=speeds[0],
-            leg_heading_deg=speeds[1], leg_ground_speed_ms=speeds[2], leg_cruise_speed_ms=speeds[3],
-        )
-
-
-def _heading(course_deg, airspeed_ms, across_ms):
-    """The heading that holds each leg's course with this crosswind [deg true] (the wind
-    triangle, :func:`glidetask.engine.wind.heading_for_course`); NaN where it cannot."""
-    v = np.asarray(airspeed_ms, dtype=float)
-    across = np.asarray(across_ms, dtype=float)
-    angle = correction_angle_deg(v, across)
-    return np.mod(np.asarray(course_deg, dtype=float)[None, :] - np.asarray(angle), 360.0)
+        rows, leg = rows[~last], leg[~last] + 1
+        self.leg[rows], self.position[rows] = leg, 0.0
+        self.leg_entry[rows, leg] = self.time[rows]
+        self.leg_time[rows, leg] = 0.0
+        self.leg_final_mc[rows, leg] = self.final_mc[rows]
+        self.leg_climb[rows, leg], self.leg_mc[rows, leg] = np.maximum(self.climb_rate[rows], 0.0), self.cycle_mc[rows]
 
 
 class _InFlownMetres:
@@ -623,8 +386,9 @@ class _InFlownMetres:
         self.hook, self.detour = hook, detour
 
     def contact(self, start_m, height_m, per_metre, limit_m, above_m):
-        d = self.hook.contact(start_m / self.detour, height_m, per_metre * self.detour, limit_m / self.detour, above_m)
-        return d * self.detour
+        distance = self.hook.contact(start_m / self.detour, height_m, per_metre * self.detour, limit_m / self.detour,
+                                     above_m)
+        return distance * self.detour
 
     def top(self, position_m, band_top_m, per_metre):
         return self.hook.top(position_m / self.detour, band_top_m, per_metre * self.detour)

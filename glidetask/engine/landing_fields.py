@@ -2,7 +2,7 @@
 
 Without terrain the ground under the course is unknown; the landable fields are the only
 ground known. A flight whose climbs stop before its final glide glides on along the task
-at MacCready 0 (:meth:`glidetask.engine.flight_simulation.Simulation._glide_on`). Each
+at MacCready 0 (:meth:`glidetask.engine.flight_endings.FlightEndings._glide_on`). Each
 landable field ``f`` in reach from where the climbs stopped (at best glide in the cruise
 wind, arriving the arrival margin above it) gives the glide an end: the point along the
 task where the glide's height comes down to the field's elevation plus the margin. The

@@ -3,12 +3,13 @@
 :func:`corridor` builds the flight core's hook for one planned path: the terrain hook (if
 any) plus a :class:`glidetask.engine.flight_ground.Ceiling`, the band top lowered to each
 volume's floor minus ``[safety] airspace_margin_m`` where the path runs under it
-(:func:`glidetask.engine.airspace.band_top_cap`). The core climbs only to that top there
-(and low enough before it that the glide enters under it). Where the capped top falls to
-the band bottom or below there is no room to fly under the volume: the core keeps the band
-(a conflict is a legal problem for the pilot to solve, not a physics limit) and
+(:func:`glidetask.engine.airspace_conflicts.band_top_cap`). The core climbs only to that
+top there (and low enough before it that the glide enters under it). Where the capped top
+falls to the band bottom or below there is no room to fly under the volume: the core keeps
+the band (a conflict is a legal problem for the pilot to solve, not a physics limit) and
 :func:`airspace_check` reports it, with every other stretch of the planned profile inside a
-volume (:func:`glidetask.engine.airspace.conflicts`, on the crossings the corridor found), the final glide included.
+volume (:func:`glidetask.engine.airspace_conflicts.conflicts`, on the crossings the corridor
+found), the final glide included.
 
 AGL limits stand on the terrain model, or on the nearest turnpoint's elevation without one
 (the check says so).
@@ -20,7 +21,9 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from glidetask.engine.airspace import AirspaceCheck, band_top_cap, conflicts, nearest_point_ground, path_stretches
+from glidetask.engine.airspace import nearest_point_ground
+from glidetask.engine.airspace_conflicts import AirspaceCheck, band_top_cap, conflicts
+from glidetask.engine.airspace_crossings import path_stretches
 from glidetask.engine.flight_ground import Ceiling
 
 SPACING_M = 250.0  # the path is sampled this often for the airspace [m]

@@ -394,7 +394,7 @@ class Scenario:
     source: str | None = None
     turnpoints_file: str | None = None
     #: Where the day came from when the task file names a sounding
-    #: (:class:`glidetask.engine.sounding.DaySource`); None for a typed day. The plan
+    #: (:class:`glidetask.engine.sounding_inputs.DaySource`); None for a typed day. The plan
     #: flies ``day`` only; this is for showing and saving the source.
     day_source: object = None
     airspace: object | None = field(default=None, compare=False)  # read from airspace_file (compared)

@@ -225,11 +225,11 @@ def _polygon(rings, label: str, where: str, problems: ProblemCollector, checked:
         return None
     if len(out) > 1:
         outline = out[0]
-        from glidetask.engine.airspace import _even_odd
+        from glidetask.engine.airspace import even_odd_inside
 
         edges = np.hstack([outline[:-1], outline[1:]])
         for r, hole in enumerate(out[1:], start=1):
-            if not _even_odd(edges, hole[:-1, 0], hole[:-1, 1]).all():
+            if not even_odd_inside(edges, hole[:-1, 0], hole[:-1, 1]).all():
                 problems.add(where, f"{label}hole {r} is not inside the outline")
     return tuple(out)
 

@@ -231,7 +231,7 @@ WIND_ABOVE_TOP_M = 1000.0
 
 def derived_day_markdown(source, unit) -> list[str]:
     """The "Day from the sounding" section for a plan whose day comes from a sounding
-    (:class:`glidetask.engine.sounding.DaySource`): where it comes from, the hourly table
+    (:class:`glidetask.engine.sounding_inputs.DaySource`): where it comes from, the hourly table
     (surface temperature and dew point, thermal top, cloud base or blue, the band, w* and
     thermal strength), the lift, the wind profile through the band and the sounding's
     cautions, in ``unit``. Empty for a typed day."""

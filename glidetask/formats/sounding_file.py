@@ -29,13 +29,8 @@ from pathlib import Path
 
 import numpy as np
 
-from glidetask.engine.sounding import (
-    DEFAULT_BAND_BOTTOM_AGL_M,
-    DEFAULT_BAND_TOP_MARGIN_M,
-    Sounding,
-    SoundingTooShortError,
-    SurfaceForecast,
-)
+from glidetask.engine.forecast import Sounding, SurfaceForecast
+from glidetask.engine.sounding import DEFAULT_BAND_BOTTOM_AGL_M, DEFAULT_BAND_TOP_MARGIN_M, SoundingTooShortError
 from glidetask.errors import InputError, Problem, ProblemCollector
 from glidetask.formats.files import file_problem, read_text
 from glidetask.formats.toml_reader import TomlReader, show

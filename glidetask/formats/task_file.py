@@ -477,7 +477,7 @@ def _day_settings(reader: _Reader, table: dict) -> dict | None:
 
 def _day(reader: _Reader, table: dict, source=None, sounding_failed: bool = False) -> Day | None:
     """The [day] table as a Day; with a sounding (``source``, a
-    :class:`glidetask.engine.sounding.DaySource`) the keys it derives may be left out, and
+    :class:`glidetask.engine.sounding_inputs.DaySource`) the keys it derives may be left out, and
     typed ones override them. ``sounding_failed``: the sounding's problems are reported
     already, so the keys it would have given are not reported missing."""
     reader.unknown(table, "[day]", DAY_KEYS)
@@ -517,7 +517,7 @@ def _day_source(reader: _Reader, document: dict, path) -> tuple[object, bool]:
     day = document.get("day")
     if not isinstance(day, dict) or "sounding" not in day:
         return None, False
-    from glidetask.engine.sounding import DaySource, NoWorkingBandError, day_inputs, no_lift_inputs
+    from glidetask.engine.sounding_inputs import DaySource, NoWorkingBandError, day_inputs, no_lift_inputs
     from glidetask.formats.sounding_file import derive_task_day
 
     try:

@@ -314,7 +314,28 @@ def _plain_features(features: list) -> list:
 
 def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
     """Turnpoints from GeoJSON text (see the module docstring); InputError with every problem."""
+    features = _geojson_features(text, file)
+    plain = _plain_features(features)
+    if plain and not [None for point in plain if point is None] and _unique(plain):
+        return tuple(plain)  # the usual case: every feature well-formed, names and codes unique
     problems = ProblemCollector(file)
+    points: list[tuple[str | int, Turnpoint]] = []
+    for number, (feature, point) in enumerate(zip(features, plain), start=1):
+        if point is not None:
+            points.append((number, point))
+            continue
+        where, point = _careful_feature(feature, number, problems)
+        if point is not None:
+            points.append((where, point))
+    if not features:
+        problems.add("features", "the file has no turnpoints")
+    _check_unique(problems, points)
+    problems.raise_if_any()
+    return tuple(point for _, point in points)
+
+
+def _geojson_features(text: str, file: str) -> list:
+    """The features of a GeoJSON FeatureCollection; InputError when the text is not one."""
     try:
         document = json.loads(text)
     except json.JSONDecodeError as error:
@@ -328,55 +349,47 @@ def parse_geojson(text: str, file: str = "<geojson>") -> tuple[Turnpoint, ...]:
     features = document.get("features")
     if not isinstance(features, list):
         raise InputError.one(file, "features", "expected a list of features")
-    plain = _plain_features(features)
-    if plain and not [None for point in plain if point is None] and _unique(plain):
-        return tuple(plain)  # the usual case: every feature well-formed, names and codes unique
-    points: list[tuple[str | int, Turnpoint]] = []
-    for number, (feature, point) in enumerate(zip(features, plain), start=1):
-        if point is not None:
-            points.append((number, point))
-            continue
-        where = f"feature {number}"
-        if not isinstance(feature, dict) or feature.get("type") != "Feature":
-            problems.add(where, "expected a GeoJSON Feature object")
-            continue
-        properties = feature.get("properties")
-        if not isinstance(properties, dict):
-            problems.add(where, "expected a properties object with at least a name")
-            continue
-        name = properties.get("name")
-        if isinstance(name, str) and name.strip():
-            where = f"{where} ({name.strip()})"
-        fields = _Fields(problems, where)
-        geometry = feature.get("geometry")
-        coordinates = geometry.get("coordinates") if isinstance(geometry, dict) else None
-        if not isinstance(geometry, dict) or geometry.get("type") != "Point":
-            fields.fail("geometry must be a Point")
-            coordinates = None
-        elif not isinstance(coordinates, list) or len(coordinates) not in (2, 3):
-            fields.fail("Point coordinates must be [lon, lat] or [lon, lat, elevation_m]")
-            coordinates = None
-        lon, lat = (coordinates[0], coordinates[1]) if coordinates else (None, None)
-        elevation = properties.get("elevation_m")
-        if coordinates and len(coordinates) == 3:
-            third = fields.number("third coordinate", coordinates[2])
-            if elevation is None:
-                elevation = third
-            elif third is not None and _finite(elevation) and abs(third - float(elevation)) > 0.5:
-                fields.fail(f"elevation_m {_show(elevation)} disagrees with the third coordinate {third:g}")
-        elif elevation is None and coordinates:
-            fields.fail("elevation_m is required (a property or the third coordinate)")
-        point = _turnpoint(fields, name, properties.get("code"), lat, lon, elevation,
-                           properties.get("landable"), properties.get("kind"),
-                           properties.get("runway_heading_deg"), properties.get("runway_length_m"),
-                           properties.get("note"))
-        if point is not None:
-            points.append((where, point))
-    if not features:
-        problems.add("features", "the file has no turnpoints")
-    _check_unique(problems, points)
-    problems.raise_if_any()
-    return tuple(point for _, point in points)
+    return features
+
+
+def _careful_feature(feature, number: int, problems: ProblemCollector) -> tuple[str, Turnpoint | None]:
+    """``(where, turnpoint)`` of a feature the quick path refused, every problem with it added
+    to ``problems`` (the turnpoint None when it has one)."""
+    where = f"feature {number}"
+    if not isinstance(feature, dict) or feature.get("type") != "Feature":
+        problems.add(where, "expected a GeoJSON Feature object")
+        return where, None
+    properties = feature.get("properties")
+    if not isinstance(properties, dict):
+        problems.add(where, "expected a properties object with at least a name")
+        return where, None
+    name = properties.get("name")
+    if isinstance(name, str) and name.strip():
+        where = f"{where} ({name.strip()})"
+    fields = _Fields(problems, where)
+    geometry = feature.get("geometry")
+    coordinates = geometry.get("coordinates") if isinstance(geometry, dict) else None
+    if not isinstance(geometry, dict) or geometry.get("type") != "Point":
+        fields.fail("geometry must be a Point")
+        coordinates = None
+    elif not isinstance(coordinates, list) or len(coordinates) not in (2, 3):
+        fields.fail("Point coordinates must be [lon, lat] or [lon, lat, elevation_m]")
+        coordinates = None
+    lon, lat = (coordinates[0], coordinates[1]) if coordinates else (None, None)
+    elevation = properties.get("elevation_m")
+    if coordinates and len(coordinates) == 3:
+        third = fields.number("third coordinate", coordinates[2])
+        if elevation is None:
+            elevation = third
+        elif third is not None and _finite(elevation) and abs(third - float(elevation)) > 0.5:
+            fields.fail(f"elevation_m {_show(elevation)} disagrees with the third coordinate {third:g}")
+    elif elevation is None and coordinates:
+        fields.fail("elevation_m is required (a property or the third coordinate)")
+    point = _turnpoint(fields, name, properties.get("code"), lat, lon, elevation,
+                       properties.get("landable"), properties.get("kind"),
+                       properties.get("runway_heading_deg"), properties.get("runway_length_m"),
+                       properties.get("note"))
+    return where, point
 
 
 # ---------------------------------------------------------------- CSV

@@ -20,7 +20,8 @@ import time
 import numpy as np
 from wholeprocess import ROOT, bench_against_baseline
 
-from glidetask.engine.airspace import Airspace, check_path
+from glidetask.engine.airspace import Airspace
+from glidetask.engine.airspace_conflicts import check_path
 from glidetask.engine.plan import plan
 from glidetask.formats.airspace_file import read_airspace
 from glidetask.formats.task_file import load_scenario

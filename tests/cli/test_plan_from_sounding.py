@@ -11,7 +11,7 @@ import pytest
 
 from glidetask import cautions, units
 from glidetask.cli import main
-from glidetask.engine.sounding import DERIVED_KEYS, day_inputs
+from glidetask.engine.sounding_inputs import DERIVED_KEYS, day_inputs
 from glidetask.formats.sounding_file import load_derived_day
 from glidetask.formats.task_file import load_scenario
 from glidetask.units import KMH, format_clock

@@ -19,9 +19,10 @@ from scipy.integrate import quad
 from shapely.geometry import LineString, Point, Polygon
 
 from glidetask.engine import geodesy
-from glidetask.engine.airspace import (Airspace, Limit, Volume, band_top_cap, check_path, conflicts,
-                                       flight_level_msl_m, limit_msl_m, limits_along, nearest_point_ground,
-                                       path_stretches)
+from glidetask.engine.airspace import (Airspace, Limit, Volume, flight_level_msl_m, limit_msl_m, limits_along,
+                                       nearest_point_ground)
+from glidetask.engine.airspace_conflicts import band_top_cap, check_path, conflicts
+from glidetask.engine.airspace_crossings import path_stretches
 from glidetask.engine.atmosphere import isa_pressure
 
 WGS84 = Geodesic.WGS84

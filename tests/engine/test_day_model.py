@@ -87,7 +87,8 @@ def test_plan_and_odds_on_the_forecast_day_agree_for_every_ballast(demo):
     # day exactly and must agree with `plan`): the climbs of the task file's loading are turned
     # into thermal strengths once, and every other ballast climbs as the circling model says.
     from glidetask.engine.plan import plan
-    from glidetask.engine.simulate import DaySpread, simulate_days
+    from glidetask.engine.day_spread import DaySpread
+    from glidetask.engine.simulate import simulate_days
 
     odds = simulate_days(demo, runs=3, seed=1, ballasts_kg=BALLASTS, spread=DaySpread.none())
     for ballast, choice in zip(BALLASTS, odds.choices):

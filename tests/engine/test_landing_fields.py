@@ -13,7 +13,8 @@ from glidetask.engine.compare import planned_route
 from glidetask.engine.flight import course_for, fly, flights_for
 from glidetask.engine.landing_fields import LandingFields
 from glidetask.engine.plan import plan
-from glidetask.engine.simulate import DaySpread, simulate_days
+from glidetask.engine.day_spread import DaySpread
+from glidetask.engine.simulate import simulate_days
 from glidetask.engine.turnpoint import Turnpoint
 from tests.engine.test_plan import ELEVATION, HOME, OUT_AND_RETURN, band_polar, scenario
 

@@ -13,7 +13,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from glidetask.engine.airspace import path_stretches
+from glidetask.engine.airspace_crossings import path_stretches
 from glidetask.engine.plan import plan
 from glidetask.formats.task_file import load_scenario
 
@@ -103,7 +103,8 @@ def test_the_odds_of_one_forecast_day_land_out_where_the_plan_does(triangle):
     # with no spread every simulated day is the forecast, so every one lands out where the plan does.
     from glidetask.engine.compare import planned_route, stack_flights
     from glidetask.engine.flight import course_for, flights_for, fly
-    from glidetask.engine.simulate import DaySpread, simulate_days
+    from glidetask.engine.day_spread import DaySpread
+    from glidetask.engine.simulate import simulate_days
 
     scenario = triangle.scenario
     day = dataclasses.replace(scenario.day, lift_ends_s=scenario.day.start_time_s + 2.0 * 3600.0)

@@ -10,9 +10,10 @@ import numpy as np
 import pytest
 
 from glidetask.engine import simulate
+from glidetask.engine.day_spread import DaySpread, day_search_mean_m, draw_days, stretched_profiles
 from glidetask.engine.plan import plan
 from glidetask.engine.scenario import Profile
-from glidetask.engine.simulate import DaySpread, draw_days, simulate_days, stretched_profiles
+from glidetask.engine.simulate import simulate_days
 from glidetask.errors import InputError
 from glidetask.formats.task_file import load_scenario
 
@@ -101,7 +102,7 @@ def test_the_same_days_for_every_ballast_choice(demo):
 
 
 def test_days_follow_the_stated_spread(demo):
-    # Source: the spread documented in engine/simulate.py (our planning assumptions).
+    # Source: the spread documented in engine/day_spread.py (our planning assumptions).
     # Tolerances: five standard errors of each estimate at 200,000 draws.
     s = demo["triangle-300"]
     spread = DaySpread(bad_day_probability=0.0)  # the bad days on their own below
@@ -115,7 +116,7 @@ def test_days_follow_the_stated_spread(demo):
     assert np.std(days.lift_ends_s) == pytest.approx(1800.0, abs=5 * 1800.0 / math.sqrt(2 * n))
     assert np.mean(days.lift_ends_s) == pytest.approx(s.day.lift_ends_s, abs=5 * 1800.0 / math.sqrt(n))
     assert np.mean(days.search_unit) == pytest.approx(1.0, abs=5 / math.sqrt(days.search_unit.size))
-    assert np.all(days.search_mean_m == pytest.approx(simulate.day_search_mean_m(s) / days.climb_factor))
+    assert np.all(days.search_mean_m == pytest.approx(day_search_mean_m(s) / days.climb_factor))
     assert np.all(days.wind_speed_ms >= 0.0)
 
 
@@ -212,11 +213,11 @@ def test_the_search_distance_comes_from_the_convective_layer(demo):
     assert given.spread.thermal_search_mean_m == 2000.0 and math.isnan(given.search_layer_m)
     # A deeper layer: thermals further apart (the same thermal density per layer depth and radius).
     deep = dataclasses.replace(s, day=dataclasses.replace(s.day, ground_m=s.day.ground_m - 600.0))
-    assert simulate.day_search_mean_m(deep) == pytest.approx((zi + 600.0) / 1.2)
+    assert day_search_mean_m(deep) == pytest.approx((zi + 600.0) / 1.2)
 
 
 def test_bad_days_end_the_lift_one_to_two_hours_early(demo):
-    # Source: the bad-day mode documented in engine/simulate.py (our planning assumption,
+    # Source: the bad-day mode documented in engine/day_spread.py (our planning assumption,
     # common practice): one day in ten, the lift ends early by a time drawn evenly in 1-2 h.
     # Tolerances: five standard errors at 100,000 draws (binomial share; uniform mean,
     # sd 3600/sqrt(12) s).

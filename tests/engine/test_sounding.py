@@ -14,24 +14,26 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from glidetask.engine import convection, forecast
 from glidetask.engine import sounding as snd
+from glidetask.engine import sounding_inputs
 
 RD = 287.04749  # J/(kg K), MetPy's dry-air gas constant (Source: metpy.constants.Rd)
 G = 9.80665
 
 
 def analytic_sounding(surface_m=300.0, surface_c=15.0, lapse_k_per_km=6.5, spread_c=8.0, top_m=6000.0,
-                      step_m=100.0) -> snd.Sounding:
+                      step_m=100.0) -> forecast.Sounding:
     heights = np.arange(surface_m, top_m + 0.5 * step_m, step_m)
     lapse = lapse_k_per_km / 1000.0
     temperature = surface_c + 273.15 - lapse * (heights - surface_m)
     pressure = 97000.0 * (temperature / temperature[0]) ** (G / (RD * lapse))
-    return snd.Sounding(pressure, heights, temperature, temperature - spread_c,
+    return forecast.Sounding(pressure, heights, temperature, temperature - spread_c,
                         np.full(heights.shape, 270.0), np.linspace(3.0, 15.0, heights.size))
 
 
-def surface(times_h, temperatures, dewpoints) -> snd.SurfaceForecast:
-    return snd.SurfaceForecast(tuple(3600.0 * t for t in times_h), tuple(temperatures), tuple(dewpoints))
+def surface(times_h, temperatures, dewpoints) -> forecast.SurfaceForecast:
+    return forecast.SurfaceForecast(tuple(3600.0 * t for t in times_h), tuple(temperatures), tuple(dewpoints))
 
 
 def test_thermal_top_on_a_constant_lapse_rate_matches_the_dry_adiabat_by_hand():
@@ -112,8 +114,8 @@ def test_wstar_on_a_worked_case_by_hand():
     # Source: Deardorff (1970), w* = (g/theta * zi * flux)^(1/3). By hand: g = 9.80665,
     # theta = 300 K, zi = 1500 m, flux = 0.2 K m/s: 9.80665/300 * 1500 * 0.2 = 9.80665,
     # whose cube root is 2.1405 m/s (to 5 figures).
-    assert snd.convective_velocity_scale(0.2, 1500.0, 300.0) == pytest.approx(2.1405, abs=5e-5)
-    assert snd.convective_velocity_scale(-0.1, 1500.0, 300.0) == 0.0
+    assert convection.convective_velocity_scale(0.2, 1500.0, 300.0) == pytest.approx(2.1405, abs=5e-5)
+    assert convection.convective_velocity_scale(-0.1, 1500.0, 300.0) == 0.0
 
 
 def test_encroachment_heat_content_in_a_linear_theta_profile():
@@ -123,7 +125,7 @@ def test_encroachment_heat_content_in_a_linear_theta_profile():
     # the integral on a 5 m grid.
     heights = np.array([0.0, 1000.0, 2000.0, 3000.0])
     theta = 300.0 + 4e-3 * heights
-    heat = snd.encroachment_heat_content(np.array([306.0, 300.0]), heights, theta, 0.0)
+    heat = convection.encroachment_heat_content(np.array([306.0, 300.0]), heights, theta, 0.0)
     assert heat[0] == pytest.approx(0.5 * 4e-3 * 1500.0 ** 2, rel=0.005)
     assert heat[1] == 0.0
 
@@ -272,7 +274,7 @@ def test_day_inputs_are_the_derived_day_rounded_as_a_pilot_types_it():
     # bottom, hourly strength (0.01 m/s) with one hour of no lift each side, the lift's end
     # down to the minute, the band's mean wind (WindProfile.mean_between).
     derived = _afternoon(26.0)
-    inputs = snd.day_inputs(derived)
+    inputs = sounding_inputs.day_inputs(derived)
     band = np.isfinite(derived.band_top_m)
     assert inputs.band_top.times_s == tuple(derived.times_s[band])
     assert inputs.band_top.values == tuple(float(round(v)) for v in derived.band_top_m[band])
@@ -291,8 +293,8 @@ def test_day_inputs_are_the_derived_day_rounded_as_a_pilot_types_it():
 def test_a_day_without_a_working_band_gives_the_plan_nothing():
     sounding = analytic_sounding(surface_c=15.0, lapse_k_per_km=3.0, spread_c=10.0)
     derived = snd.derive_day(sounding, surface([10, 16], [15.5, 16.0], [5.0, 5.0]))  # never triggers
-    with pytest.raises(snd.NoWorkingBandError):
-        snd.day_inputs(derived)
+    with pytest.raises(sounding_inputs.NoWorkingBandError):
+        sounding_inputs.day_inputs(derived)
 
 
 def test_a_day_without_a_working_band_flies_with_no_lift():
@@ -300,11 +302,11 @@ def test_a_day_without_a_working_band_flies_with_no_lift():
     # common practice) unless a start height is typed, with no thermal strength at all.
     sounding = analytic_sounding(surface_c=15.0, lapse_k_per_km=3.0, spread_c=10.0)
     derived = snd.derive_day(sounding, surface([10, 16], [15.5, 16.0], [5.0, 5.0]))  # never triggers
-    inputs = snd.no_lift_inputs(derived, 12 * 3600.0)
+    inputs = sounding_inputs.no_lift_inputs(derived, 12 * 3600.0)
     assert inputs.no_lift and inputs.band_bottom_m == round(derived.surface_elevation_m + 600.0)
     assert inputs.thermal_strength.values == (0.0,) and inputs.band_top_m > inputs.band_bottom_m
     assert inputs.lift_ends_s > 12 * 3600.0
-    typed = snd.no_lift_inputs(derived, 12 * 3600.0, 1800.0)
+    typed = sounding_inputs.no_lift_inputs(derived, 12 * 3600.0, 1800.0)
     assert typed.band_top_m == 1800.0 and typed.band_bottom_m == inputs.band_bottom_m
 
 

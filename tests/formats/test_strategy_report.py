@@ -13,7 +13,8 @@ from glidetask import cautions
 from glidetask.engine.compare import BallastSweep
 from glidetask.engine.plan import Notice
 from glidetask.engine.sensitivity import Sensitivity, SensitivityRow
-from glidetask.engine.simulate import ChoiceOdds, DaySpread, Odds, SpacingOdds
+from glidetask.engine.day_spread import DaySpread
+from glidetask.engine.simulate import ChoiceOdds, Odds, SpacingOdds
 from glidetask.formats import strategy_report as report
 from glidetask.units import AVIATION, KMH, KNOT
 
