@@ -17,7 +17,6 @@ import json
 import math
 import os
 from itertools import chain
-from pathlib import Path
 
 import numpy as np
 

@@ -235,8 +235,8 @@ def read_day_sounding(document: dict, task_path: str | os.PathLike) -> DaySoundi
             reader.add("[day] sounding", f"no such file: {path}")
     surface = None
     if "surface" not in day:
-        reader.add("[day] surface", f"missing key: a sounding needs the surface forecast, "
-                                    f"[[\"HH:MM\", temperature_c, dewpoint_c], ...]")
+        reader.add("[day] surface", "missing key: a sounding needs the surface forecast, "
+                                    "[[\"HH:MM\", temperature_c, dewpoint_c], ...]")
     else:
         surface = _surface(reader, day["surface"])
     elevation = reader.number(day, "[day]", "surface_elevation_m", low=-500.0, high=9000.0)

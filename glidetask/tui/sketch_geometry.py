@@ -76,7 +76,7 @@ def build_sketch(task, *, path=None, landables=(), final_glide_at=None, airspace
     """Project the task's zones, its path (``(lats, lons)``, default centre to centre), the
     landables (Turnpoints), the final-glide start (``(lat, lon)``) and the outlines of the
     ``airspace`` volumes near the task (marked by the plan's ``check``, an
-    ``engine.airspace.AirspaceCheck``) into the local frame."""
+    ``engine.airspace_conflicts.AirspaceCheck``) into the local frame."""
     from glidetask.engine.zones import boundary
 
     centre_lat, centre_lon = task_centre(task.lats, task.lons)
