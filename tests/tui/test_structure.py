@@ -95,7 +95,7 @@ def test_the_drawing_widgets_declare_their_inputs_as_reactives():
     from glidetask.tui.widgets.terrain_profile import TerrainProfile
 
     inputs = {
-        LegsTable: ("plan", "units", "codes", "compact"), PlanTotals: ("plan", "units", "stale"),
+        LegsTable: ("plan", "units", "codes", "compact", "full_names"), PlanTotals: ("plan", "units", "stale"),
         PointsTable: ("shown_task", "units", "compact"), TaskSketch: ("sketch", "units"), CoverageStrip: ("plan",),
         GlideVerdict: ("answer", "units", "plan_note", "problems"), TerrainProfile: ("check", "units", "note"),
         GliderFigures: ("card", "units"), PolarPlot: ("card", "units"), SpeedToFlyCard: ("card", "units"),

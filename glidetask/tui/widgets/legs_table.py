@@ -109,6 +109,7 @@ class LegsTable(DataTable):
     units: var[UnitSystem] = var(METRIC, init=False)
     codes: var[dict] = var(dict, init=False)  # turnpoint names -> short codes for the Leg column
     compact = var(False, init=False)  # a narrow screen: IAS is left out (the Glider view's card and the calculator show it)
+    full_names = var(False, init=False)  # a wide screen: the Leg column names the turnpoints in full, as the CLI does
 
     def shown_columns(self) -> tuple:
         return tuple(c for c in COLUMNS if not (self.compact and c[0] in NARROW_LEAVES_OUT))
@@ -120,6 +121,9 @@ class LegsTable(DataTable):
         self._draw()
 
     def watch_compact(self) -> None:
+        self._draw()
+
+    def watch_full_names(self) -> None:
         self._draw()
 
     def watch_plan(self) -> None:
@@ -147,8 +151,10 @@ class LegsTable(DataTable):
         short = landout_leg(plan)
         for index, leg in enumerate(plan.legs):
             mark = "◆" if index == marked else " "
-            start, end = (codes.get(name) or name[:8] for name in (leg.from_name, leg.to_name))
-            cells = [Text(f"{mark}{index + 1} {start}→{end}", no_wrap=True)]
+            start, end = ((name if self.full_names else codes.get(name) or name[:8])
+                          for name in (leg.from_name, leg.to_name))
+            arrow = " → " if self.full_names else "→"
+            cells = [Text(f"{mark}{index + 1} {start}{arrow}{end}", no_wrap=True)]
             for key, attribute, _, kind in self.shown_columns()[1:]:
                 value = getattr(leg, attribute)
                 above = attribute == "required_height_m" and value > plan.scenario.day.band_top_m + 1e-6
