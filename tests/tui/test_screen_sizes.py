@@ -70,3 +70,24 @@ async def test_a_60_column_view_bar_shows_whole_names_or_keys_only(acknowledged,
         assert all(text == str(i) for i, text in enumerate(shown, start=1) if i - 1 != active)
         state = app.screen.query_one("#view-bar-state")
         assert inside_screen(app, state) and "metric" in str(state.render())
+
+
+async def test_the_fields_in_reach_fit_their_panel_and_survive_a_resize(acknowledged):
+    app = make_app(paths.demo_task())
+    async with app.run_test(size=(200, 60)) as pilot:
+        await settle(pilot)
+        await pilot.press("5")
+        await settle(pilot, 6)
+        table = app.screen.query_one("#alternates-table")
+        also = str(table.get_cell("alt-0", "also"))
+        assert "Gorbeck Lea 3.0" in also  # wide: the fields by name
+        await pilot.resize_terminal(120, 40)
+        await settle(pilot, 6)
+        # 120 columns: names would run off the panel ("Bramblehithe F"), so the fields go by their codes
+        assert table.virtual_size.width <= table.scrollable_content_region.width
+        assert str(table.get_cell("alt-0", "also")) == "GBL 3.0, TCF 13.1"
+        await pilot.resize_terminal(80, 24)
+        await settle(pilot, 6)
+        lines = screen_lines(app)
+        # a line drawn before the widths settled is drawn again: the reason whole, not "no"
+        assert any(line.rstrip().endswith("13.9  no field within a glide") for line in lines), "\n".join(lines)

@@ -11,9 +11,9 @@ import math
 
 from rich.text import Text
 from textual.reactive import var
-from textual.widgets import DataTable
 
 from glidetask.tui import display
+from glidetask.tui.widgets.settled_table import SettledTable
 from glidetask.units import METRIC, UnitSystem
 
 COLUMNS = (  # key (the contract's name where it has one), LegPlan attribute, header, kind;
@@ -95,7 +95,7 @@ def final_glide_leg(legs, final_from_m: float | None) -> int | None:
     return len(legs) - 1 if legs and final_from_m >= start - 1e-6 else None
 
 
-class LegsTable(DataTable):
+class LegsTable(SettledTable):
     """Legs of the plan; the leg where the final glide starts is marked ◆."""
 
     def __init__(self, **kwargs):
@@ -167,17 +167,6 @@ class LegsTable(DataTable):
                 else:
                     cells.append(Text(gap + ("above" if above else cell_text(kind, value, units)), justify="right"))
             self.add_row(*cells, key=f"leg-{index + 1}")
-
-    def on_idle(self) -> None:
-        # Textual 8's DataTable widens its columns for new rows when idle, without
-        # invalidating lines it already drew: a header drawn in between kept the old widths
-        # (seen under load). Once the widths are settled, draw every line afresh.
-        if self._require_update_dimensions:
-            self.call_later(self._redraw_with_settled_widths)
-
-    def _redraw_with_settled_widths(self) -> None:
-        self._clear_caches()
-        self.refresh()
 
     def cell(self, row: int, key: str) -> str:
         """The text in leg ``row`` (0-based), column ``key`` (for tests and screen readers)."""
