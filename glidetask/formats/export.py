@@ -54,9 +54,11 @@ def same_file_as(target: str | os.PathLike, files) -> str | os.PathLike | None:
 
 def input_files(scenario) -> list[str]:
     """Every file a task reads: the task file and each file it names (polar, turnpoints,
-    terrain, and any other ``*_file`` the scenario carries, such as airspace or a sounding)."""
+    terrain, and any other ``*_file`` the scenario carries, such as airspace), and the
+    sounding the day is derived from (``scenario.day_source.sounding_file``)."""
     files = [scenario.source, getattr(scenario.glider, "polar_file", None)]
     files += [value for name, value in vars(scenario).items() if name.endswith("_file")]
+    files.append(getattr(getattr(scenario, "day_source", None), "sounding_file", None))
     return [os.fspath(f) for f in files if isinstance(f, (str, os.PathLike)) and f]
 
 

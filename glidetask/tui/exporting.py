@@ -14,15 +14,12 @@ FORMATS = {".gpx": "GPX 1.1 route", ".md": "pre-flight briefing (Markdown)", ".j
 
 def files_the_task_reads(scenario, *, task_file: bool = True) -> list[str]:
     """Every file the scenario reads: :func:`glidetask.formats.export.input_files` (the task
-    file with ``task_file``, the polar, turnpoints, terrain, airspace) and its sounding."""
+    file with ``task_file``, the polar, turnpoints, terrain, airspace, the sounding)."""
     from glidetask.formats.export import input_files
 
     files = input_files(scenario)
     if not task_file and scenario.source:
         files = [f for f in files if f != os.fspath(scenario.source)]
-    sounding = getattr(getattr(scenario, "day_source", None), "sounding_file", None)
-    if sounding:
-        files.append(os.fspath(sounding))
     return files
 
 

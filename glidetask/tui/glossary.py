@@ -21,6 +21,8 @@ GLOSSARY: tuple[tuple[str, str], ...] = (
     ("Task speed", "the task's distance divided by its time"),
     ("Final glide", "the last glide, to the finish without another climb"),
     ("ABOVE / BELOW final glide", "height to spare over, or short of, the height needed to reach the goal"),
+    ("Core", "a thermal's strength on its axis, where no glider flies; the circle flown rises less"),
+    ("Netto", "the air's own rise or sink: the variometer's reading less the glider's own sink"),
     ("Working band", "the heights between which the pilot climbs and glides (band bottom to band top)"),
     ("STF", "speed to fly in still air at a MacCready setting"),
     ("L/D", "glide ratio: distance covered per height lost"),

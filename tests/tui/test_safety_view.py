@@ -33,7 +33,8 @@ def cells(table, row: int) -> list[str]:
 async def test_safety_view_says_what_glidetask_plan_says(units, acknowledged):
     printed = printed_plan(paths.demo_task(), units)
     app = make_app(paths.demo_task(), units)
-    async with app.run_test(size=(120, 40)) as pilot:
+    # wide enough for the fields by name (narrower, the table names them by their codes: test_screen_sizes)
+    async with app.run_test(size=(200, 60)) as pilot:
         await settle(pilot)
         await pilot.press("5")
         await settle(pilot)

@@ -61,9 +61,8 @@ async def test_widgets_take_the_plan_through_reactives(acknowledged):
 
 
 # Widgets that draw engine figures: each takes them through reactive attributes. The form
-# field stays imperative by design (its docstring says why); the Compare and Odds widgets
-# (strategy_sweep, strategy_odds) are converted with those views.
-IMPERATIVE = {"form_field.py", "strategy_sweep.py", "strategy_odds.py"}
+# field stays imperative by design (its docstring says why).
+IMPERATIVE = {"form_field.py"}
 
 
 def test_no_widget_is_drawn_through_a_show_method():
@@ -90,11 +89,13 @@ def test_the_drawing_widgets_declare_their_inputs_as_reactives():
     from glidetask.tui.widgets.safety_panels import (AirspacePanel, AlternatesTable, CoverageSummary, GapsTable,
                                                      TerrainSummary)
     from glidetask.tui.widgets.stf_card import SpeedToFlyCard
+    from glidetask.tui.widgets.strategy_odds import FinishPlot, LandoutsTable, OddsTable, ProbabilityBars
+    from glidetask.tui.widgets.strategy_sweep import SweepPlot, SweepTable
     from glidetask.tui.widgets.task_sketch import TaskSketch
     from glidetask.tui.widgets.terrain_profile import TerrainProfile
 
     inputs = {
-        LegsTable: ("plan", "units", "codes", "compact"), PlanTotals: ("plan", "units", "stale"),
+        LegsTable: ("plan", "units", "codes", "compact", "full_names"), PlanTotals: ("plan", "units", "stale"),
         PointsTable: ("shown_task", "units", "compact"), TaskSketch: ("sketch", "units"), CoverageStrip: ("plan",),
         GlideVerdict: ("answer", "units", "plan_note", "problems"), TerrainProfile: ("check", "units", "note"),
         GliderFigures: ("card", "units"), PolarPlot: ("card", "units"), SpeedToFlyCard: ("card", "units"),
@@ -102,6 +103,9 @@ def test_the_drawing_widgets_declare_their_inputs_as_reactives():
         ProfileEditor: ("day", "units"), ProfileFacts: ("plan", "units"), AirspacePanel: ("plan", "units"),
         CoverageSummary: ("plan", "units"), GapsTable: ("plan", "units"), TerrainSummary: ("plan", "units"),
         AlternatesTable: ("plan", "units", "codes", "narrow"),
+        SweepTable: ("sweep", "units", "width_available", "radii_m", "sizes"), SweepPlot: ("sweep", "units"),
+        ProbabilityBars: ("odds", "pending"), OddsTable: ("odds", "pending"), LandoutsTable: ("odds", "codes"),
+        FinishPlot: ("odds",),
     }
     for widget, names in inputs.items():
         for name in names:

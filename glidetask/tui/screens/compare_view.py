@@ -190,9 +190,14 @@ class CompareView(ViewScreen):
         scenario = self._computed_for.scenario
         self._show_parts(True)
         self.query_one("#sweep-panel").border_title = TABLE_TITLE if self.size.width >= 100 else TABLE_TITLE_NARROW
-        self.query_one(SweepTable).show(sweep, units, width=self.size.width - 4, radii_m=self._radii_m(), sizes=sized)
+        table = self.query_one(SweepTable)
+        table.units, table.width_available, table.radii_m = units, self.size.width - 4, self._radii_m()
+        table.sizes = sized
+        table.sweep = sweep
         self.query_one("#sweep-sizes-source", Static).update(sizes_source(scenario, units))
-        self.query_one(SweepPlot).show(sweep, units)
+        plot = self.query_one(SweepPlot)
+        plot.units = units
+        plot.sweep = sweep
         lines = [Text(sweep_verdict(sweep, units), style="bold #8cc66d"), Text("")]
         if sized is not None:
             lines += [Text(line) for line in thermal_size_verdicts(sized, units)] + [Text("")]

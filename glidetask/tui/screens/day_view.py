@@ -6,8 +6,9 @@ from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
 from textual.widgets import Static
 
-from glidetask.tui import edits
+from glidetask.tui import edits, messages
 from glidetask.tui.screens.base import ViewScreen
+from glidetask.tui.widgets.circling_figures import CirclingFigures
 from glidetask.tui.widgets.day_plot import DayPlot
 from glidetask.tui.widgets.form_field import FormField
 from glidetask.tui.widgets.profile_editor import ProfileEditor
@@ -67,6 +68,7 @@ class DayView(ViewScreen):
                                         placeholder=placeholder)
                     if panel_id == "day-practice":
                         yield Static(id="day-practice-note", classes="dim", markup=False)
+            yield CirclingFigures(id="day-circling", classes="panel day-panel")
             yield Static(id="day-sounding", classes="panel day-panel", markup=False)
         with Vertical(id="day-right"):
             yield ProfileEditor(id="profile-editor", classes="panel")
@@ -78,6 +80,8 @@ class DayView(ViewScreen):
         self.query_one("#profile-editor").border_title = "Lift through the day"
         self.query_one("#day-plot").border_title = "The day"
         self.query_one("#day-sounding").border_title = "The day from the sounding"
+        # a refused input: the circling card says it is for the last valid one
+        self.watch(self.app, "invalid_fields", self._invalid_changed)
 
     def show_scenario(self, scenario, *, force: bool = False) -> None:
         units = self.app.units
@@ -90,7 +94,24 @@ class DayView(ViewScreen):
         editor.units = units
         editor.day = scenario.day
         self._show_sounding(scenario)
+        self._show_circling(scenario)
         self._draw_plot()
+
+    def _show_circling(self, scenario) -> None:
+        """The best circle in the day's strongest thermals for the glider as loaded."""
+        from glidetask.engine.circling_card import day_circling
+
+        widget = self.query_one(CirclingFigures)
+        try:
+            card = day_circling(scenario)
+        except ValueError as error:
+            self.post_message(messages.Notice(f"circling: {error}"))
+            return
+        widget.units, widget.mass_kg = self.app.units, float(scenario.glider.mass_kg)
+        widget.card = card
+
+    def _invalid_changed(self, invalid) -> None:
+        self.query_one(CirclingFigures).stale = bool(invalid)
 
     def _show_sounding(self, scenario) -> None:
         """The sounding and the band through the day when the day comes from a sounding

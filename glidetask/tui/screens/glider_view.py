@@ -5,6 +5,7 @@ from __future__ import annotations
 from textual import on
 from textual.app import ComposeResult
 from textual.containers import Vertical, VerticalScroll
+from textual.widgets import Static
 
 from glidetask.tui import derived, display, edits, messages
 from glidetask.tui.screens.base import ViewScreen
@@ -30,6 +31,7 @@ class GliderView(ViewScreen):
     def compose_body(self) -> ComposeResult:
         with VerticalScroll(id="glider-left"):
             with Vertical(id="glider-loading", classes="panel"):
+                yield Static(id="glider-label", markup=False)  # the polar's own name, wrapped (never cut)
                 for field_id, label, unit in LOADING_FIELDS:
                     yield FormField(field_id, label, unit)
                 yield FormField(ALTITUDE_FIELD, "Figures at height", "m", placeholder="mid band",
@@ -50,8 +52,8 @@ class GliderView(ViewScreen):
         for field_id, _, _ in LOADING_FIELDS:
             self.query_one(f"#{field_id}").parent.show(edits.field_text(scenario, field_id, units), force=force)
         spec = scenario.glider.spec
-        self.query_one("#glider-loading").border_subtitle = (
-            f"{spec.label} · ballast up to {spec.max_ballast_kg:g} kg")
+        self.query_one("#glider-label", Static).update(spec.label)
+        self.query_one("#glider-loading").border_subtitle = f"ballast up to {spec.max_ballast_kg:g} kg"
         altitude_text = "" if self.altitude_m is None else display.number(units.height(self.altitude_m), 0)
         self.query_one(f"#{ALTITUDE_FIELD}").parent.show(altitude_text, units.height_label, force=force)
         self._draw(scenario)

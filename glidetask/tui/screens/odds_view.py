@@ -278,8 +278,7 @@ class OddsView(ViewScreen):
             return
         self._show_parts(True, partial=True)
         self.query_one("#odds-bars").border_subtitle = f"{odds.runs} days · seed {odds.seed}"
-        self.query_one(ProbabilityBars).show(odds, pending)
-        self.query_one(OddsTable).show(odds, pending)
+        self._show_odds(odds, pending)
         self._draw_assumptions(odds)
 
     def _draw(self) -> None:
@@ -289,13 +288,19 @@ class OddsView(ViewScreen):
         self._show_parts(True)
         self._field("odds-ballasts").show(", ".join(f"{c.ballast_kg:g}" for c in odds.choices))
         self.query_one("#odds-bars").border_subtitle = f"{odds.runs} days · seed {odds.seed}"
-        self.query_one(ProbabilityBars).show(odds)
-        self.query_one(OddsTable).show(odds)
+        self._show_odds(odds)
         scenario = self.app.scenario
-        codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
-        self.query_one(LandoutsTable).show(odds, codes)
-        self.query_one(FinishPlot).show(odds)
+        landouts = self.query_one(LandoutsTable)
+        landouts.codes = {t.name: t.code for t in scenario.turnpoints if t.code} if scenario is not None else {}
+        landouts.odds = odds
+        self.query_one(FinishPlot).odds = odds
         self._draw_assumptions(odds)
+
+    def _show_odds(self, odds, pending: tuple[float, ...] = ()) -> None:
+        """The bars and the table: the ballasts still being flown first, then the odds so far."""
+        for widget in (self.query_one(ProbabilityBars), self.query_one(OddsTable)):
+            widget.pending = tuple(pending)
+            widget.odds = odds
 
     def _draw_assumptions(self, odds) -> None:
         from glidetask.formats.strategy_report import assumption_text

@@ -48,6 +48,7 @@ class SafetyView(ViewScreen):
         self.query_one("#safety-airspace").border_title = "Airspace along the task"
         self.query_one("#terrain-summary").border_title = "Final glide over the terrain"
         self.query_one("#safety-profile").border_title = "The planned final glide"
+        self.query_one("#safety-cautions").border_title = "Cautions"  # shown on a narrow screen's rule
 
     _narrow = False
 

@@ -16,6 +16,8 @@ from glidetask.tui.widgets.points_table import PointsTable, role
 from glidetask.tui.widgets.task_sketch import TaskSketch
 from glidetask.tui.widgets.view_bar import NARROW
 
+FULL_NAMES = 160  # from this width the legs table names the turnpoints in full (the codes need a key)
+
 
 def point_along(lats, lons, distance_m: float) -> tuple[float, float] | None:
     """The point ``distance_m`` along a polyline of geodesics (None if beyond its end)."""
@@ -64,6 +66,7 @@ class TaskView(ViewScreen):
     # ------------------------------------------------------------ showing
 
     def on_resize(self, event) -> None:
+        self.query_one(LegsTable).full_names = event.size.width >= FULL_NAMES
         compact = event.size.width < NARROW
         # the whole legend only where the border holds it: never cut mid-word
         self.query_one("#legs-table").border_subtitle = LEGEND if event.size.width >= len(LEGEND) + 8 else LEGEND_NARROW

@@ -11,9 +11,9 @@ import math
 
 from rich.text import Text
 from textual.reactive import var
-from textual.widgets import DataTable
 
 from glidetask.tui import display
+from glidetask.tui.widgets.settled_table import SettledTable
 from glidetask.units import METRIC, UnitSystem
 
 COLUMNS = (  # key (the contract's name where it has one), LegPlan attribute, header, kind;
@@ -95,7 +95,7 @@ def final_glide_leg(legs, final_from_m: float | None) -> int | None:
     return len(legs) - 1 if legs and final_from_m >= start - 1e-6 else None
 
 
-class LegsTable(DataTable):
+class LegsTable(SettledTable):
     """Legs of the plan; the leg where the final glide starts is marked ◆."""
 
     def __init__(self, **kwargs):
@@ -109,6 +109,7 @@ class LegsTable(DataTable):
     units: var[UnitSystem] = var(METRIC, init=False)
     codes: var[dict] = var(dict, init=False)  # turnpoint names -> short codes for the Leg column
     compact = var(False, init=False)  # a narrow screen: IAS is left out (the Glider view's card and the calculator show it)
+    full_names = var(False, init=False)  # a wide screen: the Leg column names the turnpoints in full, as the CLI does
 
     def shown_columns(self) -> tuple:
         return tuple(c for c in COLUMNS if not (self.compact and c[0] in NARROW_LEAVES_OUT))
@@ -120,6 +121,9 @@ class LegsTable(DataTable):
         self._draw()
 
     def watch_compact(self) -> None:
+        self._draw()
+
+    def watch_full_names(self) -> None:
         self._draw()
 
     def watch_plan(self) -> None:
@@ -147,8 +151,10 @@ class LegsTable(DataTable):
         short = landout_leg(plan)
         for index, leg in enumerate(plan.legs):
             mark = "◆" if index == marked else " "
-            start, end = (codes.get(name) or name[:8] for name in (leg.from_name, leg.to_name))
-            cells = [Text(f"{mark}{index + 1} {start}→{end}", no_wrap=True)]
+            start, end = ((name if self.full_names else codes.get(name) or name[:8])
+                          for name in (leg.from_name, leg.to_name))
+            arrow = " → " if self.full_names else "→"
+            cells = [Text(f"{mark}{index + 1} {start}{arrow}{end}", no_wrap=True)]
             for key, attribute, _, kind in self.shown_columns()[1:]:
                 value = getattr(leg, attribute)
                 above = attribute == "required_height_m" and value > plan.scenario.day.band_top_m + 1e-6
@@ -161,17 +167,6 @@ class LegsTable(DataTable):
                 else:
                     cells.append(Text(gap + ("above" if above else cell_text(kind, value, units)), justify="right"))
             self.add_row(*cells, key=f"leg-{index + 1}")
-
-    def on_idle(self) -> None:
-        # Textual 8's DataTable widens its columns for new rows when idle, without
-        # invalidating lines it already drew: a header drawn in between kept the old widths
-        # (seen under load). Once the widths are settled, draw every line afresh.
-        if self._require_update_dimensions:
-            self.call_later(self._redraw_with_settled_widths)
-
-    def _redraw_with_settled_widths(self) -> None:
-        self._clear_caches()
-        self.refresh()
 
     def cell(self, row: int, key: str) -> str:
         """The text in leg ``row`` (0-based), column ``key`` (for tests and screen readers)."""

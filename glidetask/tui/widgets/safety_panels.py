@@ -11,10 +11,11 @@ from __future__ import annotations
 from rich.console import Group
 from rich.text import Text
 from textual.reactive import var
-from textual.widgets import DataTable, Static
+from textual.widgets import Static
 
 from glidetask import cautions
 from glidetask.tui import display
+from glidetask.tui.widgets.settled_table import SettledTable
 from glidetask.units import METRIC, UnitSystem
 
 GOOD, DOUBT, BAD = "bold #8cc66d", "bold #e0b15a", "bold #e06c5a"
@@ -80,7 +81,7 @@ class CoverageSummary(_PlanPanel, Static):
              f"{units.fmt_height(c.margin_m)} above the field{terrain}", "dim")))
 
 
-class GapsTable(_PlanPanel, DataTable):
+class GapsTable(_PlanPanel, SettledTable):
     """The stretches of the task with no field in reach, and why."""
 
     def __init__(self, **kwargs):
@@ -103,7 +104,7 @@ class GapsTable(_PlanPanel, DataTable):
                          why, key=f"gap-{index}")
 
 
-class AlternatesTable(_PlanPanel, DataTable):
+class AlternatesTable(_PlanPanel, SettledTable):
     """The nearest field in reach leg by leg, how far off track, and the others."""
 
     codes: var[dict] = var(dict, init=False)  # turnpoint names -> short codes
@@ -118,26 +119,49 @@ class AlternatesTable(_PlanPanel, DataTable):
     def watch_narrow(self) -> None:
         self._draw()
 
+    def on_resize(self, event) -> None:
+        if event.size.width != getattr(self, "_drawn_width", None):
+            self._draw()  # full names where they fit, codes where they would be cut
+
     def _draw(self) -> None:
         plan = self.plan
         if plan is None:
             return
         self.clear(columns=True)
-        units, c, codes = self.units, _checked(plan), self.codes
+        units, c = self.units, _checked(plan)
         if c is None:
             return
         d = units.distance_label
-        for key, label in (("leg", "Leg"), ("nearest", "Nearest"), ("distance", f"Off track {d}"), ("also", "Also")):
+        heads = ("Leg", "Nearest", f"Off track {d}", "Also")
+        rows = self._rows(plan, c, short=self.narrow)
+        room = self.scrollable_content_region.width
+        if not self.narrow and room and self._width(heads, rows) > room:
+            rows = self._rows(plan, c, short=True)  # the fields by their codes rather than cut mid-name
+        self._drawn_width = self.size.width
+        for key, label in zip(("leg", "nearest", "distance", "also"), heads):
             self.add_column(label, key=key)
-        for index, entry in enumerate(c.by_leg):
+        for index, (leg, nearest, distance, also) in enumerate(rows):
+            self.add_row(leg, nearest or Text("none in reach", style=BAD), Text(distance, justify="right"), also,
+                         key=f"alt-{index}")
+
+    def _rows(self, plan, c, *, short: bool) -> list[tuple[str, str | None, str, str]]:
+        """(leg, nearest field or None, off track, the others) for each leg; ``short``: fields
+        by their codes."""
+        units, codes = self.units, self.codes
+        name_of = (lambda name: codes.get(name) or name) if short else (lambda name: name)
+        rows = []
+        for entry in c.by_leg:
             start, end = plan.legs[entry.leg].from_name, plan.legs[entry.leg].to_name
             leg = f"{entry.leg + 1} {codes.get(start) or start}→{codes.get(end) or end}"
-            short = (lambda name: codes.get(name) or name) if self.narrow else (lambda name: name)
-            also = ", ".join(f"{short(name)} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
-            nearest = short(entry.nearest) if entry.nearest else None
-            self.add_row(leg, nearest or Text("none in reach", style=BAD),
-                         Text(display.distance(units, entry.distance_m), justify="right"), also,
-                         key=f"alt-{index}")
+            also = ", ".join(f"{name_of(name)} {display.distance(units, metres)}" for name, metres in entry.alternates[1:])
+            rows.append((leg, name_of(entry.nearest) if entry.nearest else None,
+                         display.distance(units, entry.distance_m), also))
+        return rows
+
+    def _width(self, heads, rows) -> int:
+        """The characters the table needs: each column's widest cell and its padding."""
+        cells = [heads] + [tuple(cell or "none in reach" for cell in row) for row in rows]
+        return sum(max(len(row[i]) for row in cells) + 2 * self.cell_padding for i in range(len(heads)))
 
 
 class TerrainSummary(_PlanPanel, Static):

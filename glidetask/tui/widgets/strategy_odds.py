@@ -1,8 +1,8 @@
 """The simulated days shown: finishing odds as bars, task-time percentiles, land-outs by
 leg and why (engine/simulate.py).
 
-Each widget holds the engine's ``Odds`` in a reactive attribute set by the Odds view and
-draws it in a ``watch_`` method. The bars and the percentiles also draw a partial result
+Each widget holds the engine's ``Odds`` in a reactive attribute set by the Odds view (its
+other inputs first, ``odds`` last) and draws it in ``watch_`` methods. The bars and the percentiles also draw a partial result
 (the ballast choices flown so far) with the choices still to come marked as computing.
 """
 
@@ -36,18 +36,20 @@ class ProbabilityBars(Static):
     ProbabilityBars { height: auto; }
     """
 
-    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
-    pending: var[tuple[float, ...]] = var(())  # ballast choices [kg] still being flown
-
-    def show(self, odds, pending: tuple[float, ...] = ()) -> None:
-        """Set what to show and draw it once."""
-        self.set_reactive(ProbabilityBars.pending, tuple(pending))
-        self.odds = odds
+    odds = var(None, always_update=True, init=False)  # the engine's Odds (None: nothing yet)
+    pending: var[tuple[float, ...]] = var((), init=False)  # ballast choices [kg] still being flown
 
     def on_resize(self) -> None:
-        self.watch_odds(self.odds)
+        self._draw()
 
-    def watch_odds(self, odds) -> None:
+    def watch_odds(self) -> None:
+        self._draw()
+
+    def watch_pending(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        odds = self.odds
         if odds is None:
             return
         # "1234 kg " bar " 100.0 % ± 0.1": the bar takes what the figures leave
@@ -79,18 +81,20 @@ class OddsTable(DataTable):
     COLUMNS = (("ballast", "Water kg"), ("finish", "Finish %"), ("se", "± %"), ("p10", "10 %"),
                ("p50", "50 %"), ("p90", "90 %"), ("forecast", "Forecast"))
 
-    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
-    pending: var[tuple[float, ...]] = var(())  # ballast choices [kg] still being flown
+    odds = var(None, always_update=True, init=False)  # the engine's Odds (None: nothing yet)
+    pending: var[tuple[float, ...]] = var((), init=False)  # ballast choices [kg] still being flown
 
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
-    def show(self, odds, pending: tuple[float, ...] = ()) -> None:
-        """Set what to show and draw it once."""
-        self.set_reactive(OddsTable.pending, tuple(pending))
-        self.odds = odds
+    def watch_odds(self) -> None:
+        self._draw()
 
-    def watch_odds(self, odds) -> None:
+    def watch_pending(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        odds = self.odds
         if odds is None or not self.is_mounted:
             return
         self.clear(columns=True)
@@ -114,18 +118,20 @@ class LandoutsTable(DataTable):
     LandoutsTable { height: auto; }
     """
 
-    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
-    codes: var[dict] = var(dict)  # turnpoint names -> short codes for the Leg column
+    odds = var(None, always_update=True, init=False)  # the engine's Odds (None: nothing yet)
+    codes: var[dict] = var(dict, init=False)  # turnpoint names -> short codes for the Leg column
 
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", zebra_stripes=True, **kwargs)
 
-    def show(self, odds, codes: dict[str, str] | None = None) -> None:
-        """Set what to show and draw it once; ``codes`` maps turnpoint names to short codes."""
-        self.set_reactive(LandoutsTable.codes, dict(codes or {}))
-        self.odds = odds
+    def watch_odds(self) -> None:
+        self._draw()
 
-    def watch_odds(self, odds) -> None:
+    def watch_codes(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        odds = self.odds
         if odds is None or not self.is_mounted:
             return
         codes = self.codes
@@ -147,11 +153,7 @@ class FinishPlot(PlotextPlot):
     """Share of the simulated days on which the task is finished within a given task time,
     one curve per ballast choice (it levels off at the finishing odds)."""
 
-    odds = var(None, always_update=True)  # the engine's Odds (None: nothing yet)
-
-    def show(self, odds) -> None:
-        """Set what to show and draw it once."""
-        self.odds = odds
+    odds = var(None, always_update=True, init=False)  # the engine's Odds (None: nothing yet)
 
     def watch_odds(self, odds) -> None:
         if odds is None:

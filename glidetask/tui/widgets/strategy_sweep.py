@@ -71,36 +71,35 @@ class SweepTable(DataTable):
     (:func:`glidetask.formats.strategy_report.thermal_size_cells`; on a narrow screen only
     every second or third ballast of the times is shown).
 
-    The view sets what to show; :meth:`watch_sweep` and :meth:`watch_sizes` draw it.
+    The view sets what to show (the inputs first, ``sweep`` last); each watcher draws it.
     """
 
     DEFAULT_CSS = """
     SweepTable { height: auto; max-height: 15; }
     """
 
-    sweep = var(None, always_update=True)  # the engine's BallastSweep of the day's thermals (None: nothing yet)
-    units: var[UnitSystem] = var(METRIC)
-    width_available: var[int | None] = var(None)  # characters for the table (None: every column)
-    radii_m: var[dict] = var(dict)  # thermal size -> radius [m] (engine.compare.thermal_size_radii_m)
-    sizes = var(None, always_update=True)  # the sweep with by_thermal_size set (None: still computing)
+    sweep = var(None, always_update=True, init=False)  # the engine's BallastSweep of the day's thermals (None: nothing yet)
+    units: var[UnitSystem] = var(METRIC, init=False)
+    width_available: var[int | None] = var(None, init=False)  # characters for the table (None: every column)
+    radii_m: var[dict] = var(dict, init=False)  # thermal size -> radius [m] (engine.compare.thermal_size_radii_m)
+    sizes = var(None, always_update=True, init=False)  # the sweep with by_thermal_size set (None: still computing)
 
     def __init__(self, **kwargs):
         super().__init__(cursor_type="row", cell_padding=0, zebra_stripes=False, header_height=2, **kwargs)
 
-    def show(self, sweep, units: UnitSystem, width: int | None = None, radii_m: dict | None = None,
-             sizes=None) -> None:
-        """Set what to show and draw it once; ``width``: the characters available (None:
-        every column); ``sizes``: the sweep with the thermal sizes once they are computed."""
-        self.set_reactive(SweepTable.units, units)
-        self.set_reactive(SweepTable.width_available, width)
-        self.set_reactive(SweepTable.radii_m, dict(radii_m or {}))
-        self.set_reactive(SweepTable.sizes, sizes)
-        self.sweep = sweep
-
-    def watch_sweep(self, _sweep) -> None:
+    def watch_sweep(self) -> None:
         self._draw()
 
-    def watch_sizes(self, _sizes) -> None:
+    def watch_units(self) -> None:
+        self._draw()
+
+    def watch_width_available(self) -> None:
+        self._draw()
+
+    def watch_radii_m(self) -> None:
+        self._draw()
+
+    def watch_sizes(self) -> None:
         self._draw()
 
     def size_cells(self) -> list[list[str]]:
@@ -163,20 +162,21 @@ def plotted_strengths(sweep, count: int = PLOT_STRENGTHS) -> list[int]:
 
 class SweepPlot(PlotextPlot):
     """Task time [h] against ballast [kg] for a few thermal strengths; the best marked.
-    The view sets what to show; :meth:`watch_sweep` draws it."""
+    The view sets what to show (``units`` first, ``sweep`` last); each watcher draws it."""
 
-    sweep = var(None, always_update=True)  # the engine's BallastSweep (None: nothing yet)
-    units: var[UnitSystem] = var(METRIC)
+    sweep = var(None, always_update=True, init=False)  # the engine's BallastSweep (None: nothing yet)
+    units: var[UnitSystem] = var(METRIC, init=False)
 
-    def show(self, sweep, units: UnitSystem) -> None:
-        """Set what to show and draw it once."""
-        self.set_reactive(SweepPlot.units, units)
-        self.sweep = sweep
+    def watch_sweep(self) -> None:
+        self._draw()
 
-    def watch_sweep(self, sweep) -> None:
+    def watch_units(self) -> None:
+        self._draw()
+
+    def _draw(self) -> None:
+        sweep, units = self.sweep, self.units
         if sweep is None:
             return
-        units = self.units
         plt = self.plt
         plt.clear_data()
         plt.clear_figure()

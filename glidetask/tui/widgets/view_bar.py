@@ -10,6 +10,7 @@ from glidetask.tui import messages
 
 
 NARROW = 100  # columns below which the bar drops the task's name and the tabs' padding
+TINY = 76  # columns below which the other views show only their keys (the eight names need 75)
 
 
 class ViewTab(Label):
@@ -17,11 +18,14 @@ class ViewTab(Label):
 
     def __init__(self, view: str, text: str, active: bool):
         super().__init__(f" {text} ", classes="view-tab -active" if active else "view-tab", markup=False)
-        self.view, self.text = view, text
+        self.view, self.text, self.active = view, text, active
 
-    def fit(self, narrow: bool) -> None:
-        # narrow: eight views fit 80 columns with "Final glide" as "Final"
+    def fit(self, narrow: bool, tiny: bool = False) -> None:
+        # narrow: eight views fit 80 columns with "Final glide" as "Final"; tiny: the other
+        # views by their keys alone (whole names or none, never a name cut short)
         text = self.text.replace("Final glide", "Final") if narrow else self.text
+        if tiny and not self.active:
+            text = text.split()[0]
         self.update(f"{text} " if narrow else f" {self.text} ")
 
     def on_click(self) -> None:
@@ -51,7 +55,7 @@ class ViewBar(Horizontal):
     def on_resize(self, event) -> None:
         narrow = event.size.width < NARROW
         for tab in self.query(ViewTab):
-            tab.fit(narrow)
+            tab.fit(narrow, event.size.width < TINY)
         self._refresh_label()
 
     def _refresh_label(self, _value=None) -> None:
