@@ -15,6 +15,7 @@ import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.finalglide import density_height_m
+from glidetask.engine.flight_ground import height_used_after
 from glidetask.engine.polar import Polar, scaled_polar
 from glidetask.engine.speedtofly import glide_in_wind, speed_to_fly_still_air
 from glidetask.engine.wind import ground_speed
@@ -35,10 +36,9 @@ class FinalGlideRequirement:
 
 
     def _tail(self, hpm):
-        """Height used from each leg's start to the finish, shape (n, L+1) (0 at the finish)."""
-        used = np.where(self.leg_length == 0.0, 0.0, hpm * self.leg_length)
-        return np.concatenate([np.cumsum(used[..., ::-1], axis=-1)[..., ::-1],
-                               np.zeros(used.shape[:-1] + (1,))], axis=-1)
+        """Height used from each leg's start to the finish, shape (n, L+1) (0 at the finish):
+        :func:`glidetask.engine.flight_ground.height_used_after` over the legs flown."""
+        return height_used_after(hpm, self.leg_length)
 
     def required(self, rows, leg=None, pos=None, hpm=None, tail=None):
         """Required height [m MSL] of flights ``rows`` (n,) at (leg, position in leg): the one
@@ -131,8 +131,14 @@ class FinalGlideRequirement:
         """
         inputs = self.inputs
         line = np.arange(rows.size)
-        first = self._first_estimate(rows, leg, pos, mc_fg)
-        estimate = first if estimate is None else np.where(np.isfinite(estimate), estimate, first)
+        if estimate is None:
+            estimate = self._first_estimate(rows, leg, pos, mc_fg)
+        else:  # the cheap first guess only where there is no estimate (it is per flight: same bits)
+            estimate = np.array(estimate, dtype=float)
+            missing = np.flatnonzero(~np.isfinite(estimate))
+            if missing.size:
+                leg, pos = np.broadcast_to(leg, rows.shape), np.broadcast_to(pos, rows.shape)
+                estimate[missing] = self._first_estimate(rows[missing], leg[missing], pos[missing], mc_fg[missing])
         for attempt in range(2):
             estimate = np.where(np.isfinite(estimate), estimate, inputs["band_top_m"][rows])
             mid = np.asarray(density_height_m(estimate, self.floor[rows]))
