@@ -198,9 +198,10 @@ class GroundFloor:
         does not; 0 when it starts at or below the floor.
 
         The first contact lies in the first stretch between samples whose far end has a
-        positive :meth:`shortfall`, where the shortfall (linear there) crosses 0. Only samples
-        above ``above_m`` (n,) (the glide's own lower stop, the band bottom) can stop it
-        earlier than that stop, so only those are examined.
+        positive :meth:`shortfall`, where the shortfall (linear there) crosses 0. Only stretches
+        with an end above ``above_m`` (n,) (the glide's own lower stop, the band bottom) can
+        stop it earlier than that stop, so only those are examined (a stretch falling from
+        above the stop to below it counts: the glide may meet its floor before the stop).
         """
         start = np.asarray(start_m, dtype=float)
         line = StraightGlide(start, np.asarray(height_m, dtype=float), np.asarray(per_metre, dtype=float))
@@ -208,7 +209,8 @@ class GroundFloor:
         out = np.full(start.shape, np.inf)
         here = line.height_m < self.at(start) - 1e-9
         out[here] = 0.0
-        raised = np.flatnonzero(self._known > np.min(above_m, initial=np.inf))
+        high = self._known > np.min(above_m, initial=np.inf)
+        raised = np.flatnonzero(high | np.concatenate(([False], high[:-1])))  # stretches, by their far ends
         if not raised.size:
             return out
         where = self.distance[raised]

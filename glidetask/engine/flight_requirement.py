@@ -21,11 +21,19 @@ from glidetask.engine.speedtofly import glide_in_wind, speed_to_fly_still_air
 from glidetask.engine.wind import ground_speed
 
 
-def polar_rows(polar: Polar, rows) -> Polar:
-    """The polars of some flights, as a column (n, 1) for broadcasting against legs."""
+#: A final glide from within this share of its leg's start distance of the start counts as
+#: starting there (its table also solves the leg before): far above rounding, far below a metre.
+START_TOLERANCE = 1e-9
+
+
+def polar_rows(polar: Polar, rows, column: bool = True) -> Polar:
+    """The polars of some flights, as a column (n, 1) for broadcasting against legs
+    (``column``), or flat (n,)."""
     def pick(value):
         value = np.asarray(value, dtype=float)
-        return value[rows][:, None] if value.ndim else value
+        if not value.ndim:
+            return value
+        return value[rows][:, None] if column else value[rows]
     return Polar(a=pick(polar.a), b=pick(polar.b), c=pick(polar.c), min_speed_ms=pick(polar.min_speed_ms),
                  vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2,
                  stall_speed_ms=pick(polar.stall_speed_ms))
@@ -130,27 +138,39 @@ class FinalGlideRequirement:
         poor first guess on long glides).
         """
         inputs = self.inputs
-        line = np.arange(rows.size)
+        leg, pos = np.broadcast_to(leg, rows.shape), np.broadcast_to(pos, rows.shape)
         if estimate is None:
             estimate = self._first_estimate(rows, leg, pos, mc_fg)
         else:  # the cheap first guess only where there is no estimate (it is per flight: same bits)
             estimate = np.array(estimate, dtype=float)
             missing = np.flatnonzero(~np.isfinite(estimate))
             if missing.size:
-                leg, pos = np.broadcast_to(leg, rows.shape), np.broadcast_to(pos, rows.shape)
                 estimate[missing] = self._first_estimate(rows[missing], leg[missing], pos[missing], mc_fg[missing])
+        flight, solved = self._legs_ahead(leg, pos)
         for attempt in range(2):
             estimate = np.where(np.isfinite(estimate), estimate, inputs["band_top_m"][rows])
             mid = np.asarray(density_height_m(estimate, self.floor[rows]))
             sigma = np.asarray(density_ratio(mid, inputs["isa_deviation_c"][rows]), dtype=float)
             polar = scaled_polar(self.spec, inputs["mass_kg"][rows], inputs["bugs_percent"][rows], sigma)
             along, across = self._final_wind(rows, mid)
-            glide = glide_in_wind(polar_rows(polar, line), mc_fg[:, None], along, across, self.airmass[rows, None])
-            hpm = np.broadcast_to(glide.height_per_metre, (rows.size, self.legs))
+            glide = glide_in_wind(polar_rows(polar, flight, column=False), mc_fg[flight], along[flight, solved],
+                                  across[flight, solved], self.airmass[rows][flight])
+            hpm, gs = np.zeros((rows.size, self.legs)), np.full((rows.size, self.legs), np.nan)
+            hpm[flight, solved], gs[flight, solved] = glide.height_per_metre, glide.ground_speed_ms
             tail = self._tail(hpm)
             if attempt == 0:  # the next pass's start height, with the terrain's extra: the real start
                 estimate = self.required(rows, leg, pos, hpm, tail)
-        return hpm, np.broadcast_to(glide.ground_speed_ms, hpm.shape), tail, sigma
+        return hpm, gs, tail, sigma
+
+    def _legs_ahead(self, leg, pos):
+        """The (flight, leg) pairs a final glide from (leg, pos) flies: the legs from its own on,
+        and the leg before for a start at (or within a rounding of) its leg's start, which the
+        requirement hook (in metres of the planned path) may place at the end of that leg. The
+        legs behind use no height in the table (and have no ground speed): no glide home from
+        here or further on flies them."""
+        at_start = pos <= START_TOLERANCE * (1.0 + self.leg_start[leg])
+        first = np.maximum(leg - at_start, 0)
+        return np.nonzero(np.arange(self.legs)[None, :] >= first[:, None])
 
     def _final_wind(self, rows, height_m):
         """The final glide's wind along and across each leg, at its middle height (the one
