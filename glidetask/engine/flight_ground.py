@@ -222,12 +222,13 @@ class GroundFloor:
         some = np.flatnonzero(count)  # the glides with a stretch to examine, each a run of pairs
         count = count[some]
         begin = np.cumsum(count) - count
-        glide = np.repeat(some, count)
-        j = raised[np.arange(glide.size) + np.repeat(first[some] - begin, count)]
+        j = raised[np.arange(begin[-1] + count[-1]) + np.repeat(first[some] - begin, count)]
+        # each pair's glide (StraightGlide.height's terms, repeated over its run of pairs)
+        origin, height, per_metre = (np.repeat(value[some], count) for value in line)
         x1 = self.distance[j]
-        x0 = np.maximum(self.distance[np.maximum(j - 1, 0)], start[glide])
-        s0 = self.shortfall(self.at(x0), line.height(glide, x0))
-        s1 = self.shortfall(self._known[j], line.height(glide, x1))
+        x0 = np.maximum(self.distance[np.maximum(j - 1, 0)], origin)
+        s0 = self.shortfall(self.at(x0), height - per_metre * (x0 - origin))
+        s1 = self.shortfall(self._known[j], height - per_metre * (x1 - origin))
         with np.errstate(invalid="ignore", divide="ignore"):
             t = np.where(np.isfinite(s0) & (s0 < 0.0), s0 / (s0 - s1), 0.0)
         x = np.where(s1 > 0.0, x0 + np.clip(t, 0.0, 1.0) * (x1 - x0), np.inf)

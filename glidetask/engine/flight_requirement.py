@@ -56,8 +56,13 @@ class FinalGlideRequirement:
         """
         leg = self.leg[rows] if leg is None else leg
         pos = self.position[rows] if pos is None else pos
-        if hpm is None:
-            hpm, tail = self.final_per_metre[rows], self.final_height_after[rows]
+        if hpm is None:  # the present tables, read where they are (the hook gets the rows it needs)
+            required = (self.floor[rows] + self.final_per_metre[rows, leg] * (self.leg_length[leg] - pos)
+                        + self.final_height_after[rows, leg + 1])
+            if self.requirement_hook is not None:
+                required = required + self._extra(required, self.leg_start[leg] + pos, self.final_per_metre[rows],
+                                                  self.floor[rows])
+            return required
         line = np.arange(rows.size)
         required = self.floor[rows] + hpm[line, leg] * (self.leg_length[leg] - pos) + tail[line, leg + 1]
         if self.requirement_hook is not None:
