@@ -140,7 +140,8 @@ class FinalGlideRequirement:
         the arrival floor, found by two fixed-point passes from ``estimate`` (default a
         cheap first guess). Each pass shrinks the height error about twenty-fold, so the
         density matches the requirement to a few centimetres (a few decimetres from a
-        poor first guess on long glides).
+        poor first guess on long glides). Only the legs the glide flies are solved
+        (:meth:`_legs_ahead`); the legs behind use no height (0) and have no ground speed (NaN).
         """
         inputs = self.inputs
         leg, pos = np.broadcast_to(leg, rows.shape), np.broadcast_to(pos, rows.shape)
