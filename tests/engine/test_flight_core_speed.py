@@ -71,14 +71,14 @@ def test_final_glide_tables_give_the_requirement_of_tables_over_every_leg():
     # Source: the requirement's definition (contract section 3): the floor plus the height used
     # from the point to the finish, each leg at its own height per metre; tables over every leg
     # (the pure requirement of flight_requirement, without the speed-up) give the same bits.
+    from glidetask import paths
     from glidetask.engine.flight import course_for, flights_for
+    from glidetask.engine.flight_requirement import polar_rows
     from glidetask.engine.flight_simulation import Simulation
     from glidetask.engine.plan import plan
-    from glidetask.engine.speedtofly import glide_in_wind
-    from glidetask.engine.flight_requirement import polar_rows
     from glidetask.engine.polar import scaled_polar
+    from glidetask.engine.speedtofly import glide_in_wind
     from glidetask.formats.task_file import load_scenario
-    from glidetask import paths
 
     scenario = load_scenario(paths.demo_task())
     planned = plan(scenario)
