@@ -198,9 +198,10 @@ class GroundFloor:
         does not; 0 when it starts at or below the floor.
 
         The first contact lies in the first stretch between samples whose far end has a
-        positive :meth:`shortfall`, where the shortfall (linear there) crosses 0. Only samples
-        above ``above_m`` (n,) (the glide's own lower stop, the band bottom) can stop it
-        earlier than that stop, so only those are examined.
+        positive :meth:`shortfall`, where the shortfall (linear there) crosses 0. Only stretches
+        with an end above ``above_m`` (n,) (the glide's own lower stop, the band bottom) can
+        stop it earlier than that stop, so only those are examined (a stretch falling from
+        above the stop to below it counts: the glide may meet its floor before the stop).
         """
         start = np.asarray(start_m, dtype=float)
         line = StraightGlide(start, np.asarray(height_m, dtype=float), np.asarray(per_metre, dtype=float))
@@ -208,7 +209,8 @@ class GroundFloor:
         out = np.full(start.shape, np.inf)
         here = line.height_m < self.at(start) - 1e-9
         out[here] = 0.0
-        raised = np.flatnonzero(self._known > np.min(above_m, initial=np.inf))
+        high = self._known > np.min(above_m, initial=np.inf)
+        raised = np.flatnonzero(high | np.concatenate(([False], high[:-1])))  # stretches, by their far ends
         if not raised.size:
             return out
         where = self.distance[raised]
@@ -217,18 +219,21 @@ class GroundFloor:
         count = np.where(here, 0, last - first)
         if not count.any():
             return out
-        glide = np.repeat(np.arange(start.size), count)
-        offset = np.arange(glide.size) - np.repeat(np.cumsum(count) - count, count)
-        j = raised[np.repeat(first, count) + offset]
+        some = np.flatnonzero(count)  # the glides with a stretch to examine, each a run of pairs
+        count = count[some]
+        begin = np.cumsum(count) - count
+        j = raised[np.arange(begin[-1] + count[-1]) + np.repeat(first[some] - begin, count)]
+        # each pair's glide (StraightGlide.height's terms, repeated over its run of pairs)
+        origin, height, per_metre = (np.repeat(value[some], count) for value in line)
         x1 = self.distance[j]
-        x0 = np.maximum(self.distance[np.maximum(j - 1, 0)], start[glide])
-        s0 = self.shortfall(self.at(x0), line.height(glide, x0))
-        s1 = self.shortfall(self._known[j], line.height(glide, x1))
+        x0 = np.maximum(self.distance[np.maximum(j - 1, 0)], origin)
+        s0 = self.shortfall(self.at(x0), height - per_metre * (x0 - origin))
+        s1 = self.shortfall(self._known[j], height - per_metre * (x1 - origin))
         with np.errstate(invalid="ignore", divide="ignore"):
             t = np.where(np.isfinite(s0) & (s0 < 0.0), s0 / (s0 - s1), 0.0)
         x = np.where(s1 > 0.0, x0 + np.clip(t, 0.0, 1.0) * (x1 - x0), np.inf)
         best = np.full(start.size, np.inf)
-        np.minimum.at(best, glide, x)
+        best[some] = np.minimum.reduceat(x, begin)
         return np.minimum(out, best - start)
 
 
@@ -372,7 +377,14 @@ class Ceiling:
     def top(self, position_m, band_top_m, per_metre) -> np.ndarray:
         """The highest a climb at ``position_m`` (n,) may go [m MSL], for flights whose glides
         lose at least ``per_metre`` (n,) [m/m]. Only the lowered samples close enough ahead to
-        matter are examined: beyond ``(band top - lowest top) / per_metre`` none can lower it."""
+        matter are examined: beyond ``(band top - lowest top) / per_metre`` none can lower it.
+
+        Of those, a sample ahead whose top is no lower than that of an earlier sample ahead
+        gives no lower limit (its ``top_k + hpm (s_k - x)`` is at least the earlier one's,
+        rounding included), so only the samples within the spacing behind and the chain of
+        ever lower tops from the first sample ahead (:attr:`_next_lower`) are evaluated: the
+        same minimum of the same terms, in a few vectorised steps.
+        """
         position = np.asarray(position_m, dtype=float)
         top = np.asarray(band_top_m, dtype=float)
         out = top.copy()
@@ -382,13 +394,29 @@ class Ceiling:
         with np.errstate(divide="ignore", invalid="ignore"):
             reach = np.where(slope > 0.0, np.maximum(top - self.top_m.min(), 0.0) / slope, np.inf)
         first = np.searchsorted(self.distance, position - self.spacing, side="left")
+        ahead = np.searchsorted(self.distance, position, side="left")  # the first sample at or after the climb
         last = np.searchsorted(self.distance, position + reach, side="right")
-        count = np.maximum(last - first, 0)
-        if not count.any():
-            return out
-        flight = np.repeat(np.arange(position.size), count)
-        offset = np.arange(flight.size) - np.repeat(np.cumsum(count) - count, count)
-        k = np.repeat(first, count) + offset
-        ahead = np.maximum(self.distance[k] - position[flight], 0.0)
-        np.minimum.at(out, flight, self.top_m[k] + slope[flight] * ahead)
+        for sample, end, following in ((first, np.minimum(ahead, last), None), (ahead, last, self._next_lower)):
+            sample = sample.copy()
+            flights = np.flatnonzero(sample < end)
+            while flights.size:
+                k = sample[flights]
+                climb_to = self.top_m[k] + slope[flights] * np.maximum(self.distance[k] - position[flights], 0.0)
+                out[flights] = np.minimum(out[flights], climb_to)
+                sample[flights] = k + 1 if following is None else following[k]
+                flights = flights[sample[flights] < end[flights]]
         return out
+
+    @cached_property
+    def _next_lower(self) -> np.ndarray:
+        """For each lowered sample, the next one with a lower top (the count when none)."""
+        tops = self.top_m.tolist()
+        following = np.full(len(tops), len(tops), dtype=np.intp)
+        stack: list[int] = []
+        for i in range(len(tops) - 1, -1, -1):
+            while stack and tops[stack[-1]] >= tops[i]:
+                stack.pop()
+            if stack:
+                following[i] = stack[-1]
+            stack.append(i)
+        return following

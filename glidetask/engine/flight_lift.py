@@ -54,14 +54,13 @@ class LiftClock:
 
     def profile(self, rows, time_s):
         """The profile's value (x scale) for flights ``rows`` at their times ``time_s``."""
-        values = self.values[rows] if self.values.shape[0] > 1 else self.values[np.zeros_like(rows)]
+        row = rows if self.values.shape[0] > 1 else np.zeros_like(rows)  # only the two values around each time
         if self.times.size == 1:
-            return values[:, 0] * self.scale[rows]
+            return self.values[row, 0] * self.scale[rows]
         clipped = np.clip(time_s, self.times[0], self.times[-1])
         j = np.clip(np.searchsorted(self.times, clipped, side="right") - 1, 0, self.times.size - 2)
         weight = (clipped - self.times[j]) / (self.times[j + 1] - self.times[j])
-        line = np.arange(rows.size)
-        value = values[line, j] * (1.0 - weight) + values[line, j + 1] * weight
+        value = self.values[row, j] * (1.0 - weight) + self.values[row, j + 1] * weight
         return value * self.scale[rows]
 
     def climb(self, rows, time_s):

@@ -15,16 +15,25 @@ import numpy as np
 
 from glidetask.engine.atmosphere import density_ratio
 from glidetask.engine.finalglide import density_height_m
+from glidetask.engine.flight_ground import height_used_after
 from glidetask.engine.polar import Polar, scaled_polar
 from glidetask.engine.speedtofly import glide_in_wind, speed_to_fly_still_air
 from glidetask.engine.wind import ground_speed
 
 
-def polar_rows(polar: Polar, rows) -> Polar:
-    """The polars of some flights, as a column (n, 1) for broadcasting against legs."""
+#: A final glide from within this share of its leg's start distance of the start counts as
+#: starting there (its table also solves the leg before): far above rounding, far below a metre.
+START_TOLERANCE = 1e-9
+
+
+def polar_rows(polar: Polar, rows, column: bool = True) -> Polar:
+    """The polars of some flights, as a column (n, 1) for broadcasting against legs
+    (``column``), or flat (n,)."""
     def pick(value):
         value = np.asarray(value, dtype=float)
-        return value[rows][:, None] if value.ndim else value
+        if not value.ndim:
+            return value
+        return value[rows][:, None] if column else value[rows]
     return Polar(a=pick(polar.a), b=pick(polar.b), c=pick(polar.c), min_speed_ms=pick(polar.min_speed_ms),
                  vne_ms=pick(polar.vne_ms), mass_kg=pick(polar.mass_kg), wing_area_m2=polar.wing_area_m2,
                  stall_speed_ms=pick(polar.stall_speed_ms))
@@ -35,10 +44,9 @@ class FinalGlideRequirement:
 
 
     def _tail(self, hpm):
-        """Height used from each leg's start to the finish, shape (n, L+1) (0 at the finish)."""
-        used = np.where(self.leg_length == 0.0, 0.0, hpm * self.leg_length)
-        return np.concatenate([np.cumsum(used[..., ::-1], axis=-1)[..., ::-1],
-                               np.zeros(used.shape[:-1] + (1,))], axis=-1)
+        """Height used from each leg's start to the finish, shape (n, L+1) (0 at the finish):
+        :func:`glidetask.engine.flight_ground.height_used_after` over the legs flown."""
+        return height_used_after(hpm, self.leg_length)
 
     def required(self, rows, leg=None, pos=None, hpm=None, tail=None):
         """Required height [m MSL] of flights ``rows`` (n,) at (leg, position in leg): the one
@@ -48,8 +56,13 @@ class FinalGlideRequirement:
         """
         leg = self.leg[rows] if leg is None else leg
         pos = self.position[rows] if pos is None else pos
-        if hpm is None:
-            hpm, tail = self.final_per_metre[rows], self.final_height_after[rows]
+        if hpm is None:  # the present tables, read where they are (the hook gets the rows it needs)
+            required = (self.floor[rows] + self.final_per_metre[rows, leg] * (self.leg_length[leg] - pos)
+                        + self.final_height_after[rows, leg + 1])
+            if self.requirement_hook is not None:
+                required = required + self._extra(required, self.leg_start[leg] + pos, self.final_per_metre[rows],
+                                                  self.floor[rows])
+            return required
         line = np.arange(rows.size)
         required = self.floor[rows] + hpm[line, leg] * (self.leg_length[leg] - pos) + tail[line, leg + 1]
         if self.requirement_hook is not None:
@@ -127,24 +140,43 @@ class FinalGlideRequirement:
         the arrival floor, found by two fixed-point passes from ``estimate`` (default a
         cheap first guess). Each pass shrinks the height error about twenty-fold, so the
         density matches the requirement to a few centimetres (a few decimetres from a
-        poor first guess on long glides).
+        poor first guess on long glides). Only the legs the glide flies are solved
+        (:meth:`_legs_ahead`); the legs behind use no height (0) and have no ground speed (NaN).
         """
         inputs = self.inputs
-        line = np.arange(rows.size)
-        first = self._first_estimate(rows, leg, pos, mc_fg)
-        estimate = first if estimate is None else np.where(np.isfinite(estimate), estimate, first)
+        leg, pos = np.broadcast_to(leg, rows.shape), np.broadcast_to(pos, rows.shape)
+        if estimate is None:
+            estimate = self._first_estimate(rows, leg, pos, mc_fg)
+        else:  # the cheap first guess only where there is no estimate (it is per flight: same bits)
+            estimate = np.array(estimate, dtype=float)
+            missing = np.flatnonzero(~np.isfinite(estimate))
+            if missing.size:
+                estimate[missing] = self._first_estimate(rows[missing], leg[missing], pos[missing], mc_fg[missing])
+        flight, solved = self._legs_ahead(leg, pos)
         for attempt in range(2):
             estimate = np.where(np.isfinite(estimate), estimate, inputs["band_top_m"][rows])
             mid = np.asarray(density_height_m(estimate, self.floor[rows]))
             sigma = np.asarray(density_ratio(mid, inputs["isa_deviation_c"][rows]), dtype=float)
             polar = scaled_polar(self.spec, inputs["mass_kg"][rows], inputs["bugs_percent"][rows], sigma)
             along, across = self._final_wind(rows, mid)
-            glide = glide_in_wind(polar_rows(polar, line), mc_fg[:, None], along, across, self.airmass[rows, None])
-            hpm = np.broadcast_to(glide.height_per_metre, (rows.size, self.legs))
+            glide = glide_in_wind(polar_rows(polar, flight, column=False), mc_fg[flight], along[flight, solved],
+                                  across[flight, solved], self.airmass[rows][flight])
+            hpm, gs = np.zeros((rows.size, self.legs)), np.full((rows.size, self.legs), np.nan)
+            hpm[flight, solved], gs[flight, solved] = glide.height_per_metre, glide.ground_speed_ms
             tail = self._tail(hpm)
             if attempt == 0:  # the next pass's start height, with the terrain's extra: the real start
                 estimate = self.required(rows, leg, pos, hpm, tail)
-        return hpm, np.broadcast_to(glide.ground_speed_ms, hpm.shape), tail, sigma
+        return hpm, gs, tail, sigma
+
+    def _legs_ahead(self, leg, pos):
+        """The (flight, leg) pairs a final glide from (leg, pos) flies: the legs from its own on,
+        and the leg before for a start at (or within a rounding of) its leg's start, which the
+        requirement hook (in metres of the planned path) may place at the end of that leg. The
+        legs behind use no height in the table (and have no ground speed): no glide home from
+        here or further on flies them."""
+        at_start = pos <= START_TOLERANCE * (1.0 + self.leg_start[leg])
+        first = np.maximum(leg - at_start, 0)
+        return np.nonzero(np.arange(self.legs)[None, :] >= first[:, None])
 
     def _final_wind(self, rows, height_m):
         """The final glide's wind along and across each leg, at its middle height (the one

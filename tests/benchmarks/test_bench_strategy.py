@@ -1,9 +1,10 @@
-"""Speed of the strategy tools: the ballast sweep as a whole process, and 10,000 simulated
-flights of a 300 km task.
+"""Speed of the strategy tools: the ballast sweep and the odds as whole processes, and 10,000
+simulated flights of a 300 km task.
 
-The sweep's whole-process time is compared with the bare ``python -c "import numpy,
-scipy.optimize, pyproj"`` measured in the same run (budget: 2.5 times that); the
-simulation's time with its 2 s budget. The figures go into ``extra_info``; there is no
+The sweep's and the odds' whole-process times are compared with the bare ``python -c "import
+numpy, scipy.optimize, pyproj"`` measured in the same run (the sweep's budget: 2.5 times that;
+the odds have no budget of their own: recorded to follow them); the simulation's time with its
+2 s budget. The figures go into ``extra_info``; there is no
 assertion on time (machines differ). In the normal run (benchmarks disabled) each runs
 once and its output is checked.
 """
@@ -17,6 +18,7 @@ from wholeprocess import ROOT, bench_against_baseline
 
 TRIANGLE = ROOT / "demo_tasks" / "vardmoor-triangle-300.toml"
 SWEEP = ["-m", "glidetask", "sweep", str(TRIANGLE), "--json"]
+ODDS = ["-m", "glidetask", "odds", str(TRIANGLE), "--json"]
 SWEEP_BUDGET_RATIO = 2.5
 SIMULATION_RUNS = 10_000
 SIMULATION_BUDGET_S = 2.0
@@ -26,6 +28,13 @@ def test_bench_sweep_whole_process(benchmark):
     output = bench_against_baseline(benchmark, SWEEP, budget_ratio=SWEEP_BUDGET_RATIO)
     data = json.loads(output)
     assert len(data["ballast_kg"]) >= 19 and len(data["thermal_strength_ms"]) == 10
+
+
+def test_bench_odds_whole_process(benchmark):
+    """The CLI's odds: the default simulated days for each ballast choice, and the spacing table."""
+    output = bench_against_baseline(benchmark, ODDS, budget_ratio=None)
+    data = json.loads(output)
+    assert data["runs"] >= 1 and len(data["choices"]) >= 1
 
 
 @pytest.mark.parametrize("terrain", [False, True], ids=["no-terrain", "task-terrain"])
