@@ -341,7 +341,7 @@ SearchHook = Callable[[np.ndarray, np.ndarray], np.ndarray]
 #: ``extra(position_m, height_per_metre, floor_m) -> extra_m``: height to add to the pure
 #: final-glide requirement at ``position_m`` (n,) [m along the course], >= 0. Row ``i`` of
 #: ``height_per_metre`` (n, L) is the final glide's height used per metre on each leg for that
-#: position, ``floor_m`` (n,) its arrival floor, so the pure requirement at any point ``x``
+#: position (legs behind the position are 0: not flown), ``floor_m`` (n,) its arrival floor, so the pure requirement at any point ``x``
 #: ahead is the floor plus the table integrated from ``x`` to the finish. For a terrain check:
 #: the largest (terrain + clearance - pure requirement) over the path ahead, or 0. That
 #: never grows along the path, so using its value at a segment's start is conservative.

@@ -35,7 +35,7 @@ def expected_rows(card, units: str) -> dict[str, str]:
         "bank": f"{best.bank_deg:.0f} deg",
         "airspeed": f"{speed} IAS",
         "circle radius": height,
-        "air rises (the netto reading)": vertical(best.updraft_ms),
+        "the netto reading": vertical(best.updraft_ms),
         "the glider sinks": vertical(best.sink_ms),
         "climb": vertical(best.climb_ms),
     }

@@ -32,7 +32,7 @@ def circling_rows(card, units: UnitSystem) -> list[tuple[str, str]]:
         ("bank", f"{best.bank_deg:.0f} deg"),
         ("airspeed", f"{units.fmt_speed(card.indicated_airspeed_ms)} IAS"),
         ("circle radius", units.fmt_height(best.turn_radius_m)),
-        ("air rises (the netto reading)", units.fmt_vertical(best.updraft_ms)),
+        ("the netto reading", units.fmt_vertical(best.updraft_ms)),  # the air rising on the circle
         ("the glider sinks", units.fmt_vertical(best.sink_ms)),
         ("climb", units.fmt_vertical(best.climb_ms)),
     ]
