@@ -68,8 +68,9 @@ class DayView(ViewScreen):
                                         placeholder=placeholder)
                     if panel_id == "day-practice":
                         yield Static(id="day-practice-note", classes="dim", markup=False)
+                if panel_id == "day-air":  # a day from a sounding: where the air's figures come from
+                    yield Static(id="day-sounding", classes="panel day-panel", markup=False)
             yield CirclingFigures(id="day-circling", classes="panel day-panel")
-            yield Static(id="day-sounding", classes="panel day-panel", markup=False)
         with Vertical(id="day-right"):
             yield ProfileEditor(id="profile-editor", classes="panel")
             yield DayPlot(id="day-plot", classes="panel")
@@ -131,7 +132,7 @@ class DayView(ViewScreen):
         from glidetask.engine.sounding import sounding_drawing
 
         typed = ", ".join(source.overridden)
-        air.border_subtitle = f"from the sounding · typed: {typed}" if typed else "from the sounding"
+        air.border_subtitle = f"sounding · typed: {typed}" if typed else "from the sounding"
         drawing = sounding_drawing(source.sounding, source.derived)
         units, width = self.app.units, 40  # the left column's panel: 46 less borders and padding
         panel.update(Group(Text(sounding_text.source_line(source), style="dim"),
