@@ -123,17 +123,10 @@ def _header(plan, unit: units.UnitSystem) -> list[str]:
 def circling_lines(scenario, unit: units.UnitSystem) -> list[str]:
     """The best circle in the day's strongest thermals: the core, what the variometer reads on
     the circle, the sink in the turn and the climb (empty on a day with no lift)."""
-    from glidetask.engine.circling_card import day_circling
+    from glidetask.formats.briefing import circling_words  # lazily: the plan's text only
 
-    card = day_circling(scenario)
-    if card is None:
-        return []
-    best, v = card.solution, unit.vertical
-    return [f"            circling at {units.format_clock(card.time_s)}: core {unit.fmt_vertical(card.strength_ms)} on the "
-            f"thermal's axis; {best.bank_deg:.0f} deg bank at {unit.fmt_speed(card.indicated_airspeed_ms)} IAS, "
-            f"circle {unit.fmt_height(best.turn_radius_m)} in radius,",
-            f"            where the air rises {v(best.updraft_ms):.1f} (the netto reading) and the glider sinks "
-            f"{v(best.sink_ms):.1f}: climb {unit.fmt_vertical(best.climb_ms)}"]
+    words = circling_words(scenario, unit)
+    return [] if words is None else [f"            {half}" for half in words]
 
 
 def _source_lines(source) -> list[str]:

@@ -44,6 +44,27 @@ class FinalGlideLeg:
     ground_speed_ms: float
 
 
+def flown_final_glide(scenario, path, flown):
+    """The final glide on every leg as the flight core flew it: ``(GlideSolution over the
+    legs, sigma)``, or None without a final glide.
+
+    The final glide's own polar (at its density, ``flown.final_glide_sigma``) and setting
+    (``flown.final_glide_mc_ms``), the day's air-mass motion in the glides, and each leg's
+    course in the wind at the middle of the final glide's start height and its arrival floor,
+    as the core takes them. The one place this glide is solved again after the flight
+    (:func:`glidetask.engine.plan_safety.final_glide_per_metre` reads its height per metre).
+    """
+    sigma, mc = float(flown.final_glide_sigma[0]), float(flown.final_glide_mc_ms[0])
+    if not (math.isfinite(sigma) and math.isfinite(mc)):
+        return None
+    day, glider = scenario.day, scenario.glider
+    floor = scenario.task.points[-1].turnpoint.elevation_m + scenario.safety.arrival_margin_m
+    wind = day.wind_at(density_height_m(float(flown.final_glide_height_m[0]), floor))
+    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), wind.from_deg, wind.speed_ms)
+    polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
+    return glide_in_wind(polar, mc, along, across, day.glide_airmass_ms), sigma
+
+
 def final_glide_speeds(plan) -> tuple[FinalGlideLeg, ...]:
     """The speed to fly on each leg of the plan's final glide; empty when it has none.
 
@@ -54,32 +75,34 @@ def final_glide_speeds(plan) -> tuple[FinalGlideLeg, ...]:
     Notes
     -----
     MacCready speed to fly for a pure glide holding the leg's course
-    (:func:`glidetask.engine.speedtofly.glide_in_wind`), at the plan's final-glide setting,
-    the day's air-mass motion in the glides, the polar at the density the flight core flew
-    the final glide at (``plan.flown.final_glide_sigma``) and the wind at the middle of the
-    final glide's start height and its arrival floor, as the core takes them.
+    (:func:`glidetask.engine.speedtofly.glide_in_wind`), as :func:`flown_final_glide` solves it.
     """
     start = plan.final_glide_from_m
-    sigma = float(plan.flown.final_glide_sigma[0])
-    if not (math.isfinite(start) and math.isfinite(sigma)):
+    flown = flown_final_glide(plan.scenario, plan.path, plan.flown)
+    if flown is None or not math.isfinite(start):
         return ()
-    scenario = plan.scenario
-    day, glider = scenario.day, scenario.glider
-    polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
-    wind = day.wind_at(density_height_m(plan.final_glide_height_m, plan.arrival_floor_m))
+    glide, sigma = flown
+    count = len(plan.path.legs)
+    airspeed = np.broadcast_to(np.asarray(glide.airspeed_ms, dtype=float), (count,))
+    ground = np.broadcast_to(np.asarray(glide.ground_speed_ms, dtype=float), (count,))
     cumulative = plan.path.cumulative_m
     out = []
-    for i, leg in enumerate(plan.path.legs):
+    for i in range(count):
         begin, end = max(float(cumulative[i]), start), float(cumulative[i + 1])
         if end <= begin:
             continue
-        along, across = wind_components(leg.course_deg, wind.from_deg, wind.speed_ms)
-        glide = glide_in_wind(polar, plan.final_glide_mc_ms, along, across, day.glide_airmass_ms)
         out.append(FinalGlideLeg(
-            leg=i, from_m=begin, to_m=end,
-            indicated_airspeed_ms=float(ias_from_tas_at(glide.airspeed_ms, sigma)),
-            airspeed_ms=float(glide.airspeed_ms), ground_speed_ms=float(glide.ground_speed_ms)))
+            leg=i, from_m=begin, to_m=end, indicated_airspeed_ms=float(ias_from_tas_at(airspeed[i], sigma)),
+            airspeed_ms=float(airspeed[i]), ground_speed_ms=float(ground[i])))
     return tuple(out)
+
+
+def heights_card_speeds(plan, mc_values) -> list[float]:
+    """The heights card's last row [m/s IAS]: the speed to fly on the last leg as the plan's
+    own final glide flies it (NaN where that glide does not reach the last leg), then at each
+    setting of ``mc_values`` from the band top (:func:`last_leg_speeds_to_fly`)."""
+    own = [leg for leg in final_glide_speeds(plan) if leg.leg == len(plan.legs) - 1]
+    return [own[0].indicated_airspeed_ms if own else math.nan, *last_leg_speeds_to_fly(plan, mc_values)]
 
 
 def last_leg_speeds_to_fly(plan, mc_values) -> np.ndarray:

@@ -26,13 +26,10 @@ import numpy as np
 
 from glidetask.engine import reach, reach_coverage
 from glidetask.engine.clearance_hook import path_terrain
-from glidetask.engine.finalglide import density_height_m
+from glidetask.engine.final_glide_speeds import flown_final_glide
 from glidetask.engine.flight import Flown
-from glidetask.engine.polar import scaled_polar
 from glidetask.engine.scenario import Scenario
-from glidetask.engine.speedtofly import glide_in_wind
 from glidetask.engine.terrain import TerrainError, load_terrain
-from glidetask.engine.wind import wind_components
 from glidetask.errors import InputError, Problem
 
 COVERAGE_SPACING_M = 1000.0  # landable coverage sampled along the path at least this often [m]
@@ -101,15 +98,10 @@ def final_glide_per_metre(scenario: Scenario, path, flown: Flown) -> np.ndarray:
     (``flown.final_glide_mc_ms``) in each leg's wind, exactly as the flight core flew it;
     NaN without a final glide.
     """
-    sigma, mc = float(flown.final_glide_sigma[0]), float(flown.final_glide_mc_ms[0])
-    if not (math.isfinite(sigma) and math.isfinite(mc)):
+    solved = flown_final_glide(scenario, path, flown)
+    if solved is None:
         return np.full(len(path.legs), np.nan)
-    day, glider = scenario.day, scenario.glider
-    floor = scenario.task.points[-1].turnpoint.elevation_m + scenario.safety.arrival_margin_m
-    wind = day.wind_at(density_height_m(float(flown.final_glide_height_m[0]), floor))  # as the core: its middle
-    along, across = wind_components(np.array([leg.course_deg for leg in path.legs]), wind.from_deg, wind.speed_ms)
-    polar = scaled_polar(glider.spec, glider.mass_kg, glider.bugs_percent, sigma)
-    glide = glide_in_wind(polar, mc, along, across, day.glide_airmass_ms)
+    glide, day = solved[0], scenario.day
     detour = 1.0 + day.detour_percent / 100.0  # per metre of the planned path, flown this much longer
     return np.broadcast_to(np.asarray(glide.height_per_metre, dtype=float) * detour, (len(path.legs),)).copy()
 

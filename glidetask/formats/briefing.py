@@ -19,6 +19,8 @@ import math
 import numpy as np
 
 from glidetask import cautions, units
+from glidetask.engine.circling_card import day_circling
+from glidetask.engine.final_glide_speeds import final_glide_speeds, heights_card_speeds
 from glidetask.engine.plan import CARD_MC_MS, final_glide_card
 from glidetask.formats.safety_report import landables_markdown, terrain_markdown
 from glidetask.formats.strategy_report import sensitivity_markdown
@@ -156,10 +158,7 @@ def _heights(plan, unit) -> list[str]:
     for i, name in enumerate(names):
         rows.append([name, unit.fmt_distance(to_go[i]), need_cell(plan, planned[i], unit)]
                     + [need_cell(plan, card[j, i], unit) for j in range(len(settings))])
-    from glidetask.engine.final_glide_speeds import final_glide_speeds, last_leg_speeds_to_fly
-
-    own = [leg for leg in final_glide_speeds(plan) if leg.leg == len(plan.legs) - 1]
-    speeds = [own[0].indicated_airspeed_ms if own else math.nan, *last_leg_speeds_to_fly(plan, settings)]
+    speeds = heights_card_speeds(plan, settings)
     rows.append([f"Fly on the last leg ({unit.speed_label} IAS)", "", *(_num(unit.speed(v)) if math.isfinite(v)
                                                                          else "-" for v in speeds)])
     margin = unit.fmt_height(plan.scenario.safety.arrival_margin_m)
@@ -174,8 +173,6 @@ def _heights(plan, unit) -> list[str]:
 def final_glide_speed_text(plan, unit) -> str:
     """``, fly 169 km/h IAS (178 TAS)`` for a final glide on one leg; per leg when it spans
     several (``, fly leg 2 150, leg 3 169 km/h IAS``); empty without a final glide."""
-    from glidetask.engine.final_glide_speeds import final_glide_speeds
-
     legs = [leg for leg in final_glide_speeds(plan) if math.isfinite(leg.indicated_airspeed_ms)]
     if not legs:
         return ""
@@ -186,19 +183,28 @@ def final_glide_speed_text(plan, unit) -> str:
     return f", fly {each} {unit.speed_label} IAS"
 
 
-def circling_text(scenario, unit) -> str:
-    """One sentence: the best circle in the day's strongest thermals, or empty with no lift."""
-    from glidetask.engine.circling_card import day_circling
-
+def circling_words(scenario, unit) -> tuple[str, str] | None:
+    """The best circle in the day's strongest thermals in two halves (the circle; what the
+    air and the glider do on it), the text plan's two lines and the briefing's sentence; None
+    on a day with no lift."""
     card = day_circling(scenario)
     if card is None:
-        return ""
+        return None
     best, v = card.solution, unit.vertical
-    return (f"Circling at {format_clock(card.time_s)}: core {unit.fmt_vertical(card.strength_ms)} on the thermal's "
-            f"axis; {best.bank_deg:.0f} deg bank at {unit.fmt_speed(card.indicated_airspeed_ms)} IAS on a circle "
-            f"{unit.fmt_height(best.turn_radius_m)} in radius, where the air rises {v(best.updraft_ms):.1f} (the netto "
-            f"reading) and the glider sinks {v(best.sink_ms):.1f} {unit.vertical_label}: climb "
-            f"{unit.fmt_vertical(best.climb_ms)}.")
+    return (f"circling at {format_clock(card.time_s)}: core {unit.fmt_vertical(card.strength_ms)} on the thermal's "
+            f"axis; {best.bank_deg:.0f} deg bank at {unit.fmt_speed(card.indicated_airspeed_ms)} IAS, circle "
+            f"{unit.fmt_height(best.turn_radius_m)} in radius,",
+            f"where the air rises {v(best.updraft_ms):.1f} (the netto reading) and the glider sinks "
+            f"{v(best.sink_ms):.1f}: climb {unit.fmt_vertical(best.climb_ms)}")
+
+
+def circling_text(scenario, unit) -> str:
+    """One sentence: the best circle in the day's strongest thermals, or empty with no lift."""
+    words = circling_words(scenario, unit)
+    if words is None:
+        return ""
+    sentence = " ".join(words)
+    return sentence[0].upper() + sentence[1:] + "."
 
 
 def _day(plan, unit) -> list[str]:

@@ -11,6 +11,7 @@ from pathlib import Path
 
 import pytest
 from conftest import settle, text_of
+from test_refused_input import type_keys
 
 from glidetask.engine.plan import plan
 from glidetask.formats.task_file import load_scenario
@@ -24,12 +25,6 @@ def demo_copy(tmp_path) -> Path:
     shutil.copytree(ROOT / "demo_tasks", tmp_path / "demo_tasks")
     shutil.copytree(ROOT / "polars", tmp_path / "polars")
     return tmp_path / "demo_tasks" / "vardmoor-out-and-return.toml"
-
-
-async def type_keys(pilot, field_id: str, text: str) -> None:
-    await pilot.click(f"#{field_id}")
-    await pilot.press("home", "ctrl+k", *text)
-    await settle(pilot)
 
 
 async def test_the_practical_assumptions_are_shown_with_their_source(demo_copy, acknowledged):

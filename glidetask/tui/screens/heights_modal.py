@@ -3,6 +3,8 @@ there, and the what-if table: the briefing's tables on screen (key h)."""
 
 from __future__ import annotations
 
+import math
+
 from rich.table import Table
 from rich.text import Text
 from textual import work
@@ -12,6 +14,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Label, Static
 
 from glidetask import cautions
+from glidetask.engine.final_glide_speeds import heights_card_speeds
 from glidetask.formats.strategy_report import what_if_words
 from glidetask.tui import display
 from glidetask.units import KNOT
@@ -58,12 +61,7 @@ def heights_table(outcome, units, codes: dict[str, str] | None = None) -> Table:
 def speeds_row(plan, settings, units) -> list[str]:
     """The speed to fly on the last leg as indicated: the plan's own final glide, then each
     setting from the band top (the briefing's last row, ``glidetask.engine.final_glide_speeds``)."""
-    import math
-
-    from glidetask.engine.final_glide_speeds import final_glide_speeds, last_leg_speeds_to_fly
-
-    own = [leg for leg in final_glide_speeds(plan) if leg.leg == len(plan.legs) - 1]
-    speeds = [own[0].indicated_airspeed_ms if own else math.nan, *last_leg_speeds_to_fly(plan, settings)]
+    speeds = heights_card_speeds(plan, settings)
     return [f"Fly ({units.speed_label} IAS)", "", "",
             *(f"{units.speed(v):.0f}" if math.isfinite(v) else display.DASH for v in speeds)]
 

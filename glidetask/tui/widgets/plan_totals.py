@@ -37,15 +37,15 @@ def final_glide_text(plan, units: UnitSystem, width: int | None = None) -> str:
     start = plan.final_glide_from_m
     if start is None or not math.isfinite(start):
         return "none: the plan does not reach a final glide"
-    out = max(plan.planned_distance_m - start, 0.0)
-    text = (f"from {_distance(units, start)} ({_distance(units, out)} out) at "
-            f"{display.with_unit(display.height(units, plan.final_glide_height_m), units.height_label)}, "
+    out = _distance(units, max(plan.planned_distance_m - start, 0.0))
+    rest = (f" at {display.with_unit(display.height(units, plan.final_glide_height_m), units.height_label)}, "
             f"MacCready {display.with_unit(display.vertical(units, plan.final_glide_mc_ms), units.vertical_label)}")
     legs = [leg for leg in final_glide_speeds(plan) if math.isfinite(leg.indicated_airspeed_ms)]
     if legs:
-        text += f", fly {display.with_unit(display.speed(units, legs[0].indicated_airspeed_ms), units.speed_label)} IAS"
+        rest += f", fly {display.with_unit(display.speed(units, legs[0].indicated_airspeed_ms), units.speed_label)} IAS"
+    text = f"from {_distance(units, start)} ({out} out)" + rest
     if width is not None and len(FINAL_GLIDE_LABEL) + len(text) > width:
-        text = text.replace(f"from {_distance(units, start)} (", "", 1).replace(" out) at ", " out at ", 1)
+        text = f"{out} out" + rest
     return text
 
 
